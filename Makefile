@@ -1,0 +1,92 @@
+# propbench - build, tests, demo and benchmarks.
+# Every target that compiles first runs scripts/install-deps.sh, which installs
+# missing Debian packages (and does nothing when all are present).
+
+CC      ?= cc
+PREFIX  ?= /usr/local
+DESTDIR ?=
+PKGS    := gsl jansson inih
+WARN    := -Wall -Wextra -Wshadow -Wmissing-prototypes -Wstrict-prototypes
+CSTD    := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE
+OPT     ?= -O2 -g
+PB_CFLAGS  = $(CSTD) $(OPT) $(WARN) -I. $(shell pkg-config --cflags $(PKGS) 2>/dev/null) $(CFLAGS)
+PB_LDLIBS  = $(shell pkg-config --libs $(PKGS) 2>/dev/null) -lquadmath -lm $(LDLIBS)
+TEST_LIBS  = $(shell pkg-config --libs criterion 2>/dev/null)
+SAN        := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
+
+LIB_SRC  := $(sort $(wildcard problems/*.c integrators/*.c) $(filter-out bench/main.c bench/bench_main.c,$(wildcard bench/*.c)))
+TEST_SRC := $(sort $(wildcard tests/test_*.c))
+
+B  := build
+BA := build/asan
+LIB_OBJ   := $(LIB_SRC:%.c=$(B)/%.o)
+LIB_OBJ_A := $(LIB_SRC:%.c=$(BA)/%.o)
+TEST_OBJ   := $(TEST_SRC:%.c=$(B)/%.o)
+TEST_OBJ_A := $(TEST_SRC:%.c=$(BA)/%.o)
+
+BIN   := $(B)/propbench
+BIN_A := $(BA)/propbench
+
+.PHONY: all deps demo test test-plain test-asan bench clean install uninstall
+all: $(BIN)
+
+deps:
+	@sh scripts/install-deps.sh
+
+$(B)/%.o: %.c | deps
+	@mkdir -p $(dir $@)
+	$(CC) $(PB_CFLAGS) -MMD -MP -c $< -o $@
+
+$(BA)/%.o: %.c | deps
+	@mkdir -p $(dir $@)
+	$(CC) $(PB_CFLAGS) $(SAN) -MMD -MP -c $< -o $@
+
+$(B)/libpropbench.a: $(LIB_OBJ)
+	@rm -f $@; ar rcs $@ $^
+$(BA)/libpropbench.a: $(LIB_OBJ_A)
+	@rm -f $@; ar rcs $@ $^
+
+$(BIN): $(B)/bench/main.o $(B)/libpropbench.a
+	$(CC) $(PB_CFLAGS) -o $@ $^ $(PB_LDLIBS)
+$(BIN_A): $(BA)/bench/main.o $(BA)/libpropbench.a
+	$(CC) $(PB_CFLAGS) $(SAN) -o $@ $^ $(PB_LDLIBS)
+
+$(B)/run_tests: $(TEST_OBJ) $(B)/libpropbench.a
+	$(CC) $(PB_CFLAGS) -o $@ $^ $(TEST_LIBS) $(PB_LDLIBS)
+$(BA)/run_tests: $(TEST_OBJ_A) $(BA)/libpropbench.a
+	$(CC) $(PB_CFLAGS) $(SAN) -o $@ $^ $(TEST_LIBS) $(PB_LDLIBS)
+
+$(B)/bench_main: $(B)/bench/bench_main.o $(B)/libpropbench.a
+	$(CC) $(PB_CFLAGS) -o $@ $^ $(PB_LDLIBS)
+
+# The suite runs twice: a plain optimised build, then under ASan + UBSan.
+# Tests find the CLI through PB_BIN and write scratch files below PB_TMP.
+test: test-plain test-asan
+
+test-plain: $(B)/run_tests $(BIN)
+	PB_WITH_BROWSER=1 sh scripts/install-deps.sh
+	PB_BIN=$(CURDIR)/$(BIN) PB_ROOT=$(CURDIR) ./$(B)/run_tests --jobs 2
+
+test-asan: $(BA)/run_tests $(BIN_A)
+	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
+	PB_SANITIZED=1 PB_BIN=$(CURDIR)/$(BIN_A) PB_ROOT=$(CURDIR) ./$(BA)/run_tests --jobs 2
+
+demo: $(BIN)
+	sh scripts/demo.sh $(BIN)
+
+bench: $(B)/bench_main $(BIN)
+	./$(B)/bench_main
+
+install: $(BIN)
+	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/propbench
+	install -m 755 $(BIN) $(DESTDIR)$(PREFIX)/bin/propbench
+	install -m 644 README.md $(DESTDIR)$(PREFIX)/share/propbench/README.md
+
+uninstall:
+	rm -f $(DESTDIR)$(PREFIX)/bin/propbench
+	rm -rf $(DESTDIR)$(PREFIX)/share/propbench
+
+clean:
+	rm -rf $(B)
+
+-include $(LIB_OBJ:.o=.d) $(TEST_OBJ:.o=.d) $(LIB_OBJ_A:.o=.d) $(TEST_OBJ_A:.o=.d) $(B)/bench/main.d

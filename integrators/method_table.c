@@ -1,0 +1,21 @@
+/* method_table.c - the registry of methods, in display order. Adding a method
+ * is one file, one extern line and one table line here. */
+#include <string.h>
+#include "method.h"
+
+extern const pb_method_type pb_method_rk4;
+extern const pb_method_type pb_method_leapfrog;
+
+const pb_method_type *const pb_method_table[] = {
+    &pb_method_rk4,
+    &pb_method_leapfrog,
+    NULL
+};
+
+const pb_method_type *pb_method_find(const char *name)
+{
+    for (const pb_method_type *const *m = pb_method_table; *m; m++)
+        if (strcmp((*m)->name, name) == 0)
+            return *m;
+    return NULL;
+}
