@@ -1,0 +1,28 @@
+/* test_support.h - helpers shared by the test files: drive one method on one
+ * problem to a time, counting evaluations the way the harness does. */
+#ifndef PB_TEST_SUPPORT_H
+#define PB_TEST_SUPPORT_H
+
+#include "../integrators/method.h"
+
+typedef struct pbt_result {
+    int status;
+    double t;                      /* time reached */
+    double r[PB_DIM_MAX], v[PB_DIM_MAX];
+    long evals, steps, rejected;
+    double t_fail;
+} pbt_result;
+
+/* Integrate p from p->t0 to t_end with method m and configuration cfg
+ * (one advance call), through the harness's counting force wrapper. */
+pbt_result pbt_integrate(const pb_method_type *m, const pb_problem *p,
+                         const pb_method_config *cfg, double t_end);
+
+/* Position error |r - r_exact(t)| against the problem's exact solution
+ * evaluated in __float128. */
+double pbt_pos_error(const pb_problem *p, const pbt_result *res);
+
+/* 1 when the tests run under the sanitizers (long runs may shrink). */
+int pbt_sanitized(void);
+
+#endif
