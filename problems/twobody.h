@@ -38,6 +38,9 @@ int pb_universal_propagate(double mu, const double *r0, const double *v0, double
 int pb_universal_propagate_q(__float128 mu, const __float128 *r0, const __float128 *v0,
                              __float128 dt, __float128 *r, __float128 *v);
 
+/* Unit radial R = r/|r|, cross-track C = r x v/|r x v| and in-track I = C x R. */
+void pb_ric_frame(const double *r, const double *v, double *R, double *I, double *C);
+
 /* Fill p with a two-body problem from a state (dim 3): force, invariants,
  * period (0 if not elliptic) and the exact solution. */
 void pb_problem_init_twobody(pb_problem *p, const char *name, const char *description,

@@ -1,0 +1,163 @@
+/* universal_impl.h - the universal-variable two-body flow, written once and
+ * included by universal.c for double and for __float128 (Bate, Mueller, White
+ * (1971) ch. 4; Vallado 4th ed. Alg. 8). The includer defines UV_REAL, UV_SUF,
+ * UV_PUBLIC, UV_EPS, UV_PI and the math macros UV_SQRT, UV_SIN, ... */
+
+#define UV_CAT2(a, b) a##b
+#define UV_CAT(a, b) UV_CAT2(a, b)
+#define UV_FN(name) UV_CAT(name, UV_SUF)
+
+/* Stumpff functions c2(psi) = (1 - cos s)/psi, c3(psi) = (s - sin s)/s^3,
+ * s = sqrt(psi). c2 uses the half-angle form 2 sin^2(s/2)/psi, which has no
+ * cancellation; c3 cancels for small |psi|, so there it is a series. */
+static void UV_FN(uv_stumpff)(UV_REAL psi, UV_REAL *c2, UV_REAL *c3)
+{
+    const UV_REAL one = 1, two = 2, half = (UV_REAL)0.5;
+    if (UV_FABS(psi) < one) {
+        /* c2 = sum (-psi)^k/(2k+2)!, c3 = sum (-psi)^k/(2k+3)! */
+        UV_REAL t2 = half, t3 = one / (UV_REAL)6, s2 = 0, s3 = 0;
+        for (int k = 0; k < 40; k++) {
+            s2 += t2;
+            s3 += t3;
+            t2 *= -psi / (UV_REAL)((2 * k + 3) * (2 * k + 4));
+            t3 *= -psi / (UV_REAL)((2 * k + 4) * (2 * k + 5));
+            if (UV_FABS(t2) < UV_EPS * (UV_REAL)1e-2 * s2 &&
+                UV_FABS(t3) < UV_EPS * (UV_REAL)1e-2 * s3)
+                break;
+        }
+        *c2 = s2;
+        *c3 = s3;
+    } else if (psi > 0) {
+        UV_REAL s = UV_SQRT(psi), h = UV_SIN(half * s);
+        *c2 = two * h * h / psi;
+        *c3 = (s - UV_SIN(s)) / (psi * s);
+    } else {
+        UV_REAL s = UV_SQRT(-psi), h = UV_SINH(half * s);
+        *c2 = two * h * h / (-psi);
+        *c3 = (UV_SINH(s) - s) / (-psi * s);
+    }
+}
+
+/* Residual of the universal Kepler equation, scaled by sqrt(mu):
+ * F(x) = sigma0 x^2 c2 + (1 - alpha r0) x^3 c3 + r0 x - sqrt(mu) dt.
+ * Its derivative is the radius r(x) > 0, so F is strictly increasing. */
+static UV_REAL UV_FN(uv_residual)(UV_REAL x, UV_REAL alpha, UV_REAL r0n, UV_REAL sigma0,
+                                  UV_REAL smu_dt, UV_REAL *dF)
+{
+    UV_REAL c2, c3, psi = alpha * x * x;
+    UV_FN(uv_stumpff)(psi, &c2, &c3);
+    UV_REAL x2 = x * x;
+    *dF = x2 * c2 + sigma0 * x * (1 - psi * c3) + r0n * (1 - psi * c2);
+    return sigma0 * x2 * c2 + (1 - alpha * r0n) * x2 * x * c3 + r0n * x - smu_dt;
+}
+
+/* Contract: the exact two-body state (r, v) at dt after (r0, v0), for any
+ * conic. Returns PB_EINVAL for mu <= 0 or r0 = 0, PB_ENOCONV if the
+ * universal anomaly cannot be found (overflow on a huge hyperbolic span). */
+int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
+              UV_REAL *r, UV_REAL *v)
+{
+    UV_REAL r0n = UV_SQRT(r0[0] * r0[0] + r0[1] * r0[1] + r0[2] * r0[2]);
+    UV_REAL v0s = v0[0] * v0[0] + v0[1] * v0[1] + v0[2] * v0[2];
+    if (!(mu > 0) || !(r0n > 0) || !UV_FINITE(v0s) || !UV_FINITE(dt))
+        return PB_EINVAL;
+    UV_REAL smu = UV_SQRT(mu);
+    UV_REAL sigma0 = (r0[0] * v0[0] + r0[1] * v0[1] + r0[2] * v0[2]) / smu;
+    UV_REAL alpha = 2 / r0n - v0s / mu;   /* 1/a; 0 for a parabola */
+
+    UV_REAL lo, hi, x;
+    if (alpha > 0) {
+        /* Reduce dt to [-T/2, T/2]: a whole period maps the state to itself,
+         * and a small anomaly keeps the Stumpff arguments small. */
+        UV_REAL sa = UV_SQRT(alpha);
+        UV_REAL T = 2 * UV_PI / (smu * alpha * sa);
+        UV_REAL k = UV_ROUND(dt / T);
+        if (k != 0)
+            dt = UV_FMA(-k, T, dt);
+        /* |dt| <= T/2 means |x| <= pi sqrt(a); widen a little for rounding. */
+        hi = (UV_REAL)1.1 * UV_PI / sa;
+        lo = -hi;
+        x = smu * dt * alpha;
+    } else {
+        x = smu * dt / r0n;
+        lo = hi = 0;
+    }
+    if (dt == 0) {
+        for (int i = 0; i < 3; i++) {
+            r[i] = r0[i];
+            v[i] = v0[i];
+        }
+        return PB_OK;
+    }
+    UV_REAL smu_dt = smu * dt, dF;
+    if (!(alpha > 0)) {
+        /* Bracket by doubling away from 0 in the direction of dt; F grows at
+         * least like x^3 (parabola) or exponentially (hyperbola). */
+        UV_REAL step = x;
+        int n = 0;
+        for (;;) {
+            UV_REAL F = UV_FN(uv_residual)(step, alpha, r0n, sigma0, smu_dt, &dF);
+            if (!UV_FINITE(F))
+                return PB_ENOCONV;
+            if ((dt > 0 && F >= 0) || (dt < 0 && F <= 0))
+                break;
+            if (++n > 2000)
+                return PB_ENOCONV;
+            step *= 2;
+        }
+        if (dt > 0) {
+            lo = n ? step / 2 : 0;
+            hi = step;
+        } else {
+            hi = n ? step / 2 : 0;
+            lo = step;
+        }
+        x = (lo + hi) / 2;
+    }
+    if (x <= lo || x >= hi)
+        x = (lo + hi) / 2;
+
+    /* Newton safeguarded by the bracket: a step that leaves [lo, hi] is
+     * replaced by bisection, so convergence never depends on the starter. */
+    int it;
+    for (it = 0; it < 400; it++) {
+        UV_REAL F = UV_FN(uv_residual)(x, alpha, r0n, sigma0, smu_dt, &dF);
+        if (F == 0)
+            break;
+        if (F < 0)
+            lo = x;
+        else
+            hi = x;
+        UV_REAL xn = x - F / dF;
+        if (!(xn > lo && xn < hi))
+            xn = lo + (hi - lo) / 2;
+        UV_REAL dx = xn - x;
+        x = xn;
+        if (UV_FABS(dx) <= 4 * UV_EPS * UV_FABS(x) || hi - lo <= 4 * UV_EPS * UV_FABS(x))
+            break;
+    }
+    if (it == 400)
+        return PB_ENOCONV;
+
+    UV_REAL c2, c3, psi = alpha * x * x, x2 = x * x;
+    UV_FN(uv_stumpff)(psi, &c2, &c3);
+    UV_REAL f = 1 - x2 * c2 / r0n;
+    /* g from x alone (no cancellation against dt): sqrt(mu) g = sigma0 x^2 c2 + r0 x (1 - psi c3) */
+    UV_REAL g = (sigma0 * x2 * c2 + r0n * x * (1 - psi * c3)) / smu;
+    UV_REAL rr[3];
+    for (int i = 0; i < 3; i++)
+        rr[i] = f * r0[i] + g * v0[i];
+    UV_REAL rn = UV_SQRT(rr[0] * rr[0] + rr[1] * rr[1] + rr[2] * rr[2]);
+    UV_REAL fd = smu / (rn * r0n) * x * (psi * c3 - 1);
+    UV_REAL gd = 1 - x2 * c2 / rn;
+    for (int i = 0; i < 3; i++) {
+        UV_REAL vi = fd * r0[i] + gd * v0[i];
+        r[i] = rr[i];
+        v[i] = vi;
+    }
+    return PB_OK;
+}
+
+#undef UV_FN
+#undef UV_CAT
+#undef UV_CAT2
