@@ -5,10 +5,18 @@
 
 extern const pb_method_type pb_method_rk4;
 extern const pb_method_type pb_method_leapfrog;
+extern const pb_method_type pb_method_yoshida4;
+extern const pb_method_type pb_method_yoshida6;
+extern const pb_method_type pb_method_yoshida8;
+extern const pb_method_type pb_method_rkf45;
 
 const pb_method_type *const pb_method_table[] = {
     &pb_method_rk4,
     &pb_method_leapfrog,
+    &pb_method_yoshida4,
+    &pb_method_yoshida6,
+    &pb_method_yoshida8,
+    &pb_method_rkf45,
     NULL
 };
 
