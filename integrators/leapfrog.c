@@ -21,6 +21,9 @@ typedef struct leapfrog_ws {
 
 static void *leapfrog_alloc(int dim)
 {
+    /* the step keeps PB_DIM_MAX-sized scratch on the stack */
+    if (dim < 1 || dim > PB_DIM_MAX)
+        return NULL;
     leapfrog_ws *w = calloc(1, sizeof *w);
     if (!w)
         return NULL;

@@ -1,6 +1,7 @@
 /* rk4.c - the classical fourth-order Runge-Kutta method, first-order form
  * y = (r, v). Source: Kutta (1901); tableau as in Abramowitz & Stegun 25.5.10.
- * Optional compensated (Kahan) summation of the state update. */
+ * Optional compensated (Kahan) summation of the state update. Time is t0 + n*h
+ * from the integer step count, never a summed clock. */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -19,6 +20,8 @@ typedef struct rk4_ws {
 
 static void *rk4_alloc(int dim)
 {
+    if (dim < 1 || dim > PB_DIM_MAX)
+        return NULL;
     rk4_ws *w = calloc(1, sizeof *w);
     if (!w)
         return NULL;
@@ -90,13 +93,15 @@ static int rk4_step(rk4_ws *w, double t, double h)
         yt[i] = y[i] + h * w->k3[i];
     if ((s = rk4_deriv(w, t + h, yt, w->k4)))
         return s;
+    /* k1[i] is dead once inc is formed: it holds the new compensation until
+     * the whole step is known finite, so a failed step leaves y and comp intact */
     for (i = 0; i < n; i++) {
         double inc = h / 6.0 * (w->k1[i] + 2.0 * (w->k2[i] + w->k3[i]) + w->k4[i]);
         if (w->cfg.compensated) {
             /* Kahan: carry the low-order bits the addition to y[i] drops */
             double dx = inc - w->comp[i];
             double sum = y[i] + dx;
-            w->comp[i] = (sum - y[i]) - dx;
+            w->k1[i] = (sum - y[i]) - dx;
             yt[i] = sum;
         } else {
             yt[i] = y[i] + inc;
@@ -105,6 +110,8 @@ static int rk4_step(rk4_ws *w, double t, double h)
             return PB_ENONFINITE;
     }
     memcpy(y, yt, (size_t)n * sizeof(double));
+    if (w->cfg.compensated)
+        memcpy(w->comp, w->k1, (size_t)n * sizeof(double));
     return PB_OK;
 }
 
