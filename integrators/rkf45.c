@@ -236,6 +236,8 @@ static int rkf45_advance(void *ws, double t_out, pb_step_observer obs, void *oct
     if (!(t_out >= w->t))
         return PB_EINVAL;
     while (w->t < t_out) {
+        if (w->cfg.max_steps > 0 && w->st.steps + w->st.rejected >= w->cfg.max_steps)
+            return PB_EMAXSTEPS;
         if (!w->have_k1) {
             if ((s = rkf45_deriv(w, w->t, w->y, w->k[0]))) {
                 w->st.t_fail = w->t;
@@ -247,8 +249,6 @@ static int rkf45_advance(void *ws, double t_out, pb_step_observer obs, void *oct
             w->st.t_fail = w->t;
             return s;
         }
-        if (w->cfg.max_steps > 0 && w->st.steps + w->st.rejected >= w->cfg.max_steps)
-            return PB_EMAXSTEPS;
         if (w->h < w->hmin || w->t + w->h == w->t) {
             w->st.t_fail = w->t;
             return PB_EMINSTEP;
