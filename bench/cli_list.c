@@ -1,0 +1,85 @@
+/* cli_list.c - `propbench list [methods|problems|suites]`. */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+#include "cli.h"
+#include "suites.h"
+#include "../problems/catalogue.h"
+#include "../problems/summary.h"
+
+static void list_help(FILE *f)
+{
+    fprintf(f, "usage: propbench list [methods|problems|suites]\n\n"
+               "Show the built-in methods (order, kind, form), problems (a, e, period,\n"
+               "energy, angular momentum) and sweep suites. Without an argument, all three.\n");
+}
+
+static const char *list_kind(unsigned fl)
+{
+    if (fl & PB_KIND_MULTISTEP) return "multistep";
+    if (fl & PB_KIND_SYMPLECTIC) return "symplectic";
+    if (fl & PB_KIND_ADAPTIVE) return "adaptive";
+    return "fixed";
+}
+
+static void list_methods(void)
+{
+    printf("%-15s %5s  %-10s %-6s %-26s %s\n", "method", "order", "kind", "step", "form", "description");
+    for (const pb_method_type *const *t = pb_method_table; *t; t++) {
+        const pb_method_type *m = *t;
+        printf("%-15s %5d  %-10s %-6s %-26s %s%s\n", m->name, m->order, list_kind(m->flags),
+               (m->flags & PB_KIND_FIXED) ? "fixed" : "adapt",
+               (m->flags & PB_FORM_SECOND) ? "2nd order, a(r) only" : "1st order y=(r,v)",
+               m->description, (m->flags & PB_KIND_COMPENSABLE) ? " [--compensated]" : "");
+    }
+}
+
+static void list_num(double x)
+{
+    if (isfinite(x))
+        printf(" %13.6g", x);
+    else
+        printf(" %13s", "-");
+}
+
+static void list_problems(void)
+{
+    printf("%-20s %-10s %13s %13s %13s %13s %13s  %s\n", "problem", "units", "a", "e",
+           "period", "energy", "ang.mom.", "description");
+    for (const pb_problem_entry *e = pb_problem_table; e->name; e++) {
+        pb_problem p;
+        pb_problem_facts f;
+        if (e->make(&p) || pb_problem_summary(&p, &f))
+            continue;
+        printf("%-20s %-10s", p.name, p.units == PB_UNITS_KM_S ? "km-s" : "normalized");
+        list_num(f.a);
+        list_num(f.e);
+        list_num(f.period > 0 ? f.period : NAN);
+        list_num(f.energy);
+        list_num(f.angmom);
+        printf("  %s\n", p.description);
+    }
+}
+
+int pb_cli_list(int argc, char **argv)
+{
+    if (argc > 2 || (argc == 2 && (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h")))) {
+        list_help(argc == 2 ? stdout : stderr);
+        return argc == 2 ? PB_EXIT_OK : PB_EXIT_USAGE;
+    }
+    const char *what = argc == 2 ? argv[1] : "all";
+    int all = !strcmp(what, "all");
+    if (!all && strcmp(what, "methods") && strcmp(what, "problems") && strcmp(what, "suites"))
+        return pb_cli_error("list", "unknown list '%s' (methods, problems or suites)", what);
+    if (all || !strcmp(what, "methods"))
+        list_methods();
+    if (all)
+        printf("\n");
+    if (all || !strcmp(what, "problems"))
+        list_problems();
+    if (all)
+        printf("\n");
+    if (all || !strcmp(what, "suites"))
+        pb_suites_print(stdout);
+    return PB_EXIT_OK;
+}

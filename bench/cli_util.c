@@ -1,0 +1,75 @@
+/* cli_util.c - shared command-line helpers (see cli.h). */
+#include <errno.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+#include "cli.h"
+#include "../problems/catalogue.h"
+
+int pb_cli_error(const char *verb, const char *fmt, ...)
+{
+    va_list ap;
+    fprintf(stderr, "propbench %s: error: ", verb);
+    va_start(ap, fmt);
+    vfprintf(stderr, fmt, ap);
+    va_end(ap);
+    fputc('\n', stderr);
+    return PB_EXIT_USAGE;
+}
+
+int pb_cli_double(const char *verb, const char *opt, const char *s, double *out)
+{
+    char *end;
+    errno = 0;
+    double x = strtod(s, &end);
+    if (end == s || *end || errno == ERANGE || !isfinite(x)) {
+        pb_cli_error(verb, "%s expects a finite number, got '%s'", opt, s);
+        return -1;
+    }
+    *out = x;
+    return 0;
+}
+
+int pb_cli_long(const char *verb, const char *opt, const char *s, long *out)
+{
+    char *end;
+    errno = 0;
+    long x = strtol(s, &end, 10);
+    if (end == s || *end || errno == ERANGE) {
+        pb_cli_error(verb, "%s expects a whole number, got '%s'", opt, s);
+        return -1;
+    }
+    *out = x;
+    return 0;
+}
+
+int pb_cli_problem(const char *verb, const char *name, pb_problem *out)
+{
+    if (pb_problem_lookup(name, out) == PB_OK)
+        return 0;
+    fprintf(stderr, "propbench %s: error: unknown problem '%s'; known problems:", verb, name);
+    for (const pb_problem_entry *e = pb_problem_table; e->name; e++)
+        fprintf(stderr, " %s", e->name);
+    fprintf(stderr, " (see 'propbench list problems')\n");
+    return -1;
+}
+
+const pb_method_type *pb_cli_method(const char *verb, const char *name)
+{
+    const pb_method_type *m = pb_method_find(name);
+    if (m)
+        return m;
+    fprintf(stderr, "propbench %s: error: unknown method '%s'; known methods:", verb, name);
+    for (const pb_method_type *const *t = pb_method_table; *t; t++)
+        fprintf(stderr, " %s", (*t)->name);
+    fputc('\n', stderr);
+    return NULL;
+}
+
+int pb_cli_progress_wanted(int quiet)
+{
+    return !quiet && isatty(STDERR_FILENO);
+}

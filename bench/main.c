@@ -1,0 +1,38 @@
+/* main.c - propbench's command line: dispatch a verb to its handler. */
+#include <stdio.h>
+#include <string.h>
+#include "cli.h"
+
+typedef struct { const char *name; int (*fn)(int, char **); const char *what; } main_verb;
+
+static const main_verb main_verbs[] = {
+    {"list", pb_cli_list, "methods, problems and suites"},
+    {"run", pb_cli_run, "one case: problem x method x step or tolerance x horizon"},
+    {NULL, NULL, NULL}
+};
+
+static void main_usage(FILE *f)
+{
+    fprintf(f, "usage: propbench VERB [options]   (propbench VERB --help)\n\nverbs:\n");
+    for (const main_verb *v = main_verbs; v->name; v++)
+        fprintf(f, "  %-9s %s\n", v->name, v->what);
+    fprintf(f, "\nexit status: 0 ok, 1 regression or requirement not met, 2 bad input or usage\n");
+}
+
+int main(int argc, char **argv)
+{
+    if (argc < 2) {
+        main_usage(stderr);
+        return PB_EXIT_USAGE;
+    }
+    if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
+        main_usage(stdout);
+        return PB_EXIT_OK;
+    }
+    for (const main_verb *v = main_verbs; v->name; v++)
+        if (!strcmp(argv[1], v->name))
+            return v->fn(argc - 1, argv + 1);
+    fprintf(stderr, "propbench: error: unknown verb '%s'\n", argv[1]);
+    main_usage(stderr);
+    return PB_EXIT_USAGE;
+}

@@ -1,0 +1,149 @@
+/* run_dir.c - atomic files and the per-case CSV series. */
+#include <errno.h>
+#include <stdarg.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+#include "run_dir.h"
+
+int pb_mkdirs(const char *path)
+{
+    char buf[4096];
+    if (strlen(path) >= sizeof buf) {
+        errno = ENAMETOOLONG;
+        return -1;
+    }
+    strcpy(buf, path);
+    for (char *p = buf + 1; *p; p++) {
+        if (*p != '/')
+            continue;
+        *p = 0;
+        if (mkdir(buf, 0777) && errno != EEXIST)
+            return -1;
+        *p = '/';
+    }
+    if (mkdir(buf, 0777) && errno != EEXIST)
+        return -1;
+    return 0;
+}
+
+int pb_write_atomic(const char *path, const char *data, size_t len)
+{
+    char tmp[4200];
+    snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid());
+    FILE *f = fopen(tmp, "wb");
+    if (!f)
+        return -1;
+    size_t w = fwrite(data, 1, len, f);
+    int bad = (w != len) | (fflush(f) != 0) | (fsync(fileno(f)) != 0);
+    bad |= fclose(f) != 0;
+    if (bad || rename(tmp, path)) {
+        unlink(tmp);
+        return -1;
+    }
+    return 0;
+}
+
+int pb_json_write_atomic(const char *path, const json_t *doc)
+{
+    char *s = json_dumps(doc, JSON_INDENT(1) | JSON_PRESERVE_ORDER | JSON_REAL_PRECISION(17));
+    if (!s)
+        return -1;
+    size_t n = strlen(s);
+    char *t = realloc(s, n + 2);
+    if (!t) {
+        free(s);
+        return -1;
+    }
+    t[n] = '\n';
+    t[n + 1] = 0;
+    int rc = pb_write_atomic(path, t, n + 1);
+    free(t);
+    return rc;
+}
+
+/* A growable text buffer for the CSV (a few hundred rows at most). */
+typedef struct { char *s; size_t n, cap; int bad; } series_buf;
+
+static void series_printf(series_buf *b, const char *fmt, ...)
+    __attribute__((format(printf, 2, 3)));
+
+static void series_printf(series_buf *b, const char *fmt, ...)
+{
+    if (b->bad)
+        return;
+    for (;;) {
+        va_list ap;
+        va_start(ap, fmt);
+        int k = vsnprintf(b->s + b->n, b->cap - b->n, fmt, ap);
+        va_end(ap);
+        if (k < 0) {
+            b->bad = 1;
+            return;
+        }
+        if ((size_t)k < b->cap - b->n) {
+            b->n += (size_t)k;
+            return;
+        }
+        size_t nc = 2 * b->cap + (size_t)k + 64;
+        char *ns = realloc(b->s, nc);
+        if (!ns) {
+            b->bad = 1;
+            return;
+        }
+        b->s = ns;
+        b->cap = nc;
+    }
+}
+
+static void series_num(series_buf *b, double x)
+{
+    if (isfinite(x))
+        series_printf(b, ",%.9e", x);
+    else
+        series_printf(b, ",");
+}
+
+int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res)
+{
+    char path[4096];
+    snprintf(path, sizeof path, "%s/series", dir);
+    if (pb_mkdirs(path))
+        return -1;
+    snprintf(path, sizeof path, "%s/series/%s.csv", dir, res->id);
+    const char *L = spec->problem.units == PB_UNITS_KM_S ? "km" : "DU";
+    const char *V = spec->problem.units == PB_UNITS_KM_S ? "km/s" : "DU/TU";
+    const char *T = spec->problem.units == PB_UNITS_KM_S ? "s" : "TU";
+    series_buf b = {malloc(4096), 0, 4096, 0};
+    if (!b.s)
+        return -1;
+    series_printf(&b, "t[%s],orbits[-],log_sample[-],energy_rel[-],energy_rel_window_max[-],"
+                  "angmom_rel[-],angmom_rel_window_max[-],ecc_drift[-],apsis_angle[rad],"
+                  "pos_err[%s],vel_err[%s],radial[%s],along_track[%s],cross_track[%s],"
+                  "truth_floor[%s]\n", T, L, V, L, L, L, L);
+    for (int k = 0; k < res->nsamples; k++) {
+        const pb_sample *s = &res->samples[k];
+        series_printf(&b, "%.17g", s->t);
+        series_num(&b, s->orbits);
+        series_printf(&b, ",%d", s->on_log_grid);
+        series_num(&b, s->energy_rel);
+        series_num(&b, s->energy_rel_window);
+        series_num(&b, s->angmom_rel);
+        series_num(&b, s->angmom_rel_window);
+        series_num(&b, s->ecc_drift);
+        series_num(&b, s->apsis_angle);
+        series_num(&b, s->pos_err);
+        series_num(&b, s->vel_err);
+        series_num(&b, s->radial);
+        series_num(&b, s->along);
+        series_num(&b, s->cross);
+        series_num(&b, s->truth_floor);
+        series_printf(&b, "\n");
+    }
+    int rc = b.bad ? -1 : pb_write_atomic(path, b.s, b.n);
+    free(b.s);
+    return rc;
+}

@@ -1,0 +1,25 @@
+/* run_dir.h - the run directory on disk: results/runs/<name>/ with
+ * summary.json, series/<case>.csv, plots/, report.*. Every file is written to
+ * a temporary name and renamed, so an interrupted run never leaves a
+ * half-written file. */
+#ifndef PB_RUN_DIR_H
+#define PB_RUN_DIR_H
+
+#include <stddef.h>
+#include <jansson.h>
+#include "case.h"
+
+/* mkdir -p; 0 or -1 with errno. */
+int pb_mkdirs(const char *path);
+
+/* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1. */
+int pb_write_atomic(const char *path, const char *data, size_t len);
+
+/* Dump JSON (indented, keys in insertion order) atomically; 0 or -1. */
+int pb_json_write_atomic(const char *path, const json_t *doc);
+
+/* Write the case's samples as CSV (header names columns with units) to
+ * dir/series/<id>.csv atomically; 0 or -1. */
+int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res);
+
+#endif

@@ -1,0 +1,21 @@
+/* sampler.h - the sample times of a case: log-spaced whole periods (1, 2, 3,
+ * 5, 7, 10, 20, ...) that the growth fits use, merged with a linear grid for
+ * plots. The count grows with log(horizon), so memory does not grow with it. */
+#ifndef PB_SAMPLER_H
+#define PB_SAMPLER_H
+
+typedef struct pb_sample_plan {
+    int n;
+    double *t;          /* absolute times, increasing, last = end of horizon */
+    int *on_log_grid;   /* 1 for log-spaced whole-period samples */
+} pb_sample_plan;
+
+/* Plan samples from t0 over `horizon` time units. scale is the period (or, for
+ * problems without one, the horizon itself). When h > 0 every time is put on
+ * the grid t0 + n*h (n integer), as fixed-step methods need. Returns 0, or -1
+ * when out of memory. Owner: the caller (pb_sample_plan_free). */
+int pb_sample_plan_make(double t0, double horizon, double scale, double h,
+                        int linear_samples, pb_sample_plan *plan);
+void pb_sample_plan_free(pb_sample_plan *plan);
+
+#endif
