@@ -10,6 +10,8 @@ enum { PB_EXIT_OK = 0, PB_EXIT_FAIL = 1, PB_EXIT_USAGE = 2 };
 
 int pb_cli_list(int argc, char **argv);
 int pb_cli_run(int argc, char **argv);
+int pb_cli_sweep(int argc, char **argv);
+int pb_cli_merge(int argc, char **argv);
 
 /* Print "propbench VERB: error: ..." to stderr; returns PB_EXIT_USAGE. */
 int pb_cli_error(const char *verb, const char *fmt, ...) __attribute__((format(printf, 2, 3)));

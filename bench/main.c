@@ -8,6 +8,8 @@ typedef struct { const char *name; int (*fn)(int, char **); const char *what; } 
 static const main_verb main_verbs[] = {
     {"list", pb_cli_list, "methods, problems and suites"},
     {"run", pb_cli_run, "one case: problem x method x step or tolerance x horizon"},
+    {"sweep", pb_cli_sweep, "a suite or grid of cases (-j N workers, --shard K/N)"},
+    {"merge", pb_cli_merge, "join shards of a sweep into one run"},
     {NULL, NULL, NULL}
 };
 

@@ -1,0 +1,147 @@
+/* cli_merge.c - `propbench merge --out DIR SHARD_DIR...`: join the shards of
+ * a sweep into one run directory equal to the unsharded run (cases in their
+ * original order, series files copied). */
+#include <getopt.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include "cli.h"
+#include "case_json.h"
+#include "run_dir.h"
+#include "sweep.h"
+
+static void merge_help(FILE *f)
+{
+    fprintf(f, "usage: propbench merge --out DIR SHARD_DIR [SHARD_DIR ...]\n\n"
+               "Join run directories written by 'sweep --shard K/N' into DIR.\n"
+               "Fails (exit 2) on unreadable or incompatible shards and on duplicate\n"
+               "cases; warns when cases are missing.\n");
+}
+
+static int merge_cmp(const void *a, const void *b)
+{
+    json_int_t x = json_integer_value(json_object_get(*(json_t *const *)a, "index"));
+    json_int_t y = json_integer_value(json_object_get(*(json_t *const *)b, "index"));
+    return (x > y) - (x < y);
+}
+
+int pb_cli_merge(int argc, char **argv)
+{
+    static const struct option opts[] = {{"out", required_argument, 0, 'o'},
+                                         {"help", no_argument, 0, 'h'}, {0, 0, 0, 0}};
+    const char *out = NULL;
+    optind = 1;
+    opterr = 0;
+    int c;
+    while ((c = getopt_long(argc, argv, "", opts, NULL)) != -1) {
+        if (c == 'o')
+            out = optarg;
+        else if (c == 'h') {
+            merge_help(stdout);
+            return PB_EXIT_OK;
+        } else
+            return pb_cli_error("merge", "unknown option '%s'", argv[optind - 1]);
+    }
+    if (!out || optind >= argc)
+        return pb_cli_error("merge", "give --out DIR and at least one shard directory");
+    int nshards = argc - optind, rc = PB_EXIT_USAGE;
+    json_t **docs = calloc((size_t)nshards, sizeof *docs);
+    json_t *all = json_array();
+    json_int_t total = -1;
+    const char *label = NULL;
+    for (int i = 0; i < nshards; i++) {
+        char path[4200];
+        snprintf(path, sizeof path, "%s/summary.json", argv[optind + i]);
+        json_error_t e;
+        docs[i] = json_load_file(path, 0, &e);
+        if (!docs[i]) {
+            pb_cli_error("merge", "%s:%d: cannot read: %s", path, e.line, e.text);
+            goto out;
+        }
+        json_t *fmt = json_object_get(docs[i], "format");
+        if (!json_is_integer(fmt) || json_integer_value(fmt) != PB_SUMMARY_FORMAT) {
+            pb_cli_error("merge", "%s: key 'format': expected %d", path, PB_SUMMARY_FORMAT);
+            goto out;
+        }
+        json_t *tc = json_object_get(docs[i], "total_cases");
+        json_t *cs = json_object_get(docs[i], "cases");
+        if (!json_is_integer(tc) || !json_is_array(cs)) {
+            pb_cli_error("merge", "%s: not a sweep (no 'total_cases' or 'cases')", path);
+            goto out;
+        }
+        if (total >= 0 && json_integer_value(tc) != total) {
+            pb_cli_error("merge", "%s: shard of a different sweep (%lld cases, expected %lld)", path,
+                         (long long)json_integer_value(tc), (long long)total);
+            goto out;
+        }
+        total = json_integer_value(tc);
+        label = json_string_value(json_object_get(docs[i], "sweep"));
+        size_t k;
+        json_t *o;
+        json_array_foreach(cs, k, o) {
+            if (!json_is_integer(json_object_get(o, "index"))) {
+                pb_cli_error("merge", "%s: case %zu has no 'index'", path, k);
+                goto out;
+            }
+            json_object_set_new(o, "_from", json_integer(i));
+            json_array_append(all, o);
+        }
+    }
+    size_t n = json_array_size(all);
+    json_t **v = malloc((n ? n : 1) * sizeof *v);
+    for (size_t k = 0; k < n; k++)
+        v[k] = json_array_get(all, k);
+    qsort(v, n, sizeof *v, merge_cmp);
+    for (size_t k = 1; k < n; k++)
+        if (merge_cmp(&v[k - 1], &v[k]) == 0) {
+            pb_cli_error("merge", "case index %lld appears in two shards",
+                         (long long)json_integer_value(json_object_get(v[k], "index")));
+            free(v);
+            goto out;
+        }
+    char sdir[4200];
+    snprintf(sdir, sizeof sdir, "%s/series", out);
+    if (pb_mkdirs(sdir)) {
+        pb_cli_error("merge", "cannot create %s", sdir);
+        free(v);
+        goto out;
+    }
+    json_t *cases = json_array();
+    for (size_t k = 0; k < n; k++) {
+        json_t *o = v[k];
+        int from = (int)json_integer_value(json_object_get(o, "_from"));
+        json_object_del(o, "_from");
+        const char *series = json_string_value(json_object_get(o, "series"));
+        if (series) {
+            char a[8400], b[8400];
+            snprintf(a, sizeof a, "%s/%s", argv[optind + from], series);
+            snprintf(b, sizeof b, "%s/%s", out, series);
+            if (pb_copy_file(a, b))
+                fprintf(stderr, "propbench merge: warning: cannot copy %s\n", a);
+        }
+        json_array_append(cases, o);
+    }
+    if ((json_int_t)n < total)
+        fprintf(stderr, "propbench merge: warning: %lld of %lld cases are missing\n",
+                (long long)(total - (json_int_t)n), (long long)total);
+    free(v);
+    json_t *doc = pb_summary_new(cases);
+    json_object_set_new(doc, "sweep", json_string(label ? label : "grid"));
+    json_object_set_new(doc, "total_cases", json_integer(total));
+    char path[4200];
+    snprintf(path, sizeof path, "%s/summary.json", out);
+    int w = pb_json_write_atomic(path, doc);
+    json_decref(doc);
+    if (w) {
+        pb_cli_error("merge", "cannot write %s", path);
+        goto out;
+    }
+    printf("merged %zu cases from %d shards into %s\n", n, nshards, path);
+    rc = PB_EXIT_OK;
+out:
+    for (int i = 0; i < nshards; i++)
+        json_decref(docs[i]);
+    free(docs);
+    json_decref(all);
+    return rc;
+}

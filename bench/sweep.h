@@ -1,0 +1,25 @@
+/* sweep.h - run a list of cases into one run directory with N worker
+ * processes. Each case runs in a child process of its own, so a case that
+ * crashes is recorded as "crashed" and the sweep goes on; results are
+ * collected in case order, identical for every N. */
+#ifndef PB_SWEEP_H
+#define PB_SWEEP_H
+
+#include <jansson.h>
+#include "suites.h"
+
+typedef struct pb_sweep_options {
+    int jobs;              /* worker processes (>= 1) */
+    int shard_k, shard_n;  /* run cases with index % shard_n == shard_k - 1 (1-based k) */
+    int progress;          /* draw progress on stderr */
+    const char *label;     /* suite name or "grid", recorded in the summary */
+} pb_sweep_options;
+
+/* Run the cases into dir (summary.json, series/). Returns 0, or -1 when the
+ * directory cannot be written (message printed). */
+int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt);
+
+/* Copy a file atomically (for merge); 0 or -1. */
+int pb_copy_file(const char *from, const char *to);
+
+#endif
