@@ -9,6 +9,7 @@ extern const pb_method_type pb_method_yoshida4;
 extern const pb_method_type pb_method_yoshida6;
 extern const pb_method_type pb_method_yoshida8;
 extern const pb_method_type pb_method_rkf45;
+extern const pb_method_type pb_method_gauss_jackson8;
 
 const pb_method_type *const pb_method_table[] = {
     &pb_method_rk4,
@@ -17,6 +18,7 @@ const pb_method_type *const pb_method_table[] = {
     &pb_method_yoshida6,
     &pb_method_yoshida8,
     &pb_method_rkf45,
+    &pb_method_gauss_jackson8,
     NULL
 };
 
