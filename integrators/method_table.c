@@ -9,6 +9,11 @@ extern const pb_method_type pb_method_yoshida4;
 extern const pb_method_type pb_method_yoshida6;
 extern const pb_method_type pb_method_yoshida8;
 extern const pb_method_type pb_method_rkf45;
+extern const pb_method_type pb_method_gsl_rk4;
+extern const pb_method_type pb_method_gsl_rkf45;
+extern const pb_method_type pb_method_gsl_rkck;
+extern const pb_method_type pb_method_gsl_rk8pd;
+extern const pb_method_type pb_method_gsl_msadams;
 extern const pb_method_type pb_method_gauss_jackson8;
 
 const pb_method_type *const pb_method_table[] = {
@@ -18,6 +23,11 @@ const pb_method_type *const pb_method_table[] = {
     &pb_method_yoshida6,
     &pb_method_yoshida8,
     &pb_method_rkf45,
+    &pb_method_gsl_rk4,
+    &pb_method_gsl_rkf45,
+    &pb_method_gsl_rkck,
+    &pb_method_gsl_rk8pd,
+    &pb_method_gsl_msadams,
     &pb_method_gauss_jackson8,
     NULL
 };
