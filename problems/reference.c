@@ -194,7 +194,8 @@ uint64_t pb_reference_key(const pb_problem *p, const double *times, int n)
 {
     uint64_t h = 14695981039346656037ULL;
     int force = (int)p->force;
-    long double tols[2] = {REF_TOL_COARSE, REF_TOL_FINE};
+    /* as doubles: a long double's padding bytes are indeterminate */
+    double tols[2] = {(double)REF_TOL_COARSE, (double)REF_TOL_FINE};
     h = ref_hash(h, REF_VERSION, sizeof REF_VERSION);
     h = ref_hash(h, tols, sizeof tols);
     h = ref_hash(h, &force, sizeof force);
