@@ -1,0 +1,264 @@
+/* test_problem_file.c - the INI problem-file reader: every validation error
+ * names file, line and key; a periapsis below the surface only warns; several
+ * cases in one file; the shipped examples parse. */
+#include <criterion/criterion.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+#include "../problems/problem_file.h"
+#include "../problems/twobody.h"
+
+static char pft_dir[64];
+static char pft_path[128];
+static char pft_err[512];
+static int pft_nwarn;
+static char pft_warn_msg[512];
+
+static void pft_warn(const char *msg)
+{
+    pft_nwarn++;
+    snprintf(pft_warn_msg, sizeof pft_warn_msg, "%s", msg);
+}
+
+static void pft_setup(void)
+{
+    snprintf(pft_dir, sizeof pft_dir, "/tmp/pb-pftest-XXXXXX");
+    cr_assert_not_null(mkdtemp(pft_dir));
+    snprintf(pft_path, sizeof pft_path, "%s/orbit.ini", pft_dir);
+    pft_nwarn = 0;
+    pft_warn_msg[0] = '\0';
+}
+
+static void pft_teardown(void)
+{
+    remove(pft_path);
+    rmdir(pft_dir);
+}
+
+/* Write text to orbit.ini and read it; cases are freed unless wanted. */
+static int pft_read(const char *text, pb_problem **cases, int *n)
+{
+    FILE *f = fopen(pft_path, "w");
+    cr_assert_not_null(f);
+    fputs(text, f);
+    fclose(f);
+    pb_problem *c = NULL;
+    int m = 0;
+    int s = pb_problem_file_read(pft_path, &c, &m, pft_err, sizeof pft_err, pft_warn);
+    if (cases) {
+        *cases = c;
+        *n = m;
+    } else {
+        free(c);
+    }
+    return s;
+}
+
+/* The message names the file, the line and the key. */
+static void pft_expect_error(const char *text, int line, const char *key, const char *phrase)
+{
+    int s = pft_read(text, NULL, NULL);
+    cr_assert_eq(s, PB_EINVAL, "accepted: %s", text);
+    cr_log_info("%s", pft_err);
+    char where[200], k[80];
+    snprintf(where, sizeof where, "%s:%d: ", pft_path, line);
+    cr_assert(strstr(pft_err, where) == pft_err, "'%s' does not start with '%s'", pft_err, where);
+    if (key) {
+        snprintf(k, sizeof k, "key '%s'", key);
+        cr_assert_not_null(strstr(pft_err, k), "'%s' does not name %s", pft_err, k);
+    }
+    cr_assert_not_null(strstr(pft_err, phrase), "'%s' lacks '%s'", pft_err, phrase);
+}
+
+#define HEAD "[case demo]\nunits = km-s\nbody = earth\n"   /* lines 1-3 */
+
+TestSuite(problem_file, .init = pft_setup, .fini = pft_teardown);
+
+Test(problem_file, negative_eccentricity)
+{
+    pft_expect_error(HEAD "a = 7000\ne = -0.1\n", 5, "e", "eccentricity must be >= 0 (got -0.1)");
+}
+
+Test(problem_file, unknown_key)
+{
+    pft_expect_error(HEAD "a = 7000\ne = 0.1\ninclination = 3\n", 6, "inclination", "unknown key");
+}
+
+Test(problem_file, missing_required_key)
+{
+    pft_expect_error("[case demo]\nunits = km-s\na = 7000\ne = 0.1\n", 1, "mu", "missing");
+    pft_expect_error(HEAD "a = 7000\n", 1, "e", "missing");
+    pft_expect_error(HEAD "r = 7000, 0, 0\n", 1, "v", "missing");
+}
+
+Test(problem_file, elements_and_state_both_given)
+{
+    pft_expect_error(HEAD "a = 7000\ne = 0.1\nr = 7000, 0, 0\nv = 0, 7.5, 0\n", 6, "r",
+                     "both classical elements");
+}
+
+Test(problem_file, non_positive_a_for_ellipse)
+{
+    pft_expect_error(HEAD "a = -7000\ne = 0.1\n", 4, "a", "must be > 0 for an ellipse");
+    pft_expect_error(HEAD "a = 0\ne = 0.1\n", 4, "a", "must be > 0 for an ellipse");
+}
+
+Test(problem_file, parabola_by_elements)
+{
+    pft_expect_error(HEAD "a = 7000\ne = 1\n", 5, "e", "parabola");
+}
+
+Test(problem_file, non_numeric_value)
+{
+    pft_expect_error(HEAD "a = seven thousand\ne = 0.1\n", 4, "a", "not a number");
+    pft_expect_error(HEAD "a = 7000km\ne = 0.1\n", 4, "a", "not a number");
+    pft_expect_error(HEAD "r = 7000, 0\nv = 0, 7.5, 0\n", 4, "r", "three");
+}
+
+Test(problem_file, non_finite_value)
+{
+    pft_expect_error(HEAD "a = inf\ne = 0.1\n", 4, "a", "finite");
+    pft_expect_error(HEAD "a = 7000\ne = nan\n", 5, "e", "finite");
+    pft_expect_error(HEAD "a = 1e999\ne = 0.1\n", 4, "a", "finite");
+}
+
+Test(problem_file, unknown_units)
+{
+    pft_expect_error("[case demo]\nunits = furlongs\nmu = 1\na = 1\ne = 0\n", 2, "units", "unknown units");
+}
+
+Test(problem_file, unknown_force_model)
+{
+    pft_expect_error(HEAD "force = drag\na = 7000\ne = 0.1\n", 4, "force", "unknown force model");
+}
+
+Test(problem_file, unknown_body)
+{
+    pft_expect_error("[case demo]\nunits = km-s\nbody = vulcan\na = 7000\ne = 0\n", 3, "body", "unknown body");
+}
+
+Test(problem_file, unreadable_file)
+{
+    pb_problem *c = (pb_problem *)1;
+    int n = 7;
+    char missing[200];
+    snprintf(missing, sizeof missing, "%s/does-not-exist.ini", pft_dir);
+    cr_assert_eq(pb_problem_file_read(missing, &c, &n, pft_err, sizeof pft_err, NULL), PB_EINVAL);
+    cr_assert_null(c);
+    cr_assert_eq(n, 0);
+    cr_assert_not_null(strstr(pft_err, missing));
+    cr_assert_not_null(strstr(pft_err, "cannot read"));
+}
+
+Test(problem_file, case_without_name)
+{
+    pft_expect_error("[case]\nunits = normalized\na = 1\ne = 0\n", 1, NULL, "no case name");
+    pft_expect_error("[orbit one]\nunits = normalized\na = 1\ne = 0\n", 1, NULL, "[case NAME]");
+}
+
+Test(problem_file, duplicate_case_names)
+{
+    pft_expect_error("[case x]\nunits = normalized\na = 1\ne = 0\n\n[case x]\nunits = normalized\na = 2\ne = 0\n",
+                     6, NULL, "duplicate case name 'x' (first at line 1)");
+}
+
+Test(problem_file, key_given_twice)
+{
+    pft_expect_error(HEAD "a = 7000\na = 8000\ne = 0\n", 5, "a", "given twice");
+}
+
+Test(problem_file, orbits_for_open_orbit)
+{
+    pft_expect_error(HEAD "a = -40000\ne = 1.2\norbits = 3\n", 6, "orbits", "no period");
+}
+
+/* A periapsis below the surface is a warning, not an error (rp = a(1-e) = 3500
+ * km < R = 6378.137 km); the message names file and line of the case. */
+Test(problem_file, periapsis_below_surface_warns)
+{
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read(HEAD "a = 7000\ne = 0.5\n", &c, &n), PB_OK, "%s", pft_err);
+    cr_assert_eq(n, 1);
+    cr_assert_eq(pft_nwarn, 1);
+    char where[200];
+    snprintf(where, sizeof where, "%s:1: ", pft_path);
+    cr_assert(strstr(pft_warn_msg, where) == pft_warn_msg, "%s", pft_warn_msg);
+    cr_assert_not_null(strstr(pft_warn_msg, "below the body's surface"));
+    free(c);
+}
+
+/* Several cases: elements -> state -> elements round trip to 1e-12 relative
+ * (REFERENCES.md), a state case copied exactly, J2 constants from the body
+ * (WGS-84/EGM96 common practice), horizons as given. */
+Test(problem_file, several_cases)
+{
+    const char *text =
+        "; three cases\n"
+        "[case ell]\nunits = km-s\nmu = 398600.4418\na = 24396.0\ne = 0.7283\n"
+        "i_deg = 27\nraan_deg = 10\nargp_deg = 180\nnu_deg = 20 ; inline comment\norbits = 50\n"
+        "\n[case st]\nbody = earth\nforce = j2\nr = 6778, 0, 0\nv = 0, 4.7556, 5.9983\nhorizon_s = 86400\n"
+        "\n[case hyp]\nunits = normalized\na = -2\ne = 1.5\nnu_deg = -60\nhorizon_s = 30\n"
+        "description = an open orbit\n";
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read(text, &c, &n), PB_OK, "%s", pft_err);
+    cr_assert_eq(n, 3);
+    cr_assert_eq(pft_nwarn, 0, "%s", pft_warn_msg);
+    cr_assert_str_eq(c[0].name, "ell");
+    cr_assert_str_eq(c[1].name, "st");
+    cr_assert_str_eq(c[2].name, "hyp");
+
+    pb_elements el;
+    cr_assert_eq(pb_elements_from_state(c[0].mu, c[0].r0, c[0].v0, &el), PB_OK);
+    cr_assert_float_eq(el.a, 24396.0, 1e-12 * 24396.0);
+    cr_assert_float_eq(el.e, 0.7283, 1e-12);
+    cr_assert_float_eq(el.i, 27 * M_PI / 180, 1e-12);
+    cr_assert_float_eq(el.raan, 10 * M_PI / 180, 1e-12);
+    cr_assert_float_eq(el.argp, M_PI, 1e-12);
+    cr_assert_float_eq(el.nu, 20 * M_PI / 180, 1e-12);
+    cr_assert_eq(c[0].force, PB_FORCE_TWO_BODY);
+    cr_assert_eq(c[0].default_orbits, 50.0);
+    cr_assert_not_null(c[0].exact_q);
+
+    cr_assert_eq(c[1].force, PB_FORCE_J2);
+    cr_assert_eq(c[1].mu, 398600.4418);
+    cr_assert_eq(c[1].body_radius, 6378.137);
+    cr_assert_eq(c[1].j2, 1.08262668e-3);
+    cr_assert_eq(c[1].r0[0], 6778.0);
+    cr_assert_eq(c[1].v0[2], 5.9983);
+    cr_assert_null(c[1].exact);
+    cr_assert_str_eq(c[1].angmom_label, "h_z");
+    cr_assert_eq(c[1].default_horizon_s, 86400.0);
+    cr_assert_float_eq(c[1].default_orbits * c[1].period, 86400.0, 1e-6);
+
+    cr_assert_eq(c[2].units, PB_UNITS_NORMALIZED);
+    cr_assert_eq(c[2].mu, 1.0);
+    cr_assert_eq(c[2].period, 0.0);
+    cr_assert_eq(c[2].default_horizon_s, 30.0);
+    cr_assert_str_eq(c[2].description, "an open orbit");
+    /* hyperbola: E = -mu/(2a) = 1/4 (REFERENCES.md, vis-viva) */
+    cr_assert_float_eq(c[2].energy(&c[2], 0, c[2].r0, c[2].v0), 0.25, 1e-14);
+    free(c);
+}
+
+/* The examples shipped in problems/examples parse without error or warning. */
+Test(problem_file, shipped_examples_parse)
+{
+    const char *root = getenv("PB_ROOT");
+    char path[512];
+    snprintf(path, sizeof path, "%s/problems/examples/transfer-demo.ini", root ? root : ".");
+    pb_problem *c = NULL;
+    int n = 0;
+    cr_assert_eq(pb_problem_file_read(path, &c, &n, pft_err, sizeof pft_err, pft_warn), PB_OK,
+                 "%s", pft_err);
+    cr_assert_eq(n, 3);
+    cr_assert_eq(pft_nwarn, 0);
+    /* transfer-demo: rp = a(1-e) = 6628.8 km (above R = 6378.137 km) */
+    pb_elements el;
+    cr_assert_eq(pb_elements_from_state(c[0].mu, c[0].r0, c[0].v0, &el), PB_OK);
+    cr_assert_float_eq(el.a * (1 - el.e), 24396.0 * (1 - 0.7283), 1e-6);
+    free(c);
+}
