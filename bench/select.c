@@ -1,0 +1,235 @@
+/* select.c - integrator selection by search and confirmation (see select.h).
+ * Invariant of the search: lo is a setting known to fail (or none), hi one
+ * known to pass; bisection narrows (lo, hi) in log space and the answer is
+ * hi, which is then re-run with timing and checked against a neighbour. */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+#include "select.h"
+#include "case_json.h"
+#include "harness.h"
+
+#define SELECT_MAX_SPO 1048576     /* 2^20 steps per orbit */
+#define SELECT_MAX_STEPS 2e7       /* per case */
+
+int pb_requirement_met(const pb_requirement *req, const pb_case_result *res)
+{
+    if (res->status != PB_OK)
+        return 0;
+    /* an error below the reference floor is below any requirement we accept */
+    if (req->max_pos_err > 0 && !res->below_floor && !(res->pos_err_max <= req->max_pos_err))
+        return 0;
+    if (req->max_energy_rel > 0 && !(res->energy_rel_max <= req->max_energy_rel))
+        return 0;
+    return 1;
+}
+
+/* Run one setting (no timing); 1 pass, 0 fail, -1 could not run. */
+static int select_try(const pb_case_spec *base, const pb_method_type *m, double setting,
+                      const pb_requirement *req, pb_selection *out, int keep, int repeats)
+{
+    pb_case_spec s = *base;
+    s.method = m;
+    s.repeats = repeats;
+    if (m->flags & PB_KIND_FIXED)
+        s.steps_per_orbit = (int)setting;
+    else
+        s.tolerance = setting;
+    pb_case_result r;
+    out->runs++;
+    if (pb_case_run(&s, &r))
+        return -1;
+    int ok = pb_requirement_met(req, &r);
+    if (keep) {
+        pb_case_result_free(&out->confirmed);
+        out->confirmed = r;
+    } else {
+        pb_case_result_free(&r);
+    }
+    return ok;
+}
+
+static double select_horizon_steps(const pb_case_spec *base, int spo)
+{
+    double T = base->problem.period > 0 ? base->problem.period : pb_case_horizon(base);
+    return pb_case_horizon(base) / T * spo;
+}
+
+static int select_fixed(const pb_case_spec *base, const pb_method_type *m,
+                        const pb_requirement *req, pb_selection *out)
+{
+    int lo = 0, hi = 0;
+    for (int n = 4; n <= SELECT_MAX_SPO && select_horizon_steps(base, n) <= SELECT_MAX_STEPS; n *= 2) {
+        int ok = select_try(base, m, n, req, out, 0, 0);
+        if (ok < 0)
+            return -1;
+        if (ok) {
+            hi = n;
+            break;
+        }
+        lo = n;
+    }
+    if (!hi) {
+        snprintf(out->note, sizeof out->note, "no step up to %d per orbit meets it", lo);
+        return 0;
+    }
+    for (int round = 0; round < 4; round++) {
+        while (lo > 0 && hi - lo > 1 && hi > 1.02 * lo) {
+            int mid = (int)lround(sqrt((double)lo * hi));
+            if (mid <= lo || mid >= hi)
+                break;
+            int ok = select_try(base, m, mid, req, out, 0, 0);
+            if (ok < 0)
+                return -1;
+            if (ok) hi = mid; else lo = mid;
+        }
+        /* confirm: a 10% finer step must pass too, else move past the dip */
+        int nb = (int)ceil(1.1 * hi);
+        int ok = select_try(base, m, nb, req, out, 0, 0);
+        if (ok < 0)
+            return -1;
+        if (ok)
+            break;
+        lo = nb;
+        hi = 2 * nb;
+        ok = select_try(base, m, hi, req, out, 0, 0);
+        if (ok <= 0) {
+            snprintf(out->note, sizeof out->note, "errors are not monotone in the step near %d per orbit", nb);
+            return ok;
+        }
+    }
+    int ok = select_try(base, m, hi, req, out, 1, base->repeats > 0 ? base->repeats : 3);
+    if (ok > 0) {
+        out->found = 1;
+        out->steps_per_orbit = hi;
+    }
+    return ok < 0 ? -1 : 0;
+}
+
+static int select_adaptive(const pb_case_spec *base, const pb_method_type *m,
+                           const pb_requirement *req, pb_selection *out)
+{
+    double lo = 0, hi = 0; /* lo: failing (looser) tolerance, hi: passing */
+    for (int k = 3; k <= 14; k++) {
+        double tol = pow(10.0, -k);
+        int ok = select_try(base, m, tol, req, out, 0, 0);
+        if (ok < 0)
+            return -1;
+        if (ok) {
+            hi = tol;
+            break;
+        }
+        lo = tol;
+    }
+    if (!(hi > 0)) {
+        snprintf(out->note, sizeof out->note, "no tolerance down to 1e-14 meets it");
+        return 0;
+    }
+    for (int round = 0; round < 4; round++) {
+        while (lo > 0 && lo > 1.1 * hi) {
+            double mid = sqrt(lo * hi);
+            int ok = select_try(base, m, mid, req, out, 0, 0);
+            if (ok < 0)
+                return -1;
+            if (ok) hi = mid; else lo = mid;
+        }
+        double nb = hi / 1.5;
+        int ok = select_try(base, m, nb, req, out, 0, 0);
+        if (ok < 0)
+            return -1;
+        if (ok)
+            break;
+        lo = nb;
+        hi = nb / 10;
+        ok = select_try(base, m, hi, req, out, 0, 0);
+        if (ok <= 0) {
+            snprintf(out->note, sizeof out->note, "errors are not monotone in the tolerance near %.2g", nb);
+            return ok;
+        }
+    }
+    /* round to 3 significant digits so the answer can be typed back in */
+    double shown = hi;
+    char buf[32];
+    snprintf(buf, sizeof buf, "%.2e", hi);
+    sscanf(buf, "%lf", &shown);
+    if (shown > hi)
+        shown = hi;
+    int ok = select_try(base, m, shown, req, out, 1, base->repeats > 0 ? base->repeats : 3);
+    if (ok > 0) {
+        out->found = 1;
+        out->tolerance = shown;
+    }
+    return ok < 0 ? -1 : 0;
+}
+
+int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
+                     const pb_requirement *req, pb_selection *out)
+{
+    memset(out, 0, sizeof *out);
+    out->method = m;
+    int rc = (m->flags & PB_KIND_FIXED) ? select_fixed(base, m, req, out)
+                                        : select_adaptive(base, m, req, out);
+    if (out->found) {
+        const pb_case_result *r = &out->confirmed;
+        double ns = isfinite(r->ns_per_step) ? r->ns_per_step : 0;
+        out->projected_s = 1e-6 * base->eval_cost_us * (double)r->evals + 1e-9 * ns * (double)r->steps;
+    }
+    return rc;
+}
+
+void pb_selection_free(pb_selection *s)
+{
+    pb_case_result_free(&s->confirmed);
+}
+
+json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
+                          pb_selection *sel, int n)
+{
+    json_t *o = json_object();
+    json_object_set_new(o, "format", json_integer(PB_SUMMARY_FORMAT));
+    json_object_set_new(o, "tool", json_string(PB_TOOL_NAME));
+    json_object_set_new(o, "problem", json_string(base->problem.name));
+    json_object_set_new(o, "horizon_s", json_real(pb_case_horizon(base)));
+    if (base->orbits > 0)
+        json_object_set_new(o, "orbits", json_real(base->orbits));
+    json_t *rq = json_object();
+    if (req->max_pos_err > 0)
+        json_object_set_new(rq, "max_pos_err", json_real(req->max_pos_err));
+    if (req->max_energy_rel > 0)
+        json_object_set_new(rq, "max_energy_rel", json_real(req->max_energy_rel));
+    json_object_set_new(o, "requirement", rq);
+    json_object_set_new(o, "eval_cost_us", json_real(base->eval_cost_us));
+    json_t *arr = json_array();
+    int rank = 0;
+    for (int i = 0; i < n; i++) {
+        pb_selection *s = &sel[i];
+        json_t *e = json_object();
+        json_object_set_new(e, "method", json_string(s->method->name));
+        json_object_set_new(e, "from_gsl", json_boolean(s->method->flags & PB_FROM_GSL));
+        json_object_set_new(e, "meets_requirement", json_boolean(s->found));
+        json_object_set_new(e, "runs", json_integer(s->runs));
+        if (s->found) {
+            const pb_case_result *r = &s->confirmed;
+            json_object_set_new(e, "rank", json_integer(++rank));
+            if (s->method->flags & PB_KIND_FIXED)
+                json_object_set_new(e, "steps_per_orbit", json_integer(s->steps_per_orbit));
+            else
+                json_object_set_new(e, "tolerance", json_real(s->tolerance));
+            json_object_set_new(e, "evals", json_integer(r->evals));
+            json_object_set_new(e, "steps", json_integer(r->steps));
+            json_object_set_new(e, "pos_err_max", pb_json_real(r->below_floor ? NAN : r->pos_err_max));
+            json_object_set_new(e, "energy_rel_max", pb_json_real(r->energy_rel_max));
+            json_object_set_new(e, "ns_per_step", pb_json_real(r->ns_per_step));
+            json_object_set_new(e, "projected_s", pb_json_real(s->projected_s));
+            json_object_set_new(e, "fingerprint", json_string(r->fingerprint));
+        } else {
+            json_object_set_new(e, "note", json_string(s->note));
+        }
+        json_array_append_new(arr, e);
+    }
+    json_object_set_new(o, "ranking", arr);
+    json_object_set_new(o, "caution", json_string(
+        "Benchmarks on idealised problems do not validate an operational propagator; "
+        "defer to the mission's own verification and flight-dynamics practice."));
+    return o;
+}
