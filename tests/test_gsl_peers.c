@@ -304,3 +304,65 @@ Test(gsl_peers, nan_force_stops_with_nonfinite)
         cr_assert_lt(pbt_pos_error(&p, &r), 1e-6, "%s", all[m]->name);
     }
 }
+
+/* Accepted-step times, recorded through the per-step observer. */
+typedef struct tg_times {
+    int n;
+    double t[4096];
+} tg_times;
+
+static int tg_record(void *ctx, double t, const double *r, const double *v)
+{
+    (void)r;
+    (void)v;
+    tg_times *tt = ctx;
+    if (tt->n < 4096)
+        tt->t[tt->n++] = t;
+    return 0;
+}
+
+static int tg_run_recorded(const pb_method_type *m, const pb_problem *p,
+                           const pb_method_config *c, const double *ts, int ns, tg_times *out)
+{
+    pb_force_counter cnt;
+    pb_force f;
+    pb_force_counter_init(&cnt, p, &f);
+    void *ws = m->alloc(3);
+    cr_assert_not_null(ws);
+    out->n = 0;
+    int s = m->start(ws, &f, c, p->t0, p->r0, p->v0);
+    for (int k = 0; k < ns && !s; k++)
+        s = m->advance(ws, ts[k], tg_record, out);
+    m->free(ws);
+    return s;
+}
+
+Test(gsl_peers, clamp_keeps_the_step_proposal)
+{
+    /* Interface contract (method.h, DESIGN.md): the step is clamped onto
+     * t_out, and the step after it is the proposal the unclamped run used for
+     * the step that straddled t_out (GSL's evolve leaves h alone on the step it
+     * clamps; the wrapper carries h across calls). The embedded RK peers only:
+     * msadams rescales its history after the short step. */
+    pb_problem p;
+    tg_kepler(&p, 0.5);
+    static tg_times a, b;
+    for (int m = 0; m < 3; m++) {
+        pb_method_config c = tg_cfg(1e-9);
+        double t_end = p.period, ts[2] = {0.37 * p.period, p.period};
+        cr_assert_eq(tg_run_recorded(tg_adaptive[m], &p, &c, &t_end, 1, &a), PB_OK);
+        cr_assert_eq(tg_run_recorded(tg_adaptive[m], &p, &c, ts, 2, &b), PB_OK);
+        int j = 0;
+        while (j < a.n && a.t[j] <= ts[0])
+            j++;
+        cr_assert(j > 0 && j < a.n && a.t[j - 1] < ts[0]);
+        for (int i = 0; i < j; i++)
+            cr_assert_eq(b.t[i], a.t[i], "%s", tg_adaptive[m]->name);
+        cr_assert_eq(b.t[j], ts[0], "%s", tg_adaptive[m]->name);
+        double h_prop = a.t[j] - a.t[j - 1], h_next = b.t[j + 1] - b.t[j];
+        cr_log_info("%s clamp at %.4f: clamped step %.3e, next %.6e, proposal %.6e",
+                    tg_adaptive[m]->name, ts[0], ts[0] - a.t[j - 1], h_next, h_prop);
+        cr_assert(fabs(h_next - h_prop) <= 1e-12 * h_prop, "%s: next %.17g, proposal %.17g",
+                  tg_adaptive[m]->name, h_next, h_prop);
+    }
+}

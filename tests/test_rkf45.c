@@ -261,3 +261,62 @@ Test(rkf45, nonfinite_force_stops_with_last_good_state)
         cr_assert(isfinite(r.r[i]) && isfinite(r.v[i]));
     cr_assert_lt(pbt_pos_error(&p, &r), 1e-6);
 }
+
+/* Accepted-step times, recorded through the per-step observer. */
+typedef struct tr_times {
+    int n;
+    double t[4096];
+} tr_times;
+
+static int tr_record(void *ctx, double t, const double *r, const double *v)
+{
+    (void)r;
+    (void)v;
+    tr_times *tt = ctx;
+    if (tt->n < 4096)
+        tt->t[tt->n++] = t;
+    return 0;
+}
+
+/* Run to t_end through the sample times ts[0..ns-1], recording accepted steps. */
+static int tr_run_recorded(const pb_problem *p, const pb_method_config *c, const double *ts,
+                           int ns, tr_times *out)
+{
+    pb_force_counter cnt;
+    pb_force f;
+    pb_force_counter_init(&cnt, p, &f);
+    void *ws = pb_method_rkf45.alloc(3);
+    cr_assert_not_null(ws);
+    out->n = 0;
+    int s = pb_method_rkf45.start(ws, &f, c, p->t0, p->r0, p->v0);
+    for (int k = 0; k < ns && !s; k++)
+        s = pb_method_rkf45.advance(ws, ts[k], tr_record, out);
+    pb_method_rkf45.free(ws);
+    return s;
+}
+
+Test(rkf45, clamp_does_not_shrink_the_next_step)
+{
+    /* Interface contract (method.h, DESIGN.md): the last step is clamped onto
+     * t_out, and the step after it is the proposal the unclamped run used for
+     * the step that straddled t_out. */
+    pb_problem p;
+    tr_kepler(&p, 0.5);
+    pb_method_config c = tr_cfg(1e-9, 1e-9);
+    static tr_times a, b;
+    double t_end = p.period, ts[2] = {0.37 * p.period, p.period};
+    cr_assert_eq(tr_run_recorded(&p, &c, &t_end, 1, &a), PB_OK);
+    cr_assert_eq(tr_run_recorded(&p, &c, ts, 2, &b), PB_OK);
+    int j = 0;
+    while (j < a.n && a.t[j] <= ts[0])
+        j++;
+    cr_assert(j > 0 && j < a.n && a.t[j - 1] < ts[0]);
+    for (int i = 0; i < j; i++)
+        cr_assert_eq(b.t[i], a.t[i]); /* identical up to the sample */
+    cr_assert_eq(b.t[j], ts[0]);      /* clamped exactly */
+    double h_prop = a.t[j] - a.t[j - 1], h_next = b.t[j + 1] - b.t[j];
+    cr_log_info("rkf45 clamp at %.4f: clamped step %.3e, next %.6e, proposal %.6e", ts[0],
+                ts[0] - a.t[j - 1], h_next, h_prop);
+    cr_assert(fabs(h_next - h_prop) <= 1e-12 * h_prop, "next step %.17g, proposal %.17g",
+              h_next, h_prop);
+}
