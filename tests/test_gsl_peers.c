@@ -366,3 +366,62 @@ Test(gsl_peers, clamp_keeps_the_step_proposal)
                   tg_adaptive[m]->name, h_next, h_prop);
     }
 }
+
+Test(gsl_peers, restart_on_a_used_workspace_equals_a_fresh_one)
+{
+    /* start() on a used workspace sets the state from outside: the evolve
+     * object must be reset, or GSL steps from the derivative it cached at the
+     * old state. The restarted run must equal a fresh run bit for bit (the
+     * same arithmetic from the same state). */
+    pb_problem p;
+    tg_kepler(&p, 0.5);
+    for (int m = 0; m < TG_NADAPTIVE; m++) {
+        pb_method_config c = tg_cfg(1e-9);
+        pbt_result fresh = pbt_integrate(tg_adaptive[m], &p, &c, p.period);
+        cr_assert_eq(fresh.status, PB_OK);
+        pb_force_counter cnt;
+        pb_force f;
+        pb_force_counter_init(&cnt, &p, &f);
+        void *ws = tg_adaptive[m]->alloc(3);
+        cr_assert_not_null(ws);
+        cr_assert_eq(tg_adaptive[m]->start(ws, &f, &c, p.t0, p.r0, p.v0), PB_OK);
+        cr_assert_eq(tg_adaptive[m]->advance(ws, 0.5 * p.period, NULL, NULL), PB_OK);
+        cr_assert_eq(tg_adaptive[m]->start(ws, &f, &c, p.t0, p.r0, p.v0), PB_OK);
+        cr_assert_eq(tg_adaptive[m]->advance(ws, p.period, NULL, NULL), PB_OK);
+        double t, r[3], v[3];
+        tg_adaptive[m]->get_state(ws, &t, r, v);
+        tg_adaptive[m]->free(ws);
+        cr_assert_eq(t, p.period);
+        for (int i = 0; i < 3; i++) {
+            cr_assert_eq(r[i], fresh.r[i], "%s", tg_adaptive[m]->name);
+            cr_assert_eq(v[i], fresh.v[i], "%s", tg_adaptive[m]->name);
+        }
+    }
+}
+
+Test(gsl_peers, step_budget_and_minimum_step)
+{
+    /* The budget (accepted + rejected, checked between GSL calls) stops a
+     * 100-orbit request after 20 steps; an explicit minimum step far above
+     * what periapsis of e = 0.9 needs at 1e-10 stops at once with
+     * PB_EMINSTEP instead of crawling. */
+    pb_problem p;
+    tg_kepler(&p, 0.9);
+    for (int m = 0; m < TG_NADAPTIVE; m++) {
+        pb_method_config c = tg_cfg(1e-10);
+        c.max_steps = 20;
+        pbt_result r = pbt_integrate(tg_adaptive[m], &p, &c, 100 * p.period);
+        cr_assert_eq(r.status, PB_EMAXSTEPS, "%s: %s", tg_adaptive[m]->name,
+                     pb_strerror(r.status));
+        cr_assert_geq(r.steps + r.rejected, 20);
+        cr_assert_lt(r.t, p.period);
+        c = tg_cfg(1e-10);
+        c.min_step = 0.05;
+        c.h = 0.1;
+        r = pbt_integrate(tg_adaptive[m], &p, &c, p.period);
+        cr_assert_eq(r.status, PB_EMINSTEP, "%s: %s", tg_adaptive[m]->name,
+                     pb_strerror(r.status));
+        cr_assert_lt(r.evals, 1000, "%s", tg_adaptive[m]->name);
+        cr_assert_eq(r.t_fail, r.t);
+    }
+}

@@ -320,3 +320,31 @@ Test(rkf45, clamp_does_not_shrink_the_next_step)
     cr_assert(fabs(h_next - h_prop) <= 1e-12 * h_prop, "next step %.17g, proposal %.17g",
               h_next, h_prop);
 }
+
+Test(rkf45, restart_on_a_used_workspace_equals_a_fresh_one)
+{
+    /* start() sets the state from outside: nothing cached at the old state
+     * (first stage, step proposal, PI memory) may survive it. */
+    pb_problem p;
+    tr_kepler(&p, 0.5);
+    pb_method_config c = tr_cfg(1e-9, 1e-9);
+    pbt_result fresh = pbt_integrate(&pb_method_rkf45, &p, &c, p.period);
+    cr_assert_eq(fresh.status, PB_OK);
+    pb_force_counter cnt;
+    pb_force f;
+    pb_force_counter_init(&cnt, &p, &f);
+    void *ws = pb_method_rkf45.alloc(3);
+    cr_assert_not_null(ws);
+    cr_assert_eq(pb_method_rkf45.start(ws, &f, &c, p.t0, p.r0, p.v0), PB_OK);
+    cr_assert_eq(pb_method_rkf45.advance(ws, 0.5 * p.period, NULL, NULL), PB_OK);
+    cr_assert_eq(pb_method_rkf45.start(ws, &f, &c, p.t0, p.r0, p.v0), PB_OK);
+    cr_assert_eq(pb_method_rkf45.advance(ws, p.period, NULL, NULL), PB_OK);
+    double t, r[3], v[3];
+    pb_method_rkf45.get_state(ws, &t, r, v);
+    pb_method_rkf45.free(ws);
+    cr_assert_eq(t, p.period);
+    for (int i = 0; i < 3; i++) {
+        cr_assert_eq(r[i], fresh.r[i]);
+        cr_assert_eq(v[i], fresh.v[i]);
+    }
+}
