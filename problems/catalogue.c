@@ -134,7 +134,7 @@ static int cat_molniya_j2(pb_problem *o)
 }
 static int cat_hyperbolic(pb_problem *o)
 {
-    /* v_inf = 3 km/s, periapsis 7000 km; start 30 minutes before periapsis. */
+    /* v_inf = 3 km/s, periapsis 7000 km; nu = -100 deg is about 40 minutes before periapsis. */
     double vinf = 3.0, rp = 7000.0, mu = pb_body_earth.mu;
     double a = -mu / (vinf * vinf), e = 1.0 - rp / a;
     int s = cat_earth(o, "hyperbolic-flyby",
