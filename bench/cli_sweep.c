@@ -8,6 +8,7 @@
 #include "harness.h"
 #include "suites.h"
 #include "sweep.h"
+#include "summary_table.h"
 
 static void sweep_help(FILE *f)
 {
@@ -190,8 +191,15 @@ int pb_cli_sweep(int argc, char **argv)
                 shard_n > 1 ? " (this shard)" : "", dir, jobs, jobs > 1 ? "s" : "");
     if (pb_sweep_run(&list, dir, &so))
         goto out;
-    if (!quiet)
+    if (!quiet) {
+        char path[4200];
+        snprintf(path, sizeof path, "%s/summary.json", dir);
+        json_t *doc = json_load_file(path, 0, NULL);
+        if (doc)
+            pb_summary_print(doc, stdout);
+        json_decref(doc);
         printf("wrote %s/summary.json\n", dir);
+    }
     rc = PB_EXIT_OK;
     (void)report; /* --report: see cli_report.c */
 out:

@@ -244,6 +244,23 @@ done:
     free(dt);
 }
 
+/* Size of the orbit: the larger of |r0| and the semi-major axis. */
+static double harness_length_scale(const pb_problem *p)
+{
+    double r2 = 0, v2 = 0;
+    for (int i = 0; i < p->dim; i++) {
+        r2 += p->r0[i] * p->r0[i];
+        v2 += p->v0[i] * p->v0[i];
+    }
+    double r = sqrt(r2);
+    if (p->keplerian && p->mu > 0) {
+        double inv_a = 2.0 / r - v2 / p->mu;
+        if (inv_a > 0)
+            return fmax(r, 1.0 / inv_a);
+    }
+    return r;
+}
+
 static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
 {
     int n = res->nsamples;
@@ -283,22 +300,26 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
     for (int k = 0; k < n; k++)
         if (res->samples[k].on_log_grid)
             t[m++] = res->samples[k].t - spec->problem.t0;
-#define HARNESS_FIT(field, dest, absval)                                        \
+    /* once a position error reaches a tenth of the orbit's size the phase
+     * error has saturated and a power law fitted through it means nothing */
+    double ceiling = 0.1 * harness_length_scale(&spec->problem);
+#define HARNESS_FIT(field, dest, absval, cap)                                   \
     do {                                                                        \
         int j = 0;                                                              \
         for (int k = 0; k < n; k++)                                             \
             if (res->samples[k].on_log_grid) {                                  \
                 double x = res->samples[k].field;                               \
-                y[j++] = (absval) ? fabs(x) : x;                                \
+                x = (absval) ? fabs(x) : x;                                     \
+                y[j++] = ((cap) > 0 && x > (cap)) ? NAN : x;                    \
             }                                                                   \
         dest = pb_growth_fit(t, y, m, t_fit);                                   \
         if (dest.npoints < 3 && t_fit > scale)                                  \
             dest = pb_growth_fit(t, y, m, scale);                               \
     } while (0)
-    HARNESS_FIT(pos_err, res->g_pos, 0);
-    HARNESS_FIT(along, res->g_along, 1);
-    HARNESS_FIT(energy_rel_window, res->g_energy, 0);
-    HARNESS_FIT(angmom_rel_window, res->g_angmom, 0);
+    HARNESS_FIT(pos_err, res->g_pos, 0, ceiling);
+    HARNESS_FIT(along, res->g_along, 1, ceiling);
+    HARNESS_FIT(energy_rel_window, res->g_energy, 0, 0.0);
+    HARNESS_FIT(angmom_rel_window, res->g_angmom, 0, 0.0);
 #undef HARNESS_FIT
 done:
     free(t);
