@@ -251,3 +251,38 @@ ParameterizedTest(mx_case *c, matrix, nan_force, .timeout = 30)
     cr_assert(fabs(res.t - res.t_fail) <= 1e-9 * p.period, "%s: state at %.6f, t_fail %.6f",
               m->name, res.t, res.t_fail);
 }
+
+ParameterizedTestParameters(matrix, step_budget)
+{
+    static mx_case cases[MX_METHODS_MAX];
+    int n = mx_nmethods();
+    for (int m = 0; m < n; m++)
+        cases[m] = (mx_case){m, 2, 0};
+    return cr_make_param_array(mx_case, cases, (size_t)n);
+}
+
+/* A step budget far short of the horizon ends the case with PB_EMAXSTEPS
+ * (status.h, method.h: max_steps counts accepted + rejected steps), never
+ * with a hang or a partial success, and leaves a finite state short of t_out. */
+ParameterizedTest(mx_case *c, matrix, step_budget, .timeout = 30)
+{
+    const pb_method_type *m = pb_method_table[c->method];
+    pb_problem p;
+    mx_kepler(&p, mx_ecc[c->problem]);
+    double par, tol = 0;
+    const mx_setting *s = mx_find(m->name);
+    if (s)
+        par = s->steps_or_rtol;
+    else
+        mx_default(m, mx_ecc[c->problem], &par, &tol);
+    pb_method_config cfg;
+    mx_config(m, &p, par, &cfg);
+    cfg.max_steps = 50;
+    pbt_result res = pbt_integrate(m, &p, &cfg, MX_ORBITS * p.period);
+    cr_assert_eq(res.status, PB_EMAXSTEPS, "%s: status %s", m->name, pb_strerror(res.status));
+    cr_assert_leq(res.steps + res.rejected, 50, "%s: %ld + %ld steps", m->name, res.steps,
+                  res.rejected);
+    cr_assert(res.t < MX_ORBITS * p.period, "%s reached t = %.6f", m->name, res.t);
+    for (int i = 0; i < 3; i++)
+        cr_assert(isfinite(res.r[i]) && isfinite(res.v[i]), "%s: non-finite state", m->name);
+}
