@@ -19,6 +19,8 @@
 /* An orbit this many times farther out than where it started has escaped:
  * reported as diverged, with the time. */
 #define HARNESS_ESCAPE_FACTOR 1e3
+/* A relative energy error above this ends the case as diverged. */
+#define HARNESS_ENERGY_DIVERGED 1.0
 /* The timing pass integrates at most this many steps of the case. */
 #define HARNESS_TIMING_STEPS 200000.0
 
@@ -36,6 +38,12 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
     if (p->energy) {
         double e = pb_rel_err(p->energy(p, t, r, v), w->E0);
         if (e > w->e_win) w->e_win = e;
+        /* an energy error of 100% means the orbit is no longer the problem's
+         * (a bound orbit has become unbound, or the reverse) */
+        if (!(e <= HARNESS_ENERGY_DIVERGED) && w->E0 != 0) {
+            w->t_escape = t;
+            return PB_EDIVERGED;
+        }
     }
     if (p->angmom) {
         double h = pb_rel_err(p->angmom(p, r, v), w->H0);

@@ -1,6 +1,7 @@
 /* main.c - propbench's command line: dispatch a verb to its handler. */
 #include <stdio.h>
 #include <string.h>
+#include <gsl/gsl_errno.h>
 #include "cli.h"
 
 typedef struct { const char *name; int (*fn)(int, char **); const char *what; } main_verb;
@@ -24,6 +25,8 @@ static void main_usage(FILE *f)
 
 int main(int argc, char **argv)
 {
+    /* GSL's default handler aborts; every GSL status is checked where it is returned */
+    gsl_set_error_handler_off();
     if (argc < 2) {
         main_usage(stderr);
         return PB_EXIT_USAGE;

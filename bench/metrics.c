@@ -3,6 +3,7 @@
  * errors far below 1e-13 are not swamped by the truth's own rounding. */
 #include <math.h>
 #include "metrics.h"
+#include "../problems/twobody.h"
 
 static void cross3(const double *a, const double *b, double *c)
 {
@@ -21,18 +22,6 @@ static double norm3(const double *a) { return sqrt(dot3(a, a)); }
 double pb_rel_err(double x, double x0)
 {
     return x0 != 0 ? fabs(x - x0) / fabs(x0) : fabs(x - x0);
-}
-
-void pb_ric_axes(const double *r, const double *v, double *R, double *I, double *C)
-{
-    double rn = norm3(r), h[3];
-    cross3(r, v, h);
-    double hn = norm3(h);
-    for (int i = 0; i < 3; i++) {
-        R[i] = r[i] / rn;
-        C[i] = h[i] / hn;
-    }
-    cross3(C, R, I);
 }
 
 double pb_angle_about(const double *e0, const double *e1, const double *n)
@@ -72,7 +61,7 @@ void pb_metrics_sample(const pb_problem *p, double t, const double *r, const dou
     s->pos_err = (double)sqrtl(dr[0] * dr[0] + dr[1] * dr[1] + dr[2] * dr[2]);
     s->vel_err = (double)sqrtl(dv[0] * dv[0] + dv[1] * dv[1] + dv[2] * dv[2]);
     double R[3], I[3], C[3];
-    pb_ric_axes(rt3, vt3, R, I, C);
+    pb_ric_frame(rt3, vt3, R, I, C);
     s->radial = dot3(d3, R);
     s->along = dot3(d3, I);
     s->cross = dot3(d3, C);

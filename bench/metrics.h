@@ -15,9 +15,6 @@ void pb_metrics_sample(const pb_problem *p, double t, const double *r, const dou
 /* Relative error |x - x0| / |x0| (absolute when x0 == 0). */
 double pb_rel_err(double x, double x0);
 
-/* Radial, in-track and cross-track unit vectors of the orbit (r, v). */
-void pb_ric_axes(const double *r, const double *v, double *R, double *I, double *C);
-
 /* Angle (rad) from vector e0 to e1 about the axis n, in (-pi, pi]. */
 double pb_angle_about(const double *e0, const double *e1, const double *n);
 

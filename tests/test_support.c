@@ -50,3 +50,77 @@ int pbt_sanitized(void)
     const char *s = getenv("PB_SANITIZED");
     return s && *s && strcmp(s, "0") != 0;
 }
+
+#include <fcntl.h>
+#include <stdio.h>
+#include <sys/stat.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+static void support_slurp(const char *path, char *buf, size_t len)
+{
+    if (!buf || !len)
+        return;
+    buf[0] = 0;
+    FILE *f = fopen(path, "r");
+    if (!f)
+        return;
+    size_t n = fread(buf, 1, len - 1, f);
+    buf[n] = 0;
+    fclose(f);
+}
+
+int pbt_run_cli(const char *const *args, char *out, size_t outlen, char *err, size_t errlen)
+{
+    const char *bin = getenv("PB_BIN");
+    if (!bin)
+        bin = "build/propbench";
+    char dir[256];
+    pbt_tmpdir(dir, sizeof dir);
+    char fo[300], fe[300];
+    snprintf(fo, sizeof fo, "%s/stdout", dir);
+    snprintf(fe, sizeof fe, "%s/stderr", dir);
+    const char *argv[64];
+    int n = 0;
+    argv[n++] = bin;
+    for (int i = 0; args[i] && n < 63; i++)
+        argv[n++] = args[i];
+    argv[n] = NULL;
+    fflush(NULL);
+    pid_t pid = fork();
+    if (pid == 0) {
+        int o = open(fo, O_WRONLY | O_CREAT | O_TRUNC, 0644);
+        int e = open(fe, O_WRONLY | O_CREAT | O_TRUNC, 0644);
+        if (o < 0 || e < 0)
+            _exit(127);
+        dup2(o, 1);
+        dup2(e, 2);
+        const char *root = getenv("PB_ROOT");
+        if (root && chdir(root))
+            _exit(127);
+        execv(bin, (char *const *)argv);
+        _exit(127);
+    }
+    int st = 0;
+    if (pid < 0 || waitpid(pid, &st, 0) < 0)
+        return -1;
+    support_slurp(fo, out, outlen);
+    support_slurp(fe, err, errlen);
+    unlink(fo);
+    unlink(fe);
+    rmdir(dir);
+    return WIFEXITED(st) ? WEXITSTATUS(st) : -1;
+}
+
+void pbt_tmpdir(char *buf, size_t len)
+{
+    snprintf(buf, len, "/tmp/pbt-XXXXXX");
+    if (!mkdtemp(buf))
+        buf[0] = 0;
+}
+
+int pbt_exists(const char *path)
+{
+    struct stat st;
+    return stat(path, &st) == 0;
+}

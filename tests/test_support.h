@@ -25,4 +25,17 @@ double pbt_pos_error(const pb_problem *p, const pbt_result *res);
 /* 1 when the tests run under the sanitizers (long runs may shrink). */
 int pbt_sanitized(void);
 
+
+
+/* Run the CLI ($PB_BIN) with args (NULL-terminated, without argv[0]),
+ * capturing stdout and stderr (each truncated to its buffer). Returns the
+ * exit status, or -1 if it did not exit normally. */
+int pbt_run_cli(const char *const *args, char *out, size_t outlen, char *err, size_t errlen);
+
+/* A fresh empty directory under /tmp; the path is written into buf. */
+void pbt_tmpdir(char *buf, size_t len);
+
+/* 1 if the path exists. */
+int pbt_exists(const char *path);
+
 #endif
