@@ -1,0 +1,243 @@
+/* test_cli.c - the command line end to end: bad input gives exit 2, a message
+ * naming the bad value and no files; sweeps are the same for every -j and
+ * for shards merged; a crashing case is recorded; select finds an answer
+ * known by construction. */
+#include <criterion/criterion.h>
+#include <jansson.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+#include "test_support.h"
+
+static char out_buf[1 << 16], err_buf[1 << 16];
+
+static int cli(const char *const *args)
+{
+    return pbt_run_cli(args, out_buf, sizeof out_buf, err_buf, sizeof err_buf);
+}
+
+/* Each bad input: exit status 2, the bad value named, nothing written. */
+static void expect_bad(const char *const *args, const char *named)
+{
+    char dir[256], out[300];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/run", dir);
+    const char *a[32];
+    int n = 0;
+    for (; args[n]; n++)
+        a[n] = args[n];
+    a[n++] = "--out";
+    a[n++] = out;
+    a[n] = NULL;
+    int rc = cli(a);
+    cr_assert_eq(rc, 2, "exit %d for %s; stderr: %s", rc, named, err_buf);
+    cr_assert(strstr(err_buf, named) != NULL, "message does not name '%s': %s", named, err_buf);
+    cr_assert(!pbt_exists(out), "a run directory was written for bad input %s", named);
+    rmdir(dir);
+}
+
+Test(cli, bad_input_exits_2_and_writes_nothing)
+{
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk5", "--steps-per-orbit", "100", NULL}, "rk5");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e7", "--method", "rk4", "--steps-per-orbit", "100", NULL}, "kepler-e7");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4", "--steps-per-orbit", "0", NULL}, "'0'");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4", "--steps-per-orbit", "-5", NULL}, "-5");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4", "--steps-per-orbit", "100", "--orbits", "-3", NULL}, "-3");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4", "--steps-per-orbit", "100", "--orbits", "0", NULL}, "--orbits");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4", "--steps-per-orbit", "ten", NULL}, "ten");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4", "--steps-per-orbit", "100", "--orbits", "1e", NULL}, "1e");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rkf45", "--tolerance", "-1e-9", NULL}, "-1e-9");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rkf45", "--steps-per-orbit", "100", NULL}, "adaptive");
+    expect_bad((const char *[]){"run", "--problem", "arenstorf", "--method", "leapfrog", "--steps-per-orbit", "100", NULL}, "velocity");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4", "--steps-per-orbit", "100", "--bogus", NULL}, "--bogus");
+    expect_bad((const char *[]){"run", "--problem-file", "/nonexistent/p.ini", "--method", "rk4", "--steps-per-orbit", "100", NULL}, "/nonexistent/p.ini");
+    cr_assert_eq(cli((const char *[]){"frobnicate", NULL}), 2);
+    cr_assert(strstr(err_buf, "frobnicate"));
+}
+
+Test(cli, help_on_every_verb)
+{
+    const char *verbs[] = {"list", "run", "sweep", "merge", "select", NULL};
+    for (int i = 0; verbs[i]; i++) {
+        cr_assert_eq(cli((const char *[]){verbs[i], "--help", NULL}), 0, "%s --help", verbs[i]);
+        cr_assert(strstr(out_buf, "usage: propbench") != NULL, "%s --help: %s", verbs[i], out_buf);
+    }
+}
+
+Test(cli, run_writes_summary_with_fixed_keys)
+{
+    char dir[256], out[300], path[400];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/run", dir);
+    int rc = cli((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "leapfrog",
+                                 "--steps-per-orbit", "200", "--orbits", "20", "--out", out, NULL});
+    cr_assert_eq(rc, 0, "%s", err_buf);
+    snprintf(path, sizeof path, "%s/summary.json", out);
+    json_t *doc = json_load_file(path, 0, NULL);
+    cr_assert_not_null(doc);
+    cr_assert_eq(json_integer_value(json_object_get(doc, "format")), 1);
+    json_t *c = json_array_get(json_object_get(doc, "cases"), 0);
+    const char *keys[] = {"problem", "method", "steps_per_orbit", "orbits", "status", "metrics", "cost", NULL};
+    for (int i = 0; keys[i]; i++)
+        cr_assert_not_null(json_object_get(c, keys[i]), "key %s", keys[i]);
+    const char *mk[] = {"energy_rel_max", "energy_rel_final", "angmom_rel_max", "pos_err_max", "pos_err_final",
+                        "growth_exponent_pos", "growth_class_energy", NULL};
+    for (int i = 0; mk[i]; i++)
+        cr_assert_not_null(json_object_get(json_object_get(c, "metrics"), mk[i]), "metrics.%s", mk[i]);
+    const char *ck[] = {"steps", "evals", "rejected", "ns_per_step", NULL};
+    for (int i = 0; ck[i]; i++)
+        cr_assert_not_null(json_object_get(json_object_get(c, "cost"), ck[i]), "cost.%s", ck[i]);
+    cr_assert_eq(json_integer_value(json_object_get(json_object_get(c, "cost"), "steps")), 4000);
+    snprintf(path, sizeof path, "%s/%s", out, json_string_value(json_object_get(c, "series")));
+    cr_assert(pbt_exists(path), "series %s", path);
+    json_decref(doc);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+/* The summary without what legitimately differs between runs (timing). */
+static json_t *load_cases(const char *dir)
+{
+    char path[400];
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *doc = json_load_file(path, 0, NULL);
+    cr_assert_not_null(doc, "%s", path);
+    json_t *cases = json_incref(json_object_get(doc, "cases"));
+    json_decref(doc);
+    size_t i;
+    json_t *c;
+    json_array_foreach(cases, i, c) {
+        json_t *cost = json_object_get(c, "cost");
+        if (cost) {
+            json_object_del(cost, "ns_per_step");
+            json_object_del(cost, "ns_per_eval");
+        }
+    }
+    return cases;
+}
+
+static const char *grid[] = {"sweep", "--problems", "kepler-e0.6,kepler-e0", "--methods",
+                             "rk4,leapfrog,rkf45", "--steps-per-orbit", "100,200", "--tolerances",
+                             "1e-8", "--orbits", "20", "--quiet", "--repeats", "1"};
+
+static int run_grid(const char *out, const char *extra1, const char *extra2)
+{
+    const char *a[32];
+    int n = 0;
+    for (size_t i = 0; i < sizeof grid / sizeof *grid; i++)
+        a[n++] = grid[i];
+    a[n++] = "--out";
+    a[n++] = out;
+    if (extra1) a[n++] = extra1;
+    if (extra2) a[n++] = extra2;
+    a[n] = NULL;
+    return cli(a);
+}
+
+Test(cli, sweep_identical_for_every_j_and_for_merged_shards)
+{
+    char dir[256], d1[300], d2[300], s1[300], s2[300], s3[300], m[300];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(d1, sizeof d1, "%s/j1", dir);
+    snprintf(d2, sizeof d2, "%s/j2", dir);
+    snprintf(s1, sizeof s1, "%s/s1", dir);
+    snprintf(s2, sizeof s2, "%s/s2", dir);
+    snprintf(s3, sizeof s3, "%s/s3", dir);
+    snprintf(m, sizeof m, "%s/merged", dir);
+    cr_assert_eq(run_grid(d1, "-j", "1"), 0, "%s", err_buf);
+    cr_assert_eq(run_grid(d2, "-j", "2"), 0, "%s", err_buf);
+    cr_assert_eq(run_grid(s1, "--shard", "1/3"), 0, "%s", err_buf);
+    cr_assert_eq(run_grid(s2, "--shard", "2/3"), 0, "%s", err_buf);
+    cr_assert_eq(run_grid(s3, "--shard", "3/3"), 0, "%s", err_buf);
+    cr_assert_eq(cli((const char *[]){"merge", "--out", m, s3, s1, s2, NULL}), 0, "%s", err_buf);
+    json_t *a = load_cases(d1), *b = load_cases(d2), *c = load_cases(m);
+    cr_assert_eq(json_array_size(a), 10);
+    cr_assert(json_equal(a, b), "-j1 and -j2 summaries differ");
+    cr_assert(json_equal(a, c), "merged shards differ from the unsharded run");
+    json_decref(a);
+    json_decref(b);
+    json_decref(c);
+    /* merging a shard twice is an error */
+    cr_assert_eq(cli((const char *[]){"merge", "--out", m, s1, s1, NULL}), 2);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+Test(cli, crashed_case_is_recorded_and_sweep_completes)
+{
+    char dir[256];
+    pbt_tmpdir(dir, sizeof dir);
+    setenv("PB_TEST_CRASH_CASE", "kepler-e0__leapfrog__n100__o20", 1);
+    int rc = run_grid(dir, "-j", "2");
+    unsetenv("PB_TEST_CRASH_CASE");
+    cr_assert_eq(rc, 0, "%s", err_buf);
+    json_t *cases = load_cases(dir);
+    cr_assert_eq(json_array_size(cases), 10);
+    int crashed = 0, ok = 0;
+    size_t i;
+    json_t *c;
+    json_array_foreach(cases, i, c) {
+        const char *st = json_string_value(json_object_get(c, "status"));
+        if (!strcmp(st, "crashed")) {
+            crashed++;
+            cr_assert_str_eq(json_string_value(json_object_get(c, "id")), "kepler-e0__leapfrog__n100__o20");
+        } else if (!strcmp(st, "ok")) {
+            ok++;
+        }
+    }
+    cr_assert_eq(crashed, 1);
+    cr_assert_eq(ok, 9);
+    json_decref(cases);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+/* Selection on a case whose answer is known by construction: the
+ * requirement is RK4's own maximum position error at 300 steps per orbit
+ * (measured by a run first), so the answer is at most 300 and, since the
+ * error falls like h^4, above 300 / 1.1. */
+Test(cli, select_finds_answer_known_by_construction)
+{
+    char dir[256], run[300], sel[300], path[400];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    snprintf(sel, sizeof sel, "%s/sel.json", dir);
+    cr_assert_eq(cli((const char *[]){"run", "--problem", "kepler-e0.5", "--method", "rk4", "--steps-per-orbit",
+                                     "300", "--orbits", "10", "--samples", "20", "--repeats", "0", "--out", run, NULL}), 0);
+    snprintf(path, sizeof path, "%s/summary.json", run);
+    json_t *doc = json_load_file(path, 0, NULL);
+    double err = json_real_value(json_object_get(json_object_get(json_array_get(json_object_get(doc, "cases"), 0), "metrics"), "pos_err_max"));
+    json_decref(doc);
+    char req[64];
+    snprintf(req, sizeof req, "%.17g", err * (1 + 1e-9));
+    cr_assert_eq(cli((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "10", "--max-pos-err", req,
+                                     "--methods", "rk4,rkf45", "--out", sel, "--quiet", NULL}), 0, "%s", err_buf);
+    doc = json_load_file(sel, 0, NULL);
+    cr_assert_not_null(doc);
+    json_t *rank = json_object_get(doc, "ranking");
+    int seen = 0;
+    size_t i;
+    json_t *e;
+    json_array_foreach(rank, i, e) {
+        if (strcmp(json_string_value(json_object_get(e, "method")), "rk4"))
+            continue;
+        seen = 1;
+        cr_assert(json_is_true(json_object_get(e, "meets_requirement")));
+        json_int_t n = json_integer_value(json_object_get(e, "steps_per_orbit"));
+        cr_assert(n <= 300 && n >= 273, "rk4 answer %lld steps per orbit", (long long)n);
+        cr_assert_leq(json_real_value(json_object_get(e, "pos_err_max")), err * (1 + 1e-9));
+    }
+    cr_assert(seen);
+    json_decref(doc);
+    /* an impossible requirement: exit 1 and a plain statement */
+    cr_assert_eq(cli((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "10", "--max-pos-err", "1e-30",
+                                     "--methods", "leapfrog", "--out", sel, NULL}), 1);
+    cr_assert(strstr(out_buf, "NO METHOD meets the requirement"), "%s", out_buf);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
