@@ -12,6 +12,8 @@ int pb_cli_list(int argc, char **argv);
 int pb_cli_run(int argc, char **argv);
 int pb_cli_sweep(int argc, char **argv);
 int pb_cli_merge(int argc, char **argv);
+int pb_cli_baseline(int argc, char **argv);
+int pb_cli_check(int argc, char **argv);
 int pb_cli_select(int argc, char **argv);
 
 /* Print "propbench VERB: error: ..." to stderr; returns PB_EXIT_USAGE. */
