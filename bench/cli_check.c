@@ -100,8 +100,8 @@ static void check_print_table(FILE *f, const pb_check_report *r)
     for (size_t i = 0; i < r->n;) {
         size_t j = check_case_end(r, i);
         check_case_sum s = check_summarise(&r->rows[i], &r->rows[j]);
-        const char *st = s.status ? (!strcmp(s.status->item, "case") ? s.status->change
-                                     : s.status->run) : "-";
+        const char *st = !s.status ? "-" : strcmp(s.status->item, "case") ? s.status->run
+                         : s.status->verdict == PB_CHECK_MISSING ? "missing" : "new";
         fprintf(f, "%-46s %-9s %-17s %9s %-6s %-8s %s\n", r->rows[i].case_id, st,
                 s.worst ? s.worst->item : "-", s.worst ? s.worst->change : "",
                 s.status && !strcmp(s.status->item, "case") ? "-" : s.counts_same ? "same" : "DIFFER",
