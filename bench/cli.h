@@ -12,6 +12,7 @@ int pb_cli_list(int argc, char **argv);
 int pb_cli_run(int argc, char **argv);
 int pb_cli_sweep(int argc, char **argv);
 int pb_cli_merge(int argc, char **argv);
+int pb_cli_report(int argc, char **argv);
 int pb_cli_baseline(int argc, char **argv);
 int pb_cli_check(int argc, char **argv);
 int pb_cli_select(int argc, char **argv);

@@ -11,6 +11,7 @@ static const main_verb main_verbs[] = {
     {"run", pb_cli_run, "one case: problem x method x step or tolerance x horizon"},
     {"sweep", pb_cli_sweep, "a suite or grid of cases (-j N workers, --shard K/N)"},
     {"merge", pb_cli_merge, "join shards of a sweep into one run"},
+    {"report", pb_cli_report, "figures, report.html and report.md from a run directory"},
     {"baseline", pb_cli_baseline, "keep a run as the reference for later checks"},
     {"check", pb_cli_check, "compare a run with a baseline (exit 1 on regression)"},
     {"select", pb_cli_select, "cheapest method and step meeting a requirement over a horizon"},
