@@ -36,8 +36,11 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
                spec->compensated ? ", compensated" : "");
     else
         printf("  %-22s %.3g\n", "tolerance", spec->tolerance);
-    if (p->period > 0)
+    if (p->period > 0 && spec->orbits > 0)
         printf("  %-22s %g orbits (%.6g time units)\n", "horizon", spec->orbits, pb_case_horizon(spec));
+    else if (p->period > 0)
+        printf("  %-22s %.6g time units (%.4g orbits)\n", "horizon", pb_case_horizon(spec),
+               pb_case_horizon(spec) / p->period);
     else
         printf("  %-22s %.6g time units\n", "horizon", pb_case_horizon(spec));
     if (res->status)
