@@ -201,7 +201,10 @@ int pb_cli_sweep(int argc, char **argv)
         printf("wrote %s/summary.json\n", dir);
     }
     rc = PB_EXIT_OK;
-    (void)report; /* --report: see cli_report.c */
+    if (report) {
+        char *rargv[] = {"report", dir, quiet ? "--quiet" : NULL, NULL};
+        rc = pb_cli_report(quiet ? 3 : 2, rargv);
+    }
 out:
     pb_case_list_free(&list);
     return rc;
