@@ -1,0 +1,394 @@
+/* test_report.c - `propbench report`: best-value marks, the growth-law fit,
+ * bad summaries, the gnuplot-missing path, figures and tables of a real run,
+ * and report.html opened in headless Chromium (rendered SVG paths, table
+ * rows, a screenshot saved into the run directory). */
+#include <criterion/criterion.h>
+#include <jansson.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <sys/wait.h>
+#include <fcntl.h>
+#include <unistd.h>
+#include "test_support.h"
+#include "../bench/report_data.h"
+#include "../bench/report_gp.h"
+#include "../bench/report_table.h"
+
+static char *rpt_slurp(const char *path, size_t *len)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return NULL;
+    fseek(f, 0, SEEK_END);
+    long n = ftell(f);
+    fseek(f, 0, SEEK_SET);
+    char *buf = malloc((size_t)n + 1);
+    size_t got = buf ? fread(buf, 1, (size_t)n, f) : 0;
+    fclose(f);
+    if (!buf)
+        return NULL;
+    buf[got] = 0;
+    if (len)
+        *len = got;
+    return buf;
+}
+
+static int rpt_count(const char *hay, const char *needle)
+{
+    int n = 0;
+    for (const char *s = hay; (s = strstr(s, needle)); s += strlen(needle))
+        n++;
+    return n;
+}
+
+static long rpt_size(const char *path)
+{
+    struct stat st;
+    return stat(path, &st) == 0 ? (long)st.st_size : -1;
+}
+
+/* A small grid run: RK4 and leapfrog at three steps, RKF45 at two
+ * tolerances, on the e = 0.6 Kepler problem (Hairer, Lubich & Wanner 2006,
+ * Ch. I), 20 periods. */
+static void rpt_make_run(char *dir, size_t len)
+{
+    pbt_tmpdir(dir, len);
+    cr_assert(dir[0], "no temp dir");
+    char out[8192], err[8192];
+    const char *args[] = {"sweep", "--problems", "kepler-e0.6", "--methods", "rk4,leapfrog,rkf45",
+                          "--steps-per-orbit", "100,200,400", "--tolerances", "1e-8,1e-10",
+                          "--orbits", "20", "--repeats", "1", "--quiet", "--out", dir, NULL};
+    int rc = pbt_run_cli(args, out, sizeof out, err, sizeof err);
+    cr_assert_eq(rc, 0, "sweep failed (%d): %s", rc, err);
+}
+
+static int rpt_report(const char *dir, const char *gnuplot, char *err, size_t errlen)
+{
+    char out[4096];
+    const char *args[] = {"report", dir, "--quiet", gnuplot ? "--gnuplot" : NULL, gnuplot, NULL};
+    return pbt_run_cli(args, out, sizeof out, err, errlen);
+}
+
+/* The minimum and its ties, ignoring unfinished rows and NaN
+ * (the definition of "best" used by the tables; common practice). */
+Test(report, best_marks_minimum_and_ties)
+{
+    double v[6] = {3.0, 1.0, NAN, 1.0, 0.5, 2.0};
+    int ok[6] = {1, 1, 1, 1, 0, 1}, best[6];
+    cr_assert_eq(pb_report_best(v, ok, 6, best), 2);
+    int want[6] = {0, 1, 0, 1, 0, 0};
+    for (int i = 0; i < 6; i++)
+        cr_assert_eq(best[i], want[i], "row %d", i);
+    int none[6] = {0};
+    cr_assert_eq(pb_report_best(v, none, 6, best), 0);
+}
+
+/* An exact power law err = 3 x^2: the least-squares intercept for slope 2
+ * is ln 3 to round-off (exact by construction). Points below x_min are
+ * ignored, and with fewer than two qualifying the fit uses every log row. */
+Test(report, fit_intercept_exact_power_law)
+{
+    double x[8] = {1, 2, 5, 10, 20, 50, 100, 200}, e[8];
+    int use[8] = {1, 1, 1, 1, 1, 1, 1, 1};
+    for (int i = 0; i < 8; i++)
+        e[i] = 3.0 * x[i] * x[i];
+    e[0] = 1e6;   /* an outlier before x_min = 10 must not move the fit */
+    double b = 0;
+    cr_assert_eq(pb_report_fit_intercept(x, e, use, 8, 10.0, 2.0, &b), 5);
+    cr_assert(fabs(b - log(3.0)) < 1e-12, "b = %.15g", b);
+    cr_assert_eq(pb_report_fit_intercept(x, e, use, 8, 150.0, 2.0, &b), 8);
+    cr_assert_eq(pb_report_fit_intercept(x, e, use, 8, 10.0, NAN, &b), 0);
+}
+
+Test(report, style_matches_template)
+{
+    const char *root = getenv("PB_ROOT");
+    char path[4096];
+    snprintf(path, sizeof path, "%s/scripts/plot-style.gp", root ? root : ".");
+    char *s = rpt_slurp(path, NULL);
+    cr_assert_not_null(s, "cannot read %s", path);
+    cr_assert_str_eq(s, pb_report_style_gp, "scripts/plot-style.gp and bench/report_style.c differ");
+    free(s);
+}
+
+Test(report, bad_summary_exit_2_naming_the_file)
+{
+    char dir[256], path[400], err[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    cr_assert_eq(rpt_report(dir, NULL, err, sizeof err), 2);
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    cr_assert(strstr(err, path), "message does not name %s: %s", path, err);
+
+    FILE *f = fopen(path, "w");
+    fputs("{\"format\": 1,\n \"cases\": [ {\"id\": \n", f);
+    fclose(f);
+    cr_assert_eq(rpt_report(dir, NULL, err, sizeof err), 2);
+    cr_assert(strstr(err, path) && strstr(err, "not valid JSON"), "%s", err);
+
+    f = fopen(path, "w");
+    fputs("{\"format\": 2, \"cases\": []}\n", f);
+    fclose(f);
+    cr_assert_eq(rpt_report(dir, NULL, err, sizeof err), 2);
+    cr_assert(strstr(err, "\"format\" must be 1"), "%s", err);
+
+    f = fopen(path, "w");
+    fputs("{\"format\": 1, \"cases\": [{\"id\": \"a\", \"problem\": \"p\", \"method\": \"m\"}]}\n", f);
+    fclose(f);
+    cr_assert_eq(rpt_report(dir, NULL, err, sizeof err), 2);
+    cr_assert(strstr(err, "cases[0]") && strstr(err, "tolerance"), "%s", err);
+}
+
+Test(report, gnuplot_missing_still_writes_data_and_scripts, .timeout = 60)
+{
+    char dir[256], err[8192], path[600];
+    rpt_make_run(dir, sizeof dir);
+    int rc = rpt_report(dir, "/nonexistent/gnuplot", err, sizeof err);
+    cr_assert_eq(rc, 0, "rc %d: %s", rc, err);
+    cr_assert(strstr(err, "warning: gnuplot was not found"), "no clear warning: %s", err);
+    for (int k = 0; k < PB_FIG_COUNT; k++) {
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.gp", dir, pb_report_fig_kind(k));
+        cr_assert(rpt_size(path) > 200, "missing script %s", path);
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.png", dir, pb_report_fig_kind(k));
+        cr_assert(!pbt_exists(path), "%s exists without gnuplot", path);
+    }
+    snprintf(path, sizeof path, "%s/plots/style.gp", dir);
+    cr_assert(pbt_exists(path));
+    snprintf(path, sizeof path, "%s/report.html", dir);
+    char *html = rpt_slurp(path, NULL);
+    cr_assert_not_null(html);
+    cr_assert(strstr(html, "gnuplot was not found"));
+    cr_assert_eq(rpt_count(html, "<tr class=\"case"), 8);
+    free(html);
+}
+
+/* Best energy error in report.md is the minimum over summary.json's
+ * "ok" cases, read here independently; every figure is drawn as PNG and
+ * SVG; the fitted growth law reproduces the data it was fitted to. */
+Test(report, figures_and_tables_of_a_run, .timeout = 120)
+{
+    char dir[256], err[8192], path[600];
+    rpt_make_run(dir, sizeof dir);
+    int rc = rpt_report(dir, NULL, err, sizeof err);
+    cr_assert_eq(rc, 0, "rc %d: %s", rc, err);
+    for (int k = 0; k < PB_FIG_COUNT; k++) {
+        unsigned char magic[8] = {0};
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.png", dir, pb_report_fig_kind(k));
+        FILE *f = fopen(path, "rb");
+        cr_assert_not_null(f, "missing %s", path);
+        cr_assert_eq(fread(magic, 1, 8, f), 8);
+        fclose(f);
+        cr_assert(!memcmp(magic, "\x89PNG\r\n\x1a\n", 8), "%s is not a PNG", path);
+        cr_assert(rpt_size(path) > 20000, "%s is only %ld bytes", path, rpt_size(path));
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.svg", dir, pb_report_fig_kind(k));
+        cr_assert(rpt_size(path) > 5000, "%s missing or tiny", path);
+    }
+
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *doc = json_load_file(path, 0, NULL);
+    cr_assert_not_null(doc);
+    double emin = INFINITY;
+    size_t i;
+    json_t *c;
+    json_array_foreach(json_object_get(doc, "cases"), i, c) {
+        double e = json_number_value(json_object_get(json_object_get(c, "metrics"), "energy_rel_max"));
+        if (!strcmp(json_string_value(json_object_get(c, "status")), "ok") && e < emin)
+            emin = e;
+    }
+    json_decref(doc);
+    char want[64];
+    snprintf(want, sizeof want, "| **%.3e** |", emin);
+    snprintf(path, sizeof path, "%s/report.md", dir);
+    char *md = rpt_slurp(path, NULL);
+    cr_assert_not_null(md);
+    cr_assert(strstr(md, want), "report.md does not mark the best energy error %s", want);
+    cr_assert_eq(rpt_count(md, "\n| rk4 |") + rpt_count(md, "\n| **rk4** |"), 3);
+    cr_assert_eq(rpt_count(md, "\n| leapfrog |"), 3);
+    cr_assert_eq(rpt_count(md, "\n| rkf45 |"), 2);
+    cr_assert(strstr(md, "](plots/kepler-e0.6-work.png)"));
+    cr_assert(strstr(md, "do not validate an operational propagator"));
+    free(md);
+
+    /* The drawn law C t^k with the run's k must pass within 10% of RK4's
+     * last fitted sample (tolerance: common practice for a log-log fit over
+     * one decade of a smooth, monotone error series). */
+    pb_report_run run;
+    char e2[1024];
+    cr_assert_eq(pb_report_load(dir, &run, e2, sizeof e2), 0, "%s", e2);
+    const pb_report_case *rk = NULL;
+    for (int j = 0; j < run.ncases; j++)
+        if (!strcmp(run.cases[j].method, "rk4") && run.cases[j].steps_per_orbit == 400)
+            rk = &run.cases[j];
+    cr_assert_not_null(rk);
+    cr_assert(isfinite(rk->k_pos) && rk->k_pos > 0.5, "k = %g", rk->k_pos);
+    snprintf(path, sizeof path, "%s/%s", dir, rk->series);
+    pb_report_series s;
+    cr_assert_eq(pb_report_series_read(path, &s, e2, sizeof e2), 0, "%s", e2);
+    int co = pb_report_series_col(&s, "orbits"), cl = pb_report_series_col(&s, "log_sample"),
+        cp = pb_report_series_col(&s, "pos_err");
+    cr_assert(co >= 0 && cl >= 0 && cp >= 0);
+    double *x = calloc((size_t)s.nrows, sizeof *x), *y = calloc((size_t)s.nrows, sizeof *y);
+    int *use = calloc((size_t)s.nrows, sizeof *use), last = -1;
+    for (int j = 0; j < s.nrows; j++) {
+        x[j] = s.v[j * s.ncols + co];
+        y[j] = s.v[j * s.ncols + cp];
+        use[j] = s.v[j * s.ncols + cl] > 0.5;
+        if (use[j]) last = j;
+    }
+    double b = NAN;
+    cr_assert(pb_report_fit_intercept(x, y, use, s.nrows, 10.0, rk->k_pos, &b) >= 2);
+    double pred = exp(b + rk->k_pos * log(x[last]));
+    cr_assert(fabs(pred / y[last] - 1) < 0.10, "fit %.4e vs data %.4e at %g orbits", pred, y[last], x[last]);
+    free(x); free(y); free(use);
+    pb_report_series_free(&s);
+    pb_report_free(&run);
+
+    snprintf(path, sizeof path, "%s/report.html", dir);
+    char *html = rpt_slurp(path, NULL);
+    cr_assert_not_null(html);
+    cr_assert_eq(rpt_count(html, "<svg"), PB_FIG_COUNT);
+    cr_assert_eq(rpt_count(html, "<script"), 0, "report.html must not need scripts");
+    cr_assert_eq(rpt_count(html, "src="), 0, "report.html must not load anything");
+    cr_assert_eq(rpt_count(html, "https:"), 0);
+    cr_assert_eq(rpt_count(html, "http:"), rpt_count(html, "http://www.w3.org/"),
+                 "only XML namespace names may look like URLs");
+    cr_assert_eq(rpt_count(html, "id='f0-0-gpPt0'"), 1, "figure ids must be unique");
+    cr_assert_eq(rpt_count(html, "id='gpPt0'"), 0);
+    free(html);
+}
+
+/* Run chromium with args; stdout to out_path; returns exit status and the
+ * tail of stderr in err. */
+static int rpt_chromium(const char *const *extra, const char *out_path, char *err, size_t errlen)
+{
+    const char *bin = getenv("PB_CHROMIUM");
+    if (!bin)
+        bin = "chromium";
+    char prof[256], errpath[300];
+    pbt_tmpdir(prof, sizeof prof);
+    snprintf(errpath, sizeof errpath, "%s.stderr", prof);
+    char udd[300];
+    snprintf(udd, sizeof udd, "--user-data-dir=%s", prof);
+    const char *argv[32] = {bin, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
+                            "--no-first-run", "--disable-background-networking",
+                            "--disable-component-update", "--disable-sync", "--disable-extensions",
+                            "--hide-scrollbars", udd};
+    int n = 12;
+    for (int i = 0; extra[i] && n < 31; i++)
+        argv[n++] = extra[i];
+    argv[n] = NULL;
+    fflush(NULL);
+    pid_t pid = fork();
+    if (pid == 0) {
+        int o = open(out_path, O_WRONLY | O_CREAT | O_TRUNC, 0644);
+        int e = open(errpath, O_WRONLY | O_CREAT | O_TRUNC, 0644);
+        if (o < 0 || e < 0)
+            _exit(127);
+        dup2(o, 1);
+        dup2(e, 2);
+        alarm(90);
+        execvp(bin, (char *const *)argv);
+        dprintf(2, "cannot execute %s (install Debian's chromium: PB_WITH_BROWSER=1 sh scripts/install-deps.sh)\n", bin);
+        _exit(127);
+    }
+    int st = 0;
+    waitpid(pid, &st, 0);
+    size_t len = 0;
+    char *e = rpt_slurp(errpath, &len);
+    err[0] = 0;
+    if (e) {
+        snprintf(err, errlen, "%s", len + 1 > errlen ? e + len + 1 - errlen : e);
+        free(e);
+    }
+    unlink(errpath);
+    char cmd[400];
+    snprintf(cmd, sizeof cmd, "%s", prof);
+    const char *rm[] = {"rm", "-rf", cmd, NULL};
+    pid_t r = fork();
+    if (r == 0) {
+        execvp("rm", (char *const *)rm);
+        _exit(127);
+    }
+    waitpid(r, NULL, 0);
+    return WIFEXITED(st) ? WEXITSTATUS(st) : -1;
+}
+
+/* Appended to a copy of report.html (never to the report itself): after
+ * layout, count the SVGs, those with at least 5 paths of non-zero drawn
+ * size, and the table rows, into one line the DOM dump carries out. */
+static const char rpt_probe[] =
+    "<script>(function(){var s=document.querySelectorAll('svg'),d=0;"
+    "s.forEach(function(g){var r=g.getBoundingClientRect(),k=0;"
+    "g.querySelectorAll('path').forEach(function(p){var b=p.getBBox();if(b.width>0||b.height>0)k++;});"
+    "if(r.width>100&&r.height>100&&k>=5)d++;});"
+    "var rows=document.querySelectorAll('table.summary tr.case').length;"
+    "var o=document.createElement('pre');o.id='pbcheck';"
+    "o.textContent='PBCHECK svgs='+s.length+' drawn='+d+' rows='+rows+' END';"
+    "document.body.appendChild(o);})();</script>";
+
+Test(report, browser_renders_figures_and_tables, .timeout = 240)
+{
+    char dir[256], err[8192], path[600], url[700], probe[600], dom[600], shot[700];
+    rpt_make_run(dir, sizeof dir);
+    int rc = rpt_report(dir, NULL, err, sizeof err);
+    cr_assert_eq(rc, 0, "rc %d: %s", rc, err);
+
+    snprintf(path, sizeof path, "%s/report.html", dir);
+    size_t n = 0;
+    char *html = rpt_slurp(path, &n);
+    cr_assert_not_null(html);
+    char *end = strstr(html, "</body>");
+    cr_assert_not_null(end);
+    snprintf(probe, sizeof probe, "%s/probe.html", dir);
+    FILE *f = fopen(probe, "w");
+    fwrite(html, 1, (size_t)(end - html), f);
+    fputs(rpt_probe, f);
+    fputs(end, f);
+    fclose(f);
+    free(html);
+
+    snprintf(url, sizeof url, "file://%s", probe);
+    snprintf(dom, sizeof dom, "%s/probe.dom", dir);
+    const char *a1[] = {"--window-size=1200,900", "--dump-dom", url, NULL};
+    rc = rpt_chromium(a1, dom, err, sizeof err);
+    cr_assert_eq(rc, 0, "headless chromium could not start or failed (status %d): %s", rc, err);
+    char *d = rpt_slurp(dom, NULL);
+    cr_assert_not_null(d);
+    char *line = strstr(d, "<pre id=\"pbcheck\">");
+    cr_assert_not_null(line, "the page's probe did not run; chromium stderr: %s", err);
+    int svgs = -1, drawn = -1, rows = -1;
+    cr_assert_eq(sscanf(line, "<pre id=\"pbcheck\">PBCHECK svgs=%d drawn=%d rows=%d", &svgs, &drawn, &rows), 3,
+                 "%.200s", line);
+    cr_assert_eq(svgs, PB_FIG_COUNT, "inline SVGs: %d", svgs);
+    cr_assert_eq(drawn, PB_FIG_COUNT, "SVGs with plotted paths of non-zero size: %d of %d", drawn, svgs);
+    cr_assert_eq(rows, 8, "table rows: %d (8 cases in the run)", rows);
+    free(d);
+
+    /* screenshot of the report itself, kept in the run directory; a page
+     * with figures must compress far worse than an empty page of that size */
+    snprintf(url, sizeof url, "file://%s", path);
+    snprintf(shot, sizeof shot, "--screenshot=%s/report.png", dir);
+    const char *a2[] = {"--window-size=1200,2400", shot, url, NULL};
+    char devnull[600];
+    snprintf(devnull, sizeof devnull, "%s/chromium.out", dir);
+    rc = rpt_chromium(a2, devnull, err, sizeof err);
+    cr_assert_eq(rc, 0, "screenshot failed (status %d): %s", rc, err);
+    char blank[600], bshot[700], burl[700];
+    snprintf(blank, sizeof blank, "%s/blank.html", dir);
+    f = fopen(blank, "w");
+    fputs("<!DOCTYPE html><html><body></body></html>\n", f);
+    fclose(f);
+    snprintf(burl, sizeof burl, "file://%s", blank);
+    snprintf(bshot, sizeof bshot, "--screenshot=%s/blank.png", dir);
+    const char *a3[] = {"--window-size=1200,2400", bshot, burl, NULL};
+    rc = rpt_chromium(a3, devnull, err, sizeof err);
+    cr_assert_eq(rc, 0, "blank screenshot failed (status %d): %s", rc, err);
+    char rp[600], bp[600];
+    snprintf(rp, sizeof rp, "%s/report.png", dir);
+    snprintf(bp, sizeof bp, "%s/blank.png", dir);
+    long rs = rpt_size(rp), bs = rpt_size(bp);
+    cr_assert(bs > 0, "no blank screenshot");
+    cr_assert(rs > 20 * bs && rs > 100000, "report.png %ld bytes vs empty page %ld: nothing rendered?", rs, bs);
+}
