@@ -14,7 +14,7 @@ static const char *const gp_captions[PB_FIG_COUNT] = {
     "Relative energy error against time (largest value over each sample window), one line per method and step or tolerance.",
     "Relative angular-momentum error against time (largest value over each sample window).",
     "Position error against time, with the fitted growth law C t^k (grey dashes, fitted over t >= 10 periods; k in the legend and table).",
-    "Position error split into radial, along-track and cross-track parts (absolute values) in the true orbit's frame.",
+    "Position error split into radial, along-track and cross-track parts (absolute values) in the true orbit's frame; each line keeps its style from the legends of the other figures.",
     "Work-precision: largest position error against force evaluations over the horizon, one curve per method.",
     "Convergence of fixed-step methods: largest position error against step, with reference slopes of each method's order (dashed).",
 };
@@ -168,8 +168,6 @@ static int gp_time_plot(FILE *f, const pb_report_run *run, const pb_report_probl
     gp_axes_log(f);
     if (!key)
         fputs("unset key\n", f);
-    else if (key == 2)   /* one column in the right margin, beside all three panels */
-        fputs("set key at screen 0.995,0.955 right top vertical maxrows 80\n", f);
     else
         fputs("set key\n", f);
     fputs("plot ", f);
@@ -264,12 +262,12 @@ static int gp_body(FILE *f, FILE *pre, int kind, const pb_report_run *run, const
         snprintf(t, sizeof t, "%s: radial, along-track and cross-track error, horizon %s", p->name, hz);
         fputs("set multiplot layout 3,1 title ", f);
         gp_quote(f, t);
-        fputs(" font ',12'\nset lmargin at screen 0.10\nset rmargin at screen 0.74\nunset title\n", f);
+        fputs(" font ',12'\nset lmargin at screen 0.10\nset rmargin at screen 0.97\nunset title\n", f);
         for (int k = 0; k < 3; k++) {
             if (k == 2) gp_xtime(f, p);
             else fputs("unset xlabel\n", f);
             fprintf(f, "set ylabel '|%s error| [%s]'\n", part[k], p->len_unit);
-            gp_time_plot(f, run, p, g, GP_R + k, prefix, 0, k == 0 ? 2 : 0);
+            gp_time_plot(f, run, p, g, GP_R + k, prefix, 0, 0);
         }
         fputs("unset multiplot\n", f);
         return 1;

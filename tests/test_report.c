@@ -17,6 +17,9 @@
 #include "../bench/report_gp.h"
 #include "../bench/report_table.h"
 
+/* one suite-wide timeout: per-test timeouts make Criterion 2.4.1's runner leak */
+TestSuite(report, .timeout = 240);
+
 static char *rpt_slurp(const char *path, size_t *len)
 {
     FILE *f = fopen(path, "rb");
@@ -141,7 +144,7 @@ Test(report, bad_summary_exit_2_naming_the_file)
     cr_assert(strstr(err, "cases[0]") && strstr(err, "tolerance"), "%s", err);
 }
 
-Test(report, gnuplot_missing_still_writes_data_and_scripts, .timeout = 60)
+Test(report, gnuplot_missing_still_writes_data_and_scripts)
 {
     char dir[256], err[8192], path[600];
     rpt_make_run(dir, sizeof dir);
@@ -167,7 +170,7 @@ Test(report, gnuplot_missing_still_writes_data_and_scripts, .timeout = 60)
 /* Best energy error in report.md is the minimum over summary.json's
  * "ok" cases, read here independently; every figure is drawn as PNG and
  * SVG; the fitted growth law reproduces the data it was fitted to. */
-Test(report, figures_and_tables_of_a_run, .timeout = 120)
+Test(report, figures_and_tables_of_a_run)
 {
     char dir[256], err[8192], path[600];
     rpt_make_run(dir, sizeof dir);
@@ -328,7 +331,7 @@ static const char rpt_probe[] =
     "o.textContent='PBCHECK svgs='+s.length+' drawn='+d+' rows='+rows+' END';"
     "document.body.appendChild(o);})();</script>";
 
-Test(report, browser_renders_figures_and_tables, .timeout = 240)
+Test(report, browser_renders_figures_and_tables)
 {
     char dir[256], err[8192], path[600], url[700], probe[600], dom[600], shot[700];
     rpt_make_run(dir, sizeof dir);
