@@ -68,7 +68,7 @@ test-plain: $(B)/run_tests $(BIN)
 	PB_BIN=$(CURDIR)/$(BIN) PB_ROOT=$(CURDIR) ./$(B)/run_tests --jobs 2
 
 test-asan: $(BA)/run_tests $(BIN_A)
-	ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
+	LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
 	PB_SANITIZED=1 PB_BIN=$(CURDIR)/$(BIN_A) PB_ROOT=$(CURDIR) ./$(BA)/run_tests --jobs 2
 
 demo: $(BIN)
