@@ -256,8 +256,20 @@ int pb_report_series_read(const char *path, pb_report_series *s, char *err, size
         char *p = line;
         for (int j = 0; j < s->ncols; j++) {
             char *end;
-            row[j] = strtod(p, &end);
-            if (end == p || (j + 1 < s->ncols ? *end != ',' : *end != 0)) {
+            /* an empty field is a quantity undefined at that sample (e.g. the
+             * apsidal angle of a circular orbit): NaN, which plots skip */
+            if (*p == ',' || (*p == 0 && j + 1 == s->ncols)) {
+                row[j] = NAN;
+                end = p;
+            } else {
+                row[j] = strtod(p, &end);
+                if (end == p) {
+                    snprintf(err, errlen, "%s:%d: column %d (%s) is not a number", path, lineno, j + 1,
+                             s->names[j]);
+                    goto out;
+                }
+            }
+            if (j + 1 < s->ncols ? *end != ',' : *end != 0) {
                 snprintf(err, errlen, "%s:%d: column %d (%s) is not a number", path, lineno, j + 1,
                          s->names[j]);
                 goto out;
