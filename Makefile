@@ -33,11 +33,11 @@ all: $(BIN)
 deps:
 	@sh scripts/install-deps.sh
 
-$(B)/%.o: %.c | deps
+$(B)/%.o: %.c Makefile | deps
 	@mkdir -p $(dir $@)
 	$(CC) $(PB_CFLAGS) -MMD -MP -c $< -o $@
 
-$(BA)/%.o: %.c | deps
+$(BA)/%.o: %.c Makefile | deps
 	@mkdir -p $(dir $@)
 	$(CC) $(PB_CFLAGS) $(SAN) -MMD -MP -c $< -o $@
 
