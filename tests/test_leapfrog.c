@@ -91,7 +91,7 @@ static lft_energy_obs lft_energy_run(const pb_method_type *m, const pb_problem *
  * leapfrog max energy error 7.35e-3 over both ranges (ratio 1.000); RK4
  * 6.65e-3 over the first 10^3 orbits and 6.82e-2 over the rest (ratio 10.3,
  * linear drift: the late window ends 10 times later). */
-Test(leapfrog, energy_bounded_rk4_drifts, .timeout = 60)
+Test(leapfrog, energy_bounded_rk4_drifts)
 {
     pb_problem p;
     lft_kepler(&p, 0.6);

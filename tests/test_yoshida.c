@@ -113,7 +113,7 @@ static yst_energy_obs yst_energy_run(const pb_method_type *m, const pb_problem *
  * over orbits 0..10^3 / 10^3..10^4: yoshida4 1.40e-3 / 1.40e-3, yoshida6
  * 1.68e-5 / 1.68e-5, yoshida8 1.835e-6 / 1.841e-6 (0.1, 0.2, 0.4 s). All are
  * truncation errors far above round-off, so the bound tests the method. */
-Test(yoshida, energy_bounded_10k_orbits, .timeout = 60)
+Test(yoshida, energy_bounded_10k_orbits)
 {
     const pb_method_type *ms[] = {&pb_method_yoshida4, &pb_method_yoshida6,
                                   &pb_method_yoshida8};
