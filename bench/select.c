@@ -148,12 +148,11 @@ static int select_adaptive(const pb_case_spec *base, const pb_method_type *m,
         }
     }
     /* round to 3 significant digits so the answer can be typed back in */
-    double shown = hi;
+    double q = pow(10.0, floor(log10(hi)) - 2);
+    double shown = floor(hi / q * (1 + 1e-12)) * q;
     char buf[32];
-    snprintf(buf, sizeof buf, "%.2e", hi);
+    snprintf(buf, sizeof buf, "%.3g", shown);
     sscanf(buf, "%lf", &shown);
-    if (shown > hi)
-        shown = hi;
     int ok = select_try(base, m, shown, req, out, 1, base->repeats > 0 ? base->repeats : 3);
     if (ok > 0) {
         out->found = 1;
