@@ -8,6 +8,8 @@
 
 typedef struct pb_force_counter {
     const pb_problem *problem; /* borrowed */
+    pb_accel_fn accel;         /* problem->accel, cached */
+    int dim;
     long evals;
     double t_nonfinite;        /* time of the first non-finite force, if any */
     int saw_nonfinite;

@@ -13,8 +13,7 @@ typedef struct rk4_ws {
     pb_method_config cfg;
     double t0;
     long step;                /* grid index of the current state */
-    double *y, *comp;         /* state and its Kahan compensation */
-    double *k1, *k2, *k3, *k4, *ytmp;
+    double *y, *comp;         /* state (r, v) and its Kahan compensation */
     pb_method_stats st;
 } rk4_ws;
 
@@ -27,17 +26,12 @@ static void *rk4_alloc(int dim)
         return NULL;
     w->dim = dim;
     w->n = 2 * dim;
-    w->y = calloc(7 * (size_t)w->n, sizeof(double));
+    w->y = calloc(2 * (size_t)w->n, sizeof(double));
     if (!w->y) {
         free(w);
         return NULL;
     }
     w->comp = w->y + w->n;
-    w->k1 = w->comp + w->n;
-    w->k2 = w->k1 + w->n;
-    w->k3 = w->k2 + w->n;
-    w->k4 = w->k3 + w->n;
-    w->ytmp = w->k4 + w->n;
     return w;
 }
 
@@ -68,51 +62,75 @@ static int rk4_start(void *ws, const pb_force *f, const pb_method_config *cfg,
     return PB_OK;
 }
 
-/* dy/dt = (v, a(t, r, v)) */
-static int rk4_deriv(rk4_ws *w, double t, const double *y, double *dy)
+/* One step for a state of d positions and d velocities. The derivative of the
+ * position part is the stage velocity itself, so stages keep (r, v) on the
+ * stack and nothing is copied; inlined with d = 3 the loops unroll. The
+ * arithmetic is the tableau's, term for term, so every variant gives the
+ * same bits. A failed step leaves y and comp untouched. */
+static inline int rk4_step_d(rk4_ws *w, double t, double h, const int d)
 {
-    memcpy(dy, y + w->dim, (size_t)w->dim * sizeof(double));
-    return w->f.accel(w->f.ctx, t, y, y + w->dim, dy + w->dim);
+    double *r = w->y, *v = w->y + d, *cr = w->comp, *cv = w->comp + d;
+    double a1[PB_DIM_MAX], a2[PB_DIM_MAX], a3[PB_DIM_MAX], a4[PB_DIM_MAX];
+    double r2[PB_DIM_MAX], v2[PB_DIM_MAX], r3[PB_DIM_MAX], v3[PB_DIM_MAX];
+    double r4[PB_DIM_MAX], v4[PB_DIM_MAX], rn[PB_DIM_MAX], vn[PB_DIM_MAX];
+    double ncr[PB_DIM_MAX], ncv[PB_DIM_MAX];
+    int s, i, ok = 1;
+    void *ctx = w->f.ctx;
+    if ((s = w->f.accel(ctx, t, r, v, a1)))
+        return s;
+    for (i = 0; i < d; i++) {
+        r2[i] = r[i] + 0.5 * h * v[i];
+        v2[i] = v[i] + 0.5 * h * a1[i];
+    }
+    if ((s = w->f.accel(ctx, t + 0.5 * h, r2, v2, a2)))
+        return s;
+    for (i = 0; i < d; i++) {
+        r3[i] = r[i] + 0.5 * h * v2[i];
+        v3[i] = v[i] + 0.5 * h * a2[i];
+    }
+    if ((s = w->f.accel(ctx, t + 0.5 * h, r3, v3, a3)))
+        return s;
+    for (i = 0; i < d; i++) {
+        r4[i] = r[i] + h * v3[i];
+        v4[i] = v[i] + h * a3[i];
+    }
+    if ((s = w->f.accel(ctx, t + h, r4, v4, a4)))
+        return s;
+    if (w->cfg.compensated) {
+        for (i = 0; i < d; i++) {
+            /* Kahan: carry the low-order bits the addition to the state drops */
+            double dr = h / 6.0 * (v[i] + 2.0 * (v2[i] + v3[i]) + v4[i]) - cr[i];
+            double dv = h / 6.0 * (a1[i] + 2.0 * (a2[i] + a3[i]) + a4[i]) - cv[i];
+            rn[i] = r[i] + dr;
+            vn[i] = v[i] + dv;
+            ncr[i] = (rn[i] - r[i]) - dr;
+            ncv[i] = (vn[i] - v[i]) - dv;
+        }
+    } else {
+        for (i = 0; i < d; i++) {
+            rn[i] = r[i] + h / 6.0 * (v[i] + 2.0 * (v2[i] + v3[i]) + v4[i]);
+            vn[i] = v[i] + h / 6.0 * (a1[i] + 2.0 * (a2[i] + a3[i]) + a4[i]);
+        }
+    }
+    for (i = 0; i < d; i++)
+        ok &= isfinite(rn[i]) & isfinite(vn[i]);
+    if (!ok)
+        return PB_ENONFINITE;
+    for (i = 0; i < d; i++) {
+        r[i] = rn[i];
+        v[i] = vn[i];
+    }
+    if (w->cfg.compensated)
+        for (i = 0; i < d; i++) {
+            cr[i] = ncr[i];
+            cv[i] = ncv[i];
+        }
+    return PB_OK;
 }
 
 static int rk4_step(rk4_ws *w, double t, double h)
 {
-    int n = w->n, s, i;
-    double *y = w->y, *yt = w->ytmp;
-    if ((s = rk4_deriv(w, t, y, w->k1)))
-        return s;
-    for (i = 0; i < n; i++)
-        yt[i] = y[i] + 0.5 * h * w->k1[i];
-    if ((s = rk4_deriv(w, t + 0.5 * h, yt, w->k2)))
-        return s;
-    for (i = 0; i < n; i++)
-        yt[i] = y[i] + 0.5 * h * w->k2[i];
-    if ((s = rk4_deriv(w, t + 0.5 * h, yt, w->k3)))
-        return s;
-    for (i = 0; i < n; i++)
-        yt[i] = y[i] + h * w->k3[i];
-    if ((s = rk4_deriv(w, t + h, yt, w->k4)))
-        return s;
-    /* k1[i] is dead once inc is formed: it holds the new compensation until
-     * the whole step is known finite, so a failed step leaves y and comp intact */
-    for (i = 0; i < n; i++) {
-        double inc = h / 6.0 * (w->k1[i] + 2.0 * (w->k2[i] + w->k3[i]) + w->k4[i]);
-        if (w->cfg.compensated) {
-            /* Kahan: carry the low-order bits the addition to y[i] drops */
-            double dx = inc - w->comp[i];
-            double sum = y[i] + dx;
-            w->k1[i] = (sum - y[i]) - dx;
-            yt[i] = sum;
-        } else {
-            yt[i] = y[i] + inc;
-        }
-        if (!isfinite(yt[i]))
-            return PB_ENONFINITE;
-    }
-    memcpy(y, yt, (size_t)n * sizeof(double));
-    if (w->cfg.compensated)
-        memcpy(w->comp, w->k1, (size_t)n * sizeof(double));
-    return PB_OK;
+    return w->dim == 3 ? rk4_step_d(w, t, h, 3) : rk4_step_d(w, t, h, w->dim);
 }
 
 static int rk4_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
