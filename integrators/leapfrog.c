@@ -1,34 +1,62 @@
-/* leapfrog.c - kick-drift-kick Stormer-Verlet, second order, symplectic and
- * time-reversible. Source: Verlet (1967); Hairer, Lubich & Wanner, Geometric
- * Numerical Integration (2006), Sec. I.1.4. One force evaluation a step: the
- * acceleration at the end of a step is the one that starts the next. */
+/* leapfrog.c - the kick-drift-kick Stormer-Verlet leapfrog and Yoshida's
+ * symmetric compositions of it, orders 4, 6 ("solution A") and 8 ("solution
+ * D"). Sources: Verlet (1967); Hairer, Lubich & Wanner (2006) Sec. I.1.4;
+ * Yoshida (1990), Physics Letters A 150, 262. Leapfrog is the composition of
+ * one substep; where substeps meet their half-kicks merge, so s substeps cost
+ * s force evaluations a step (the last one starts the next step). */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 #include "method.h"
 
-typedef struct leapfrog_ws {
+#define YOSHIDA_STAGES_MAX 15 /* order 8: 2*7+1 substeps */
+
+/* One composition: c[0..s-1] are the substep fractions of h (they sum to 1). */
+typedef struct yoshida_scheme {
+    int s;
+    double c[YOSHIDA_STAGES_MAX];
+} yoshida_scheme;
+
+typedef struct yoshida_ws {
     int dim;
     pb_force f;
     pb_method_config cfg;
+    yoshida_scheme sch;       /* built in start from the w table */
+    double kick[YOSHIDA_STAGES_MAX + 1]; /* merged kick fractions b_0..b_s */
+    double tfrac[YOSHIDA_STAGES_MAX];    /* time fraction reached by drift j */
     double t0;
-    long step;
-    double *r, *v, *a, *cr, *cv; /* state, acceleration at r, Kahan compensations */
-    double *rn, *vn;
-    int have_a;                  /* a holds a(r) for the current state */
+    long step;                /* grid index: time is t0 + step*h, never a summed clock */
+    double *r, *v, *a, *cr, *cv;        /* state, a(r), Kahan compensations */
+    double *rn, *vn, *an, *crn, *cvn;   /* the step in progress */
+    int have_a;
     pb_method_stats st;
-} leapfrog_ws;
+} yoshida_ws;
 
-static void *leapfrog_alloc(int dim)
+/* Build the sequence w_k..w_1, w0, w_1..w_k from w[1..k]; w0 = 1 - 2 sum. */
+static yoshida_scheme yoshida_make(int k, const double *w)
 {
-    /* the step keeps PB_DIM_MAX-sized scratch on the stack */
+    yoshida_scheme sc;
+    double sum = 0;
+    memset(&sc, 0, sizeof sc);
+    sc.s = 2 * k + 1;
+    for (int i = 1; i <= k; i++) {
+        sum += w[i];
+        sc.c[k - i] = w[i];
+        sc.c[k + i] = w[i];
+    }
+    sc.c[k] = 1.0 - 2.0 * sum;
+    return sc;
+}
+
+static void *yoshida_alloc(int dim)
+{
     if (dim < 1 || dim > PB_DIM_MAX)
         return NULL;
-    leapfrog_ws *w = calloc(1, sizeof *w);
+    yoshida_ws *w = calloc(1, sizeof *w);
     if (!w)
         return NULL;
     w->dim = dim;
-    w->r = calloc(7 * (size_t)dim, sizeof(double));
+    w->r = calloc(10 * (size_t)dim, sizeof(double));
     if (!w->r) {
         free(w);
         return NULL;
@@ -39,26 +67,42 @@ static void *leapfrog_alloc(int dim)
     w->cv = w->cr + dim;
     w->rn = w->cv + dim;
     w->vn = w->rn + dim;
+    w->an = w->vn + dim;
+    w->crn = w->an + dim;
+    w->cvn = w->crn + dim;
     return w;
 }
 
-static void leapfrog_free(void *ws)
+static void yoshida_free(void *ws)
 {
-    leapfrog_ws *w = ws;
+    yoshida_ws *w = ws;
     if (!w)
         return;
     free(w->r);
     free(w);
 }
 
-static int leapfrog_start(void *ws, const pb_force *f, const pb_method_config *cfg,
-                          double t0, const double *r0, const double *v0)
+static int yoshida_start_with(void *ws, int k, const double *wk, const pb_force *f,
+                              const pb_method_config *cfg, double t0, const double *r0,
+                              const double *v0)
 {
-    leapfrog_ws *w = ws;
+    yoshida_ws *w = ws;
     if (!(cfg->h > 0) || !isfinite(cfg->h))
         return PB_EINVAL;
     w->f = *f;
     w->cfg = *cfg;
+    w->sch = yoshida_make(k, wk);
+    const yoshida_scheme *sch = &w->sch;
+    int s = sch->s;
+    double acc = 0;
+    w->kick[0] = 0.5 * sch->c[0];
+    for (int j = 1; j < s; j++)
+        w->kick[j] = 0.5 * (sch->c[j - 1] + sch->c[j]);
+    w->kick[s] = 0.5 * sch->c[s - 1];
+    for (int j = 0; j < s; j++) {
+        acc += sch->c[j];
+        w->tfrac[j] = acc;
+    }
     w->t0 = t0;
     w->step = 0;
     size_t sz = (size_t)w->dim * sizeof(double);
@@ -72,8 +116,8 @@ static int leapfrog_start(void *ws, const pb_force *f, const pb_method_config *c
     return PB_OK;
 }
 
-/* x += inc, optionally with Kahan compensation c */
-static inline double lf_add(double x, double inc, double *c, int compensated)
+/* x += inc, optionally with Kahan compensation c (true value ~ x - c) */
+static inline double yoshida_add(double x, double inc, double *c, int compensated)
 {
     if (!compensated)
         return x + inc;
@@ -83,10 +127,41 @@ static inline double lf_add(double x, double inc, double *c, int compensated)
     return s;
 }
 
-static int leapfrog_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
+/* One composed step from the committed state into rn, vn, an (the committed
+ * state is untouched, so a failure leaves the last good state). */
+static int yoshida_step(yoshida_ws *w, double t, double t1, double h)
 {
-    leapfrog_ws *w = ws;
-    int d = w->dim, s, i, comp = w->cfg.compensated;
+    int d = w->dim, s = w->sch.s, comp = w->cfg.compensated, i, j, st;
+    size_t sz = (size_t)d * sizeof(double);
+    memcpy(w->rn, w->r, sz);
+    memcpy(w->vn, w->v, sz);
+    memcpy(w->an, w->a, sz);
+    memcpy(w->crn, w->cr, sz);
+    memcpy(w->cvn, w->cv, sz);
+    for (j = 0; j < s; j++) {
+        double kh = w->kick[j] * h, dh = w->sch.c[j] * h;
+        for (i = 0; i < d; i++)
+            w->vn[i] = yoshida_add(w->vn[i], kh * w->an[i], &w->cvn[i], comp);
+        for (i = 0; i < d; i++)
+            w->rn[i] = yoshida_add(w->rn[i], dh * w->vn[i], &w->crn[i], comp);
+        /* the last drift ends exactly on the grid time t1 */
+        double tj = (j == s - 1) ? t1 : t + w->tfrac[j] * h;
+        if ((st = w->f.accel(w->f.ctx, tj, w->rn, w->vn, w->an)))
+            return st;
+    }
+    double kh = w->kick[s] * h;
+    for (i = 0; i < d; i++) {
+        w->vn[i] = yoshida_add(w->vn[i], kh * w->an[i], &w->cvn[i], comp);
+        if (!isfinite(w->vn[i]) || !isfinite(w->rn[i]))
+            return PB_ENONFINITE;
+    }
+    return PB_OK;
+}
+
+static int yoshida_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
+{
+    yoshida_ws *w = ws;
+    int s;
     double h = w->cfg.h;
     long target = pb_grid_index(w->t0, h, t_out);
     if (target < w->step)
@@ -99,36 +174,21 @@ static int leapfrog_advance(void *ws, double t_out, pb_step_observer obs, void *
         }
         w->have_a = 1;
     }
+    size_t sz = (size_t)w->dim * sizeof(double);
     while (w->step < target) {
         if (w->cfg.max_steps > 0 && w->st.steps >= w->cfg.max_steps)
             return PB_EMAXSTEPS;
         double t = w->t0 + (double)w->step * h;
         double t1 = w->t0 + (double)(w->step + 1) * h;
-        /* work on copies so that a failed step leaves the last good state */
-        double crs[PB_DIM_MAX], cvs[PB_DIM_MAX];
-        memcpy(crs, w->cr, (size_t)d * sizeof(double));
-        memcpy(cvs, w->cv, (size_t)d * sizeof(double));
-        for (i = 0; i < d; i++)
-            w->vn[i] = lf_add(w->v[i], 0.5 * h * w->a[i], &cvs[i], comp);
-        for (i = 0; i < d; i++)
-            w->rn[i] = lf_add(w->r[i], h * w->vn[i], &crs[i], comp);
-        double an[PB_DIM_MAX];
-        if ((s = w->f.accel(w->f.ctx, t1, w->rn, w->vn, an))) {
+        if ((s = yoshida_step(w, t, t1, h))) {
             w->st.t_fail = t;
             return s;
         }
-        for (i = 0; i < d; i++) {
-            w->vn[i] = lf_add(w->vn[i], 0.5 * h * an[i], &cvs[i], comp);
-            if (!isfinite(w->vn[i]) || !isfinite(w->rn[i])) {
-                w->st.t_fail = t;
-                return PB_ENONFINITE;
-            }
-        }
-        memcpy(w->r, w->rn, (size_t)d * sizeof(double));
-        memcpy(w->v, w->vn, (size_t)d * sizeof(double));
-        memcpy(w->a, an, (size_t)d * sizeof(double));
-        memcpy(w->cr, crs, (size_t)d * sizeof(double));
-        memcpy(w->cv, cvs, (size_t)d * sizeof(double));
+        memcpy(w->r, w->rn, sz);
+        memcpy(w->v, w->vn, sz);
+        memcpy(w->a, w->an, sz);
+        memcpy(w->cr, w->crn, sz);
+        memcpy(w->cv, w->cvn, sz);
         w->step++;
         w->st.steps++;
         if (obs && (s = obs(octx, t1, w->r, w->v)))
@@ -137,17 +197,24 @@ static int leapfrog_advance(void *ws, double t_out, pb_step_observer obs, void *
     return PB_OK;
 }
 
-static void leapfrog_get_state(const void *ws, double *t, double *r, double *v)
+static void yoshida_get_state(const void *ws, double *t, double *r, double *v)
 {
-    const leapfrog_ws *w = ws;
+    const yoshida_ws *w = ws;
     *t = w->t0 + (double)w->step * w->cfg.h;
     memcpy(r, w->r, (size_t)w->dim * sizeof(double));
     memcpy(v, w->v, (size_t)w->dim * sizeof(double));
 }
 
-static void leapfrog_get_stats(const void *ws, pb_method_stats *st)
+static void yoshida_get_stats(const void *ws, pb_method_stats *st)
 {
-    *st = ((const leapfrog_ws *)ws)->st;
+    *st = ((const yoshida_ws *)ws)->st;
+}
+
+/* Leapfrog: one substep of the whole step (w0 = 1). */
+static int leapfrog_start(void *ws, const pb_force *f, const pb_method_config *cfg,
+                          double t0, const double *r0, const double *v0)
+{
+    return yoshida_start_with(ws, 0, NULL, f, cfg, t0, r0, v0);
 }
 
 const pb_method_type pb_method_leapfrog = {
@@ -156,10 +223,80 @@ const pb_method_type pb_method_leapfrog = {
     .source = "Verlet (1967); Hairer, Lubich & Wanner (2006) Sec. I.1.4",
     .order = 2,
     .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE,
-    .alloc = leapfrog_alloc,
+    .alloc = yoshida_alloc,
     .start = leapfrog_start,
-    .advance = leapfrog_advance,
-    .get_state = leapfrog_get_state,
-    .get_stats = leapfrog_get_stats,
-    .free = leapfrog_free,
+    .advance = yoshida_advance,
+    .get_state = yoshida_get_state,
+    .get_stats = yoshida_get_stats,
+    .free = yoshida_free,
+};
+
+/* Coefficients: Yoshida (1990), as listed in REFERENCES.md (from memory;
+ * checked there and in tests/test_yoshida.c by observed order). */
+static const double yoshida4_w[] = {0, 1.3512071919596578};
+static const double yoshida6_w[] = {0, -1.17767998417887, 0.235573213359357,
+                                    0.784513610477560};
+static const double yoshida8_w[] = {0, 0.102799849391985, -1.96061023297549,
+                                    1.93813913762276, -0.158240635368243,
+                                    -1.44485223686048, 0.253693336566229,
+                                    0.914844246229740};
+
+static int yoshida4_start(void *ws, const pb_force *f, const pb_method_config *cfg,
+                          double t0, const double *r0, const double *v0)
+{
+    return yoshida_start_with(ws, 1, yoshida4_w, f, cfg, t0, r0, v0);
+}
+
+const pb_method_type pb_method_yoshida4 = {
+    .name = "yoshida4",
+    .description = "Yoshida order-4 leapfrog composition, 3 evaluations a step",
+    .source = "Yoshida (1990), Physics Letters A 150, 262",
+    .order = 4,
+    .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE,
+    .alloc = yoshida_alloc,
+    .start = yoshida4_start,
+    .advance = yoshida_advance,
+    .get_state = yoshida_get_state,
+    .get_stats = yoshida_get_stats,
+    .free = yoshida_free,
+};
+
+static int yoshida6_start(void *ws, const pb_force *f, const pb_method_config *cfg,
+                          double t0, const double *r0, const double *v0)
+{
+    return yoshida_start_with(ws, 3, yoshida6_w, f, cfg, t0, r0, v0);
+}
+
+const pb_method_type pb_method_yoshida6 = {
+    .name = "yoshida6",
+    .description = "Yoshida order-6 leapfrog composition, 7 evaluations a step",
+    .source = "Yoshida (1990), Physics Letters A 150, 262",
+    .order = 6,
+    .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE,
+    .alloc = yoshida_alloc,
+    .start = yoshida6_start,
+    .advance = yoshida_advance,
+    .get_state = yoshida_get_state,
+    .get_stats = yoshida_get_stats,
+    .free = yoshida_free,
+};
+
+static int yoshida8_start(void *ws, const pb_force *f, const pb_method_config *cfg,
+                          double t0, const double *r0, const double *v0)
+{
+    return yoshida_start_with(ws, 7, yoshida8_w, f, cfg, t0, r0, v0);
+}
+
+const pb_method_type pb_method_yoshida8 = {
+    .name = "yoshida8",
+    .description = "Yoshida order-8 leapfrog composition, 15 evaluations a step",
+    .source = "Yoshida (1990), Physics Letters A 150, 262",
+    .order = 8,
+    .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE,
+    .alloc = yoshida_alloc,
+    .start = yoshida8_start,
+    .advance = yoshida_advance,
+    .get_state = yoshida_get_state,
+    .get_stats = yoshida_get_stats,
+    .free = yoshida_free,
 };
