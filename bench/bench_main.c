@@ -239,84 +239,65 @@ static void bench_inline_rk4_arrays(double mu, double h, long nsteps, const doub
     memcpy(v_out, y + 3, 3 * sizeof(double));
 }
 
-/* The same loop, but each evaluation through the harness's counting force
- * wrapper (r and a passed in memory, two indirect calls): isolates the cost
- * of the force interface from that of the method interface. */
+/* The scalar RK4 loop with each evaluation made by FORCE(px, py, pz, tt)
+ * into q (position) and a (acceleration): r and a then pass through memory
+ * as they do behind any force interface. */
+#define BENCH_RK4_CALLING(FORCE)                                                \
+    double x = r0[0], y = r0[1], z = r0[2], u = v0[0], v = v0[1], w = v0[2];     \
+    double hh = 0.5 * h, h6 = h / 6.0, q[3], a[3], t = 0;                       \
+    for (long n = 0; n < nsteps; n++) {                                         \
+        double a1x, a1y, a1z, a2x, a2y, a2z, a3x, a3y, a3z, a4x, a4y, a4z;      \
+        t = (double)n * h;                                                      \
+        BENCH_CALL(FORCE, x, y, z, t, a1x, a1y, a1z);                           \
+        double x2 = x + hh * u, y2 = y + hh * v, z2 = z + hh * w;               \
+        double u2 = u + hh * a1x, v2 = v + hh * a1y, w2 = w + hh * a1z;         \
+        BENCH_CALL(FORCE, x2, y2, z2, t + hh, a2x, a2y, a2z);                   \
+        double x3 = x + hh * u2, y3 = y + hh * v2, z3 = z + hh * w2;            \
+        double u3 = u + hh * a2x, v3 = v + hh * a2y, w3 = w + hh * a2z;         \
+        BENCH_CALL(FORCE, x3, y3, z3, t + hh, a3x, a3y, a3z);                   \
+        double x4 = x + h * u3, y4 = y + h * v3, z4 = z + h * w3;               \
+        double u4 = u + h * a3x, v4 = v + h * a3y, w4 = w + h * a3z;            \
+        BENCH_CALL(FORCE, x4, y4, z4, t + h, a4x, a4y, a4z);                    \
+        x += h6 * (u + 2.0 * (u2 + u3) + u4);                                   \
+        y += h6 * (v + 2.0 * (v2 + v3) + v4);                                   \
+        z += h6 * (w + 2.0 * (w2 + w3) + w4);                                   \
+        u += h6 * (a1x + 2.0 * (a2x + a3x) + a4x);                              \
+        v += h6 * (a1y + 2.0 * (a2y + a3y) + a4y);                              \
+        w += h6 * (a1z + 2.0 * (a2z + a3z) + a4z);                              \
+    }                                                                           \
+    r_out[0] = x, r_out[1] = y, r_out[2] = z;                                   \
+    v_out[0] = u, v_out[1] = v, v_out[2] = w
+
+#define BENCH_CALL(FORCE, px, py, pz, tt, ax, ay, az)                           \
+    do {                                                                        \
+        q[0] = (px), q[1] = (py), q[2] = (pz);                                  \
+        FORCE(tt);                                                              \
+        ax = a[0], ay = a[1], az = a[2];                                        \
+    } while (0)
+
+/* Each evaluation through the harness's counting force wrapper (two
+ * indirect calls): the force interface's cost. */
 static void bench_counter_rk4(const pb_force *f, double h, long nsteps, const double *r0,
                               const double *v0, double *r_out, double *v_out)
 {
-    double x = r0[0], y = r0[1], z = r0[2], u = v0[0], v = v0[1], w = v0[2];
-    double hh = 0.5 * h, h6 = h / 6.0, q[3], a[3], t = 0;
-#define BENCH_FORCE(px, py, pz, tt, ax, ay, az)                                 \
-    do {                                                                        \
-        q[0] = (px), q[1] = (py), q[2] = (pz);                                  \
-        f->accel(f->ctx, (tt), q, NULL, a);                                     \
-        ax = a[0], ay = a[1], az = a[2];                                        \
-    } while (0)
-    for (long n = 0; n < nsteps; n++) {
-        double a1x, a1y, a1z, a2x, a2y, a2z, a3x, a3y, a3z, a4x, a4y, a4z;
-        t = (double)n * h;
-        BENCH_FORCE(x, y, z, t, a1x, a1y, a1z);
-        double x2 = x + hh * u, y2 = y + hh * v, z2 = z + hh * w;
-        double u2 = u + hh * a1x, v2 = v + hh * a1y, w2 = w + hh * a1z;
-        BENCH_FORCE(x2, y2, z2, t + hh, a2x, a2y, a2z);
-        double x3 = x + hh * u2, y3 = y + hh * v2, z3 = z + hh * w2;
-        double u3 = u + hh * a2x, v3 = v + hh * a2y, w3 = w + hh * a2z;
-        BENCH_FORCE(x3, y3, z3, t + hh, a3x, a3y, a3z);
-        double x4 = x + h * u3, y4 = y + h * v3, z4 = z + h * w3;
-        double u4 = u + h * a3x, v4 = v + h * a3y, w4 = w + h * a3z;
-        BENCH_FORCE(x4, y4, z4, t + h, a4x, a4y, a4z);
-        x += h6 * (u + 2.0 * (u2 + u3) + u4);
-        y += h6 * (v + 2.0 * (v2 + v3) + v4);
-        z += h6 * (w + 2.0 * (w2 + w3) + w4);
-        u += h6 * (a1x + 2.0 * (a2x + a3x) + a4x);
-        v += h6 * (a1y + 2.0 * (a2y + a3y) + a4y);
-        w += h6 * (a1z + 2.0 * (a2z + a3z) + a4z);
-    }
-#undef BENCH_FORCE
-    r_out[0] = x, r_out[1] = y, r_out[2] = z;
-    v_out[0] = u, v_out[1] = v, v_out[2] = w;
+#define BENCH_COUNTED(tt) f->accel(f->ctx, (tt), q, NULL, a)
+    BENCH_RK4_CALLING(BENCH_COUNTED);
+#undef BENCH_COUNTED
 }
 
-/* The same loop calling the problem's own acceleration function through its
- * pointer, as any propagator with a pluggable force model does: the
- * reference for the harness's overhead, which cannot inline a force it is
- * handed at run time. */
+/* Each evaluation through the problem's own acceleration pointer, as any
+ * propagator with a pluggable force model calls it: the reference for the
+ * harness's overhead, which cannot inline a force it is handed at run time. */
 static void bench_direct_rk4(const pb_problem *p, double h, long nsteps, double *r_out,
                              double *v_out)
 {
-    double x = p->r0[0], y = p->r0[1], z = p->r0[2], u = p->v0[0], v = p->v0[1], w = p->v0[2];
-    double hh = 0.5 * h, h6 = h / 6.0, q[3], a[3], t = 0;
-#define BENCH_FORCE(px, py, pz, tt, ax, ay, az)                                 \
-    do {                                                                        \
-        q[0] = (px), q[1] = (py), q[2] = (pz);                                  \
-        p->accel(p, (tt), q, NULL, a);                                          \
-        ax = a[0], ay = a[1], az = a[2];                                        \
-    } while (0)
-    for (long n = 0; n < nsteps; n++) {
-        double a1x, a1y, a1z, a2x, a2y, a2z, a3x, a3y, a3z, a4x, a4y, a4z;
-        t = (double)n * h;
-        BENCH_FORCE(x, y, z, t, a1x, a1y, a1z);
-        double x2 = x + hh * u, y2 = y + hh * v, z2 = z + hh * w;
-        double u2 = u + hh * a1x, v2 = v + hh * a1y, w2 = w + hh * a1z;
-        BENCH_FORCE(x2, y2, z2, t + hh, a2x, a2y, a2z);
-        double x3 = x + hh * u2, y3 = y + hh * v2, z3 = z + hh * w2;
-        double u3 = u + hh * a2x, v3 = v + hh * a2y, w3 = w + hh * a2z;
-        BENCH_FORCE(x3, y3, z3, t + hh, a3x, a3y, a3z);
-        double x4 = x + h * u3, y4 = y + h * v3, z4 = z + h * w3;
-        double u4 = u + h * a3x, v4 = v + h * a3y, w4 = w + h * a3z;
-        BENCH_FORCE(x4, y4, z4, t + h, a4x, a4y, a4z);
-        x += h6 * (u + 2.0 * (u2 + u3) + u4);
-        y += h6 * (v + 2.0 * (v2 + v3) + v4);
-        z += h6 * (w + 2.0 * (w2 + w3) + w4);
-        u += h6 * (a1x + 2.0 * (a2x + a3x) + a4x);
-        v += h6 * (a1y + 2.0 * (a2y + a3y) + a4y);
-        w += h6 * (a1z + 2.0 * (a2z + a3z) + a4z);
-    }
-#undef BENCH_FORCE
-    r_out[0] = x, r_out[1] = y, r_out[2] = z;
-    v_out[0] = u, v_out[1] = v, v_out[2] = w;
+    const double *r0 = p->r0, *v0 = p->v0;
+#define BENCH_DIRECT(tt) p->accel(p, (tt), q, NULL, a)
+    BENCH_RK4_CALLING(BENCH_DIRECT);
+#undef BENCH_DIRECT
 }
+#undef BENCH_CALL
+#undef BENCH_RK4_CALLING
 
 /* ---- GSL's rk4 stepper called directly in a plain loop */
 
