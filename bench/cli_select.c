@@ -10,6 +10,7 @@
 #include "harness.h"
 #include "run_dir.h"
 #include "select.h"
+#include "progress.h"
 #include "problem_source.h"
 
 static void select_help(FILE *f)
@@ -145,15 +146,14 @@ int pb_cli_select(int argc, char **argv)
     pb_selection *sel = calloc((size_t)(m > 0 ? m : 1), sizeof *sel);
     if (!sel)
         return pb_cli_error("select", "out of memory");
-    int progress = pb_cli_progress_wanted(quiet);
+    pb_progress prog;
+    pb_progress_start(&prog, pb_cli_progress_wanted(quiet), m, "methods");
     for (int i = 0; i < m; i++) {
-        if (progress)
-            fprintf(stderr, "\r  searching %d/%d: %-16s", i + 1, m, list[i]->name);
+        pb_progress_update(&prog, i, list[i]->name);
         if (pb_select_method(&base, list[i], &req, &sel[i]) < 0)
             snprintf(sel[i].note, sizeof sel[i].note, "the case could not be run");
     }
-    if (progress)
-        fprintf(stderr, "\r%60s\r", "");
+    pb_progress_end(&prog);
     qsort(sel, (size_t)m, sizeof *sel, select_cmp);
     int found = 0;
     for (int i = 0; i < m; i++)

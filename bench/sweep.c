@@ -8,20 +8,13 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/wait.h>
-#include <time.h>
 #include <unistd.h>
 #include <dirent.h>
 #include "sweep.h"
 #include "case_json.h"
 #include "harness.h"
 #include "run_dir.h"
-
-static double sweep_now(void)
-{
-    struct timespec ts;
-    clock_gettime(CLOCK_MONOTONIC, &ts);
-    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
-}
+#include "progress.h"
 
 /* Test hook: PB_TEST_CRASH_CASE=<case id> makes that case's worker abort,
  * so the tests can show a crash is recorded and the sweep completes. */
@@ -55,15 +48,6 @@ static void sweep_child(const pb_case_spec *spec, int index, const char *dir)
     _exit(rc ? 3 : 0);
 }
 
-static void sweep_progress(int done, int total, double t0)
-{
-    double el = sweep_now() - t0;
-    double left = done > 0 ? el * (total - done) / done : 0;
-    fprintf(stderr, "\r  %d/%d cases, %.1f s elapsed, about %.1f s left   ", done, total, el, left);
-    if (done == total)
-        fputc('\n', stderr);
-}
-
 int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt)
 {
     char work[4200];
@@ -84,7 +68,8 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
         if (opt->shard_n <= 1 || i % opt->shard_n == opt->shard_k - 1)
             mine[nmine++] = i;
     fflush(NULL);
-    double t0 = sweep_now();
+    pb_progress prog;
+    pb_progress_start(&prog, opt->progress, nmine, "cases");
     int next = 0, running = 0, done = 0;
     while (done < nmine) {
         while (running < opt->jobs && next < nmine) {
@@ -118,10 +103,10 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
                 pids[j] = 0;
         running--;
         done++;
-        if (opt->progress)
-            sweep_progress(done, nmine, t0);
+        pb_progress_update(&prog, done, NULL);
     }
 
+    pb_progress_end(&prog);
     json_t *cases = json_array();
     for (int k = 0; k < nmine; k++) {
         int i = mine[k];
