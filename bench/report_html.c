@@ -214,22 +214,18 @@ static int html_body(FILE *f, const pb_report_view *v)
     return 0;
 }
 
+static int html_print(FILE *f, const void *ctx)
+{
+    return html_body(f, ctx);
+}
+
 int pb_report_html_write(const pb_report_view *v, char *err, size_t errlen)
 {
-    char *buf = NULL, path[4200];
-    size_t n = 0;
-    FILE *f = open_memstream(&buf, &n);
-    if (!f) {
-        snprintf(err, errlen, "out of memory");
+    char path[4200];
+    snprintf(path, sizeof path, "%s/report.html", v->out_dir);
+    if (pb_write_atomic_printed(path, html_print, v)) {
+        snprintf(err, errlen, "%s: cannot write", path);
         return -1;
     }
-    int rc = html_body(f, v);
-    fclose(f);
-    snprintf(path, sizeof path, "%s/report.html", v->out_dir);
-    if (rc == 0 && pb_write_atomic(path, buf, n))
-        rc = -1;
-    if (rc)
-        snprintf(err, errlen, "%s: cannot write", path);
-    free(buf);
-    return rc;
+    return 0;
 }

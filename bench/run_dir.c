@@ -47,6 +47,23 @@ int pb_write_atomic(const char *path, const char *data, size_t len)
     return 0;
 }
 
+int pb_write_atomic_printed(const char *path, int (*body)(FILE *f, const void *ctx),
+                            const void *ctx)
+{
+    char *buf = NULL;
+    size_t n = 0;
+    FILE *f = open_memstream(&buf, &n);
+    if (!f)
+        return -1;
+    int rc = body(f, ctx);
+    if (fclose(f))
+        rc = -1;
+    if (rc == 0 && pb_write_atomic(path, buf, n))
+        rc = -1;
+    free(buf);
+    return rc ? -1 : 0;
+}
+
 int pb_json_write_atomic(const char *path, const json_t *doc)
 {
     char *s = json_dumps(doc, JSON_INDENT(1) | JSON_PRESERVE_ORDER | JSON_REAL_PRECISION(17));

@@ -6,6 +6,7 @@
 #define PB_RUN_DIR_H
 
 #include <stddef.h>
+#include <stdio.h>
 #include <jansson.h>
 #include "case.h"
 
@@ -14,6 +15,11 @@ int pb_mkdirs(const char *path);
 
 /* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1. */
 int pb_write_atomic(const char *path, const char *data, size_t len);
+
+/* Write what body prints (0 on success) to path atomically, through an
+ * in-memory stream; 0, or -1 when body or the write fails. */
+int pb_write_atomic_printed(const char *path, int (*body)(FILE *f, const void *ctx),
+                            const void *ctx);
 
 /* Dump JSON (indented, keys in insertion order) atomically; 0 or -1. */
 int pb_json_write_atomic(const char *path, const json_t *doc);
