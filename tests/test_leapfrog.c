@@ -44,49 +44,6 @@ Test(leapfrog, observed_order_kepler_e06)
               e1, e2);
 }
 
-/* Running maxima of the relative energy error before and after a split step. */
-typedef struct lft_energy_obs {
-    const pb_problem *p;
-    double e0;
-    long n, split;
-    double max_early, max_late;
-} lft_energy_obs;
-
-static int lft_observe(void *ctx, double t, const double *r, const double *v)
-{
-    lft_energy_obs *o = ctx;
-    double d = fabs(o->p->energy(o->p, t, r, v) - o->e0) / fabs(o->e0);
-    if (++o->n <= o->split)
-        o->max_early = fmax(o->max_early, d);
-    else
-        o->max_late = fmax(o->max_late, d);
-    return 0;
-}
-
-/* Energy maxima over orbits [0, orbits/10] and [orbits/10, orbits], driving
- * m->advance directly with the observer. */
-static lft_energy_obs lft_energy_run(const pb_method_type *m, const pb_problem *p,
-                                     int steps_per_orbit, long orbits)
-{
-    pb_force_counter c;
-    pb_force f;
-    pb_force_counter_init(&c, p, &f);
-    pb_method_config cfg;
-    memset(&cfg, 0, sizeof cfg);
-    cfg.h = p->period / steps_per_orbit;
-    lft_energy_obs o = {p, p->energy(p, p->t0, p->r0, p->v0), 0,
-                        orbits / 10 * steps_per_orbit, 0, 0};
-    void *ws = m->alloc(p->dim);
-    cr_assert_not_null(ws);
-    cr_assert_eq(m->start(ws, &f, &cfg, p->t0, p->r0, p->v0), PB_OK);
-    int s = m->advance(ws, p->t0 + (double)(orbits * steps_per_orbit) * cfg.h,
-                       lft_observe, &o);
-    m->free(ws);
-    cr_assert_eq(s, PB_OK, "%s failed: %s", m->name, pb_strerror(s));
-    cr_assert_eq(o.n, orbits * steps_per_orbit);
-    return o;
-}
-
 /* Measured here, e = 0.6, 200 steps per orbit, 10^4 orbits (0.1 s and 0.2 s):
  * leapfrog max energy error 7.35e-3 over both ranges (ratio 1.000); RK4
  * 6.65e-3 over the first 10^3 orbits and 6.82e-2 over the rest (ratio 10.3,
@@ -96,8 +53,8 @@ Test(leapfrog, energy_bounded_rk4_drifts)
     pb_problem p;
     lft_kepler(&p, 0.6);
     long orbits = 10000;
-    lft_energy_obs lf = lft_energy_run(&pb_method_leapfrog, &p, 200, orbits);
-    lft_energy_obs rk = lft_energy_run(&pb_method_rk4, &p, 200, orbits);
+    pbt_energy_split lf = pbt_energy_split_run(&pb_method_leapfrog, &p, 200, orbits);
+    pbt_energy_split rk = pbt_energy_split_run(&pb_method_rk4, &p, 200, orbits);
     /* symplectic: energy error bounded, no secular drift (Hairer, Lubich &
      * Wanner 2006, Ch. I); bound: late max within a factor 2 of early max */
     cr_assert(lf.max_late <= 2.0 * lf.max_early, "leapfrog energy %.3e then %.3e",

@@ -1,4 +1,5 @@
 /* test_support.c - see test_support.h. */
+#include <criterion/criterion.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -43,6 +44,39 @@ double pbt_pos_error(const pb_problem *p, const pbt_result *res)
         s += d * d;
     }
     return sqrt((double)s);
+}
+
+static int support_energy_observe(void *ctx, double t, const double *r, const double *v)
+{
+    pbt_energy_split *o = ctx;
+    double d = fabs(o->p->energy(o->p, t, r, v) - o->e0) / fabs(o->e0);
+    if (++o->n <= o->split)
+        o->max_early = fmax(o->max_early, d);
+    else
+        o->max_late = fmax(o->max_late, d);
+    return 0;
+}
+
+pbt_energy_split pbt_energy_split_run(const pb_method_type *m, const pb_problem *p,
+                                      int steps_per_orbit, long orbits)
+{
+    pb_force_counter c;
+    pb_force f;
+    pb_force_counter_init(&c, p, &f);
+    pb_method_config cfg;
+    memset(&cfg, 0, sizeof cfg);
+    cfg.h = p->period / steps_per_orbit;
+    pbt_energy_split o = {p, p->energy(p, p->t0, p->r0, p->v0), 0,
+                          orbits / 10 * steps_per_orbit, 0, 0};
+    void *ws = m->alloc(p->dim);
+    cr_assert_not_null(ws);
+    cr_assert_eq(m->start(ws, &f, &cfg, p->t0, p->r0, p->v0), PB_OK);
+    int s = m->advance(ws, p->t0 + (double)(orbits * steps_per_orbit) * cfg.h,
+                       support_energy_observe, &o);
+    m->free(ws);
+    cr_assert_eq(s, PB_OK, "%s failed: %s", m->name, pb_strerror(s));
+    cr_assert_eq(o.n, orbits * steps_per_orbit);
+    return o;
 }
 
 int pbt_sanitized(void)

@@ -22,6 +22,21 @@ pbt_result pbt_integrate(const pb_method_type *m, const pb_problem *p,
  * evaluated in __float128. */
 double pbt_pos_error(const pb_problem *p, const pbt_result *res);
 
+/* Largest relative energy error over the first tenth of a run and over the
+ * rest, from an observer on every step (Hairer-Lubich-Wanner's bounded-energy
+ * check). */
+typedef struct pbt_energy_split {
+    const pb_problem *p;
+    double e0;
+    long n, split;
+    double max_early, max_late;
+} pbt_energy_split;
+
+/* Run m on p for `orbits` periods at steps_per_orbit, driving m->advance
+ * directly with the observer; asserts the run ends PB_OK after every step. */
+pbt_energy_split pbt_energy_split_run(const pb_method_type *m, const pb_problem *p,
+                                      int steps_per_orbit, long orbits);
+
 /* 1 when the tests run under the sanitizers (long runs may shrink). */
 int pbt_sanitized(void);
 

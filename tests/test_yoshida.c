@@ -69,45 +69,6 @@ Test(yoshida, order8_kepler_e05)
     yst_check_order(&pb_method_yoshida8, 15, 0.5, 200);
 }
 
-typedef struct yst_energy_obs {
-    const pb_problem *p;
-    double e0;
-    long n, split;
-    double max_early, max_late;
-} yst_energy_obs;
-
-static int yst_observe(void *ctx, double t, const double *r, const double *v)
-{
-    yst_energy_obs *o = ctx;
-    double d = fabs(o->p->energy(o->p, t, r, v) - o->e0) / fabs(o->e0);
-    if (++o->n <= o->split)
-        o->max_early = fmax(o->max_early, d);
-    else
-        o->max_late = fmax(o->max_late, d);
-    return 0;
-}
-
-/* Max relative energy error over the first tenth of the run and the rest. */
-static yst_energy_obs yst_energy_run(const pb_method_type *m, const pb_problem *p,
-                                     int steps_per_orbit, long orbits)
-{
-    pb_force_counter c;
-    pb_force f;
-    pb_force_counter_init(&c, p, &f);
-    pb_method_config cfg;
-    memset(&cfg, 0, sizeof cfg);
-    cfg.h = p->period / steps_per_orbit;
-    yst_energy_obs o = {p, p->energy(p, p->t0, p->r0, p->v0), 0,
-                        orbits / 10 * steps_per_orbit, 0, 0};
-    void *ws = m->alloc(p->dim);
-    cr_assert_not_null(ws);
-    cr_assert_eq(m->start(ws, &f, &cfg, p->t0, p->r0, p->v0), PB_OK);
-    int s = m->advance(ws, p->t0 + (double)(orbits * steps_per_orbit) * cfg.h,
-                       yst_observe, &o);
-    m->free(ws);
-    cr_assert_eq(s, PB_OK, "%s failed: %s", m->name, pb_strerror(s));
-    return o;
-}
 
 /* Measured here, e = 0.6, 100 steps per orbit, 10^4 orbits: max energy error
  * over orbits 0..10^3 / 10^3..10^4: yoshida4 1.40e-3 / 1.40e-3, yoshida6
@@ -120,7 +81,7 @@ Test(yoshida, energy_bounded_10k_orbits)
     pb_problem p;
     yst_kepler(&p, 0.6);
     for (int k = 0; k < 3; k++) {
-        yst_energy_obs o = yst_energy_run(ms[k], &p, 100, 10000);
+        pbt_energy_split o = pbt_energy_split_run(ms[k], &p, 100, 10000);
         /* symplectic: bounded energy error, no drift (Hairer, Lubich & Wanner
          * 2006, Ch. I); bound: late max within a factor 2 of the early max */
         cr_assert(o.max_late <= 2.0 * o.max_early, "%s energy %.3e then %.3e",
