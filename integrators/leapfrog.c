@@ -210,26 +210,26 @@ static void yoshida_get_stats(const void *ws, pb_method_stats *st)
     *st = ((const yoshida_ws *)ws)->st;
 }
 
-/* Leapfrog: one substep of the whole step (w0 = 1). */
-static int leapfrog_start(void *ws, const pb_force *f, const pb_method_config *cfg,
-                          double t0, const double *r0, const double *v0)
-{
-    return yoshida_start_with(ws, 0, NULL, f, cfg, t0, r0, v0);
-}
-
-const pb_method_type pb_method_leapfrog = {
-    .name = "leapfrog",
-    .description = "kick-drift-kick Stormer-Verlet, 1 evaluation a step",
-    .source = "Verlet (1967); Hairer, Lubich & Wanner (2006) Sec. I.1.4",
-    .order = 2,
-    .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE,
-    .alloc = yoshida_alloc,
-    .start = leapfrog_start,
-    .advance = yoshida_advance,
-    .get_state = yoshida_get_state,
-    .get_stats = yoshida_get_stats,
-    .free = yoshida_free,
-};
+/* A composition's start (k pairs of weights w[1..k]) and its type record. */
+#define LEAPFROG_COMPOSITION(NAME, K, W, ORDER, DESC, SRC)                       \
+    static int NAME##_start(void *ws, const pb_force *f, const pb_method_config *cfg, \
+                            double t0, const double *r0, const double *v0)       \
+    {                                                                           \
+        return yoshida_start_with(ws, K, W, f, cfg, t0, r0, v0);                \
+    }                                                                           \
+    const pb_method_type pb_method_##NAME = {                                   \
+        .name = #NAME,                                                          \
+        .description = DESC,                                                    \
+        .source = SRC,                                                          \
+        .order = ORDER,                                                         \
+        .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE, \
+        .alloc = yoshida_alloc,                                                 \
+        .start = NAME##_start,                                                  \
+        .advance = yoshida_advance,                                             \
+        .get_state = yoshida_get_state,                                         \
+        .get_stats = yoshida_get_stats,                                         \
+        .free = yoshida_free,                                                   \
+    }
 
 /* Coefficients: Yoshida (1990), as listed in REFERENCES.md (from memory;
  * checked there and in tests/test_yoshida.c by observed order). */
@@ -241,62 +241,15 @@ static const double yoshida8_w[] = {0, 0.102799849391985, -1.96061023297549,
                                     -1.44485223686048, 0.253693336566229,
                                     0.914844246229740};
 
-static int yoshida4_start(void *ws, const pb_force *f, const pb_method_config *cfg,
-                          double t0, const double *r0, const double *v0)
-{
-    return yoshida_start_with(ws, 1, yoshida4_w, f, cfg, t0, r0, v0);
-}
-
-const pb_method_type pb_method_yoshida4 = {
-    .name = "yoshida4",
-    .description = "Yoshida order-4 leapfrog composition, 3 evaluations a step",
-    .source = "Yoshida (1990), Physics Letters A 150, 262",
-    .order = 4,
-    .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE,
-    .alloc = yoshida_alloc,
-    .start = yoshida4_start,
-    .advance = yoshida_advance,
-    .get_state = yoshida_get_state,
-    .get_stats = yoshida_get_stats,
-    .free = yoshida_free,
-};
-
-static int yoshida6_start(void *ws, const pb_force *f, const pb_method_config *cfg,
-                          double t0, const double *r0, const double *v0)
-{
-    return yoshida_start_with(ws, 3, yoshida6_w, f, cfg, t0, r0, v0);
-}
-
-const pb_method_type pb_method_yoshida6 = {
-    .name = "yoshida6",
-    .description = "Yoshida order-6 leapfrog composition, 7 evaluations a step",
-    .source = "Yoshida (1990), Physics Letters A 150, 262",
-    .order = 6,
-    .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE,
-    .alloc = yoshida_alloc,
-    .start = yoshida6_start,
-    .advance = yoshida_advance,
-    .get_state = yoshida_get_state,
-    .get_stats = yoshida_get_stats,
-    .free = yoshida_free,
-};
-
-static int yoshida8_start(void *ws, const pb_force *f, const pb_method_config *cfg,
-                          double t0, const double *r0, const double *v0)
-{
-    return yoshida_start_with(ws, 7, yoshida8_w, f, cfg, t0, r0, v0);
-}
-
-const pb_method_type pb_method_yoshida8 = {
-    .name = "yoshida8",
-    .description = "Yoshida order-8 leapfrog composition, 15 evaluations a step",
-    .source = "Yoshida (1990), Physics Letters A 150, 262",
-    .order = 8,
-    .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_COMPENSABLE,
-    .alloc = yoshida_alloc,
-    .start = yoshida8_start,
-    .advance = yoshida_advance,
-    .get_state = yoshida_get_state,
-    .get_stats = yoshida_get_stats,
-    .free = yoshida_free,
-};
+/* Leapfrog is the composition of one substep (w0 = 1). */
+LEAPFROG_COMPOSITION(leapfrog, 0, NULL, 2, "kick-drift-kick Stormer-Verlet, 1 evaluation a step",
+                     "Verlet (1967); Hairer, Lubich & Wanner (2006) Sec. I.1.4");
+LEAPFROG_COMPOSITION(yoshida4, 1, yoshida4_w, 4,
+                     "Yoshida order-4 leapfrog composition, 3 evaluations a step",
+                     "Yoshida (1990), Physics Letters A 150, 262");
+LEAPFROG_COMPOSITION(yoshida6, 3, yoshida6_w, 6,
+                     "Yoshida order-6 leapfrog composition, 7 evaluations a step",
+                     "Yoshida (1990), Physics Letters A 150, 262");
+LEAPFROG_COMPOSITION(yoshida8, 7, yoshida8_w, 8,
+                     "Yoshida order-8 leapfrog composition, 15 evaluations a step",
+                     "Yoshida (1990), Physics Letters A 150, 262");
