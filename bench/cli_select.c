@@ -183,9 +183,12 @@ int pb_cli_select(int argc, char **argv)
                 snprintf(setting, sizeof setting, "tol %.3g", s->tolerance);
             const pb_case_result *r = &s->confirmed;
             double pe = r->below_floor ? NAN : (km ? 1e3 * r->pos_err_max : r->pos_err_max);
-            printf("%4d %-15s %-18s %10ld %12.3e %12.3e %10.1f %12.4g\n", ++rank, s->method->name,
+            char mname[40];
+            snprintf(mname, sizeof mname, "%s%s", s->method->name, (s->method->flags & PB_FROM_GSL) ? "*" : "");
+            printf("%4d %-15s %-18s %10ld %12.3e %12.3e %10.1f %12.4g\n", ++rank, mname,
                    setting, r->evals, pe, r->energy_rel_max, r->ns_per_step, s->projected_s);
         }
+        printf("(* GSL's stepper)\n");
         if (!found)
             printf("NO METHOD meets the requirement over this horizon.\n");
         else

@@ -52,6 +52,7 @@ static int data_case(const json_t *o, pb_report_case *c, char *err, size_t errle
     c->status = data_str(o, "status", "crashed");
     c->series = data_str(o, "series", NULL);
     c->order = (int)data_long(o, "method_order");
+    c->from_gsl = json_is_true(json_object_get(o, "from_gsl"));
     c->steps_per_orbit = data_long(o, "steps_per_orbit");
     c->step = data_num(o, "step");
     c->tolerance = data_num(o, "tolerance");

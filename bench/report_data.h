@@ -11,6 +11,7 @@ typedef struct pb_report_case {
     const char *id, *problem, *method, *units, *status, *series;  /* borrowed from the doc */
     const char *growth_pos, *growth_energy;
     int order, fixed;             /* fixed: has steps_per_orbit or step, else tolerance */
+    int from_gsl;                 /* GSL's stepper: labelled so in every table */
     long steps_per_orbit;         /* 0 when the step was given in time units */
     double step, tolerance, orbits, horizon_s, h;
     double energy_max, angmom_max, pos_max, k_pos;   /* NaN when absent or null */

@@ -45,7 +45,7 @@ static void table_num(char *buf, double x, const char *fmt)
 
 void pb_report_table_cells(const pb_report_case *c, char cells[PB_RT_NCOLS][PB_RT_CELL])
 {
-    snprintf(cells[PB_RT_METHOD], PB_RT_CELL, "%s", c->method);
+    snprintf(cells[PB_RT_METHOD], PB_RT_CELL, "%s%s", c->method, c->from_gsl ? " (GSL's)" : "");
     pb_report_case_setting(c, cells[PB_RT_SETTING], PB_RT_CELL);
     snprintf(cells[PB_RT_STATUS], PB_RT_CELL, "%s", c->status);
     table_num(cells[PB_RT_ENERGY], c->energy_max, "%.3e");
