@@ -74,8 +74,10 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
         UV_REAL k = UV_ROUND(dt / T);
         if (k != 0)
             dt = UV_FMA(-k, T, dt);
-        /* |dt| <= T/2 means |x| <= pi sqrt(a); widen a little for rounding. */
-        hi = (UV_REAL)1.1 * UV_PI / sa;
+        /* x = sqrt(a) dE, and |dM| <= pi gives |dE| <= pi + 2e < 2 pi from
+         * any starting anomaly (dM = dE - e (sin E - sin E0)), so the root
+         * lies within 2 pi sqrt(a); the residual is monotone in x. */
+        hi = 2 * UV_PI / sa;
         lo = -hi;
         x = smu * dt * alpha;
     } else {
