@@ -104,6 +104,23 @@ static int baseline_cases_ok(const char *path, const json_t *d, int is_baseline,
                     why = "has a count that is not an integer";
             }
         }
+        if (!why && !is_baseline &&
+            strcmp(json_string_value(json_object_get(c, "status")), "crashed") != 0) {
+            /* a finished case of a run: metrics and cost as the writer makes them */
+            json_t *m = json_object_get(c, "metrics"), *n = json_object_get(c, "cost");
+            if (!json_is_object(m) || !json_is_object(n))
+                why = "lacks the objects 'metrics' or 'cost'";
+            for (const char *const *k = pb_check_metrics; *k && !why; k++) {
+                json_t *v = json_object_get(m, *k);
+                if (v && !json_is_number(v) && !json_is_null(v))
+                    why = "has a metric that is not a number";
+            }
+            for (const char *const *k = baseline_counts; *k && !why; k++) {
+                json_t *v = json_object_get(n, *k);
+                if (v && !json_is_integer(v))
+                    why = "has a count that is not an integer";
+            }
+        }
         if (why) {
             snprintf(err, errlen, "%s: corrupt: cases[%zu]%s%s%s %s", path, i, id ? " (" : "",
                      id ? id : "", id ? ")" : "", why);

@@ -31,7 +31,8 @@ typedef struct pb_sample {
     double energy_rel, energy_rel_window;
     double angmom_rel, angmom_rel_window;
     double ecc_drift;         /* |e_num - e_true| */
-    double apsis_angle;       /* rad, e_num's angle from e_true about h_true */
+    double apsis_angle;       /* rad, e_num's angle from e_true about h_true,
+                               * unwrapped over the samples (may pass +-pi) */
     double pos_err, vel_err;  /* |dr|, |dv| in problem units */
     double radial, along, cross;  /* dr in the true orbit's RIC frame (signed) */
     double truth_floor;       /* estimated position error of the truth itself */

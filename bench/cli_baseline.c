@@ -28,14 +28,14 @@ int pb_cli_baseline(int argc, char **argv)
     optind = 1;
     opterr = 0;
     int c;
-    while ((c = getopt_long(argc, argv, "", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
         if (c == 'o')
             out = optarg;
         else if (c == 'h') {
             baseline_help(stdout);
             return PB_EXIT_OK;
         } else
-            return pb_cli_error("baseline", "unknown option or missing value: '%s'", argv[optind - 1]);
+            return pb_cli_error("baseline", c == ':' ? "option %s needs a value" : "unknown option '%s'", argv[optind - 1]);
     }
     if (!out || optind != argc - 1)
         return pb_cli_error("baseline", "give one RUN_DIR and --out FILE (see --help)");

@@ -237,7 +237,7 @@ int pb_cli_check(int argc, char **argv)
     optind = 1;
     opterr = 0;
     int c;
-    while ((c = getopt_long(argc, argv, "", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
         switch (c) {
         case O_BASE: base_path = optarg; break;
         case O_TOL:
@@ -269,7 +269,7 @@ int pb_cli_check(int argc, char **argv)
         case O_MD: md = optarg; break;
         case 'h': check_help(stdout); return PB_EXIT_OK;
         default:
-            return pb_cli_error("check", "unknown option or missing value: '%s'", argv[optind - 1]);
+            return pb_cli_error("check", c == ':' ? "option %s needs a value" : "unknown option '%s'", argv[optind - 1]);
         }
     }
     if (!base_path || optind != argc - 1)

@@ -12,10 +12,11 @@
 
 static void merge_help(FILE *f)
 {
-    fprintf(f, "usage: propbench merge --out DIR SHARD_DIR [SHARD_DIR ...]\n\n"
+    fprintf(f, "usage: propbench merge --out DIR [--allow-partial] SHARD_DIR [SHARD_DIR ...]\n\n"
                "Join run directories written by 'sweep --shard K/N' into DIR.\n"
-               "Fails (exit 2) on unreadable or incompatible shards and on duplicate\n"
-               "cases; warns when cases are missing.\n");
+               "Fails (exit 2) on unreadable shards, shards of different sweeps (their\n"
+               "'sweep_id' differs), duplicate cases, series that cannot be copied, and\n"
+               "missing cases unless --allow-partial is given.\n");
 }
 
 static int merge_cmp(const void *a, const void *b)
@@ -28,19 +29,23 @@ static int merge_cmp(const void *a, const void *b)
 int pb_cli_merge(int argc, char **argv)
 {
     static const struct option opts[] = {{"out", required_argument, 0, 'o'},
+                                         {"allow-partial", no_argument, 0, 'p'},
                                          {"help", no_argument, 0, 'h'}, {0, 0, 0, 0}};
     const char *out = NULL;
+    int partial = 0;
     optind = 1;
     opterr = 0;
     int c;
-    while ((c = getopt_long(argc, argv, "", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
         if (c == 'o')
             out = optarg;
+        else if (c == 'p')
+            partial = 1;
         else if (c == 'h') {
             merge_help(stdout);
             return PB_EXIT_OK;
         } else
-            return pb_cli_error("merge", "unknown option '%s'", argv[optind - 1]);
+            return pb_cli_error("merge", c == ':' ? "option %s needs a value" : "unknown option '%s'", argv[optind - 1]);
     }
     if (!out || optind >= argc)
         return pb_cli_error("merge", "give --out DIR and at least one shard directory");
@@ -48,7 +53,7 @@ int pb_cli_merge(int argc, char **argv)
     json_t **docs = calloc((size_t)nshards, sizeof *docs);
     json_t *all = json_array();
     json_int_t total = -1;
-    const char *label = NULL;
+    const char *label = NULL, *ident = NULL;
     for (int i = 0; i < nshards; i++) {
         char path[4200];
         snprintf(path, sizeof path, "%s/summary.json", argv[optind + i]);
@@ -74,6 +79,19 @@ int pb_cli_merge(int argc, char **argv)
                          (long long)json_integer_value(tc), (long long)total);
             goto out;
         }
+        /* shards of one sweep carry one identity: its case count and the hash
+         * of its ordered case ids */
+        const char *id_here = json_string_value(json_object_get(docs[i], "sweep_id"));
+        if (!id_here) {
+            pb_cli_error("merge", "%s: key 'sweep_id' missing: not written by 'propbench sweep'", path);
+            goto out;
+        }
+        if (ident && strcmp(ident, id_here)) {
+            pb_cli_error("merge", "%s: shard of a different sweep (sweep_id %s, expected %s)", path,
+                         id_here, ident);
+            goto out;
+        }
+        ident = id_here;
         total = json_integer_value(tc);
         label = json_string_value(json_object_get(docs[i], "sweep"));
         size_t k;
@@ -116,10 +134,22 @@ int pb_cli_merge(int argc, char **argv)
             char a[8400], b[8400];
             snprintf(a, sizeof a, "%s/%s", argv[optind + from], series);
             snprintf(b, sizeof b, "%s/%s", out, series);
-            if (pb_copy_file(a, b))
-                fprintf(stderr, "propbench merge: warning: cannot copy %s\n", a);
+            if (pb_copy_file(a, b)) {
+                pb_cli_error("merge", "cannot copy %s to %s", a, b);
+                json_decref(cases);
+                free(v);
+                goto out;
+            }
         }
         json_array_append(cases, o);
+    }
+    if ((json_int_t)n < total && !partial) {
+        pb_cli_error("merge", "%lld of %lld cases are missing (a shard not given?); "
+                     "--allow-partial merges what is there", (long long)(total - (json_int_t)n),
+                     (long long)total);
+        json_decref(cases);
+        free(v);
+        goto out;
     }
     if ((json_int_t)n < total)
         fprintf(stderr, "propbench merge: warning: %lld of %lld cases are missing\n",
@@ -127,6 +157,7 @@ int pb_cli_merge(int argc, char **argv)
     free(v);
     json_t *doc = pb_summary_new(cases);
     json_object_set_new(doc, "sweep", json_string(label ? label : "grid"));
+    json_object_set_new(doc, "sweep_id", json_string(ident));
     json_object_set_new(doc, "total_cases", json_integer(total));
     char path[4200];
     snprintf(path, sizeof path, "%s/summary.json", out);

@@ -58,7 +58,7 @@ int pb_cli_report(int argc, char **argv)
     optind = 1;
     opterr = 0;
     int c;
-    while ((c = getopt_long(argc, argv, "", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
         switch (c) {
         case RP_OUT: out = optarg; break;
         case RP_GNUPLOT: prog = optarg; break;

@@ -62,7 +62,7 @@ int pb_cli_select(int argc, char **argv)
     int quiet = 0, c;
     optind = 1;
     opterr = 0;
-    while ((c = getopt_long(argc, argv, "", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
         double *dst = NULL;
         const char *name = NULL;
         switch (c) {

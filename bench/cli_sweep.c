@@ -24,15 +24,22 @@ static void sweep_help(FILE *f)
 "  -j N          worker processes (default 1); results are the same for every N\n"
 "  --shard K/N   run only the K-th of N deterministic slices; join with merge\n"
 "  --report      write plots and report.html/report.md afterwards\n"
+"  --compensated compensated summation for every method that has it\n"
 "suites: propbench list suites\n");
 }
 
-/* Split a comma list in place into at most max items. */
-static int sweep_split(char *s, char **items, int max)
+/* Split a comma list in place into at most max items; -1 (message printed)
+ * when there are more. */
+static int sweep_split(const char *opt, char *s, char **items, int max)
 {
     int n = 0;
-    for (char *tok = strtok(s, ","); tok && n < max; tok = strtok(NULL, ","))
+    for (char *tok = strtok(s, ","); tok; tok = strtok(NULL, ",")) {
+        if (n == max) {
+            pb_cli_error("sweep", "%s takes at most %d values", opt, max);
+            return -1;
+        }
         items[n++] = tok;
+    }
     return n;
 }
 
@@ -58,7 +65,7 @@ int pb_cli_sweep(int argc, char **argv)
     optind = 1;
     opterr = 0;
     int c;
-    while ((c = getopt_long(argc, argv, "j:", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, ":j:", opts, NULL)) != -1) {
         switch (c) {
         case SW_SUITE: suite = optarg; break;
         case SW_PROBLEMS: problems = optarg; break;
@@ -115,8 +122,12 @@ int pb_cli_sweep(int argc, char **argv)
             goto out;
         }
         char *pn[64], *mn[64], *sn[64], *tn[64];
-        int np = sweep_split(problems, pn, 64), nm = sweep_split(methods, mn, 64);
-        int ns = steps ? sweep_split(steps, sn, 64) : 0, nt = tols ? sweep_split(tols, tn, 64) : 0;
+        int np = sweep_split("--problems", problems, pn, 64);
+        int nm = sweep_split("--methods", methods, mn, 64);
+        int ns = steps ? sweep_split("--steps-per-orbit", steps, sn, 64) : 0;
+        int nt = tols ? sweep_split("--tolerances", tols, tn, 64) : 0;
+        if (np < 0 || nm < 0 || ns < 0 || nt < 0)
+            goto out;
         long sv[64];
         double tv[64];
         for (int i = 0; i < ns; i++)
@@ -173,12 +184,27 @@ int pb_cli_sweep(int argc, char **argv)
         }
     }
     for (int i = 0; i < list.n; i++) {
+        /* --compensated applies to every method that has the variant */
+        if (comp && (list.cases[i].method->flags & PB_KIND_COMPENSABLE))
+            list.cases[i].compensated = 1;
         if (repeats >= 0)
             list.cases[i].repeats = (int)repeats;
         if (cost > 0)
             list.cases[i].eval_cost_us = cost;
         if (suite && orbits > 0 && list.cases[i].problem.period > 0)
             list.cases[i].orbits = orbits;
+    }
+    /* two cases with one id would share a series file and a baseline row */
+    for (int i = 0; i < list.n; i++) {
+        char a[PB_CASE_ID_MAX], b[PB_CASE_ID_MAX];
+        pb_case_id(&list.cases[i], a, sizeof a);
+        for (int j = 0; j < i; j++) {
+            pb_case_id(&list.cases[j], b, sizeof b);
+            if (!strcmp(a, b)) {
+                pb_cli_error("sweep", "the grid holds case %s twice (repeated or equal values)", a);
+                goto out;
+            }
+        }
     }
     char dir[4096];
     snprintf(dir, sizeof dir, "%s", out ? out : suite ? suite : "grid");
@@ -189,7 +215,12 @@ int pb_cli_sweep(int argc, char **argv)
         fprintf(stderr, "propbench sweep: %d cases%s into %s with %ld worker%s\n",
                 shard_n > 1 ? (list.n + shard_n - shard_k) / shard_n : list.n,
                 shard_n > 1 ? " (this shard)" : "", dir, jobs, jobs > 1 ? "s" : "");
-    if (pb_sweep_run(&list, dir, &so))
+    int sr = pb_sweep_run(&list, dir, &so);
+    if (sr == -2) {
+        rc = 130; /* interrupted, as a shell reports SIGINT */
+        goto out;
+    }
+    if (sr)
         goto out;
     if (!quiet) {
         char path[4200];

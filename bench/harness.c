@@ -133,8 +133,13 @@ int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
 
 static void harness_tag(double x, char *out, size_t n)
 {
-    /* %g keeps ids short and file-name safe ("1e-08") */
-    snprintf(out, n, "%g", x);
+    /* the shortest %g that reads back as x: ids stay short and file-name
+     * safe ("1e-08") yet two different values never share one */
+    for (int prec = 6; prec <= 17; prec++) {
+        snprintf(out, n, "%.*g", prec, x);
+        if (strtod(out, NULL) == x)
+            return;
+    }
 }
 
 void pb_case_id(const pb_case_spec *spec, char *out, size_t outlen)
@@ -389,6 +394,8 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
         goto out;
     }
     double r[PB_DIM_MAX] = {0}, v[PB_DIM_MAX] = {0}, t = p->t0;
+    double apsis_raw = 0, apsis_unwrapped = 0;
+    int have_apsis = 0;
     int k;
     for (k = 0; k < plan.n; k++) {
         s = m->advance(ws, plan.t[k], harness_observe, &w);
@@ -399,6 +406,17 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
         pb_truth_state(truth, k, rt, vt);
         pb_sample *smp = &res->samples[k];
         pb_metrics_sample(p, t, r, v, rt, vt, w.E0, w.H0, smp);
+        /* the apsidal angle accumulates: unwrap it from sample to sample so a
+         * precession past +-pi keeps its sign and size (samples are close
+         * enough that the angle moves by less than pi between them) */
+        if (isfinite(smp->apsis_angle)) {
+            double raw = smp->apsis_angle;
+            if (have_apsis)
+                smp->apsis_angle = apsis_unwrapped + remainder(raw - apsis_raw, 2 * M_PI);
+            apsis_raw = raw;
+            apsis_unwrapped = smp->apsis_angle;
+            have_apsis = 1;
+        }
         smp->orbits = p->period > 0 ? (t - p->t0) / p->period : (t - p->t0) / horizon;
         smp->on_log_grid = plan.on_log_grid[k];
         smp->truth_floor = pb_truth_floor(truth, k);

@@ -7,6 +7,7 @@
 #include <string.h>
 #include <gsl/gsl_statistics_double.h>
 #include "report_data.h"
+#include "baseline.h"
 
 static double data_num(const json_t *o, const char *key)
 {
@@ -96,18 +97,11 @@ int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen
     memset(run, 0, sizeof *run);
     char path[4200];
     snprintf(path, sizeof path, "%s/summary.json", dir);
-    json_error_t je;
-    json_t *doc = json_load_file(path, 0, &je);
-    if (!doc) {
-        FILE *f = fopen(path, "r");
-        if (!f)
-            snprintf(err, errlen, "%s: cannot read: %s", path, strerror(errno));
-        else {
-            fclose(f);
-            snprintf(err, errlen, "%s:%d: not valid JSON: %s", path, je.line, je.text);
-        }
+    json_t *doc;
+    /* the same checks as check and baseline apply: readable, valid JSON, our
+     * format, and every finished case with numeric metrics and counts */
+    if (pb_summary_load(path, &doc, err, errlen))
         return -1;
-    }
     const json_t *fmt = json_object_get(doc, "format");
     const json_t *cases = json_object_get(doc, "cases");
     if (!json_is_integer(fmt) || json_integer_value(fmt) != 1) {

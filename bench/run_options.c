@@ -61,7 +61,7 @@ int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options
     optind = 1;
     opterr = 0;
     int c;
-    while ((c = getopt_long(argc, argv, "", run_long_options, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, ":", run_long_options, NULL)) != -1) {
         const char *a = optarg;
         switch (c) {
         case OPT_PROBLEM: o->problem = a; break;

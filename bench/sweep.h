@@ -15,9 +15,14 @@ typedef struct pb_sweep_options {
     const char *label;     /* suite name or "grid", recorded in the summary */
 } pb_sweep_options;
 
-/* Run the cases into dir (summary.json, series/). Returns 0, or -1 when the
- * directory cannot be written (message printed). */
+/* Run the cases into dir (summary.json, series/). Returns 0, -1 when the
+ * directory cannot be written (message printed), or -2 when interrupted by
+ * SIGINT or SIGTERM (workers stopped, dir left as it was). */
 int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt);
+
+/* The identity of a sweep: its case count and a hash of its ordered case
+ * ids, so merge can refuse shards of different sweeps. */
+void pb_sweep_identity(const pb_case_list *list, char *out, size_t outlen);
 
 /* Copy a file atomically (for merge); 0 or -1. */
 int pb_copy_file(const char *from, const char *to);

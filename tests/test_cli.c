@@ -3,10 +3,15 @@
  * for shards merged; a crashing case is recorded; select finds an answer
  * known by construction. */
 #include <criterion/criterion.h>
+#include <dirent.h>
+#include <signal.h>
+#include <sys/wait.h>
+#include <time.h>
 #include <jansson.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <fcntl.h>
 #include <unistd.h>
 #include "test_support.h"
 
@@ -272,6 +277,116 @@ Test(cli, gnu_parallel_shards_equal_unsharded)
     cr_assert(json_equal(a, b), "GNU parallel shards merged differ from the unsharded sweep");
     json_decref(a);
     json_decref(b);
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+
+/* 1 if dir holds an entry whose name starts with prefix. */
+static int cli_has_entry(const char *dir, const char *prefix)
+{
+    DIR *d = opendir(dir);
+    if (!d)
+        return 0;
+    struct dirent *e;
+    int found = 0;
+    while ((e = readdir(d)))
+        if (!strncmp(e->d_name, prefix, strlen(prefix)))
+            found = 1;
+    closedir(d);
+    return found;
+}
+
+/* An interrupted sweep stops its workers, exits 130 and leaves the run
+ * directory as it was: the earlier summary untouched, no work files. */
+Test(cli, interrupted_sweep_leaves_run_dir_as_it_was)
+{
+    char dir[256], path[400];
+    pbt_tmpdir(dir, sizeof dir);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4",
+                                     "--steps-per-orbit", "100", "--orbits", "5", "--repeats", "0",
+                                     "--quiet", "--out", dir, NULL}), 0, "%s", err_buf);
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *before = json_load_file(path, 0, NULL);
+    cr_assert_not_null(before);
+    const char *bin = getenv("PB_BIN");
+    cr_assert_not_null(bin);
+    fflush(NULL);
+    pid_t pid = fork();
+    if (pid == 0) {
+        int fd = open("/dev/null", O_WRONLY);
+        dup2(fd, 1);
+        dup2(fd, 2);
+        execl(bin, bin, "sweep", "--problems", "kepler-e0.6", "--methods", "rk4,leapfrog",
+              "--steps-per-orbit", "20000,40000", "--orbits", "1000", "-j", "2", "--quiet",
+              "--out", dir, (char *)NULL);
+        _exit(127);
+    }
+    /* wait until the workers run (the work directory exists), then interrupt */
+    for (int i = 0; i < 500 && !cli_has_entry(dir, ".work."); i++)
+        nanosleep(&(struct timespec){0, 10000000}, NULL);
+    cr_assert(cli_has_entry(dir, ".work."), "the sweep never started");
+    kill(pid, SIGINT);
+    int st;
+    cr_assert_eq(waitpid(pid, &st, 0), pid);
+    cr_assert(WIFEXITED(st) && WEXITSTATUS(st) == 130, "status %d", st);
+    cr_assert(!cli_has_entry(dir, ".work."), "work files left behind");
+    json_t *after = json_load_file(path, 0, NULL);
+    cr_assert(json_equal(before, after), "the earlier summary changed");
+    json_decref(before);
+    json_decref(after);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+/* merge refuses shards of different sweeps and, unless asked, partial sets. */
+Test(cli, merge_refuses_foreign_and_partial_shards)
+{
+    char dir[256], a[300], b[300], m[300];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(a, sizeof a, "%s/a", dir);
+    snprintf(b, sizeof b, "%s/b", dir);
+    snprintf(m, sizeof m, "%s/m", dir);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0.6", "--methods", "rk4,leapfrog",
+                                     "--steps-per-orbit", "100,200", "--orbits", "5", "--repeats", "0",
+                                     "--quiet", "--shard", "1/2", "--out", a, NULL}), 0);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0.9", "--methods", "yoshida4,rk4",
+                                     "--steps-per-orbit", "400,800", "--orbits", "5", "--repeats", "0",
+                                     "--quiet", "--shard", "2/2", "--out", b, NULL}), 0);
+    cr_assert_eq(cli((const char *[]){"merge", "--out", m, a, b, NULL}), 2);
+    cr_assert(strstr(err_buf, "different sweep"), "%s", err_buf);
+    cr_assert(!pbt_exists(m) || !cli_has_entry(m, "summary.json"));
+    cr_assert_eq(cli((const char *[]){"merge", "--out", m, a, NULL}), 2);
+    cr_assert(strstr(err_buf, "2 of 4 cases are missing"), "%s", err_buf);
+    cr_assert_eq(cli((const char *[]){"merge", "--out", m, "--allow-partial", a, NULL}), 0, "%s", err_buf);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+/* A run summary with a metric that is not a number is bad input for check,
+ * baseline and report alike: exit 2 naming the file and the case. */
+Test(cli, corrupt_run_summary_is_bad_input)
+{
+    char dir[256], path[400], base[400];
+    pbt_tmpdir(dir, sizeof dir);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4",
+                                     "--steps-per-orbit", "100", "--orbits", "5", "--repeats", "0",
+                                     "--quiet", "--out", dir, NULL}), 0);
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    snprintf(base, sizeof base, "%s/base.json", dir);
+    cr_assert_eq(cli((const char *[]){"baseline", dir, "--out", base, NULL}), 0, "%s", err_buf);
+    json_t *doc = json_load_file(path, 0, NULL);
+    json_t *m = json_object_get(json_array_get(json_object_get(doc, "cases"), 0), "metrics");
+    json_object_set_new(m, "pos_err_max", json_string("abc"));
+    cr_assert_eq(json_dump_file(doc, path, 0), 0);
+    json_decref(doc);
+    cr_assert_eq(cli((const char *[]){"check", "--baseline", base, dir, NULL}), 2);
+    cr_assert(strstr(err_buf, path) && strstr(err_buf, "not a number"), "%s", err_buf);
+    cr_assert_eq(cli((const char *[]){"baseline", dir, "--out", base, NULL}), 2);
+    cr_assert_eq(cli((const char *[]){"report", dir, "--no-plots", NULL}), 2);
+    char cmd[600];
     snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
     cr_assert_eq(system(cmd), 0);
 }
