@@ -1,6 +1,7 @@
 /* problem_file.c - reads user problem files (INI through inih, one case per
  * "[case NAME]" section) into problems, validating every key. Lines are
  * counted by our own reader so every message names file, line and key. */
+#include <ctype.h>
 #include <errno.h>
 #include <math.h>
 #include <stdarg.h>
@@ -70,9 +71,17 @@ static void pf_fail(pf_ctx *c, int line, const char *key, const char *fmt, ...)
 static char *pf_reader(char *str, int num, void *stream)
 {
     pf_ctx *c = stream;
+    if (c->failed)
+        return NULL;
     char *s = fgets(str, num, c->f);
     if (s) {
         c->line++;
+        size_t len = strlen(s);
+        if (len == (size_t)num - 1 && s[len - 1] != '\n' && !feof(c->f)) {
+            /* inih's line buffer is fixed: say so rather than misparse the rest */
+            pf_fail(c, c->line, NULL, "line longer than %d characters", num - 2);
+            return NULL;
+        }
         const char *q = s;
         while (*q == ' ' || *q == '\t')
             q++;
@@ -133,6 +142,14 @@ static int pf_known_section(pf_ctx *c, const char *section, char *name)
         pf_fail(c, c->section_line, NULL, "section '[%s]' has no case name", section);
         return -1;
     }
+    /* the name becomes part of file names: letters, digits and . _ + - only */
+    for (const char *p = q; *p; p++)
+        if (!(isalnum((unsigned char)*p) || *p == '.' || *p == '_' || *p == '+' || *p == '-') ||
+            (p == q && *p == '.')) {
+            pf_fail(c, c->section_line, NULL, "case name '%s' may hold only letters, digits and "
+                    ". _ + - (and may not start with '.')", q);
+            return -1;
+        }
     if (strlen(q) >= PB_NAME_MAX) {
         pf_fail(c, c->section_line, NULL, "case name '%s' is longer than %d characters",
                 q, PB_NAME_MAX - 1);
@@ -337,6 +354,14 @@ static int pf_finish(pf_ctx *c)
         char msg[512];
         snprintf(msg, sizeof msg, "%s:%d: case '%s': periapsis %.3f is below the body's "
                  "surface (radius %.3f)", c->path, cs->line, cs->name, rp, radius);
+        c->warn(msg);
+    }
+    /* J2 is about 1e-3 for the Earth and of that order for planets (common
+     * practice); anything outside (0, 0.1) is most likely a typing error */
+    if (with_j2 && !(j2 > 0 && j2 < 0.1) && c->warn) {
+        char msg[512];
+        snprintf(msg, sizeof msg, "%s:%d: case '%s': j2 = %g is outside (0, 0.1); is it "
+                 "unnormalized?", c->path, L[K_J2] ? L[K_J2] : cs->line, cs->name, j2);
         c->warn(msg);
     }
     c->case_lines[c->n] = cs->line;

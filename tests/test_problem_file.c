@@ -158,6 +158,28 @@ Test(problem_file, case_without_name)
     pft_expect_error("[orbit one]\nunits = normalized\na = 1\ne = 0\n", 1, NULL, "[case NAME]");
 }
 
+/* The case name becomes part of file names (series/<case>.csv): a name that
+ * could leave the run directory is refused. */
+Test(problem_file, case_name_with_path_characters)
+{
+    pft_expect_error("[case ../../escaped]\nunits = normalized\na = 1\ne = 0\n", 1, NULL,
+                     "may hold only letters");
+    pft_expect_error("[case a/b]\nunits = normalized\na = 1\ne = 0\n", 1, NULL, "may hold only");
+    pft_expect_error("[case .hidden]\nunits = normalized\na = 1\ne = 0\n", 1, NULL, "may not start");
+}
+
+/* A line longer than the reader's buffer is named as such, at its own line,
+ * instead of being misread as two lines. */
+Test(problem_file, line_too_long)
+{
+    char text[1024];
+    char desc[301];
+    memset(desc, 'x', 300);
+    desc[300] = 0;
+    snprintf(text, sizeof text, "[case d]\nunits = normalized\ndescription = %s\na = 1\ne = 0\n", desc);
+    pft_expect_error(text, 3, NULL, "line longer than");
+}
+
 Test(problem_file, duplicate_case_names)
 {
     pft_expect_error("[case x]\nunits = normalized\na = 1\ne = 0\n\n[case x]\nunits = normalized\na = 2\ne = 0\n",
@@ -187,6 +209,27 @@ Test(problem_file, periapsis_below_surface_warns)
     snprintf(where, sizeof where, "%s:1: ", pft_path);
     cr_assert(strstr(pft_warn_msg, where) == pft_warn_msg, "%s", pft_warn_msg);
     cr_assert_not_null(strstr(pft_warn_msg, "below the body's surface"));
+    free(c);
+}
+
+/* A J2 outside (0, 0.1) (the Earth's is 1.08e-3, common practice) is read
+ * but warned about, naming the line of the key. */
+Test(problem_file, implausible_j2_warns)
+{
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read("[case j]\nunits = km-s\nmu = 398600.4418\nradius = 6378.137\n"
+                          "j2 = -5\nforce = j2\na = 7000\ne = 0.001\n", &c, &n), PB_OK, "%s", pft_err);
+    cr_assert_eq(pft_nwarn, 1);
+    char where[200];
+    snprintf(where, sizeof where, "%s:5: ", pft_path);
+    cr_assert(strstr(pft_warn_msg, where) == pft_warn_msg, "%s", pft_warn_msg);
+    cr_assert_not_null(strstr(pft_warn_msg, "outside (0, 0.1)"));
+    free(c);
+    pft_nwarn = 0;
+    cr_assert_eq(pft_read("[case j]\nunits = km-s\nbody = earth\nforce = j2\na = 7000\ne = 0.001\n",
+                          &c, &n), PB_OK, "%s", pft_err);
+    cr_assert_eq(pft_nwarn, 0);
     free(c);
 }
 
