@@ -37,9 +37,12 @@ static void case_settings(json_t *o, const pb_case_spec *spec)
     json_object_set_new(o, "method_kind", json_string(case_kind(m->flags)));
     json_object_set_new(o, "from_gsl", json_boolean(m->flags & PB_FROM_GSL));
     if (m->flags & PB_KIND_FIXED) {
-        if (spec->step_s > 0)
+        if (spec->step_s > 0) {
             json_object_set_new(o, "step", json_real(spec->step_s));
-        else
+            /* the fixed key, as a real number, where a period gives it meaning */
+            if (spec->problem.period > 0)
+                json_object_set_new(o, "steps_per_orbit", json_real(spec->problem.period / spec->step_s));
+        } else
             json_object_set_new(o, "steps_per_orbit", json_integer(spec->steps_per_orbit));
     } else {
         json_object_set_new(o, "tolerance", json_real(spec->tolerance));

@@ -22,6 +22,15 @@ static void print_err(const char *label, double x, const char *unit, int below)
         printf("  %-22s n/a\n", label);
 }
 
+static void print_invariant(const char *label, double mx, double fin)
+{
+    printf("  %-22s max %.3e   final ", label, mx);
+    if (isfinite(fin))
+        printf("%.3e\n", fin);
+    else
+        printf("n/a\n");
+}
+
 void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
 {
     const pb_problem *p = &spec->problem;
@@ -31,9 +40,11 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
     printf("  %-22s %s (%s units)\n", "problem", p->name, km ? "km-s" : "normalized");
     printf("  %-22s %s%s, order %d\n", "method", spec->method->name,
            (spec->method->flags & PB_FROM_GSL) ? " (GSL's)" : "", spec->method->order);
-    if (spec->method->flags & PB_KIND_FIXED)
-        printf("  %-22s h = %.6g (%d steps per orbit)%s\n", "step", res->h, spec->steps_per_orbit,
+    if ((spec->method->flags & PB_KIND_FIXED) && p->period > 0)
+        printf("  %-22s h = %.6g (%.6g steps per orbit)%s\n", "step", res->h, p->period / res->h,
                spec->compensated ? ", compensated" : "");
+    else if (spec->method->flags & PB_KIND_FIXED)
+        printf("  %-22s h = %.6g%s\n", "step", res->h, spec->compensated ? ", compensated" : "");
     else
         printf("  %-22s %.3g\n", "tolerance", spec->tolerance);
     if (p->period > 0 && spec->orbits > 0)
@@ -48,13 +59,12 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
                res->diverged_at, p->period > 0 ? "" : "");
     else
         printf("  %-22s ok\n", "status");
-    if (p->energy) {
-        printf("  %-22s max %.3e   final %.3e\n", p->energy_label ? p->energy_label : "energy",
-               res->energy_rel_max, res->energy_rel_final);
-    }
+    if (p->energy)
+        print_invariant(p->energy_label ? p->energy_label : "energy", res->energy_rel_max,
+                        res->energy_rel_final);
     if (p->angmom)
-        printf("  %-22s max %.3e   final %.3e\n", p->angmom_label ? p->angmom_label : "angular momentum",
-               res->angmom_rel_max, res->angmom_rel_final);
+        print_invariant(p->angmom_label ? p->angmom_label : "angular momentum", res->angmom_rel_max,
+                        res->angmom_rel_final);
     print_err("position error, max", res->pos_err_max, L, res->below_floor);
     print_err("position error, final", res->pos_err_final, L, res->below_floor);
     if (km && !res->below_floor)

@@ -116,6 +116,10 @@ int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
                      "or --step", m->name);
             return -1;
         }
+        if (h > hz * (1 + 1e-9)) {
+            snprintf(err, errlen, "the step %.6g is longer than the horizon %.6g", h, hz);
+            return -1;
+        }
         if (hz / h > 1e11) {
             snprintf(err, errlen, "%.3g steps are too many for one case", hz / h);
             return -1;
@@ -281,7 +285,11 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
     double *y = malloc((size_t)(n > 0 ? n : 1) * sizeof(double));
     double scale = harness_scale(spec);
     double t_fit = spec->problem.period > 0 ? 10.0 * scale : 0.0;
-    res->pos_err_max = res->vel_err_max = res->ecc_drift_max = 0;
+    /* with no sample there is no error to report: NaN (null in JSON), never 0 */
+    double none = n > 0 ? 0 : NAN;
+    res->pos_err_max = res->vel_err_max = res->ecc_drift_max = none;
+    res->energy_rel_final = res->angmom_rel_final = res->pos_err_final = res->vel_err_final = NAN;
+    res->radial_final = res->along_final = res->cross_final = res->apsidal_rate = NAN;
     res->truth_floor_max = 0;
     int below = 0;
     for (int k = 0; k < n; k++) {

@@ -42,9 +42,11 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
     for (int j = 1; j <= linear_samples; j++)
         it[n++] = (sampler_item){horizon * j / linear_samples, 0};
     it[n++] = (sampler_item){horizon, 0};
+    /* onto the grid, never past the horizon: the last grid point at or
+     * before each time (1e-9 of a step forgives the division's rounding) */
     if (h > 0)
         for (int j = 0; j < n; j++)
-            it[j].x = (double)lround(it[j].x / h) * h;
+            it[j].x = floor(it[j].x / h + 1e-9) * h;
     qsort(it, (size_t)n, sizeof *it, sampler_cmp);
     /* merge equal times; a merged time keeps the log flag if either had it */
     int m = 0;
