@@ -1,11 +1,13 @@
 /* cli_select.c - `propbench select`: for each method the largest step or
  * loosest tolerance that meets a requirement over a horizon, ranked by
  * evaluations and by projected cost. Exit 1 when no method meets it. */
+#include <errno.h>
 #include <getopt.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 #include "cli.h"
 #include "harness.h"
 #include "run_dir.h"
@@ -134,14 +136,39 @@ int pb_cli_select(int argc, char **argv)
             list[n++] = *t;
     }
     int m = 0;
-    for (int i = 0; i < n; i++)
-        if (!((list[i]->flags & PB_FORM_SECOND) && p->velocity_dependent))
+    for (int i = 0; i < n; i++) {
+        if (!((list[i]->flags & PB_FORM_SECOND) && p->velocity_dependent)) {
             list[m++] = list[i];
+            continue;
+        }
+        /* a method asked for by name that cannot run here is bad input */
+        if (methods)
+            return pb_cli_error("select", "method '%s' needs a velocity-independent force, but "
+                                "problem '%s' depends on velocity", list[i]->name, p->name);
+    }
     char path[4096];
     if (out)
         snprintf(path, sizeof path, "%s", out);
     else
         snprintf(path, sizeof path, "results/runs/select-%s.json", p->name);
+    /* make sure the answer can be written before spending the search on it */
+    {
+        char dir[4096];
+        snprintf(dir, sizeof dir, "%s", path);
+        char *slash = strrchr(dir, '/');
+        if (slash) {
+            *slash = 0;
+            if (dir[0] && pb_mkdirs(dir))
+                return pb_cli_error("select", "cannot create %s: %s", dir, strerror(errno));
+        }
+        char probe[4200];
+        snprintf(probe, sizeof probe, "%s.probe.%ld", path, (long)getpid());
+        FILE *f = fopen(probe, "w");
+        if (!f)
+            return pb_cli_error("select", "cannot write %s: %s", path, strerror(errno));
+        fclose(f);
+        unlink(probe);
+    }
 
     pb_selection *sel = calloc((size_t)(m > 0 ? m : 1), sizeof *sel);
     if (!sel)

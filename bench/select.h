@@ -28,7 +28,8 @@ int pb_requirement_met(const pb_requirement *req, const pb_case_result *res);
 /* Search for method m on base (problem, horizon, eval cost): a coarse sweep
  * (doubling steps per orbit from 4, or tolerances 1e-3 .. 1e-14), then
  * bisection in log space between the last failing and first passing setting,
- * then confirmation: the answer and a 10% finer neighbour must both pass,
+ * then confirmation: the answer and a 10% finer neighbour (step or
+ * tolerance) must both pass,
  * since errors need not be monotone in the step. */
 int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
                      const pb_requirement *req, pb_selection *out);
