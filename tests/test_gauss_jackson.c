@@ -248,18 +248,21 @@ static double tt_order(double e, const int *N, int n, int orbits)
 
 Test(gauss_jackson, observed_order_kepler)
 {
-    /* Source: Berry & Healy (2004), from memory - nominal order 8 (differences to
-     * the 8th); REFERENCES.md rule: observed order within 0.3 of p, taken here as
-     * a lower bound. Measured slopes are ~10.7 (e = 0) and ~10.5 (e = 0.1): the
-     * summed form's truncated term enters through the integration constants and
-     * its slow variation, one to two orders above the name. Upper bound: the
-     * rows are exact only to degree 10 (test above), so not above ~11. */
+    /* Source: Berry & Healy (2004), from memory - "8" counts the differences
+     * kept. The mid-corrector is symmetric about the point it corrects, so its
+     * error term is one order higher than a one-sided formula's, and the rows
+     * are exact for positions of degree <= 10 (polynomial test above): the
+     * effective order is 10. REFERENCES.md's rule, order within 0.3 of p, is
+     * applied to that p as a lower bound, so an error that costs an order (a
+     * wrong coefficient row, a one-sided corrector) fails. Measured slopes:
+     * 10.7 (e = 0) and 10.6 (e = 0.1), still slightly pre-asymptotic, hence
+     * the upper bound 11.5. */
     static const int N0[] = {48, 64, 80, 96};
     static const int N1[] = {80, 96, 112, 128};
     double p0 = tt_order(0.0, N0, 4, 10), p1 = tt_order(0.1, N1, 4, 10);
     cr_log_info("gauss-jackson8 observed order: e0 %.2f, e0.1 %.2f", p0, p1);
-    cr_assert(p0 >= 8 - 0.3 && p0 <= 11.5, "order %.2f on e = 0", p0);
-    cr_assert(p1 >= 8 - 0.3 && p1 <= 11.5, "order %.2f on e = 0.1", p1);
+    cr_assert(p0 >= 10 - 0.3 && p0 <= 11.5, "order %.2f on e = 0", p0);
+    cr_assert(p1 >= 10 - 0.3 && p1 <= 11.5, "order %.2f on e = 0.1", p1);
 }
 
 /* ---- a recording force for the start-up test ---- */

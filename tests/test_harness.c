@@ -57,6 +57,42 @@ Test(harness, ric_split_of_known_offset)
     cr_assert_float_eq(s.cross, -3e-3, 1e-15);
 }
 
+/* The RIC split away from an apsis of an eccentric orbit, where the velocity
+ * is not perpendicular to the radius: R = r/|r|, C = h/|h|, I = C x R (the
+ * radial / in-track / cross-track frame, common practice), so an offset
+ * built as a R + b I + c C comes back as (a, b, c) and an offset along the
+ * velocity has a radial part. */
+Test(harness, ric_split_off_apsis)
+{
+    pb_problem p = kepler("kepler-e0.6");
+    double E = 1.0, e = 0.6, b = sqrt(1 - e * e), rn = 1 - e * cos(E);
+    long double rt[3] = {cos(E) - e, b * sin(E), 0}, vt[3] = {-sin(E) / rn, b * cos(E) / rn, 0};
+    double R[3], I[3], C[3], r3[3] = {(double)rt[0], (double)rt[1], 0};
+    double v3[3] = {(double)vt[0], (double)vt[1], 0};
+    double rr = sqrt(r3[0] * r3[0] + r3[1] * r3[1]);
+    R[0] = r3[0] / rr, R[1] = r3[1] / rr, R[2] = 0;
+    C[0] = 0, C[1] = 0, C[2] = 1;            /* prograde in the x-y plane */
+    I[0] = -R[1], I[1] = R[0], I[2] = 0;     /* C x R */
+    const double off[3] = {2e-4, -3e-4, 5e-5};
+    double r[3];
+    for (int i = 0; i < 3; i++)
+        r[i] = r3[i] + off[0] * R[i] + off[1] * I[i] + off[2] * C[i];
+    pb_sample s;
+    pb_metrics_sample(&p, 0, r, v3, rt, vt, -0.5, 0.8, &s);
+    cr_assert_float_eq(s.radial, off[0], 1e-15);
+    cr_assert_float_eq(s.along, off[1], 1e-15);
+    cr_assert_float_eq(s.cross, off[2], 1e-15);
+    /* an offset along the velocity is not purely in-track here */
+    double vn = sqrt(v3[0] * v3[0] + v3[1] * v3[1]);
+    for (int i = 0; i < 3; i++)
+        r[i] = r3[i] + 1e-4 * v3[i] / vn;
+    pb_metrics_sample(&p, 0, r, v3, rt, vt, -0.5, 0.8, &s);
+    double flight_path = (r3[0] * v3[0] + r3[1] * v3[1]) / (rr * vn); /* sin of the angle */
+    cr_assert_gt(fabs(flight_path), 0.1);
+    cr_assert_float_eq(s.radial, 1e-4 * flight_path, 1e-15);
+    cr_assert_float_eq(s.along, 1e-4 * sqrt(1 - flight_path * flight_path), 1e-15);
+}
+
 /* Apsidal precession of a state rotated by a known angle about the orbit
  * normal: the eccentricity vector rotates with it, so the apsidal angle is
  * that angle (Laplace-Runge-Lenz vector, textbook law). */
