@@ -61,9 +61,14 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
 
 const char *pb_case_status_name(int status)
 {
+    /* "diverged" covers every way the numbers went wrong (non-finite, escape,
+     * step collapse, no convergence); status_detail says which. A failure of
+     * the set-up or of memory is not a numerical outcome: "crashed". */
     switch (status) {
     case PB_OK: return "ok";
     case PB_EMAXSTEPS: return "max_steps";
+    case PB_EINVAL:
+    case PB_ENOMEM: return "crashed";
     default: return "diverged";
     }
 }

@@ -23,7 +23,7 @@ double pb_case_horizon(const pb_case_spec *spec);
 int pb_case_run(const pb_case_spec *spec, pb_case_result *res);
 void pb_case_result_free(pb_case_result *res);
 
-/* "ok", "diverged", "max_steps" for a pb_status of a finished integration. */
+/* "ok", "diverged", "max_steps" or "crashed" for a pb_status of an integration. */
 const char *pb_case_status_name(int status);
 
 #endif
