@@ -64,6 +64,22 @@ static int baseline_format_ok(const char *path, const json_t *d, int want, const
     return 0;
 }
 
+/* Why the metrics (numbers or null) or counts (integers) are bad; NULL if fine. */
+static const char *baseline_numbers_bad(const json_t *m, const json_t *n)
+{
+    for (const char *const *k = pb_check_metrics; *k; k++) {
+        json_t *v = json_object_get(m, *k);
+        if (v && !json_is_number(v) && !json_is_null(v))
+            return "has a metric that is not a number";
+    }
+    for (const char *const *k = baseline_counts; *k; k++) {
+        json_t *v = json_object_get(n, *k);
+        if (v && !json_is_integer(v))
+            return "has a count that is not an integer";
+    }
+    return NULL;
+}
+
 /* Every case an object with a unique string id and a string status. */
 static int baseline_cases_ok(const char *path, const json_t *d, int is_baseline, char *err,
                              size_t errlen)
@@ -91,35 +107,14 @@ static int baseline_cases_ok(const char *path, const json_t *d, int is_baseline,
                                  !json_is_object(json_object_get(c, "settings")) ||
                                  !json_is_string(json_object_get(c, "fingerprint"))))
             why = "lacks 'settings', 'metrics', 'counts' or 'fingerprint'";
-        if (!why && is_baseline) {
-            json_t *m = json_object_get(c, "metrics"), *n = json_object_get(c, "counts");
-            for (const char *const *k = pb_check_metrics; *k && !why; k++) {
-                json_t *v = json_object_get(m, *k);
-                if (v && !json_is_number(v) && !json_is_null(v))
-                    why = "has a metric that is not a number";
-            }
-            for (const char *const *k = baseline_counts; *k && !why; k++) {
-                json_t *v = json_object_get(n, *k);
-                if (v && !json_is_integer(v))
-                    why = "has a count that is not an integer";
-            }
-        }
+        if (!why && is_baseline)
+            why = baseline_numbers_bad(json_object_get(c, "metrics"), json_object_get(c, "counts"));
         if (!why && !is_baseline &&
             strcmp(json_string_value(json_object_get(c, "status")), "crashed") != 0) {
             /* a finished case of a run: metrics and cost as the writer makes them */
             json_t *m = json_object_get(c, "metrics"), *n = json_object_get(c, "cost");
-            if (!json_is_object(m) || !json_is_object(n))
-                why = "lacks the objects 'metrics' or 'cost'";
-            for (const char *const *k = pb_check_metrics; *k && !why; k++) {
-                json_t *v = json_object_get(m, *k);
-                if (v && !json_is_number(v) && !json_is_null(v))
-                    why = "has a metric that is not a number";
-            }
-            for (const char *const *k = baseline_counts; *k && !why; k++) {
-                json_t *v = json_object_get(n, *k);
-                if (v && !json_is_integer(v))
-                    why = "has a count that is not an integer";
-            }
+            why = (!json_is_object(m) || !json_is_object(n)) ? "lacks the objects 'metrics' or 'cost'"
+                                                             : baseline_numbers_bad(m, n);
         }
         if (why) {
             snprintf(err, errlen, "%s: corrupt: cases[%zu]%s%s%s %s", path, i, id ? " (" : "",
