@@ -28,17 +28,45 @@ int pb_requirement_met(const pb_requirement *req, const pb_case_result *res)
     return 1;
 }
 
-/* Run one setting (no timing); 1 pass, 0 fail, -1 could not run. */
-static int select_try(const pb_case_spec *base, const pb_method_type *m, double setting,
-                      const pb_requirement *req, pb_selection *out, int keep, int repeats)
+/* The search runs on one axis for both kinds of method: "fineness" x grows
+ * as the setting gets more accurate and more costly. Fixed-step methods:
+ * x is the (whole) number of steps per orbit; adaptive ones: x = 1/tolerance. */
+typedef struct select_axis {
+    int fixed;
+    double first, grow, last;   /* coarse ladder: first, first*grow, ... <= last */
+    double close;               /* bisection stops once hi <= close * lo */
+    double jump;                /* past a non-monotone dip: next try at jump * neighbour */
+} select_axis;
+
+/* The tolerance of fineness x, as a number a person can type back in: 1/x
+ * rounded down to 3 digits and read back, so what runs is what is printed. */
+static double select_tol(double x)
+{
+    double tol = 1.0 / x, q = pow(10.0, floor(log10(tol)) - 2);
+    double shown = floor(tol / q * (1 + 1e-9)) * q;
+    char buf[32];
+    snprintf(buf, sizeof buf, "%.3g", shown);
+    sscanf(buf, "%lf", &shown);
+    return shown;
+}
+
+static double select_snap(const select_axis *ax, double x)
+{
+    return ax->fixed ? ceil(x - 1e-9) : 1.0 / select_tol(x);
+}
+
+/* Run one setting; 1 pass, 0 fail, -1 could not run. keep: hold the
+ * result (with a timing pass) as the confirmed answer. */
+static int select_try(const pb_case_spec *base, const pb_method_type *m, const select_axis *ax,
+                      double x, const pb_requirement *req, pb_selection *out, int keep)
 {
     pb_case_spec s = *base;
     s.method = m;
-    s.repeats = repeats;
-    if (m->flags & PB_KIND_FIXED)
-        s.steps_per_orbit = (int)setting;
+    s.repeats = keep ? (base->repeats > 0 ? base->repeats : 3) : 0;
+    if (ax->fixed)
+        s.steps_per_orbit = (int)x;
     else
-        s.tolerance = setting;
+        s.tolerance = select_tol(x);
     pb_case_result r;
     out->runs++;
     if (pb_case_run(&s, &r))
@@ -53,135 +81,70 @@ static int select_try(const pb_case_spec *base, const pb_method_type *m, double 
     return ok;
 }
 
-static double select_horizon_steps(const pb_case_spec *base, int spo)
+static int select_search(const pb_case_spec *base, const pb_method_type *m, const select_axis *ax,
+                         const pb_requirement *req, pb_selection *out)
 {
-    double T = base->problem.period > 0 ? base->problem.period : pb_case_horizon(base);
-    return pb_case_horizon(base) / T * spo;
-}
-
-static int select_fixed(const pb_case_spec *base, const pb_method_type *m,
-                        const pb_requirement *req, pb_selection *out)
-{
-    int lo = 0, hi = 0;
-    for (int n = 4; n <= SELECT_MAX_SPO && select_horizon_steps(base, n) <= SELECT_MAX_STEPS; n *= 2) {
-        int ok = select_try(base, m, n, req, out, 0, 0);
-        if (ok < 0)
+    double lo = 0, hi = 0; /* lo: coarser and failing (0: none), hi: passing */
+    int ok;
+    for (double x = ax->first; x <= ax->last * (1 + 1e-9); x *= ax->grow) {
+        if ((ok = select_try(base, m, ax, x, req, out, 0)) < 0)
             return -1;
         if (ok) {
-            hi = n;
+            hi = x;
             break;
         }
-        lo = n;
+        lo = x;
     }
-    if (!hi) {
-        snprintf(out->note, sizeof out->note, "no step up to %d per orbit meets it", lo);
+    if (!(hi > 0)) {
+        if (ax->fixed)
+            snprintf(out->note, sizeof out->note, "no step up to %.0f per orbit meets it", lo);
+        else
+            snprintf(out->note, sizeof out->note, "no tolerance down to %.0e meets it", select_tol(lo));
         return 0;
     }
     int confirmed = 0;
     for (int round = 0; round < 4 && !confirmed; round++) {
-        while (lo > 0 && hi - lo > 1 && hi > 1.02 * lo) {
-            int mid = (int)lround(sqrt((double)lo * hi));
-            if (mid <= lo || mid >= hi)
+        while (lo > 0 && hi > ax->close * lo) {
+            double mid = select_snap(ax, sqrt(lo * hi));
+            if (!(mid > lo && mid < hi))
                 break;
-            int ok = select_try(base, m, mid, req, out, 0, 0);
-            if (ok < 0)
+            if ((ok = select_try(base, m, ax, mid, req, out, 0)) < 0)
                 return -1;
             if (ok) hi = mid; else lo = mid;
         }
-        /* confirm: a 10% finer step must pass too, else move past the dip */
-        int nb = (int)ceil(1.1 * hi);
-        int ok = select_try(base, m, nb, req, out, 0, 0);
-        if (ok < 0)
+        /* confirm: a 10% finer setting must pass too, else move past the dip */
+        double nb = select_snap(ax, 1.1 * hi);
+        if ((ok = select_try(base, m, ax, nb, req, out, 0)) < 0)
             return -1;
         if (ok) {
             confirmed = 1;
             break;
         }
         lo = nb;
-        hi = 2 * nb;
-        ok = select_try(base, m, hi, req, out, 0, 0);
-        if (ok <= 0) {
-            snprintf(out->note, sizeof out->note, "errors are not monotone in the step near %d per orbit", nb);
+        hi = select_snap(ax, ax->jump * nb);
+        if ((ok = select_try(base, m, ax, hi, req, out, 0)) <= 0) {
+            snprintf(out->note, sizeof out->note, "errors are not monotone in the %s near %.3g",
+                     ax->fixed ? "step" : "tolerance", ax->fixed ? nb : 1.0 / nb);
             return ok;
         }
     }
     if (!confirmed) {
         snprintf(out->note, sizeof out->note, "no answer whose 10%%-finer neighbour also passes "
-                 "(errors not monotone in the step)");
+                 "(errors not monotone in the %s)", ax->fixed ? "step" : "tolerance");
         return 0;
     }
-    int ok = select_try(base, m, hi, req, out, 1, base->repeats > 0 ? base->repeats : 3);
-    if (ok > 0) {
-        out->found = 1;
-        out->steps_per_orbit = hi;
-    }
-    return ok < 0 ? -1 : 0;
-}
-
-static int select_adaptive(const pb_case_spec *base, const pb_method_type *m,
-                           const pb_requirement *req, pb_selection *out)
-{
-    double lo = 0, hi = 0; /* lo: failing (looser) tolerance, hi: passing */
-    for (int k = 3; k <= 14; k++) {
-        double tol = pow(10.0, -k);
-        int ok = select_try(base, m, tol, req, out, 0, 0);
-        if (ok < 0)
-            return -1;
-        if (ok) {
-            hi = tol;
-            break;
-        }
-        lo = tol;
-    }
-    if (!(hi > 0)) {
-        snprintf(out->note, sizeof out->note, "no tolerance down to 1e-14 meets it");
+    if ((ok = select_try(base, m, ax, hi, req, out, 1)) < 0)
+        return -1;
+    if (!ok) {
+        snprintf(out->note, sizeof out->note, "the answer failed its confirming run");
         return 0;
     }
-    int confirmed = 0;
-    for (int round = 0; round < 4 && !confirmed; round++) {
-        while (lo > 0 && lo > 1.1 * hi) {
-            double mid = sqrt(lo * hi);
-            int ok = select_try(base, m, mid, req, out, 0, 0);
-            if (ok < 0)
-                return -1;
-            if (ok) hi = mid; else lo = mid;
-        }
-        /* confirm: a 10% tighter tolerance must pass too */
-        double nb = hi / 1.1;
-        int ok = select_try(base, m, nb, req, out, 0, 0);
-        if (ok < 0)
-            return -1;
-        if (ok) {
-            confirmed = 1;
-            break;
-        }
-        lo = nb;
-        hi = nb / 10;
-        ok = select_try(base, m, hi, req, out, 0, 0);
-        if (ok <= 0) {
-            snprintf(out->note, sizeof out->note, "errors are not monotone in the tolerance near %.2g", nb);
-            return ok;
-        }
-    }
-    if (!confirmed) {
-        snprintf(out->note, sizeof out->note, "no answer whose 10%%-tighter neighbour also passes "
-                 "(errors not monotone in the tolerance)");
-        return 0;
-    }
-    /* round to 3 significant digits so the answer can be typed back in */
-    double q = pow(10.0, floor(log10(hi)) - 2);
-    double shown = floor(hi / q * (1 + 1e-12)) * q;
-    char buf[32];
-    snprintf(buf, sizeof buf, "%.3g", shown);
-    sscanf(buf, "%lf", &shown);
-    int ok = select_try(base, m, shown, req, out, 1, base->repeats > 0 ? base->repeats : 3);
-    if (ok > 0) {
-        out->found = 1;
-        out->tolerance = shown;
-    } else if (ok == 0) {
-        snprintf(out->note, sizeof out->note, "the rounded tolerance %.3g fails the confirming run", shown);
-    }
-    return ok < 0 ? -1 : 0;
+    out->found = 1;
+    if (ax->fixed)
+        out->steps_per_orbit = (int)hi;
+    else
+        out->tolerance = select_tol(hi);
+    return 0;
 }
 
 int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
@@ -189,8 +152,17 @@ int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
 {
     memset(out, 0, sizeof *out);
     out->method = m;
-    int rc = (m->flags & PB_KIND_FIXED) ? select_fixed(base, m, req, out)
-                                        : select_adaptive(base, m, req, out);
+    int rc;
+    if (m->flags & PB_KIND_FIXED) {
+        /* doubling from 4 steps per orbit, within a budget of steps per case */
+        double T = base->problem.period > 0 ? base->problem.period : pb_case_horizon(base);
+        double last = fmin(SELECT_MAX_SPO, floor(SELECT_MAX_STEPS * T / pb_case_horizon(base)));
+        select_axis ax = {1, 4, 2, last, 1.0, 2}; /* bisect to adjacent whole numbers */
+        rc = select_search(base, m, &ax, req, out);
+    } else {
+        select_axis ax = {0, 1e3, 10, 1e14, 1.1, 10};
+        rc = select_search(base, m, &ax, req, out);
+    }
     if (out->found) {
         const pb_case_result *r = &out->confirmed;
         double ns = isfinite(r->ns_per_step) ? r->ns_per_step : 0;
