@@ -42,6 +42,8 @@ typedef struct pb_growth {
     double k, k_err;          /* slope of log(err) on log(t) and its standard error */
     int npoints;
     const char *cls;          /* "bounded", "sqrt", "linear", "quadratic", "other" */
+    double from;              /* the fit used samples from this time on (10 periods, or 1
+                               * when fewer than 3 samples lie past 10) */
 } pb_growth;
 
 typedef struct pb_case_result {
@@ -60,6 +62,9 @@ typedef struct pb_case_result {
     double radial_final, along_final, cross_final;
     double ecc_drift_max, apsidal_rate;   /* rad per orbit (NaN if undefined) */
     int below_floor;          /* position errors below 10x the reference floor */
+    int saturated;            /* position error beyond a tenth of the orbit's size:
+                               * the numbers describe another orbit */
+    const char *status_detail;  /* why the run ended (static text) */
     double truth_floor_max;
     pb_growth g_pos, g_along, g_energy, g_angmom;
     long steps, evals, rejected, startup_steps;

@@ -62,7 +62,7 @@ json_t *pb_case_crashed_json(const pb_case_spec *spec, const char *why)
     return o;
 }
 
-static void case_growth(json_t *mt, const char *name, const pb_growth *g)
+static void case_growth(json_t *mt, const char *name, const pb_growth *g, double period)
 {
     char key[64];
     snprintf(key, sizeof key, "growth_exponent_%s", name);
@@ -71,6 +71,8 @@ static void case_growth(json_t *mt, const char *name, const pb_growth *g)
     json_object_set_new(mt, key, pb_json_real(g->k_err));
     snprintf(key, sizeof key, "growth_class_%s", name);
     json_object_set_new(mt, key, json_string(g->cls ? g->cls : "other"));
+    snprintf(key, sizeof key, "growth_fit_from_orbits_%s", name);
+    json_object_set_new(mt, key, pb_json_real(period > 0 ? g->from / period : NAN));
 }
 
 json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
@@ -78,7 +80,8 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     json_t *o = json_object();
     case_settings(o, spec);
     json_object_set_new(o, "status", json_string(res->status_name));
-    json_object_set_new(o, "status_detail", json_string(pb_strerror(res->status)));
+    json_object_set_new(o, "status_detail",
+                        json_string(res->status_detail ? res->status_detail : pb_strerror(res->status)));
     if (res->status) {
         json_object_set_new(o, "diverged_at", pb_json_real(res->diverged_at));
         if (spec->problem.period > 0)
@@ -105,6 +108,7 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
         json_object_set_new(mt, "pos_err_final_m", pb_json_real(1e3 * pfin));
     }
     json_object_set_new(mt, "below_reference_floor", json_boolean(res->below_floor));
+    json_object_set_new(mt, "error_saturated", json_boolean(res->saturated));
     json_object_set_new(mt, "reference_floor_max", pb_json_real(res->truth_floor_max));
     json_object_set_new(mt, "vel_err_max", pb_json_real(res->vel_err_max));
     json_object_set_new(mt, "vel_err_final", pb_json_real(res->vel_err_final));
@@ -113,10 +117,10 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     json_object_set_new(mt, "cross_track_final", pb_json_real(res->cross_final));
     json_object_set_new(mt, "ecc_drift_max", pb_json_real(spec->problem.keplerian ? res->ecc_drift_max : NAN));
     json_object_set_new(mt, "apsidal_rate_rad_per_orbit", pb_json_real(res->apsidal_rate));
-    case_growth(mt, "pos", &res->g_pos);
-    case_growth(mt, "along", &res->g_along);
-    case_growth(mt, "energy", &res->g_energy);
-    case_growth(mt, "angmom", &res->g_angmom);
+    case_growth(mt, "pos", &res->g_pos, spec->problem.period);
+    case_growth(mt, "along", &res->g_along, spec->problem.period);
+    case_growth(mt, "energy", &res->g_energy, spec->problem.period);
+    case_growth(mt, "angmom", &res->g_angmom, spec->problem.period);
     json_object_set_new(o, "metrics", mt);
 
     json_t *c = json_object();

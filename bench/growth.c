@@ -21,7 +21,7 @@ const char *pb_growth_class(double k)
 
 pb_growth pb_growth_fit(const double *t, const double *err, int n, double t_min)
 {
-    pb_growth g = {NAN, NAN, 0, "other"};
+    pb_growth g = {NAN, NAN, 0, "other", t_min};
     double *x = malloc((size_t)(n > 0 ? n : 1) * sizeof(double));
     double *y = malloc((size_t)(n > 0 ? n : 1) * sizeof(double));
     if (!x || !y)

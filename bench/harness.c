@@ -29,31 +29,35 @@ typedef struct harness_watch {
     double E0, H0, r_limit;
     double e_win, h_win, e_max, h_max;
     double t_escape;
+    const char *why;          /* which divergence test stopped the run */
 } harness_watch;
 
 static int harness_observe(void *ctx, double t, const double *r, const double *v)
 {
     harness_watch *w = ctx;
     const pb_problem *p = w->p;
+    double e = 0;
     if (p->energy) {
-        double e = pb_rel_err(p->energy(p, t, r, v), w->E0);
+        e = pb_rel_err(p->energy(p, t, r, v), w->E0);
         if (e > w->e_win) w->e_win = e;
-        /* an energy error of 100% means the orbit is no longer the problem's
-         * (a bound orbit has become unbound, or the reverse) */
-        if (!(e <= HARNESS_ENERGY_DIVERGED) && w->E0 != 0) {
-            w->t_escape = t;
-            return PB_EDIVERGED;
-        }
     }
     if (p->angmom) {
         double h = pb_rel_err(p->angmom(p, r, v), w->H0);
         if (h > w->h_win) w->h_win = h;
+    }
+    /* an energy error of 100% means the orbit is no longer the problem's
+     * (a bound orbit has become unbound, or the reverse) */
+    if (p->energy && !(e <= HARNESS_ENERGY_DIVERGED) && w->E0 != 0) {
+        w->t_escape = t;
+        w->why = "relative energy error passed 100%";
+        return PB_EDIVERGED;
     }
     double r2 = 0;
     for (int i = 0; i < p->dim; i++)
         r2 += r[i] * r[i];
     if (!(sqrt(r2) <= w->r_limit)) {
         w->t_escape = t;
+        w->why = "the orbit escaped to 1000 times its initial size";
         return PB_EDIVERGED;
     }
     return 0;
@@ -308,6 +312,7 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
             below++;
     }
     res->below_floor = n > 0 && below == n;
+    res->saturated = n > 0 && res->pos_err_max > 0.1 * harness_length_scale(&spec->problem);
     if (n > 0) {
         pb_sample *last = &res->samples[n - 1];
         res->energy_rel_final = last->energy_rel;
@@ -452,6 +457,11 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
         m->get_stats(ws, &st);
         res->diverged_at = s == PB_EDIVERGED ? w.t_escape
                          : counter.saw_nonfinite ? counter.t_nonfinite : st.t_fail;
+        res->status_detail = s == PB_EDIVERGED && w.why ? w.why
+                           : counter.saw_nonfinite ? "the force became non-finite"
+                           : pb_strerror(s);
+    } else {
+        res->status_detail = "ok";
     }
     w.e_max = fmax(w.e_max, w.e_win);
     w.h_max = fmax(w.h_max, w.h_win);

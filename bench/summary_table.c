@@ -19,8 +19,9 @@ static void tab_sci(FILE *f, double x)
 void pb_summary_print(const json_t *doc, FILE *f)
 {
     const json_t *cases = json_object_get(doc, "cases");
-    fprintf(f, "%-18s %-15s %-12s %-9s %10s %10s %-10s %-10s %10s %8s\n", "problem", "method",
-            "setting", "status", "energy max", "pos max", "pos growth", "E growth", "evals", "ns/step");
+    fprintf(f, "%-18s %-15s %-12s %-9s %10s %10s %-4s %-10s %-10s %10s %8s\n", "problem", "method",
+            "setting", "status", "energy max", "pos max", "unit", "pos growth", "E growth", "evals",
+            "ns/step");
     size_t i;
     const json_t *c;
     json_array_foreach(cases, i, c) {
@@ -34,6 +35,8 @@ void pb_summary_print(const json_t *doc, FILE *f)
         else
             snprintf(setting, sizeof setting, "h=%.3g", tab_num(c, "step"));
         const char *st = json_string_value(json_object_get(c, "status"));
+        if (st && !strcmp(st, "ok") && json_is_true(json_object_get(json_object_get(c, "metrics"), "error_saturated")))
+            st = "ok(sat)";
         const char *method = json_string_value(json_object_get(c, "method"));
         int gsl = json_is_true(json_object_get(c, "from_gsl"));
         char mname[40];
@@ -43,11 +46,13 @@ void pb_summary_print(const json_t *doc, FILE *f)
         if (m) {
             tab_sci(f, tab_num(m, "energy_rel_max"));
             tab_sci(f, tab_num(m, "pos_err_max"));
+            const char *u = json_string_value(json_object_get(c, "units"));
+            fprintf(f, " %-4s", u && !strcmp(u, "km-s") ? "km" : "DU");
             const char *gp = json_string_value(json_object_get(m, "growth_class_pos"));
             const char *ge = json_string_value(json_object_get(m, "growth_class_energy"));
             fprintf(f, " %-10s %-10s", gp ? gp : "-", ge ? ge : "-");
         } else {
-            fprintf(f, " %10s %10s %-10s %-10s", "-", "-", "-", "-");
+            fprintf(f, " %10s %10s %-4s %-10s %-10s", "-", "-", "", "-", "-");
         }
         if (k) {
             fprintf(f, " %10lld", (long long)json_integer_value(json_object_get(k, "evals")));
@@ -59,5 +64,18 @@ void pb_summary_print(const json_t *doc, FILE *f)
         }
         fputc('\n', f);
     }
-    fprintf(f, "(* GSL's stepper; pos in problem length units; growth = class of the fitted power law)\n");
+    fprintf(f, "(* GSL's stepper; energy max is relative; growth = class of the fitted power law;\n"
+               " ok(sat): finished, but the position error passed a tenth of the orbit's size)\n");
+    /* how each unfinished case ended, with the time */
+    json_array_foreach(cases, i, c) {
+        const char *st = json_string_value(json_object_get(c, "status"));
+        if (!st || !strcmp(st, "ok"))
+            continue;
+        const json_t *at = json_object_get(c, "diverged_at");
+        fprintf(f, "  %s: %s", json_string_value(json_object_get(c, "id")), st);
+        if (json_is_number(at))
+            fprintf(f, " at t = %.6g", json_number_value(at));
+        const char *d = json_string_value(json_object_get(c, "status_detail"));
+        fprintf(f, "%s%s\n", d ? ": " : "", d ? d : "");
+    }
 }

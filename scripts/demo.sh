@@ -7,7 +7,7 @@ out=results/runs/demo
 echo "propbench demo: RK4 vs leapfrog, 1000 orbits, on kepler-e0, kepler-e0.6, kepler-e0.9"
 echo "and (one day is ~15.6 orbits, here 1000 orbits = ~64 days) leo-near-circular."
 "$bin" sweep --problems kepler-e0,kepler-e0.6,kepler-e0.9,leo-near-circular \
-    --methods rk4,leapfrog --steps-per-orbit 500,2000 --orbits 1000 -j 2 --out "$out"
+    --methods rk4,leapfrog --steps-per-orbit 2000,8000 --orbits 1000 -j 2 --out "$out"
 cat <<'TXT'
 
 What to look for: leapfrog's energy error is "bounded" (it oscillates but does
