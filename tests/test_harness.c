@@ -227,6 +227,7 @@ Test(harness, divergence_reported_with_time)
     pb_case_result r;
     cr_assert_eq(pb_case_run(&s, &r), 0);
     cr_assert_str_eq(r.status_name, "diverged");
+    cr_assert_str_eq(r.status_detail, "relative energy error passed 100%");
     cr_assert_gt(r.diverged_at, 0);
     cr_assert_lt(r.diverged_at, 100 * s.problem.period);
     pb_case_result_free(&r);
@@ -303,5 +304,40 @@ Test(harness, apsidal_rate_unwrapped_past_pi)
     cr_assert_gt(fabs(r.apsidal_rate) * 1000, M_PI, "total %g rad", r.apsidal_rate * 1000);
     cr_assert_float_eq(r.apsidal_rate, early, 0.1 * fabs(early), "rate %g, first 10 orbits %g",
                        r.apsidal_rate, early);
+    pb_case_result_free(&r);
+}
+
+/* A run whose position error passes a tenth of the orbit's size is flagged:
+ * leapfrog at 100 steps per orbit on kepler-e0 over 200 orbits drifts in
+ * phase by more than that (its along-track error grows linearly, Hairer,
+ * Lubich & Wanner 2006 Ch. I), while 2000 steps per orbit stay well inside. */
+Test(harness, saturated_runs_are_flagged)
+{
+    pb_case_spec s = spec_fixed("kepler-e0", "leapfrog", 100, 200);
+    pb_case_result r;
+    cr_assert_eq(pb_case_run(&s, &r), 0);
+    cr_assert_str_eq(r.status_name, "ok");
+    cr_assert_gt(r.pos_err_max, 0.1);
+    cr_assert(r.saturated);
+    pb_case_result_free(&r);
+    s = spec_fixed("kepler-e0", "leapfrog", 2000, 200);
+    cr_assert_eq(pb_case_run(&s, &r), 0);
+    cr_assert_lt(r.pos_err_max, 0.01);
+    cr_assert(!r.saturated);
+    pb_case_result_free(&r);
+}
+
+/* With too short a horizon for 3 samples past 10 periods, the fit falls back
+ * to the samples from the first period and says so. */
+Test(harness, growth_fit_window_is_reported)
+{
+    pb_case_spec s = spec_fixed("kepler-e0.6", "rk4", 400, 15);
+    pb_case_result r;
+    cr_assert_eq(pb_case_run(&s, &r), 0);
+    cr_assert_float_eq(r.g_pos.from / s.problem.period, 1.0, 1e-9);
+    pb_case_result_free(&r);
+    s = spec_fixed("kepler-e0.6", "rk4", 400, 100);
+    cr_assert_eq(pb_case_run(&s, &r), 0);
+    cr_assert_float_eq(r.g_pos.from / s.problem.period, 10.0, 1e-9);
     pb_case_result_free(&r);
 }
