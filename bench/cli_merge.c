@@ -2,6 +2,8 @@
  * a sweep into one run directory equal to the unsharded run (cases in their
  * original order, series files copied). */
 #include <getopt.h>
+#include <unistd.h>
+#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -117,6 +119,25 @@ int pb_cli_merge(int argc, char **argv)
             free(v);
             goto out;
         }
+    if ((json_int_t)n < total && !partial) {
+        pb_cli_error("merge", "%lld of %lld cases are missing (a shard not given?); "
+                     "--allow-partial merges what is there", (long long)(total - (json_int_t)n),
+                     (long long)total);
+        free(v);
+        goto out;
+    }
+    /* every series must be there before anything is written */
+    for (size_t k = 0; k < n; k++) {
+        const char *series = json_string_value(json_object_get(v[k], "series"));
+        int from = (int)json_integer_value(json_object_get(v[k], "_from"));
+        char a[8400];
+        snprintf(a, sizeof a, "%s/%s", argv[optind + from], series ? series : "");
+        if (series && access(a, R_OK)) {
+            pb_cli_error("merge", "%s: cannot read: %s", a, strerror(errno));
+            free(v);
+            goto out;
+        }
+    }
     char sdir[4200];
     snprintf(sdir, sizeof sdir, "%s/series", out);
     if (pb_mkdirs(sdir)) {
@@ -142,14 +163,6 @@ int pb_cli_merge(int argc, char **argv)
             }
         }
         json_array_append(cases, o);
-    }
-    if ((json_int_t)n < total && !partial) {
-        pb_cli_error("merge", "%lld of %lld cases are missing (a shard not given?); "
-                     "--allow-partial merges what is there", (long long)(total - (json_int_t)n),
-                     (long long)total);
-        json_decref(cases);
-        free(v);
-        goto out;
     }
     if ((json_int_t)n < total)
         fprintf(stderr, "propbench merge: warning: %lld of %lld cases are missing\n",
