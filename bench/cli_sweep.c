@@ -162,7 +162,7 @@ int pb_cli_sweep(int argc, char **argv)
                     s.method = m;
                     s.steps_per_orbit = fixed ? (int)sv[k] : 0;
                     s.tolerance = fixed ? 0 : tv[k];
-                    if (p.period > 0)
+                    if (p.period > 0 && (orbits > 0 || p.default_orbits > 0))
                         s.orbits = orbits > 0 ? orbits : p.default_orbits;
                     else
                         s.horizon_s = p.default_horizon_s;

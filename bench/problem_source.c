@@ -5,9 +5,26 @@
 #include "problem_source.h"
 #include "../problems/problem_file.h"
 
+/* Warnings are held until the case is chosen, so that a file's other cases
+ * do not speak up for a run that does not use them. */
+#define SOURCE_WARN_MAX 32
+static char source_warnings[SOURCE_WARN_MAX][512];
+static int source_nwarn;
+
 static void source_warn(const char *msg)
 {
-    fprintf(stderr, "propbench: warning: %s\n", msg);
+    if (source_nwarn < SOURCE_WARN_MAX)
+        snprintf(source_warnings[source_nwarn++], sizeof source_warnings[0], "%s", msg);
+}
+
+static void source_flush(const char *case_name)
+{
+    char tag[PB_NAME_MAX + 16];
+    snprintf(tag, sizeof tag, "case '%s'", case_name);
+    for (int i = 0; i < source_nwarn; i++)
+        if (!strstr(source_warnings[i], "case '") || strstr(source_warnings[i], tag))
+            fprintf(stderr, "propbench: warning: %s\n", source_warnings[i]);
+    source_nwarn = 0;
 }
 
 int pb_problem_source_file(const char *verb, const char *path, const char *case_name,
@@ -16,6 +33,7 @@ int pb_problem_source_file(const char *verb, const char *path, const char *case_
     pb_problem *cases = NULL;
     int n = 0;
     char err[1024];
+    source_nwarn = 0;
     if (pb_problem_file_read(path, &cases, &n, err, sizeof err, source_warn) != PB_OK) {
         fprintf(stderr, "propbench %s: error: %s\n", verb, err);
         return -1;
@@ -24,9 +42,11 @@ int pb_problem_source_file(const char *verb, const char *path, const char *case_
     for (int i = 0; i < n; i++)
         if (!case_name || strcmp(cases[i].name, case_name) == 0) {
             *out = cases[i];
+            source_flush(cases[i].name);
             rc = 0;
             break;
         }
+    source_nwarn = 0;
     if (rc) {
         fprintf(stderr, "propbench %s: error: %s: no case named '%s'; cases:", verb, path,
                 case_name ? case_name : "");

@@ -47,7 +47,7 @@ static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int 
                 s.steps_per_orbit = steps[j];
             else
                 s.tolerance = tols[j];
-            if (p->period > 0)
+            if (p->period > 0 && (orbits > 0 || p->default_orbits > 0))
                 s.orbits = orbits > 0 ? orbits : p->default_orbits;
             else
                 s.horizon_s = p->default_horizon_s;

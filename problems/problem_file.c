@@ -342,8 +342,9 @@ static int pf_finish(pf_ctx *c)
     } else if (L[K_HORIZON]) {
         if (!(cs->num[K_HORIZON] > 0))
             FAIL_K(K_HORIZON, "must be > 0 (got %g)", cs->num[K_HORIZON]);
+        /* a horizon given in seconds stays in seconds (ids read __s<seconds>) */
         p->default_horizon_s = cs->num[K_HORIZON];
-        p->default_orbits = p->period > 0 ? cs->num[K_HORIZON] / p->period : 0.0;
+        p->default_orbits = 0.0;
     } else if (!(p->period > 0)) {
         FAIL_K(K_HORIZON, "missing in case '%s' (an open orbit needs horizon_s)", cs->name);
     } else {
@@ -352,8 +353,9 @@ static int pf_finish(pf_ctx *c)
 #undef FAIL_K
     if (radius > 0 && rp < radius && c->warn) {
         char msg[512];
-        snprintf(msg, sizeof msg, "%s:%d: case '%s': periapsis %.3f is below the body's "
-                 "surface (radius %.3f)", c->path, cs->line, cs->name, rp, radius);
+        const char *lu = units == PB_UNITS_KM_S ? " km" : "";
+        snprintf(msg, sizeof msg, "%s:%d: case '%s': periapsis %.3f%s is below the body's "
+                 "surface (radius %.3f%s)", c->path, cs->line, cs->name, rp, lu, radius, lu);
         c->warn(msg);
     }
     /* J2 is about 1e-3 for the Earth and of that order for planets (common
