@@ -44,8 +44,8 @@ static void list_num(double x)
 
 static void list_problems(void)
 {
-    printf("%-20s %-10s %13s %13s %13s %13s %13s  %s\n", "problem", "units", "a", "e",
-           "period", "energy", "ang.mom.", "description");
+    printf("%-20s %-10s %13s %13s %13s %13s %13s %-5s %s\n", "problem", "units", "a", "e",
+           "period", "energy", "ang.mom.", "(is)", "description");
     for (const pb_problem_entry *e = pb_problem_table; e->name; e++) {
         pb_problem p;
         pb_problem_facts f;
@@ -53,12 +53,16 @@ static void list_problems(void)
             continue;
         printf("%-20s %-10s", p.name, p.units == PB_UNITS_KM_S ? "km-s" : "normalized");
         list_num(f.a);
-        list_num(f.e);
+        /* an eccentricity at round-off level is a circular orbit */
+        list_num(isfinite(f.e) && f.e < 1e-12 ? 0.0 : f.e);
         list_num(f.period > 0 ? f.period : NAN);
         list_num(f.energy);
         list_num(f.angmom);
-        printf("  %s\n", p.description);
+        printf(" %-5s %s\n", p.angmom_label ? p.angmom_label : "-", p.description);
     }
+    printf("units: a in km or DU; period in s or TU; energy (specific, with the J2 potential where\n"
+           "there is J2; the Jacobi constant for arenstorf) in km^2/s^2 or DU^2/TU^2; angular\n"
+           "momentum in km^2/s or DU^2/TU: |h|, or its conserved z component h_z with J2.\n");
 }
 
 int pb_cli_list(int argc, char **argv)

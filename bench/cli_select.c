@@ -120,7 +120,7 @@ int pb_cli_select(int argc, char **argv)
     base.horizon_s = horizon;
     base.eval_cost_us = cost;
     base.repeats = 3;
-    base.linear_samples = 20;
+    base.linear_samples = 100; /* as `run` samples by default, so a run reproduces the answer */
     base.cache_dir = "results/cache";
 
     const pb_method_type *list[64];
@@ -181,6 +181,26 @@ int pb_cli_select(int argc, char **argv)
             snprintf(sel[i].note, sizeof sel[i].note, "the case could not be run");
     }
     pb_progress_end(&prog);
+    for (int i = 0; i < m; i++) {
+        pb_selection *s = &sel[i];
+        if (!s->found)
+            continue;
+        char src[600], set[64], hz[64];
+        if (problem)
+            snprintf(src, sizeof src, "--problem %s", problem);
+        else
+            snprintf(src, sizeof src, "--problem-file %.400s --case %s", file, p->name);
+        if (s->method->flags & PB_KIND_FIXED)
+            snprintf(set, sizeof set, "--steps-per-orbit %d", s->steps_per_orbit);
+        else
+            snprintf(set, sizeof set, "--tolerance %.3g", s->tolerance);
+        if (orbits > 0)
+            snprintf(hz, sizeof hz, "--orbits %.17g", orbits);
+        else
+            snprintf(hz, sizeof hz, "--horizon-s %.17g", horizon);
+        snprintf(s->command, sizeof s->command, "propbench run %s --method %s %s %s",
+                 src, s->method->name, set, hz);
+    }
     qsort(sel, (size_t)m, sizeof *sel, select_cmp);
     int found = 0;
     for (int i = 0; i < m; i++)
@@ -188,7 +208,7 @@ int pb_cli_select(int argc, char **argv)
     int km = p->units == PB_UNITS_KM_S;
     if (!quiet) {
         printf("selection for %s over %.6g %s", p->name, orbits > 0 ? orbits : horizon,
-               orbits > 0 ? "orbits" : "time units");
+               orbits > 0 ? "orbits" : km ? "s" : "TU");
         if (req.max_pos_err > 0)
             printf(", position error <= %.3g %s", km ? 1e3 * req.max_pos_err : req.max_pos_err, km ? "m" : "DU");
         if (req.max_energy_rel > 0)
@@ -219,9 +239,10 @@ int pb_cli_select(int argc, char **argv)
         if (!found)
             printf("NO METHOD meets the requirement over this horizon.\n");
         else
-            printf("cheapest by evaluations: %s. Benchmarks on idealised problems do not validate an\n"
-                   "operational propagator; confirm with the mission's own verification.\n",
-                   sel[0].method->name);
+            printf("cheapest by evaluations: %s; reproduce it with\n  %s\n"
+                   "Benchmarks on idealised problems do not validate an operational propagator;\n"
+                   "confirm with the mission's own verification.\n",
+                   sel[0].method->name, sel[0].command);
     }
     json_t *doc = pb_selection_json(&base, &req, sel, m);
     int w = pb_json_write_atomic(path, doc);

@@ -16,7 +16,7 @@ static void sweep_help(FILE *f)
 "usage: propbench sweep (--suite NAME | --problems P,.. --methods M,..\n"
 "                        [--steps-per-orbit N,..] [--tolerances T,..] [--orbits N])\n"
 "                       [--out DIR] [-j N] [--shard K/N] [--repeats N]\n"
-"                       [--eval-cost-us X] [--report] [--quiet]\n\n"
+"                       [--eval-cost-us X] [--compensated] [--report] [--quiet]\n\n"
 "Run many cases into one run directory: DIR/summary.json and DIR/series/.\n"
 "A grid is problems x methods x (steps per orbit for fixed-step methods,\n"
 "tolerances for adaptive ones); it gives work-precision (error against\n"

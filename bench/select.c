@@ -216,6 +216,8 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
             json_object_set_new(e, "ns_per_step", pb_json_real(r->ns_per_step));
             json_object_set_new(e, "projected_s", pb_json_real(s->projected_s));
             json_object_set_new(e, "fingerprint", json_string(r->fingerprint));
+            if (s->command[0])
+                json_object_set_new(e, "run_command", json_string(s->command));
         } else {
             json_object_set_new(e, "note", json_string(s->note));
         }

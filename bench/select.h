@@ -20,6 +20,7 @@ typedef struct pb_selection {
     pb_case_result confirmed;  /* the confirming run (owned; valid when found) */
     double projected_s;      /* evals x eval cost + steps x measured ns per step */
     char note[160];
+    char command[768];       /* the `propbench run` that reproduces the answer */
 } pb_selection;
 
 /* 1 when res meets req (status ok and every given bound met). */
