@@ -8,12 +8,14 @@
 #include "harness.h"
 #include "suites.h"
 #include "sweep.h"
+#include "problem_source.h"
 #include "summary_table.h"
 
 static void sweep_help(FILE *f)
 {
     fprintf(f,
-"usage: propbench sweep (--suite NAME | --problems P,.. --methods M,..\n"
+"usage: propbench sweep (--suite NAME | [--problems P,..] [--problem-file FILE [--case NAME]]\n"
+"                        --methods M,..\n"
 "                        [--steps-per-orbit N,..] [--tolerances T,..] [--orbits N])\n"
 "                       [--out DIR] [-j N] [--shard K/N] [--repeats N]\n"
 "                       [--eval-cost-us X] [--compensated] [--report] [--quiet]\n\n"
@@ -44,7 +46,7 @@ static int sweep_split(const char *opt, char *s, char **items, int max)
 }
 
 enum { SW_SUITE = 300, SW_PROBLEMS, SW_METHODS, SW_STEPS, SW_TOLS, SW_ORBITS, SW_OUT,
-       SW_SHARD, SW_REPEATS, SW_COST, SW_REPORT, SW_QUIET, SW_HELP, SW_COMP };
+       SW_SHARD, SW_REPEATS, SW_COST, SW_REPORT, SW_QUIET, SW_HELP, SW_COMP, SW_FILE, SW_CASE };
 
 int pb_cli_sweep(int argc, char **argv)
 {
@@ -56,8 +58,11 @@ int pb_cli_sweep(int argc, char **argv)
         {"jobs", required_argument, 0, 'j'}, {"repeats", required_argument, 0, SW_REPEATS},
         {"eval-cost-us", required_argument, 0, SW_COST}, {"report", no_argument, 0, SW_REPORT},
         {"compensated", no_argument, 0, SW_COMP},
+        {"problem-file", required_argument, 0, SW_FILE}, {"case", required_argument, 0, SW_CASE},
         {"quiet", no_argument, 0, SW_QUIET}, {"help", no_argument, 0, SW_HELP}, {0, 0, 0, 0}};
-    const char *suite = NULL, *out = NULL;
+    const char *suite = NULL, *out = NULL, *pfile = NULL, *pcase = NULL;
+    pb_problem *fcases = NULL;
+    int nf = 0;
     char *problems = NULL, *methods = NULL, *steps = NULL, *tols = NULL;
     double orbits = 0, cost = 0;
     long jobs = 1, repeats = -1;
@@ -68,6 +73,8 @@ int pb_cli_sweep(int argc, char **argv)
     while ((c = getopt_long(argc, argv, ":j:", opts, NULL)) != -1) {
         switch (c) {
         case SW_SUITE: suite = optarg; break;
+        case SW_FILE: pfile = optarg; break;
+        case SW_CASE: pcase = optarg; break;
         case SW_PROBLEMS: problems = optarg; break;
         case SW_METHODS: methods = optarg; break;
         case SW_STEPS: steps = optarg; break;
@@ -106,8 +113,11 @@ int pb_cli_sweep(int argc, char **argv)
     }
     if (optind < argc)
         return pb_cli_error("sweep", "unexpected argument '%s'", argv[optind]);
-    if (!suite == !(problems || methods))
-        return pb_cli_error("sweep", "give --suite NAME, or a grid with --problems and --methods");
+    if (!suite == !(problems || pfile || methods))
+        return pb_cli_error("sweep", "give --suite NAME, or a grid with --problems (and/or "
+                            "--problem-file) and --methods");
+    if (pcase && !pfile)
+        return pb_cli_error("sweep", "--case goes with --problem-file");
 
     pb_case_list list = {0, 0, NULL};
     int rc = PB_EXIT_USAGE;
@@ -117,12 +127,14 @@ int pb_cli_sweep(int argc, char **argv)
             goto out;
         }
     } else {
-        if (!problems || !methods) {
-            pb_cli_error("sweep", "a grid needs both --problems and --methods");
+        if (!(problems || pfile) || !methods) {
+            pb_cli_error("sweep", "a grid needs --problems or --problem-file, and --methods");
             goto out;
         }
+        if (pfile && pb_problem_source_cases("sweep", pfile, pcase, &fcases, &nf))
+            goto out;
         char *pn[64], *mn[64], *sn[64], *tn[64];
-        int np = sweep_split("--problems", problems, pn, 64);
+        int np = problems ? sweep_split("--problems", problems, pn, 64) : 0;
         int nm = sweep_split("--methods", methods, mn, 64);
         int ns = steps ? sweep_split("--steps-per-orbit", steps, sn, 64) : 0;
         int nt = tols ? sweep_split("--tolerances", tols, tn, 64) : 0;
@@ -140,9 +152,11 @@ int pb_cli_sweep(int argc, char **argv)
                 pb_cli_error("sweep", "--tolerances values must be in (0, 1) (got '%s')", tn[i]);
                 goto out;
             }
-        for (int i = 0; i < np; i++) {
+        for (int i = 0; i < np + nf; i++) {
             pb_problem p;
-            if (pb_cli_problem("sweep", pn[i], &p))
+            if (i >= np)
+                p = fcases[i - np]; /* the problem file's cases after the named ones */
+            else if (pb_cli_problem("sweep", pn[i], &p))
                 goto out;
             for (int j = 0; j < nm; j++) {
                 const pb_method_type *m = pb_cli_method("sweep", mn[j]);
@@ -237,6 +251,7 @@ int pb_cli_sweep(int argc, char **argv)
         rc = pb_cli_report(quiet ? 3 : 2, rargv);
     }
 out:
+    free(fcases);
     pb_case_list_free(&list);
     return rc;
 }

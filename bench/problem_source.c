@@ -24,36 +24,52 @@ static void source_flush(const char *case_name)
     for (int i = 0; i < source_nwarn; i++)
         if (!strstr(source_warnings[i], "case '") || strstr(source_warnings[i], tag))
             fprintf(stderr, "propbench: warning: %s\n", source_warnings[i]);
-    source_nwarn = 0;
 }
 
-int pb_problem_source_file(const char *verb, const char *path, const char *case_name,
-                           pb_problem *out)
+int pb_problem_source_cases(const char *verb, const char *path, const char *case_name,
+                            pb_problem **out, int *nout)
 {
     pb_problem *cases = NULL;
     int n = 0;
     char err[1024];
+    *out = NULL;
+    *nout = 0;
     source_nwarn = 0;
     if (pb_problem_file_read(path, &cases, &n, err, sizeof err, source_warn) != PB_OK) {
         fprintf(stderr, "propbench %s: error: %s\n", verb, err);
         return -1;
     }
-    int rc = -1;
+    int m = 0;
     for (int i = 0; i < n; i++)
         if (!case_name || strcmp(cases[i].name, case_name) == 0) {
-            *out = cases[i];
-            source_flush(cases[i].name);
-            rc = 0;
-            break;
+            source_flush(cases[i].name); /* keeps only the chosen case's warnings */
+            cases[m++] = cases[i];
+            if (case_name)
+                break;
         }
     source_nwarn = 0;
-    if (rc) {
+    if (m == 0) {
         fprintf(stderr, "propbench %s: error: %s: no case named '%s'; cases:", verb, path,
                 case_name ? case_name : "");
         for (int i = 0; i < n; i++)
             fprintf(stderr, " %s", cases[i].name);
         fputc('\n', stderr);
+        free(cases);
+        return -1;
     }
+    *out = cases;
+    *nout = m;
+    return 0;
+}
+
+int pb_problem_source_file(const char *verb, const char *path, const char *case_name,
+                           pb_problem *out)
+{
+    pb_problem *cases;
+    int n;
+    if (pb_problem_source_cases(verb, path, case_name, &cases, &n))
+        return -1;
+    *out = cases[0]; /* the named case, or the first */
     free(cases);
-    return rc;
+    return 0;
 }

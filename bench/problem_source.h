@@ -9,4 +9,9 @@
 int pb_problem_source_file(const char *verb, const char *path, const char *case_name,
                            pb_problem *out);
 
+/* Every case of FILE (or only case_name) into a malloc'ed array (owner: the
+ * caller, free()); prints the reader's message and returns -1 on bad input. */
+int pb_problem_source_cases(const char *verb, const char *path, const char *case_name,
+                            pb_problem **out, int *n);
+
 #endif

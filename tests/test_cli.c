@@ -390,3 +390,27 @@ Test(cli, corrupt_run_summary_is_bad_input)
     snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
     cr_assert_eq(system(cmd), 0);
 }
+
+/* A sweep over the cases of a problem file: one case per file case, method
+ * and setting, the file's horizons kept (problems/examples, our own demo). */
+Test(cli, sweep_over_a_problem_file)
+{
+    char dir[256], ini[600];
+    pbt_tmpdir(dir, sizeof dir);
+    const char *root = getenv("PB_ROOT");
+    snprintf(ini, sizeof ini, "%s/problems/examples/transfer-demo.ini", root ? root : ".");
+    cr_assert_eq(cli((const char *[]){"sweep", "--problem-file", ini, "--case", "leo-j2-state",
+                                     "--problems", "kepler-e0", "--methods", "rk4,rkf45",
+                                     "--steps-per-orbit", "100", "--tolerances", "1e-8", "--repeats", "0",
+                                     "--quiet", "--out", dir, NULL}), 0, "%s", err_buf);
+    json_t *cases = load_cases(dir);
+    cr_assert_eq(json_array_size(cases), 4);
+    const char *last = json_string_value(json_object_get(json_array_get(cases, 3), "id"));
+    cr_assert_str_eq(last, "leo-j2-state__rkf45__tol1e-08__s86400");
+    json_decref(cases);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problem-file", ini, "--case", "nope", "--methods", "rk4",
+                                     "--steps-per-orbit", "100", "--out", dir, NULL}), 2);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
