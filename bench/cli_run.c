@@ -54,6 +54,9 @@ int pb_cli_run(int argc, char **argv)
     char path[4200];
     snprintf(path, sizeof path, "%s/summary.json", dir);
     int bad = pb_mkdirs(dir) || pb_series_write(dir, &spec, &res) || pb_json_write_atomic(path, doc);
+    int pruned = bad ? 0 : pb_run_dir_prune(dir, doc);
+    if (pruned && !o.quiet)
+        fprintf(stderr, "propbench run: removed %d files an earlier run left in %s\n", pruned, dir);
     json_decref(doc);
     if (bad) {
         pb_case_result_free(&res);

@@ -224,7 +224,7 @@ int pb_cli_sweep(int argc, char **argv)
     snprintf(dir, sizeof dir, "%s", out ? out : suite ? suite : "grid");
     if (!out)
         snprintf(dir, sizeof dir, "results/runs/%s", suite ? suite : "grid");
-    pb_sweep_options so = {(int)jobs, shard_k, shard_n, pb_cli_progress_wanted(quiet), suite ? suite : "grid"};
+    pb_sweep_options so = {(int)jobs, shard_k, shard_n, pb_cli_progress_wanted(quiet), suite ? suite : "grid", quiet};
     if (!quiet)
         fprintf(stderr, "propbench sweep: %d cases%s into %s with %ld worker%s\n",
                 shard_n > 1 ? (list.n + shard_n - shard_k) / shard_n : list.n,

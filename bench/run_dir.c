@@ -7,6 +7,7 @@
 #include <string.h>
 #include <sys/stat.h>
 #include <unistd.h>
+#include <dirent.h>
 #include "run_dir.h"
 
 int pb_mkdirs(const char *path)
@@ -163,4 +164,68 @@ int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_res
     int rc = b.bad ? -1 : pb_write_atomic(path, b.s, b.n);
     free(b.s);
     return rc;
+}
+
+static int run_dir_has_suffix(const char *name, const char *const *suffixes)
+{
+    size_t n = strlen(name);
+    for (const char *const *x = suffixes; *x; x++) {
+        size_t k = strlen(*x);
+        if (n > k && !strcmp(name + n - k, *x))
+            return 1;
+    }
+    return 0;
+}
+
+int pb_run_dir_prune(const char *dir, const json_t *summary)
+{
+    static const char *const plot_kinds[] = {".png", ".svg", ".gp", ".log", ".dat", NULL};
+    static const char *const csv[] = {".csv", NULL};
+    char path[8400];
+    int removed = 0;
+    /* series: keep exactly those the summary names */
+    snprintf(path, sizeof path, "%s/series", dir);
+    DIR *d = opendir(path);
+    if (d) {
+        struct dirent *e;
+        while ((e = readdir(d))) {
+            if (!run_dir_has_suffix(e->d_name, csv))
+                continue;
+            char rel[600];
+            snprintf(rel, sizeof rel, "series/%s", e->d_name);
+            int keep = 0;
+            size_t i;
+            const json_t *c;
+            json_array_foreach(json_object_get(summary, "cases"), i, c) {
+                const char *sr = json_string_value(json_object_get(c, "series"));
+                if (sr && !strcmp(sr, rel))
+                    keep = 1;
+            }
+            snprintf(path, sizeof path, "%s/series/%s", dir, e->d_name);
+            if (!keep && unlink(path) == 0)
+                removed++;
+        }
+        closedir(d);
+    }
+    /* the report and figures of an earlier summary */
+    snprintf(path, sizeof path, "%s/plots", dir);
+    d = opendir(path);
+    if (d) {
+        struct dirent *e;
+        while ((e = readdir(d))) {
+            if (!run_dir_has_suffix(e->d_name, plot_kinds))
+                continue;
+            snprintf(path, sizeof path, "%s/plots/%s", dir, e->d_name);
+            if (unlink(path) == 0)
+                removed++;
+        }
+        closedir(d);
+    }
+    static const char *const reports[] = {"report.html", "report.md", "report.png", NULL};
+    for (const char *const *r = reports; *r; r++) {
+        snprintf(path, sizeof path, "%s/%s", dir, *r);
+        if (unlink(path) == 0)
+            removed++;
+    }
+    return removed;
 }

@@ -28,4 +28,10 @@ int pb_json_write_atomic(const char *path, const json_t *doc);
  * dir/series/<id>.csv atomically; 0 or -1. */
 int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res);
 
+/* After a new summary.json is written to dir: remove what an earlier run left
+ * there and the new one does not own (series CSVs it does not name, and the
+ * report and figures, which described the earlier summary). Only files of
+ * the kinds propbench writes are touched. Returns how many were removed. */
+int pb_run_dir_prune(const char *dir, const json_t *summary);
+
 #endif

@@ -223,6 +223,11 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
     char path[4300];
     snprintf(path, sizeof path, "%s/summary.json", dir);
     rc = pb_json_write_atomic(path, doc) ? -1 : 0;
+    if (rc == 0) {
+        int pruned = pb_run_dir_prune(dir, doc);
+        if (pruned && !opt->quiet)
+            fprintf(stderr, "propbench sweep: removed %d files an earlier run left in %s\n", pruned, dir);
+    }
     json_decref(doc);
     if (rc)
         fprintf(stderr, "propbench sweep: error: cannot write %s\n", path);

@@ -13,6 +13,7 @@ typedef struct pb_sweep_options {
     int shard_k, shard_n;  /* run cases with index % shard_n == shard_k - 1 (1-based k) */
     int progress;          /* draw progress on stderr */
     const char *label;     /* suite name or "grid", recorded in the summary */
+    int quiet;             /* no notes on stderr */
 } pb_sweep_options;
 
 /* Run the cases into dir (summary.json, series/). Returns 0, -1 when the
