@@ -414,3 +414,27 @@ Test(cli, sweep_over_a_problem_file)
     snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
     cr_assert_eq(system(cmd), 0);
 }
+
+/* A second sweep into the same directory replaces the first whole: no series
+ * or report of the first is left to contradict the new summary. */
+Test(cli, rerun_replaces_earlier_run)
+{
+    char dir[256], path[600];
+    pbt_tmpdir(dir, sizeof dir);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0.5,kepler-e0", "--methods", "rk4",
+                                     "--steps-per-orbit", "100,200", "--orbits", "10", "--repeats", "0",
+                                     "--quiet", "--report", "--out", dir, NULL}), 0, "%s", err_buf);
+    snprintf(path, sizeof path, "%s/report.md", dir);
+    cr_assert(pbt_exists(path));
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "leapfrog",
+                                     "--steps-per-orbit", "100", "--orbits", "10", "--repeats", "0",
+                                     "--quiet", "--out", dir, NULL}), 0, "%s", err_buf);
+    cr_assert(!pbt_exists(path), "the earlier report is still there");
+    snprintf(path, sizeof path, "%s/series/kepler-e0.5__rk4__n100__o10.csv", dir);
+    cr_assert(!pbt_exists(path), "an earlier series is still there");
+    snprintf(path, sizeof path, "%s/series/kepler-e0__leapfrog__n100__o10.csv", dir);
+    cr_assert(pbt_exists(path));
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
