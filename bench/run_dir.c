@@ -229,3 +229,14 @@ int pb_run_dir_prune(const char *dir, const json_t *summary)
     }
     return removed;
 }
+
+int pb_run_dir_is_ours(const char *dir)
+{
+    char path[4200];
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *d = json_load_file(path, 0, NULL);
+    const char *tool = d ? json_string_value(json_object_get(d, "tool")) : NULL;
+    int ours = tool && !strncmp(tool, "propbench", 9);
+    json_decref(d);
+    return ours;
+}

@@ -34,4 +34,9 @@ int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_res
  * the kinds propbench writes are touched. Returns how many were removed. */
 int pb_run_dir_prune(const char *dir, const json_t *summary);
 
+/* 1 when dir already holds a summary.json written by propbench: only then
+ * may a new run prune what the earlier one left (a user's own folder given
+ * as --out is never cleaned). */
+int pb_run_dir_is_ours(const char *dir);
+
 #endif

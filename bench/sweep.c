@@ -123,6 +123,7 @@ static void sweep_clean(const char *work, const pb_case_list *list, const int *m
 
 int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt)
 {
+    int ours = pb_run_dir_is_ours(dir); /* before this sweep writes anything */
     char work[4200], sdir[4200];
     snprintf(work, sizeof work, "%s/.work.%ld", dir, (long)getpid());
     snprintf(sdir, sizeof sdir, "%s/series", dir);
@@ -223,7 +224,7 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
     char path[4300];
     snprintf(path, sizeof path, "%s/summary.json", dir);
     rc = pb_json_write_atomic(path, doc) ? -1 : 0;
-    if (rc == 0) {
+    if (rc == 0 && ours) {
         int pruned = pb_run_dir_prune(dir, doc);
         if (pruned && !opt->quiet)
             fprintf(stderr, "propbench sweep: removed %d files an earlier run left in %s\n", pruned, dir);
