@@ -42,11 +42,13 @@ int pb_cli_run(int argc, char **argv)
     else
         snprintf(dir, sizeof dir, "results/runs/%s", id);
 
-    int ours = pb_run_dir_is_ours(dir); /* before this run writes anything */
+    json_t *previous = pb_run_dir_previous(dir); /* before this run writes anything */
     pb_case_result res;
     int s = pb_case_run(&spec, &res);
-    if (s)
+    if (s) {
+        json_decref(previous);
         return pb_cli_error("run", "case %s could not be run: %s", id, pb_strerror(s));
+    }
     if (!o.quiet)
         pb_cli_print_case(&spec, &res);
     json_t *cases = json_array();
@@ -55,7 +57,8 @@ int pb_cli_run(int argc, char **argv)
     char path[4200];
     snprintf(path, sizeof path, "%s/summary.json", dir);
     int bad = pb_mkdirs(dir) || pb_series_write(dir, &spec, &res) || pb_json_write_atomic(path, doc);
-    int pruned = bad || !ours ? 0 : pb_run_dir_prune(dir, doc);
+    int pruned = bad ? 0 : pb_run_dir_prune(dir, previous, doc);
+    json_decref(previous);
     if (pruned && !o.quiet)
         fprintf(stderr, "propbench run: removed %d files an earlier run left in %s\n", pruned, dir);
     json_decref(doc);

@@ -231,7 +231,7 @@ int pb_cli_sweep(int argc, char **argv)
                 shard_n > 1 ? " (this shard)" : "", dir, jobs, jobs > 1 ? "s" : "");
     int sr = pb_sweep_run(&list, dir, &so);
     if (sr == -2) {
-        rc = 130; /* interrupted, as a shell reports SIGINT */
+        rc = 128 + pb_sweep_stop_signal(); /* as a shell reports the signal */
         goto out;
     }
     if (sr)

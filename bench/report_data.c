@@ -55,6 +55,10 @@ static int data_case(const json_t *o, pb_report_case *c, char *err, size_t errle
     c->order = (int)data_long(o, "method_order");
     c->from_gsl = json_is_true(json_object_get(o, "from_gsl"));
     c->steps_per_orbit = data_long(o, "steps_per_orbit");
+    /* a step given in time units carries steps_per_orbit as a real number for
+     * readers of the fixed key; here the step itself names the case */
+    if (json_is_number(json_object_get(o, "step")))
+        c->steps_per_orbit = 0;
     c->step = data_num(o, "step");
     c->tolerance = data_num(o, "tolerance");
     c->fixed = c->steps_per_orbit > 0 || c->step > 0;

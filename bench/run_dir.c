@@ -9,6 +9,7 @@
 #include <unistd.h>
 #include <dirent.h>
 #include "run_dir.h"
+#include "report_gp.h"
 
 int pb_mkdirs(const char *path)
 {
@@ -166,77 +167,62 @@ int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_res
     return rc;
 }
 
-static int run_dir_has_suffix(const char *name, const char *const *suffixes)
+/* 1 if some case of summary names this series path */
+static int run_dir_names(const json_t *summary, const char *rel)
 {
-    size_t n = strlen(name);
-    for (const char *const *x = suffixes; *x; x++) {
-        size_t k = strlen(*x);
-        if (n > k && !strcmp(name + n - k, *x))
+    size_t i;
+    const json_t *c;
+    json_array_foreach(json_object_get(summary, "cases"), i, c) {
+        const char *sr = json_string_value(json_object_get(c, "series"));
+        if (sr && !strcmp(sr, rel))
             return 1;
     }
     return 0;
 }
 
-int pb_run_dir_prune(const char *dir, const json_t *summary)
+json_t *pb_run_dir_previous(const char *dir)
 {
-    static const char *const plot_kinds[] = {".png", ".svg", ".gp", ".log", ".dat", NULL};
-    static const char *const csv[] = {".csv", NULL};
+    char path[4200];
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *d = json_load_file(path, 0, NULL);
+    const char *tool = d ? json_string_value(json_object_get(d, "tool")) : NULL;
+    if (tool && !strncmp(tool, "propbench", 9) && json_is_array(json_object_get(d, "cases")))
+        return d;
+    json_decref(d);
+    return NULL;
+}
+
+int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary)
+{
+    static const char *const kinds[] = {"png", "svg", "gp", "log", NULL};
     char path[8400];
     int removed = 0;
-    /* series: keep exactly those the summary names */
-    snprintf(path, sizeof path, "%s/series", dir);
-    DIR *d = opendir(path);
-    if (d) {
-        struct dirent *e;
-        while ((e = readdir(d))) {
-            if (!run_dir_has_suffix(e->d_name, csv))
-                continue;
-            char rel[600];
-            snprintf(rel, sizeof rel, "series/%s", e->d_name);
-            int keep = 0;
-            size_t i;
-            const json_t *c;
-            json_array_foreach(json_object_get(summary, "cases"), i, c) {
-                const char *sr = json_string_value(json_object_get(c, "series"));
-                if (sr && !strcmp(sr, rel))
-                    keep = 1;
-            }
-            snprintf(path, sizeof path, "%s/series/%s", dir, e->d_name);
-            if (!keep && unlink(path) == 0)
-                removed++;
-        }
-        closedir(d);
-    }
-    /* the report and figures of an earlier summary */
-    snprintf(path, sizeof path, "%s/plots", dir);
-    d = opendir(path);
-    if (d) {
-        struct dirent *e;
-        while ((e = readdir(d))) {
-            if (!run_dir_has_suffix(e->d_name, plot_kinds))
-                continue;
-            snprintf(path, sizeof path, "%s/plots/%s", dir, e->d_name);
+    if (!old)
+        return 0;
+    size_t i;
+    const json_t *c;
+    json_array_foreach(json_object_get(old, "cases"), i, c) {
+        /* the earlier run's series that the new run does not write again */
+        const char *sr = json_string_value(json_object_get(c, "series"));
+        if (sr && !strncmp(sr, "series/", 7) && !strstr(sr, "..") && !run_dir_names(summary, sr)) {
+            snprintf(path, sizeof path, "%s/%s", dir, sr);
             if (unlink(path) == 0)
                 removed++;
         }
-        closedir(d);
+        /* the figures `report` draws for the earlier run's problems */
+        const char *prob = json_string_value(json_object_get(c, "problem"));
+        for (int k = 0; prob && !strchr(prob, '/') && k < PB_FIG_COUNT; k++)
+            for (const char *const *x = kinds; *x; x++) {
+                snprintf(path, sizeof path, "%s/plots/%s-%s.%s", dir, prob, pb_report_fig_kind(k), *x);
+                if (unlink(path) == 0)
+                    removed++;
+            }
     }
-    static const char *const reports[] = {"report.html", "report.md", "report.png", NULL};
+    static const char *const reports[] = {"report.html", "report.md", "report.png", "plots/style.gp", NULL};
     for (const char *const *r = reports; *r; r++) {
         snprintf(path, sizeof path, "%s/%s", dir, *r);
         if (unlink(path) == 0)
             removed++;
     }
     return removed;
-}
-
-int pb_run_dir_is_ours(const char *dir)
-{
-    char path[4200];
-    snprintf(path, sizeof path, "%s/summary.json", dir);
-    json_t *d = json_load_file(path, 0, NULL);
-    const char *tool = d ? json_string_value(json_object_get(d, "tool")) : NULL;
-    int ours = tool && !strncmp(tool, "propbench", 9);
-    json_decref(d);
-    return ours;
 }

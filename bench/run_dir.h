@@ -28,15 +28,15 @@ int pb_json_write_atomic(const char *path, const json_t *doc);
  * dir/series/<id>.csv atomically; 0 or -1. */
 int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res);
 
-/* After a new summary.json is written to dir: remove what an earlier run left
- * there and the new one does not own (series CSVs it does not name, and the
- * report and figures, which described the earlier summary). Only files of
- * the kinds propbench writes are touched. Returns how many were removed. */
-int pb_run_dir_prune(const char *dir, const json_t *summary);
+/* The summary.json already in dir if propbench wrote it (new reference),
+ * else NULL: read before a run writes, so that only an earlier propbench
+ * run is ever cleaned up and a user's own folder given as --out never is. */
+json_t *pb_run_dir_previous(const char *dir);
 
-/* 1 when dir already holds a summary.json written by propbench: only then
- * may a new run prune what the earlier one left (a user's own folder given
- * as --out is never cleaned). */
-int pb_run_dir_is_ours(const char *dir);
+/* After a new summary.json is written to dir: remove what the earlier run
+ * (old, from pb_run_dir_previous; NULL: nothing) wrote and the new one does
+ * not own: its series that the new summary does not name, its figures and
+ * its report. Returns how many files were removed. */
+int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary);
 
 #endif

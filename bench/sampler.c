@@ -2,6 +2,7 @@
  * Invariant: times are strictly increasing and all lie in (t0, t0 + horizon];
  * with a fixed step they are exact grid points t0 + n*h, so a fixed-step
  * method reaches each one without a partial step. */
+#include <float.h>
 #include <math.h>
 #include <stdlib.h>
 #include "sampler.h"
@@ -43,10 +44,16 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
         it[n++] = (sampler_item){horizon * j / linear_samples, 0};
     it[n++] = (sampler_item){horizon, 0};
     /* onto the grid, never past the horizon: the last grid point at or
-     * before each time (1e-9 of a step forgives the division's rounding) */
+     * before each time */
     if (h > 0)
-        for (int j = 0; j < n; j++)
-            it[j].x = floor(it[j].x / h + 1e-9) * h;
+        for (int j = 0; j < n; j++) {
+            /* a quotient within rounding of a whole number is that number
+             * (the slack must be relative: 1e7 steps carry 1e-9 of error) */
+            double q = it[j].x / h, nq = nearbyint(q);
+            if (fabs(q - nq) <= 8 * DBL_EPSILON * (fabs(q) + 1))
+                q = nq;
+            it[j].x = floor(q) * h;
+        }
     qsort(it, (size_t)n, sizeof *it, sampler_cmp);
     /* merge equal times; a merged time keeps the log flag if either had it */
     int m = 0;

@@ -14,6 +14,7 @@
 #include <string.h>
 #include <sys/wait.h>
 #include <unistd.h>
+#include <dirent.h>
 #include "sweep.h"
 #include "case_json.h"
 #include "harness.h"
@@ -25,6 +26,11 @@ static volatile sig_atomic_t sweep_stop;
 static void sweep_on_signal(int sig)
 {
     sweep_stop = sig;
+}
+
+int pb_sweep_stop_signal(void)
+{
+    return (int)sweep_stop;
 }
 
 /* Test hook: PB_TEST_CRASH_CASE=<case id> makes that case's worker abort,
@@ -61,18 +67,33 @@ static void sweep_child(const pb_case_spec *spec, int index, const char *work)
     _exit(rc ? 3 : 0);
 }
 
+static uint64_t sweep_fnv(uint64_t h, const void *p, size_t n)
+{
+    const unsigned char *b = p;
+    for (size_t i = 0; i < n; i++) {
+        h ^= b[i];
+        h *= UINT64_C(0x100000001b3);
+    }
+    return h;
+}
+
 void pb_sweep_identity(const pb_case_list *list, char *out, size_t outlen)
 {
     uint64_t h = UINT64_C(0xcbf29ce484222325);
     for (int i = 0; i < list->n; i++) {
+        const pb_case_spec *c = &list->cases[i];
         char id[PB_CASE_ID_MAX];
-        pb_case_id(&list->cases[i], id, sizeof id);
-        for (const char *c = id; *c; c++) {
-            h ^= (unsigned char)*c;
-            h *= UINT64_C(0x100000001b3);
-        }
-        h ^= '\n';
-        h *= UINT64_C(0x100000001b3);
+        pb_case_id(c, id, sizeof id);
+        h = sweep_fnv(h, id, strlen(id) + 1);
+        /* what the id does not show: the problem's own numbers and the
+         * settings that change results, so edited inputs do not merge */
+        const pb_problem *p = &c->problem;
+        double nums[] = {p->mu, p->body_radius, p->j2, p->t0, p->r0[0], p->r0[1], p->r0[2],
+                         p->v0[0], p->v0[1], p->v0[2], c->eval_cost_us};
+        int ints[] = {p->force, p->units, c->repeats, c->linear_samples, c->compensated};
+        h = sweep_fnv(h, nums, sizeof nums);
+        h = sweep_fnv(h, ints, sizeof ints);
+        h = sweep_fnv(h, &c->max_steps, sizeof c->max_steps);
     }
     snprintf(out, outlen, "%d:%016llx", list->n, (unsigned long long)h);
 }
@@ -83,13 +104,24 @@ static json_t *sweep_collect(const char *work, int i, const pb_case_spec *spec, 
 {
     char path[4300], id[PB_CASE_ID_MAX];
     snprintf(path, sizeof path, "%s/%06d.json", work, i);
-    json_t *o = exited_ok ? json_load_file(path, 0, NULL) : NULL;
+    json_t *o = exited_ok == 1 ? json_load_file(path, 0, NULL) : NULL;
     unlink(path);
     pb_case_id(spec, id, sizeof id);
     const char *got = o ? json_string_value(json_object_get(o, "id")) : NULL;
     if (!got || strcmp(got, id)) {
         json_decref(o);
-        o = pb_case_crashed_json(spec, "the worker process died before it finished");
+        char why[160];
+        if (exited_ok < 0)
+            snprintf(why, sizeof why, "the worker process was killed by signal %d (%s)", -exited_ok,
+                     strsignal(-exited_ok));
+        else if (exited_ok > 100)
+            snprintf(why, sizeof why, "the worker could not write its results (exit status %d)",
+                     exited_ok - 100);
+        else if (exited_ok == 1)
+            snprintf(why, sizeof why, "the worker's results were missing or for another case");
+        else
+            snprintf(why, sizeof why, "the worker process was lost");
+        o = pb_case_crashed_json(spec, why);
         json_object_set_new(o, "index", json_integer(i));
         return o;
     }
@@ -104,26 +136,35 @@ static json_t *sweep_collect(const char *work, int i, const pb_case_spec *spec, 
     return o;
 }
 
-/* Remove the work directory and what is left in it (only our own files). */
-static void sweep_clean(const char *work, const pb_case_list *list, const int *mine, int nmine)
+/* Empty and remove one directory level (the work directory is private to
+ * this sweep, so everything in it is ours, half-written files included). */
+static void sweep_rmdir_flat(const char *path)
 {
-    char path[8400];
-    for (int k = 0; k < nmine; k++) {
-        char id[PB_CASE_ID_MAX];
-        pb_case_id(&list->cases[mine[k]], id, sizeof id);
-        snprintf(path, sizeof path, "%s/%06d.json", work, mine[k]);
-        unlink(path);
-        snprintf(path, sizeof path, "%s/series/%s.csv", work, id);
-        unlink(path);
+    DIR *d = opendir(path);
+    if (d) {
+        struct dirent *e;
+        char f[8400];
+        while ((e = readdir(d)))
+            if (strcmp(e->d_name, ".") && strcmp(e->d_name, "..")) {
+                snprintf(f, sizeof f, "%s/%s", path, e->d_name);
+                unlink(f);
+            }
+        closedir(d);
     }
-    snprintf(path, sizeof path, "%s/series", work);
     rmdir(path);
-    rmdir(work);
+}
+
+static void sweep_clean(const char *work)
+{
+    char path[4300];
+    snprintf(path, sizeof path, "%s/series", work);
+    sweep_rmdir_flat(path);
+    sweep_rmdir_flat(work);
 }
 
 int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt)
 {
-    int ours = pb_run_dir_is_ours(dir); /* before this sweep writes anything */
+    json_t *previous = pb_run_dir_previous(dir); /* before this sweep writes anything */
     char work[4200], sdir[4200];
     snprintf(work, sizeof work, "%s/.work.%ld", dir, (long)getpid());
     snprintf(sdir, sizeof sdir, "%s/series", dir);
@@ -185,7 +226,9 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
         for (int j = 0; j < opt->jobs; j++)
             if (pids[j] == w) {
                 pids[j] = 0;
-                exited_ok[slot_case[j]] = WIFEXITED(st) && WEXITSTATUS(st) == 0;
+                /* 1: finished; 0: unknown; -N: killed by signal N; 100+K: exit status K */
+                exited_ok[slot_case[j]] = WIFEXITED(st) ? (WEXITSTATUS(st) == 0 ? 1 : 100 + WEXITSTATUS(st))
+                                        : WIFSIGNALED(st) ? -WTERMSIG(st) : 0;
             }
         running--;
         done++;
@@ -199,7 +242,7 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
                 kill(pids[j], SIGTERM);
         while (wait(NULL) > 0 || errno == EINTR)
             ;
-        sweep_clean(work, list, mine, nmine);
+        sweep_clean(work);
         fprintf(stderr, "propbench sweep: interrupted; %s was left as it was\n", dir);
         rc = -2;
         goto restore;
@@ -209,7 +252,7 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
     for (int k = 0; k < nmine; k++)
         json_array_append_new(cases, sweep_collect(work, mine[k], &list->cases[mine[k]],
                                                    exited_ok[mine[k]], dir));
-    sweep_clean(work, list, mine, nmine);
+    sweep_clean(work);
     json_t *doc = pb_summary_new(cases);
     char ident[64];
     pb_sweep_identity(list, ident, sizeof ident);
@@ -224,8 +267,8 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
     char path[4300];
     snprintf(path, sizeof path, "%s/summary.json", dir);
     rc = pb_json_write_atomic(path, doc) ? -1 : 0;
-    if (rc == 0 && ours) {
-        int pruned = pb_run_dir_prune(dir, doc);
+    if (rc == 0 && previous) {
+        int pruned = pb_run_dir_prune(dir, previous, doc);
         if (pruned && !opt->quiet)
             fprintf(stderr, "propbench sweep: removed %d files an earlier run left in %s\n", pruned, dir);
     }
@@ -236,6 +279,7 @@ restore:
     sigaction(SIGINT, &old_int, NULL);
     sigaction(SIGTERM, &old_term, NULL);
 out:
+    json_decref(previous);
     free(mine);
     free(exited_ok);
     free(pids);

@@ -21,8 +21,12 @@ typedef struct pb_sweep_options {
  * SIGINT or SIGTERM (workers stopped, dir left as it was). */
 int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt);
 
+/* The signal that interrupted the last pb_sweep_run (SIGINT or SIGTERM). */
+int pb_sweep_stop_signal(void);
+
 /* The identity of a sweep: its case count and a hash of its ordered case
- * ids, so merge can refuse shards of different sweeps. */
+ * ids, the problems' numbers and the settings that change results, so merge
+ * can refuse shards of different sweeps. */
 void pb_sweep_identity(const pb_case_list *list, char *out, size_t outlen);
 
 /* Copy a file atomically (for merge); 0 or -1. */

@@ -159,6 +159,12 @@ Test(harness, sample_plan_on_grid)
     cr_assert_float_eq(plan.t[plan.n - 1], 1000 * T, 1e-9);
     cr_assert_lt(plan.n, 130);
     pb_sample_plan_free(&plan);
+    /* a long horizon: 83306 orbits at 261 steps each end on step 21742866
+     * exactly, though the quotient's rounding there exceeds 1e-9 of a step */
+    h = T / 261;
+    cr_assert_eq(pb_sample_plan_make(0, 83306 * T, T, h, 10, &plan), 0);
+    cr_assert_eq(lround(plan.t[plan.n - 1] / h), 21742866L);
+    pb_sample_plan_free(&plan);
 }
 
 /* Hairer, Lubich & Wanner (2006) Ch. I, Kepler experiments (from memory):
