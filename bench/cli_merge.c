@@ -99,8 +99,11 @@ int pb_cli_merge(int argc, char **argv)
         size_t k;
         json_t *o;
         json_array_foreach(cs, k, o) {
-            if (!json_is_integer(json_object_get(o, "index"))) {
-                pb_cli_error("merge", "%s: case %zu has no 'index'", path, k);
+            json_t *ix = json_object_get(o, "index");
+            if (!json_is_integer(ix) || json_integer_value(ix) < 0 ||
+                json_integer_value(ix) >= json_integer_value(tc)) {
+                pb_cli_error("merge", "%s: case %zu has no 'index' in 0..%lld", path, k,
+                             (long long)json_integer_value(tc) - 1);
                 goto out;
             }
             json_object_set_new(o, "_from", json_integer(i));

@@ -11,10 +11,14 @@
 static char source_warnings[SOURCE_WARN_MAX][512];
 static int source_nwarn;
 
+static int source_dropped;
+
 static void source_warn(const char *msg)
 {
     if (source_nwarn < SOURCE_WARN_MAX)
         snprintf(source_warnings[source_nwarn++], sizeof source_warnings[0], "%s", msg);
+    else
+        source_dropped++;
 }
 
 static void source_flush(const char *case_name)
@@ -24,6 +28,10 @@ static void source_flush(const char *case_name)
     for (int i = 0; i < source_nwarn; i++)
         if (!strstr(source_warnings[i], "case '") || strstr(source_warnings[i], tag))
             fprintf(stderr, "propbench: warning: %s\n", source_warnings[i]);
+    if (source_dropped)
+        fprintf(stderr, "propbench: warning: %d more warnings about this file were not kept\n",
+                source_dropped);
+    source_dropped = 0;
 }
 
 int pb_problem_source_cases(const char *verb, const char *path, const char *case_name,
@@ -34,7 +42,7 @@ int pb_problem_source_cases(const char *verb, const char *path, const char *case
     char err[1024];
     *out = NULL;
     *nout = 0;
-    source_nwarn = 0;
+    source_nwarn = source_dropped = 0;
     if (pb_problem_file_read(path, &cases, &n, err, sizeof err, source_warn) != PB_OK) {
         fprintf(stderr, "propbench %s: error: %s\n", verb, err);
         return -1;

@@ -96,7 +96,10 @@ static int select_search(const pb_case_spec *base, const pb_method_type *m, cons
         lo = x;
     }
     if (!(hi > 0)) {
-        if (ax->fixed)
+        if (!(lo > 0))
+            snprintf(out->note, sizeof out->note, "the horizon is too long for the step budget "
+                     "(%.0g steps a case)", SELECT_MAX_STEPS);
+        else if (ax->fixed)
             snprintf(out->note, sizeof out->note, "no step up to %.0f per orbit meets it", lo);
         else
             snprintf(out->note, sizeof out->note, "no tolerance down to %.0e meets it", select_tol(lo));
@@ -121,7 +124,9 @@ static int select_search(const pb_case_spec *base, const pb_method_type *m, cons
             break;
         }
         lo = nb;
-        hi = select_snap(ax, ax->jump * nb);
+        hi = select_snap(ax, fmin(ax->jump * nb, ax->last)); /* within the budget */
+        if (!(hi > lo))
+            break;
         if ((ok = select_try(base, m, ax, hi, req, out, 0)) <= 0) {
             snprintf(out->note, sizeof out->note, "errors are not monotone in the %s near %.3g",
                      ax->fixed ? "step" : "tolerance", ax->fixed ? nb : 1.0 / nb);
