@@ -217,18 +217,10 @@ Test(gauss_jackson, polynomial_exactness)
     cr_assert_gt(tt_poly_mismatches(11), 0);
 }
 
-/* normalized Kepler orbit, mu = a = 1, periapsis start */
-static void tt_kepler(pb_problem *p, double e)
-{
-    double r0[3] = {1 - e, 0, 0}, v0[3] = {0, sqrt((1 + e) / (1 - e)), 0};
-    pb_problem_init_twobody(p, "kepler", "normalized Kepler orbit", PB_UNITS_NORMALIZED, 1.0,
-                            r0, v0);
-}
-
 static double tt_order(double e, const int *N, int n, int orbits)
 {
     pb_problem p;
-    tt_kepler(&p, e);
+    pbt_kepler(&p, e);
     double sx = 0, sy = 0, sxx = 0, sxy = 0;
     for (int i = 0; i < n; i++) {
         pb_method_config c = {0};
@@ -287,7 +279,7 @@ static int tt_rec_accel(void *ctx, double t, const double *r, const double *v, d
 Test(gauss_jackson, startup_converges)
 {
     pb_problem p;
-    tt_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     static tt_rec rec;
     memset(&rec, 0, sizeof rec);
     rec.p = &p;
@@ -400,7 +392,7 @@ Test(gauss_jackson, nan_force_stops)
     /* Source: the method interface (method.h): a non-finite force ends the case
      * with PB_ENONFINITE and the last good state's time in t_fail. */
     pb_problem p;
-    tt_kepler(&p, 0.1);
+    pbt_kepler(&p, 0.1);
     tt_real_accel = p.accel;
     p.accel = tt_nan_accel;
     pb_method_config c = {0};
@@ -435,7 +427,7 @@ Test(gauss_jackson, pec_cost_observer_and_split_advance)
     /* Source: method interface contract (method.h) and the brief: one
      * evaluation a step after start-up; splitting advance changes nothing. */
     pb_problem p;
-    tt_kepler(&p, 0.1);
+    pbt_kepler(&p, 0.1);
     pb_method_config c = {0};
     c.h = p.period / 100;
     pbt_result a = pbt_integrate(&pb_method_gauss_jackson8, &p, &c, p.t0 + 200 * c.h);
@@ -478,7 +470,7 @@ Test(gauss_jackson, iterated_corrector)
      * tolerance, bounded by corrector_max_iter, PB_ENOCONV past it); the accuracy
      * bound (iterating may not cost accuracy: within 2x of PEC) is common practice. */
     pb_problem p;
-    tt_kepler(&p, 0.1);
+    pbt_kepler(&p, 0.1);
     pb_method_config c = {0};
     c.h = p.period / 100;
     double t_end = p.t0 + 500 * c.h;

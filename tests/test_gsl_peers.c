@@ -25,15 +25,6 @@ static const pb_method_type *const tg_adaptive[] = {
  * 1.2e-6, 6.2e-8, 1.4e-8, 1.1e-10; GSL's own driver gives the same numbers). */
 static const double tg_allow[TG_NADAPTIVE] = {1e3, 1e3, 1e3, 1e4};
 
-/* Normalized Kepler orbit (mu = 1, a = 1) from periapsis: r0 = (1-e,0,0),
- * v0 = (0, sqrt((1+e)/(1-e)), 0) (vis-viva; REFERENCES.md two-body laws). */
-static void tg_kepler(pb_problem *p, double e)
-{
-    double r0[3] = {1 - e, 0, 0}, v0[3] = {0, sqrt((1 + e) / (1 - e)), 0};
-    pb_problem_init_twobody(p, "kepler", "normalized Kepler orbit", PB_UNITS_NORMALIZED,
-                            1.0, r0, v0);
-}
-
 static pb_method_config tg_cfg(double tol)
 {
     pb_method_config c = {0};
@@ -73,7 +64,7 @@ Test(gsl_peers, rk4_order_and_step_doubling)
     /* Observed order of a 4th-order method from step halving within 0.3 of 4
      * (common practice, REFERENCES.md), Kepler e = 0.5 over one orbit. */
     pb_problem p;
-    tg_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     double err[2];
     for (int k = 0; k < 2; k++) {
         pb_method_config c = tg_cfg(0);
@@ -110,7 +101,7 @@ Test(gsl_peers, adaptive_peers_follow_the_tolerance)
      * & Wanner I, II.4, common practice; GSL's control is per step with a max
      * norm, so the slope is only roughly 1). */
     pb_problem p;
-    tg_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     for (int m = 0; m < TG_NADAPTIVE; m++) {
         double err[2], tols[2] = {1e-8, 1e-11};
         for (int k = 0; k < 2; k++) {
@@ -141,7 +132,7 @@ Test(gsl_peers, evaluation_counts_seen_by_the_wrapper)
      * 6 a try + 1; rk8pd 13 stages -> 13 a try + 1. This also checks that
      * rejected attempts are counted (e = 0.9 rejects many). */
     pb_problem p;
-    tg_kepler(&p, 0.9);
+    pbt_kepler(&p, 0.9);
     const long per_try[3] = {6, 6, 13};
     for (int m = 0; m < 3; m++) {
         pb_method_config c = tg_cfg(1e-9);
@@ -180,7 +171,7 @@ Test(gsl_peers, one_call_reproduces_gsl_driver)
      * a given first step equals gsl_odeiv2_driver_apply with the same hstart
      * and standard control (GSL reference manual, "Driver"), to round-off. */
     pb_problem p;
-    tg_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     const gsl_odeiv2_step_type *types[TG_NADAPTIVE] = {
         gsl_odeiv2_step_rkf45, gsl_odeiv2_step_rkck, gsl_odeiv2_step_rk8pd,
         gsl_odeiv2_step_msadams};
@@ -236,7 +227,7 @@ Test(gsl_peers, split_advance_matches_one_call)
      * clamped step per sample (two for msadams), so the step proposal survived
      * the clamps. */
     pb_problem p;
-    tg_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     const int nsamp = 100;
     for (int m = 0; m < TG_NADAPTIVE; m++) {
         pb_method_config c = tg_cfg(1e-10);
@@ -270,25 +261,13 @@ Test(gsl_peers, split_advance_matches_one_call)
     }
 }
 
-/* Kepler force (mu = 1) that turns NaN after t = 1: a broken force model. */
-static int tg_nan_accel(const pb_problem *p, double t, const double *r, const double *v,
-                        double *a)
-{
-    (void)p;
-    (void)v;
-    double rr = sqrt(r[0] * r[0] + r[1] * r[1] + r[2] * r[2]), k = -1.0 / (rr * rr * rr);
-    for (int i = 0; i < 3; i++)
-        a[i] = t > 1.0 ? NAN : k * r[i];
-    return PB_OK;
-}
-
 Test(gsl_peers, nan_force_stops_with_nonfinite)
 {
     /* method.h contract: PB_ENONFINITE, last good state kept (finite, on the
      * orbit to the run's accuracy, 1e-6 at tol 1e-10), t_fail = its time. */
     pb_problem p;
-    tg_kepler(&p, 0.5);
-    p.accel = tg_nan_accel;
+    pbt_kepler(&p, 0.5);
+    p.accel = pbt_nan_after_1_accel;
     const pb_method_type *all[] = {&pb_method_gsl_rk4, &pb_method_gsl_rkf45,
                                    &pb_method_gsl_rkck, &pb_method_gsl_rk8pd,
                                    &pb_method_gsl_msadams};
@@ -345,7 +324,7 @@ Test(gsl_peers, clamp_keeps_the_step_proposal)
      * clamps; the wrapper carries h across calls). The embedded RK peers only:
      * msadams rescales its history after the short step. */
     pb_problem p;
-    tg_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     static tg_times a, b;
     for (int m = 0; m < 3; m++) {
         pb_method_config c = tg_cfg(1e-9);
@@ -374,7 +353,7 @@ Test(gsl_peers, restart_on_a_used_workspace_equals_a_fresh_one)
      * old state. The restarted run must equal a fresh run bit for bit (the
      * same arithmetic from the same state). */
     pb_problem p;
-    tg_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     for (int m = 0; m < TG_NADAPTIVE; m++) {
         pb_method_config c = tg_cfg(1e-9);
         pbt_result fresh = pbt_integrate(tg_adaptive[m], &p, &c, p.period);
@@ -406,7 +385,7 @@ Test(gsl_peers, step_budget_and_minimum_step)
      * what periapsis of e = 0.9 needs at 1e-10 stops at once with
      * PB_EMINSTEP instead of crawling. */
     pb_problem p;
-    tg_kepler(&p, 0.9);
+    pbt_kepler(&p, 0.9);
     for (int m = 0; m < TG_NADAPTIVE; m++) {
         pb_method_config c = tg_cfg(1e-10);
         c.max_steps = 20;

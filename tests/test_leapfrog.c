@@ -11,13 +11,6 @@
 extern const pb_method_type pb_method_leapfrog;
 extern const pb_method_type pb_method_rk4;
 
-static void lft_kepler(pb_problem *p, double e)
-{
-    double r0[3] = {1.0 - e, 0.0, 0.0};
-    double v0[3] = {0.0, sqrt((1.0 + e) / (1.0 - e)), 0.0};
-    pb_problem_init_twobody(p, "kepler", "", PB_UNITS_NORMALIZED, 1.0, r0, v0);
-}
-
 static double lft_error(const pb_problem *p, int steps_per_orbit, double orbits)
 {
     pb_method_config cfg;
@@ -35,7 +28,7 @@ static double lft_error(const pb_problem *p, int steps_per_orbit, double orbits)
 Test(leapfrog, observed_order_kepler_e06)
 {
     pb_problem p;
-    lft_kepler(&p, 0.6);
+    pbt_kepler(&p, 0.6);
     double e1 = lft_error(&p, 800, 1.0);
     double e2 = lft_error(&p, 1600, 1.0);
     double order = log(e1 / e2) / log(2.0);
@@ -51,7 +44,7 @@ Test(leapfrog, observed_order_kepler_e06)
 Test(leapfrog, energy_bounded_rk4_drifts)
 {
     pb_problem p;
-    lft_kepler(&p, 0.6);
+    pbt_kepler(&p, 0.6);
     long orbits = 10000;
     pbt_energy_split lf = pbt_energy_split_run(&pb_method_leapfrog, &p, 200, orbits);
     pbt_energy_split rk = pbt_energy_split_run(&pb_method_rk4, &p, 200, orbits);

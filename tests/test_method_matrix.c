@@ -18,13 +18,6 @@
  * periapsis start in the x-y plane). */
 static const double mx_ecc[MX_NPROB] = {0.0, 0.1, 0.5, 0.6};
 
-static void mx_kepler(pb_problem *p, double e)
-{
-    double r0[3] = {1.0 - e, 0.0, 0.0};
-    double v0[3] = {0.0, sqrt((1.0 + e) / (1.0 - e)), 0.0};
-    pb_problem_init_twobody(p, "kepler", "", PB_UNITS_NORMALIZED, 1.0, r0, v0);
-}
-
 /* Per-method settings: steps per orbit (fixed) or rtol = atol (adaptive), and
  * the position-error bound after 3 orbits for e = 0, 0.1, 0.5, 0.6. Source of
  * each bound: the error measured here against the exact solution (universal
@@ -131,7 +124,7 @@ static void mx_check(const mx_case *c)
 {
     const pb_method_type *m = pb_method_table[c->method];
     pb_problem p;
-    mx_kepler(&p, mx_ecc[c->problem]);
+    pbt_kepler(&p, mx_ecc[c->problem]);
     /* second-order-form methods need a velocity-independent force */
     if ((m->flags & PB_FORM_SECOND) && p.velocity_dependent)
         cr_skip_test("%s needs a velocity-independent force", m->name);
@@ -223,7 +216,7 @@ ParameterizedTest(mx_case *c, matrix, nan_force)
 {
     const pb_method_type *m = pb_method_table[c->method];
     pb_problem p;
-    mx_kepler(&p, mx_ecc[c->problem]);
+    pbt_kepler(&p, mx_ecc[c->problem]);
     p.accel = mx_nan_accel;
     p.exact = NULL;
     p.exact_q = NULL;
@@ -272,7 +265,7 @@ ParameterizedTest(mx_case *c, matrix, step_budget)
 {
     const pb_method_type *m = pb_method_table[c->method];
     pb_problem p;
-    mx_kepler(&p, mx_ecc[c->problem]);
+    pbt_kepler(&p, mx_ecc[c->problem]);
     double par, tol = 0;
     const mx_setting *s = mx_find(m->name);
     if (s)

@@ -11,14 +11,6 @@
 
 extern const pb_method_type pb_method_rk4;
 
-/* Normalized Kepler problem: mu = 1, a = 1, periapsis start in the x-y plane. */
-static void rk4t_kepler(pb_problem *p, double e)
-{
-    double r0[3] = {1.0 - e, 0.0, 0.0};
-    double v0[3] = {0.0, sqrt((1.0 + e) / (1.0 - e)), 0.0};
-    pb_problem_init_twobody(p, "kepler", "", PB_UNITS_NORMALIZED, 1.0, r0, v0);
-}
-
 static double rk4t_error(const pb_problem *p, int steps_per_orbit, double orbits)
 {
     pb_method_config cfg;
@@ -39,7 +31,7 @@ static double rk4t_error(const pb_problem *p, int steps_per_orbit, double orbits
 Test(rk4, observed_order_kepler_e06)
 {
     pb_problem p;
-    rk4t_kepler(&p, 0.6);
+    pbt_kepler(&p, 0.6);
     double e1 = rk4t_error(&p, 800, 1.0);
     double e2 = rk4t_error(&p, 1600, 1.0);
     double order = log(e1 / e2) / log(2.0);
@@ -72,7 +64,7 @@ static int rk4t_gsl_rhs(double t, const double y[], double dydt[], void *params)
 Test(rk4, one_step_matches_gsl_rk4_two_half_steps)
 {
     pb_problem p;
-    rk4t_kepler(&p, 0.6);
+    pbt_kepler(&p, 0.6);
     double h = p.period / 100.0; /* from periapsis, where the force is largest */
 
     long calls = 0;

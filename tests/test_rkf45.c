@@ -16,15 +16,6 @@ extern const pb_method_type pb_method_rkf45;
 
 #define TR_TWO_PI 6.283185307179586
 
-/* Normalized Kepler orbit (mu = 1, a = 1) started at periapsis: r0 = (1-e,0,0),
- * v0 = (0, sqrt((1+e)/(1-e)), 0) (vis-viva; REFERENCES.md two-body laws). */
-static void tr_kepler(pb_problem *p, double e)
-{
-    double r0[3] = {1 - e, 0, 0}, v0[3] = {0, sqrt((1 + e) / (1 - e)), 0};
-    pb_problem_init_twobody(p, "kepler", "normalized Kepler orbit", PB_UNITS_NORMALIZED,
-                            1.0, r0, v0);
-}
-
 static pb_method_config tr_cfg(double atol, double rtol)
 {
     pb_method_config c = {0};
@@ -49,7 +40,7 @@ Test(rkf45, single_step_matches_gsl_rkf45)
      * tableau and also advances with the 5th-order weights, so one step must
      * agree to round-off (REFERENCES.md). */
     pb_problem p;
-    tr_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     const double h = 0.05;
     double y[6] = {p.r0[0], p.r0[1], p.r0[2], p.v0[0], p.v0[1], p.v0[2]}, yerr[6];
     gsl_odeiv2_system sys = {tr_gsl_rhs, NULL, 6, &p};
@@ -105,7 +96,7 @@ Test(rkf45, tolerance_proportionality_kepler_e05)
      * least-squares slope over tol = 1e-4 .. 1e-12 (one orbit): [0.8, 1.2];
      * the loose end is pre-asymptotic, which pulls the slope below 1. */
     pb_problem p;
-    tr_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     double lx[9], ly[9];
     for (int k = 0; k < 9; k++) {
         double tol = pow(10.0, -(4 + k));
@@ -134,7 +125,7 @@ Test(rkf45, max_steps_returns_promptly)
 {
     /* The budget counts accepted + rejected steps (method.h contract). */
     pb_problem p;
-    tr_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     pb_method_config c = tr_cfg(1e-10, 1e-10);
     c.max_steps = 25;
     pbt_result r = pbt_integrate(&pb_method_rkf45, &p, &c, 100 * p.period);
@@ -150,7 +141,7 @@ Test(rkf45, min_step_returns_promptly)
     /* An explicit floor far above what periapsis of e = 0.9 needs at 1e-10:
      * the step collapses there and must stop, not crawl. */
     pb_problem p;
-    tr_kepler(&p, 0.9);
+    pbt_kepler(&p, 0.9);
     pb_method_config c = tr_cfg(1e-10, 1e-10);
     c.min_step = 0.05;
     c.h = 0.1;
@@ -182,7 +173,7 @@ Test(rkf45, rejected_steps_are_counted)
      * one more for its first stage, plus one for the starting-step algorithm
      * (Hairer, Norsett & Wanner I, II.4). The harness's counter must agree. */
     pb_problem p;
-    tr_kepler(&p, 0.9);
+    pbt_kepler(&p, 0.9);
     pb_method_config c = tr_cfg(1e-8, 1e-8);
     pbt_result r = pbt_integrate(&pb_method_rkf45, &p, &c, 2 * p.period);
     cr_assert_eq(r.status, PB_OK);
@@ -201,7 +192,7 @@ Test(rkf45, split_advance_keeps_the_step_proposal)
      * takes at most one extra (clamped) step per sample, and ends where the
      * single call does to within the tolerance's error level. */
     pb_problem p;
-    tr_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     pb_method_config c = tr_cfg(1e-10, 1e-10);
     pbt_result one = pbt_integrate(&pb_method_rkf45, &p, &c, 5 * p.period);
     cr_assert_eq(one.status, PB_OK);
@@ -232,26 +223,14 @@ Test(rkf45, split_advance_keeps_the_step_proposal)
     cr_assert_lt(pbt_pos_error(&p, &split), 1e-6);
 }
 
-/* Kepler force (mu = 1) that turns NaN after t = 1: a broken force model. */
-static int tr_nan_accel(const pb_problem *p, double t, const double *r, const double *v,
-                        double *a)
-{
-    (void)p;
-    (void)v;
-    double rr = sqrt(r[0] * r[0] + r[1] * r[1] + r[2] * r[2]), k = -1.0 / (rr * rr * rr);
-    for (int i = 0; i < 3; i++)
-        a[i] = t > 1.0 ? NAN : k * r[i];
-    return PB_OK;
-}
-
 Test(rkf45, nonfinite_force_stops_with_last_good_state)
 {
     /* A NaN acceleration must end the case with PB_ENONFINITE (method.h
      * contract), keeping the last good state; it lies on the exact orbit to
      * the run's accuracy (tolerance 1e-10: error well below 1e-6). */
     pb_problem p;
-    tr_kepler(&p, 0.5);
-    p.accel = tr_nan_accel;
+    pbt_kepler(&p, 0.5);
+    p.accel = pbt_nan_after_1_accel;
     pb_method_config c = tr_cfg(1e-10, 1e-10);
     pbt_result r = pbt_integrate(&pb_method_rkf45, &p, &c, p.period);
     cr_assert_eq(r.status, PB_ENONFINITE);
@@ -301,7 +280,7 @@ Test(rkf45, clamp_does_not_shrink_the_next_step)
      * t_out, and the step after it is the proposal the unclamped run used for
      * the step that straddled t_out. */
     pb_problem p;
-    tr_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     pb_method_config c = tr_cfg(1e-9, 1e-9);
     static tr_times a, b;
     double t_end = p.period, ts[2] = {0.37 * p.period, p.period};
@@ -326,7 +305,7 @@ Test(rkf45, restart_on_a_used_workspace_equals_a_fresh_one)
     /* start() sets the state from outside: nothing cached at the old state
      * (first stage, step proposal, PI memory) may survive it. */
     pb_problem p;
-    tr_kepler(&p, 0.5);
+    pbt_kepler(&p, 0.5);
     pb_method_config c = tr_cfg(1e-9, 1e-9);
     pbt_result fresh = pbt_integrate(&pb_method_rkf45, &p, &c, p.period);
     cr_assert_eq(fresh.status, PB_OK);

@@ -4,6 +4,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "test_support.h"
+#include "../problems/twobody.h"
 #include "../bench/force_counter.h"
 
 pbt_result pbt_integrate(const pb_method_type *m, const pb_problem *p,
@@ -77,6 +78,24 @@ pbt_energy_split pbt_energy_split_run(const pb_method_type *m, const pb_problem 
     cr_assert_eq(s, PB_OK, "%s failed: %s", m->name, pb_strerror(s));
     cr_assert_eq(o.n, orbits * steps_per_orbit);
     return o;
+}
+
+void pbt_kepler(pb_problem *p, double e)
+{
+    double r0[3] = {1 - e, 0, 0}, v0[3] = {0, sqrt((1 + e) / (1 - e)), 0};
+    pb_problem_init_twobody(p, "kepler", "normalized Kepler orbit", PB_UNITS_NORMALIZED, 1.0,
+                            r0, v0);
+}
+
+int pbt_nan_after_1_accel(const pb_problem *p, double t, const double *r, const double *v,
+                          double *a)
+{
+    (void)p;
+    (void)v;
+    double rr = sqrt(r[0] * r[0] + r[1] * r[1] + r[2] * r[2]), k = -1.0 / (rr * rr * rr);
+    for (int i = 0; i < 3; i++)
+        a[i] = t > 1.0 ? NAN : k * r[i];
+    return PB_OK;
 }
 
 int pbt_sanitized(void)

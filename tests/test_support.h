@@ -37,6 +37,15 @@ typedef struct pbt_energy_split {
 pbt_energy_split pbt_energy_split_run(const pb_method_type *m, const pb_problem *p,
                                       int steps_per_orbit, long orbits);
 
+/* The normalized Kepler problem: mu = 1, a = 1, start at periapsis in the
+ * x-y plane, r0 = (1-e, 0, 0), v0 = (0, sqrt((1+e)/(1-e)), 0) (vis-viva;
+ * REFERENCES.md two-body laws). */
+void pbt_kepler(pb_problem *p, double e);
+
+/* A broken force model: the Kepler force (mu = 1) until t = 1, NaN after. */
+int pbt_nan_after_1_accel(const pb_problem *p, double t, const double *r, const double *v,
+                          double *a);
+
 /* 1 when the tests run under the sanitizers (long runs may shrink). */
 int pbt_sanitized(void);
 

@@ -12,13 +12,6 @@ extern const pb_method_type pb_method_yoshida4;
 extern const pb_method_type pb_method_yoshida6;
 extern const pb_method_type pb_method_yoshida8;
 
-static void yst_kepler(pb_problem *p, double e)
-{
-    double r0[3] = {1.0 - e, 0.0, 0.0};
-    double v0[3] = {0.0, sqrt((1.0 + e) / (1.0 - e)), 0.0};
-    pb_problem_init_twobody(p, "kepler", "", PB_UNITS_NORMALIZED, 1.0, r0, v0);
-}
-
 /* Position error after one orbit; also checks the cost: `stages` evaluations
  * a step (merged half-kicks) plus the one that starts the run. */
 static double yst_error(const pb_method_type *m, int stages, const pb_problem *p,
@@ -38,7 +31,7 @@ static double yst_error(const pb_method_type *m, int stages, const pb_problem *p
 static void yst_check_order(const pb_method_type *m, int stages, double e, int n1)
 {
     pb_problem p;
-    yst_kepler(&p, e);
+    pbt_kepler(&p, e);
     double e1 = yst_error(m, stages, &p, n1);
     double e2 = yst_error(m, stages, &p, 2 * n1);
     double order = log(e1 / e2) / log(2.0);
@@ -79,7 +72,7 @@ Test(yoshida, energy_bounded_10k_orbits)
     const pb_method_type *ms[] = {&pb_method_yoshida4, &pb_method_yoshida6,
                                   &pb_method_yoshida8};
     pb_problem p;
-    yst_kepler(&p, 0.6);
+    pbt_kepler(&p, 0.6);
     for (int k = 0; k < 3; k++) {
         pbt_energy_split o = pbt_energy_split_run(ms[k], &p, 100, 10000);
         /* symplectic: bounded energy error, no drift (Hairer, Lubich & Wanner
