@@ -14,6 +14,7 @@
 #include "growth.h"
 #include "metrics.h"
 #include "sampler.h"
+#include "../problems/summary.h"
 #include "../problems/truth.h"
 
 /* An orbit this many times farther out than where it started has escaped:
@@ -270,21 +271,23 @@ done:
     free(dt);
 }
 
+/* The initial distance |r0| and the osculating semi-major axis of a bound
+ * Keplerian orbit (0 otherwise), from the catalogue's problem facts. */
+static double harness_orbit_size(const pb_problem *p, double *a)
+{
+    double r2 = 0;
+    for (int i = 0; i < p->dim; i++)
+        r2 += p->r0[i] * p->r0[i];
+    pb_problem_facts f;
+    *a = (pb_problem_summary(p, &f) == PB_OK && f.a > 0) ? f.a : 0;
+    return sqrt(r2);
+}
+
 /* Size of the orbit: the larger of |r0| and the semi-major axis. */
 static double harness_length_scale(const pb_problem *p)
 {
-    double r2 = 0, v2 = 0;
-    for (int i = 0; i < p->dim; i++) {
-        r2 += p->r0[i] * p->r0[i];
-        v2 += p->v0[i] * p->v0[i];
-    }
-    double r = sqrt(r2);
-    if (p->keplerian && p->mu > 0) {
-        double inv_a = 2.0 / r - v2 / p->mu;
-        if (inv_a > 0)
-            return fmax(r, 1.0 / inv_a);
-    }
-    return r;
+    double a, r = harness_orbit_size(p, &a);
+    return fmax(r, a);
 }
 
 static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
@@ -393,11 +396,9 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     w.p = p;
     w.E0 = p->energy ? p->energy(p, p->t0, p->r0, p->v0) : NAN;
     w.H0 = p->angmom ? p->angmom(p, p->r0, p->v0) : NAN;
-    double r0n = 0;
-    for (int i = 0; i < p->dim; i++)
-        r0n += p->r0[i] * p->r0[i];
-    r0n = sqrt(r0n);
-    double a = (p->keplerian && w.E0 < 0 && p->force == PB_FORCE_TWO_BODY) ? -p->mu / (2 * w.E0) : 0;
+    double a, r0n = harness_orbit_size(p, &a);
+    if (p->force != PB_FORCE_TWO_BODY)
+        a = 0; /* the escape bound uses the apoapsis only where it is fixed */
     w.r_limit = HARNESS_ESCAPE_FACTOR * fmax(fmax(r0n, 2 * a), 1e-300);
     /* a hyperbolic orbit recedes by itself: allow for its speed over the horizon */
     if (p->energy && w.E0 >= 0)
