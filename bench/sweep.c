@@ -28,6 +28,11 @@ static void sweep_on_signal(int sig)
     sweep_stop = sig;
 }
 
+static void sweep_on_child(int sig)
+{
+    (void)sig;
+}
+
 int pb_sweep_stop_signal(void)
 {
     return (int)sweep_stop;
@@ -42,10 +47,15 @@ static void sweep_maybe_crash(const char *id)
         abort();
 }
 
-static void sweep_child(const pb_case_spec *spec, int index, const char *work)
+/* The worker starts with SIGINT and SIGTERM blocked (see pb_sweep_run) and
+ * takes the default actions before unblocking them, so a stop the parent
+ * sends in the first instant of the worker's life still ends it. */
+static void sweep_child(const pb_case_spec *spec, int index, const char *work, const sigset_t *unblocked)
 {
     signal(SIGINT, SIG_DFL);
     signal(SIGTERM, SIG_DFL);
+    signal(SIGCHLD, SIG_DFL);
+    sigprocmask(SIG_SETMASK, unblocked, NULL);
     char id[PB_CASE_ID_MAX], path[4300];
     pb_case_id(spec, id, sizeof id);
     sweep_maybe_crash(id);
@@ -164,42 +174,67 @@ static void sweep_clean(const char *work)
 
 int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt)
 {
-    json_t *previous = pb_run_dir_previous(dir); /* before this sweep writes anything */
-    char work[4200], sdir[4200];
-    snprintf(work, sizeof work, "%s/.work.%ld", dir, (long)getpid());
-    snprintf(sdir, sizeof sdir, "%s/series", dir);
-    if (pb_mkdirs(dir) || pb_mkdirs(sdir) || pb_mkdirs(work)) {
-        fprintf(stderr, "propbench sweep: error: cannot create %s: %s\n", work, strerror(errno));
-        return -1;
-    }
-    size_t cap = (size_t)(list->n > 0 ? list->n : 1);
-    int *mine = malloc(cap * sizeof(int));
-    int *exited_ok = calloc(cap, sizeof(int));
-    pid_t *pids = calloc((size_t)(opt->jobs > 0 ? opt->jobs : 1), sizeof(pid_t));
-    int *slot_case = calloc((size_t)(opt->jobs > 0 ? opt->jobs : 1), sizeof(int));
-    int rc = -1;
-    if (!mine || !exited_ok || !pids || !slot_case)
-        goto out;
-    int nmine = 0;
-    for (int i = 0; i < list->n; i++)
-        if (opt->shard_n <= 1 || i % opt->shard_n == opt->shard_k - 1)
-            mine[nmine++] = i;
+    /* The handlers go in before the work directory exists: whoever sees it
+     * may interrupt at once, and must get the orderly 128+signal exit. */
     sweep_stop = 0;
     struct sigaction sa, old_int, old_term;
     memset(&sa, 0, sizeof sa);
     sa.sa_handler = sweep_on_signal;
     sigemptyset(&sa.sa_mask);
+    struct sigaction old_chld, on_chld;
+    memset(&on_chld, 0, sizeof on_chld);
+    on_chld.sa_handler = sweep_on_child; /* only to wake sigsuspend */
+    sigemptyset(&on_chld.sa_mask);
     sigaction(SIGINT, &sa, &old_int);
     sigaction(SIGTERM, &sa, &old_term);
+    sigaction(SIGCHLD, &on_chld, &old_chld);
+    sigset_t stops, unblocked, waiting;
+    sigemptyset(&stops);
+    sigaddset(&stops, SIGINT);
+    sigaddset(&stops, SIGTERM);
+    sigaddset(&stops, SIGCHLD);
+    sigprocmask(SIG_SETMASK, NULL, &unblocked);
+    waiting = unblocked;
+    sigdelset(&waiting, SIGINT);
+    sigdelset(&waiting, SIGTERM);
+    sigdelset(&waiting, SIGCHLD);
+    json_t *previous = pb_run_dir_previous(dir); /* before this sweep writes anything */
+    char work[4200], sdir[4200];
+    snprintf(work, sizeof work, "%s/.work.%ld", dir, (long)getpid());
+    snprintf(sdir, sizeof sdir, "%s/series", dir);
+    int *mine = NULL, *exited_ok = NULL, *slot_case = NULL;
+    pid_t *pids = NULL;
+    int rc = -1;
+    if (pb_mkdirs(dir) || pb_mkdirs(sdir) || pb_mkdirs(work)) {
+        fprintf(stderr, "propbench sweep: error: cannot create %s: %s\n", work, strerror(errno));
+        goto restore;
+    }
+    size_t cap = (size_t)(list->n > 0 ? list->n : 1);
+    mine = malloc(cap * sizeof(int));
+    exited_ok = calloc(cap, sizeof(int));
+    pids = calloc((size_t)(opt->jobs > 0 ? opt->jobs : 1), sizeof(pid_t));
+    slot_case = calloc((size_t)(opt->jobs > 0 ? opt->jobs : 1), sizeof(int));
+    if (!mine || !exited_ok || !pids || !slot_case) {
+        sweep_clean(work);
+        goto restore;
+    }
+    int nmine = 0;
+    for (int i = 0; i < list->n; i++)
+        if (opt->shard_n <= 1 || i % opt->shard_n == opt->shard_k - 1)
+            mine[nmine++] = i;
     fflush(NULL);
     pb_progress prog;
     pb_progress_start(&prog, opt->progress, nmine, "cases");
     int next = 0, running = 0, done = 0;
+    /* Stops stay blocked in the loop and are taken only inside sigsuspend,
+     * with SIGCHLD: a stop that comes between the check and the wait would
+     * otherwise sit unseen until some worker ended. */
+    sigprocmask(SIG_BLOCK, &stops, NULL);
     while (done < nmine && !sweep_stop) {
         while (running < opt->jobs && next < nmine && !sweep_stop) {
             pid_t pid = fork();
             if (pid == 0)
-                sweep_child(&list->cases[mine[next]], mine[next], work);
+                sweep_child(&list->cases[mine[next]], mine[next], work, &unblocked);
             if (pid < 0) {
                 /* no process to be had: run nothing more, record the rest as crashed */
                 next = nmine;
@@ -217,7 +252,12 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
         if (running == 0)
             break;
         int st;
-        pid_t w = wait(&st);
+        pid_t w = waitpid(-1, &st, WNOHANG);
+        if (w == 0) {
+            if (!sweep_stop)
+                sigsuspend(&waiting);
+            continue;
+        }
         if (w < 0) {
             if (errno == EINTR)
                 continue;
@@ -234,6 +274,7 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
         done++;
         pb_progress_update(&prog, done, NULL);
     }
+    sigprocmask(SIG_SETMASK, &unblocked, NULL);
     pb_progress_end(&prog);
     if (sweep_stop) {
         /* interrupted: stop the workers, leave the run directory as it was */
@@ -278,7 +319,7 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
 restore:
     sigaction(SIGINT, &old_int, NULL);
     sigaction(SIGTERM, &old_term, NULL);
-out:
+    sigaction(SIGCHLD, &old_chld, NULL);
     json_decref(previous);
     free(mine);
     free(exited_ok);

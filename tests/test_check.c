@@ -12,6 +12,7 @@
 #include <sys/stat.h>
 #include <sys/wait.h>
 #include <unistd.h>
+#include "test_support.h"
 #include "../bench/baseline.h"
 #include "../bench/harness.h"
 #include "../bench/junit.h"
@@ -31,17 +32,6 @@ static const char *pbc_bin(void)
     return b && *b ? b : "build/propbench";
 }
 
-static void pbc_slurp(const char *path, char *buf, size_t len)
-{
-    buf[0] = 0;
-    FILE *f = fopen(path, "rb");
-    if (!f)
-        return;
-    size_t n = fread(buf, 1, len - 1, f);
-    buf[n] = 0;
-    fclose(f);
-}
-
 /* Run argv (argv[0] is the program) with stdout and stderr into files under
  * c->dir, read back into c->out and c->err; returns the exit status. */
 static int pbc_spawn(pbc_ctx *c, char *const argv[])
@@ -59,8 +49,8 @@ static int pbc_spawn(pbc_ctx *c, char *const argv[])
     cr_assert_eq(s, 0, "cannot start %s", argv[0]);
     int st;
     cr_assert_eq(waitpid(pid, &st, 0), pid);
-    pbc_slurp(o, c->out, sizeof c->out);
-    pbc_slurp(e, c->err, sizeof c->err);
+    pbt_read_into(o, c->out, sizeof c->out);
+    pbt_read_into(e, c->err, sizeof c->err);
     cr_assert(WIFEXITED(st), "%s died: %s", argv[0], c->err);
     return WEXITSTATUS(st);
 }
@@ -307,7 +297,7 @@ static void pbc_write(const char *path, const char *data, size_t n)
 Test(check, truncated_or_corrupt_baseline_exit_2)
 {
     char buf[1 << 15];
-    pbc_slurp(ctx.base, buf, sizeof buf);
+    pbt_read_into(ctx.base, buf, sizeof buf);
     size_t n = strlen(buf);
     cr_assert_gt(n, 1000u);
     pbc_write(ctx.base, buf, n / 2); /* an interrupted copy */
@@ -385,7 +375,7 @@ Test(check, junit_is_well_formed_one_testcase_per_case_and_metric)
     ctx.out[strcspn(ctx.out, "\n")] = 0;
     cr_assert_str_eq(ctx.out, "odd<&>\"'?id");
     char text[8192];
-    pbc_slurp(md, text, sizeof text);
+    pbt_read_into(md, text, sizeof text);
     cr_assert(strstr(text, "## propbench check: FAIL"), "%s", text);
     cr_assert(strstr(text, "| kepler-e0.6__rk4__n200__o10 | pos_err_max |"), "%s", text);
 }

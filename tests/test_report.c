@@ -20,25 +20,6 @@
 /* one suite-wide timeout: per-test timeouts make Criterion 2.4.1's runner leak */
 TestSuite(report, .timeout = 240);
 
-static char *rpt_slurp(const char *path, size_t *len)
-{
-    FILE *f = fopen(path, "rb");
-    if (!f)
-        return NULL;
-    fseek(f, 0, SEEK_END);
-    long n = ftell(f);
-    fseek(f, 0, SEEK_SET);
-    char *buf = malloc((size_t)n + 1);
-    size_t got = buf ? fread(buf, 1, (size_t)n, f) : 0;
-    fclose(f);
-    if (!buf)
-        return NULL;
-    buf[got] = 0;
-    if (len)
-        *len = got;
-    return buf;
-}
-
 static int rpt_count(const char *hay, const char *needle)
 {
     int n = 0;
@@ -111,7 +92,7 @@ Test(report, style_matches_template)
     const char *root = getenv("PB_ROOT");
     char path[4096];
     snprintf(path, sizeof path, "%s/scripts/plot-style.gp", root ? root : ".");
-    char *s = rpt_slurp(path, NULL);
+    char *s = pbt_slurp_file(path, NULL);
     cr_assert_not_null(s, "cannot read %s", path);
     cr_assert_str_eq(s, pb_report_style_gp, "scripts/plot-style.gp and bench/report_style.c differ");
     free(s);
@@ -161,7 +142,7 @@ Test(report, gnuplot_missing_still_writes_data_and_scripts)
     snprintf(path, sizeof path, "%s/plots/style.gp", dir);
     cr_assert(pbt_exists(path));
     snprintf(path, sizeof path, "%s/report.html", dir);
-    char *html = rpt_slurp(path, NULL);
+    char *html = pbt_slurp_file(path, NULL);
     cr_assert_not_null(html);
     cr_assert(strstr(html, "gnuplot was not found"));
     cr_assert_eq(rpt_count(html, "<tr class=\"case"), 8);
@@ -205,7 +186,7 @@ Test(report, figures_and_tables_of_a_run)
     char want[64];
     snprintf(want, sizeof want, "| **%.3e** |", emin);
     snprintf(path, sizeof path, "%s/report.md", dir);
-    char *md = rpt_slurp(path, NULL);
+    char *md = pbt_slurp_file(path, NULL);
     cr_assert_not_null(md);
     cr_assert(strstr(md, want), "report.md does not mark the best energy error %s", want);
     cr_assert_eq(rpt_count(md, "\n| rk4 |") + rpt_count(md, "\n| **rk4** |"), 3);
@@ -250,7 +231,7 @@ Test(report, figures_and_tables_of_a_run)
     pb_report_free(&run);
 
     snprintf(path, sizeof path, "%s/report.html", dir);
-    char *html = rpt_slurp(path, NULL);
+    char *html = pbt_slurp_file(path, NULL);
     cr_assert_not_null(html);
     cr_assert_eq(rpt_count(html, "<svg"), PB_FIG_COUNT);
     cr_assert_eq(rpt_count(html, "<script"), 0, "report.html must not need scripts");
@@ -300,7 +281,7 @@ static int rpt_chromium(const char *const *extra, const char *out_path, char *er
     int st = 0;
     waitpid(pid, &st, 0);
     size_t len = 0;
-    char *e = rpt_slurp(errpath, &len);
+    char *e = pbt_slurp_file(errpath, &len);
     err[0] = 0;
     if (e) {
         snprintf(err, errlen, "%s", len + 1 > errlen ? e + len + 1 - errlen : e);
@@ -341,7 +322,7 @@ Test(report, browser_renders_figures_and_tables)
 
     snprintf(path, sizeof path, "%s/report.html", dir);
     size_t n = 0;
-    char *html = rpt_slurp(path, &n);
+    char *html = pbt_slurp_file(path, &n);
     cr_assert_not_null(html);
     char *end = strstr(html, "</body>");
     cr_assert_not_null(end);
@@ -358,7 +339,7 @@ Test(report, browser_renders_figures_and_tables)
     const char *a1[] = {"--window-size=1200,900", "--dump-dom", url, NULL};
     rc = rpt_chromium(a1, dom, err, sizeof err);
     cr_assert_eq(rc, 0, "headless chromium could not start or failed (status %d): %s", rc, err);
-    char *d = rpt_slurp(dom, NULL);
+    char *d = pbt_slurp_file(dom, NULL);
     cr_assert_not_null(d);
     char *line = strstr(d, "<pre id=\"pbcheck\">");
     cr_assert_not_null(line, "the page's probe did not run; chromium stderr: %s", err);

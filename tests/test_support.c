@@ -110,17 +110,36 @@ int pbt_sanitized(void)
 #include <sys/wait.h>
 #include <unistd.h>
 
-static void support_slurp(const char *path, char *buf, size_t len)
+void pbt_read_into(const char *path, char *buf, size_t len)
 {
     if (!buf || !len)
         return;
     buf[0] = 0;
-    FILE *f = fopen(path, "r");
+    FILE *f = fopen(path, "rb");
     if (!f)
         return;
     size_t n = fread(buf, 1, len - 1, f);
     buf[n] = 0;
     fclose(f);
+}
+
+char *pbt_slurp_file(const char *path, size_t *len)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return NULL;
+    fseek(f, 0, SEEK_END);
+    long n = ftell(f);
+    fseek(f, 0, SEEK_SET);
+    char *buf = n >= 0 ? malloc((size_t)n + 1) : NULL;
+    size_t got = buf ? fread(buf, 1, (size_t)n, f) : 0;
+    fclose(f);
+    if (!buf)
+        return NULL;
+    buf[got] = 0;
+    if (len)
+        *len = got;
+    return buf;
 }
 
 int pbt_run_cli(const char *const *args, char *out, size_t outlen, char *err, size_t errlen)
@@ -157,8 +176,8 @@ int pbt_run_cli(const char *const *args, char *out, size_t outlen, char *err, si
     int st = 0;
     if (pid < 0 || waitpid(pid, &st, 0) < 0)
         return -1;
-    support_slurp(fo, out, outlen);
-    support_slurp(fe, err, errlen);
+    pbt_read_into(fo, out, outlen);
+    pbt_read_into(fe, err, errlen);
     unlink(fo);
     unlink(fe);
     rmdir(dir);

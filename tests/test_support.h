@@ -49,8 +49,6 @@ int pbt_nan_after_1_accel(const pb_problem *p, double t, const double *r, const 
 /* 1 when the tests run under the sanitizers (long runs may shrink). */
 int pbt_sanitized(void);
 
-
-
 /* Run the CLI ($PB_BIN) with args (NULL-terminated, without argv[0]),
  * capturing stdout and stderr (each truncated to its buffer). Returns the
  * exit status, or -1 if it did not exit normally. */
@@ -58,6 +56,13 @@ int pbt_run_cli(const char *const *args, char *out, size_t outlen, char *err, si
 
 /* A fresh empty directory under /tmp; the path is written into buf. */
 void pbt_tmpdir(char *buf, size_t len);
+
+/* The whole file, NUL-terminated, in malloc'd memory (NULL if unreadable);
+ * its length in *len when len is not NULL. */
+char *pbt_slurp_file(const char *path, size_t *len);
+
+/* As much of the file as fits in buf, NUL-terminated ("" if unreadable). */
+void pbt_read_into(const char *path, char *buf, size_t len);
 
 /* 1 if the path exists. */
 int pbt_exists(const char *path);
