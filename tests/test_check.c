@@ -58,8 +58,8 @@ static int pbc_spawn(pbc_ctx *c, char *const argv[])
 /* A three-case sweep (fixed-step, symplectic, adaptive) and its baseline. */
 static void pbc_setup(pbc_ctx *c)
 {
-    snprintf(c->dir, sizeof c->dir, "/tmp/pb-check-XXXXXX");
-    cr_assert_not_null(mkdtemp(c->dir));
+    pbt_tmpdir(c->dir, sizeof c->dir);
+    cr_assert(c->dir[0]);
     snprintf(c->run, sizeof c->run, "%s/run", c->dir);
     snprintf(c->base, sizeof c->base, "%s/base.json", c->dir);
     char *sweep[] = {(char *)pbc_bin(), "sweep", "--problems", "kepler-e0.6", "--methods",

@@ -9,6 +9,7 @@
 #include <unistd.h>
 #include "../problems/problem_file.h"
 #include "../problems/twobody.h"
+#include "test_support.h"
 
 static char pft_dir[64];
 static char pft_path[128];
@@ -24,8 +25,8 @@ static void pft_warn(const char *msg)
 
 static void pft_setup(void)
 {
-    snprintf(pft_dir, sizeof pft_dir, "/tmp/pb-pftest-XXXXXX");
-    cr_assert_not_null(mkdtemp(pft_dir));
+    pbt_tmpdir(pft_dir, sizeof pft_dir);
+    cr_assert(pft_dir[0]);
     snprintf(pft_path, sizeof pft_path, "%s/orbit.ini", pft_dir);
     pft_nwarn = 0;
     pft_warn_msg[0] = '\0';

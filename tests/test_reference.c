@@ -12,6 +12,7 @@
 #include "../problems/catalogue.h"
 #include "../problems/reference.h"
 #include "../problems/truth.h"
+#include "test_support.h"
 
 enum { NS = 100 };
 
@@ -132,9 +133,10 @@ static int reft_count_files(const char *dir, const char *needle)
 
 Test(reference, cache_round_trip_and_corruption)
 {
-    char base[] = "/tmp/pb-reftest-XXXXXX";
-    cr_assert_not_null(mkdtemp(base));
-    char dir[256];
+    char base[256];
+    pbt_tmpdir(base, sizeof base);
+    cr_assert(base[0]);
+    char dir[300];
     snprintf(dir, sizeof dir, "%s/results/cache", base);  /* created on demand */
     pb_problem p;
     cr_assert_eq(pb_problem_lookup("arenstorf", &p), PB_OK);

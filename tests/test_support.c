@@ -186,7 +186,12 @@ int pbt_run_cli(const char *const *args, char *out, size_t outlen, char *err, si
 
 void pbt_tmpdir(char *buf, size_t len)
 {
-    snprintf(buf, len, "/tmp/pbt-XXXXXX");
+    /* below $PB_TMP when make test sets it, so one rm -rf tidies a run */
+    const char *root = getenv("PB_TMP");
+    if (!root || !*root)
+        root = "/tmp";
+    mkdir(root, 0755);
+    snprintf(buf, len, "%s/pbt-XXXXXX", root);
     if (!mkdtemp(buf))
         buf[0] = 0;
 }

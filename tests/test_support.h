@@ -54,7 +54,8 @@ int pbt_sanitized(void);
  * exit status, or -1 if it did not exit normally. */
 int pbt_run_cli(const char *const *args, char *out, size_t outlen, char *err, size_t errlen);
 
-/* A fresh empty directory under /tmp; the path is written into buf. */
+/* A fresh empty directory below $PB_TMP (default /tmp); the path is written
+ * into buf, or "" if it cannot be made. */
 void pbt_tmpdir(char *buf, size_t len);
 
 /* The whole file, NUL-terminated, in malloc'd memory (NULL if unreadable);
