@@ -163,6 +163,12 @@ int pb_baseline_load(const char *path, json_t **out, char *err, size_t errlen)
         json_decref(d);
         return -1;
     }
+    /* a gate that compares nothing would pass every run */
+    if (json_array_size(json_object_get(d, "cases")) == 0) {
+        snprintf(err, errlen, "%s has no cases: nothing to compare", path);
+        json_decref(d);
+        return -1;
+    }
     *out = d;
     return 0;
 }

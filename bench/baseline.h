@@ -26,7 +26,8 @@ json_t *pb_baseline_from_summary(const json_t *summary);
 
 /* Read and validate a baseline file into *out (caller owns). 0, or -1 with a
  * message naming path in err: unreadable, corrupt or truncated JSON, not a
- * baseline, a format newer than this build understands, malformed cases. */
+ * baseline, a format newer than this build understands, malformed cases, no
+ * cases at all (a gate that compares nothing would pass any run). */
 int pb_baseline_load(const char *path, json_t **out, char *err, size_t errlen);
 
 /* The accuracy metrics compared (NULL-terminated), larger is worse. */

@@ -44,6 +44,11 @@ int pb_cli_baseline(int argc, char **argv)
     json_t *summary;
     if (pb_summary_load(path, &summary, err, sizeof err))
         return pb_cli_error("baseline", "%s", err);
+    if (json_array_size(json_object_get(summary, "cases")) == 0) {
+        /* `check` refuses such a baseline, so do not write one */
+        json_decref(summary);
+        return pb_cli_error("baseline", "%s has no cases: nothing to compare", path);
+    }
     json_t *b = pb_baseline_from_summary(summary);
     size_t n = json_array_size(json_object_get(b, "cases"));
     int bad = pb_json_write_atomic(out, b);

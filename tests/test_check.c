@@ -334,6 +334,32 @@ Test(check, future_format_baseline_exit_2)
     cr_assert_eq(ctx.out[0], 0, "nothing compared, nothing printed: %s", ctx.out);
 }
 
+static void edit_no_cases(json_t *cs) { json_array_clear(cs); }
+
+Test(check, empty_cases_exit_2_in_baseline_and_check)
+{
+    /* a gate that compares nothing must not pass: a run with "cases": []
+     * makes no baseline, and a baseline with none is refused by check */
+    const char *d = pbc_doctor(&ctx, "empty", edit_no_cases);
+    char out[200], summary[200];
+    snprintf(out, sizeof out, "%s/empty.json", ctx.dir);
+    snprintf(summary, sizeof summary, "%s/summary.json", d);
+    char *argv[] = {(char *)pbc_bin(), "baseline", (char *)d, "--out", out, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, argv), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, "propbench baseline: error:", summary,
+                           "has no cases: nothing to compare"), "%s", ctx.err);
+    cr_assert_not(pbt_exists(out), "no baseline may be written");
+    json_t *b = json_load_file(ctx.base, 0, NULL);
+    cr_assert_not_null(b);
+    json_array_clear(json_object_get(b, "cases"));
+    cr_assert_eq(json_dump_file(b, ctx.base, 0), 0);
+    json_decref(b);
+    cr_assert_eq(pbc_check(&ctx, ctx.run, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, "propbench check: error:", ctx.base,
+                           "has no cases: nothing to compare"), "%s", ctx.err);
+    cr_assert_eq(ctx.out[0], 0, "nothing compared, nothing printed: %s", ctx.out);
+}
+
 /* ---- JUnit XML and Markdown ---- */
 
 static void edit_for_junit(json_t *cs)
