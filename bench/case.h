@@ -68,6 +68,7 @@ typedef struct pb_case_result {
     double truth_floor_max;
     pb_growth g_pos, g_along, g_energy, g_angmom;
     long steps, evals, rejected, startup_steps;
+    long output_cut; /* adaptive steps shortened to land on a sample time */
     double ns_per_step, ns_per_eval, timing_s;
     double projected_s;       /* evals x eval_cost_us (0 if no cost given) */
     char fingerprint[40];

@@ -128,6 +128,8 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     json_object_set_new(c, "evals", json_integer(res->evals));
     json_object_set_new(c, "rejected", json_integer(res->rejected));
     json_object_set_new(c, "startup_steps", json_integer(res->startup_steps));
+    if (spec->method->flags & PB_KIND_ADAPTIVE)
+        json_object_set_new(c, "output_cut_steps", json_integer(res->output_cut));
     json_object_set_new(c, "ns_per_step", pb_json_real(res->ns_per_step));
     json_object_set_new(c, "ns_per_eval", pb_json_real(res->ns_per_eval));
     if (spec->eval_cost_us > 0) {

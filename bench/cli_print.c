@@ -119,6 +119,10 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
     if (res->startup_steps)
         printf(", %ld start-up", res->startup_steps);
     printf("\n");
+    if (spec->method->flags & PB_KIND_ADAPTIVE)
+        printf("  %-22s %ld of the steps were shortened to land on a sample time (cost the\n"
+               "  %-22s output grid adds; --samples sets the grid, a longer horizon dilutes it)\n",
+               "output grid", res->output_cut, "");
     if (isfinite(res->ns_per_step))
         printf("  %-22s %.1f ns/step, %.1f ns/evaluation\n", "timing (median)", res->ns_per_step, res->ns_per_eval);
     if (res->projected_s > 0)

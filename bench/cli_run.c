@@ -70,8 +70,9 @@ int pb_cli_run(int argc, char **argv)
     if (!o.quiet)
         printf("wrote %s and %s/series/%s.csv\n", path, dir, res.id);
     if (res.status)
-        fprintf(stderr, "propbench run: warning: the integration ended early: %s at t = %.9g\n",
-                pb_strerror(res.status), res.diverged_at);
+        fprintf(stderr, "propbench run: warning: the integration ended early: %s at t = %.9g %s\n",
+                pb_strerror(res.status), res.diverged_at,
+                spec.problem.units == PB_UNITS_KM_S ? "s" : "TU");
     pb_case_result_free(&res);
     return PB_EXIT_OK;
 }

@@ -236,6 +236,17 @@ int pb_cli_select(int argc, char **argv)
                    setting, r->evals, pe, r->energy_rel_max, r->ns_per_step, s->projected_s);
         }
         printf("(* GSL's stepper)\n");
+        long cut_lo = -1, cut_hi = 0;
+        for (int i = 0; i < m; i++)
+            if (sel[i].found && (sel[i].method->flags & PB_KIND_ADAPTIVE)) {
+                long nc = sel[i].confirmed.output_cut;
+                cut_lo = cut_lo < 0 || nc < cut_lo ? nc : cut_lo;
+                cut_hi = nc > cut_hi ? nc : cut_hi;
+            }
+        if (cut_hi > 0)
+            printf("adaptive rows include %ld to %ld steps shortened to land on the sample times\n"
+                   "(the output grid's cost; a propagator with dense output would not pay it)\n",
+                   cut_lo, cut_hi);
         if (!found)
             printf("NO METHOD meets the requirement over this horizon.\n");
         else

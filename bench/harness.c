@@ -475,6 +475,7 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     m->get_stats(ws, &st);
     res->steps = st.steps;
     res->rejected = st.rejected;
+    res->output_cut = st.output_cut;
     res->startup_steps = st.startup_steps;
     res->evals = counter.evals;
     res->projected_s = spec->eval_cost_us > 0 ? 1e-6 * spec->eval_cost_us * (double)res->evals : 0;

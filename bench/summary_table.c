@@ -66,6 +66,19 @@ void pb_summary_print(const json_t *doc, FILE *f)
     }
     fprintf(f, "(* GSL's stepper; energy max is relative; growth = class of the fitted power law;\n"
                " ok(sat): finished, but the position error passed a tenth of the orbit's size)\n");
+    /* adaptive cases whose cost is mostly the output grid's */
+    int gridded = 0;
+    json_array_foreach(cases, i, c) {
+        const json_t *k = json_object_get(c, "cost");
+        const json_t *cut = json_object_get(k, "output_cut_steps");
+        long long steps = json_integer_value(json_object_get(k, "steps"));
+        if (json_is_integer(cut) && steps > 0 && 10 * json_integer_value(cut) > steps)
+            gridded++;
+    }
+    if (gridded)
+        fprintf(f, "  note: in %d adaptive case%s over 10%% of the steps were shortened to land on sample\n"
+                   "  times; that cost is the output grid's (see output_cut_steps; a longer horizon dilutes it)\n",
+                gridded, gridded > 1 ? "s" : "");
     /* how each unfinished case ended, with the time */
     json_array_foreach(cases, i, c) {
         const char *st = json_string_value(json_object_get(c, "status"));
@@ -73,8 +86,13 @@ void pb_summary_print(const json_t *doc, FILE *f)
             continue;
         const json_t *at = json_object_get(c, "diverged_at");
         fprintf(f, "  %s: %s", json_string_value(json_object_get(c, "id")), st);
-        if (json_is_number(at))
-            fprintf(f, " at t = %.6g", json_number_value(at));
+        if (json_is_number(at)) {
+            const char *u = json_string_value(json_object_get(c, "units"));
+            const json_t *orb = json_object_get(c, "diverged_at_orbits");
+            fprintf(f, " at t = %.6g %s", json_number_value(at), u && !strcmp(u, "km-s") ? "s" : "TU");
+            if (json_is_number(orb))
+                fprintf(f, " (%.4g orbits)", json_number_value(orb));
+        }
         const char *d = json_string_value(json_object_get(c, "status_detail"));
         fprintf(f, "%s%s\n", d ? ": " : "", d ? d : "");
     }

@@ -229,7 +229,7 @@ static int gp_advance_adaptive(gp_ws *w, double t_out, pb_step_observer obs, voi
             return PB_EMINSTEP;
         }
         unsigned long failed0 = e->failed_steps;
-        double t = w->t;
+        double t = w->t, h_proposed = w->h;
         int s = gsl_odeiv2_evolve_apply(e, w->drv->c, w->drv->s, &w->sys, &t, t_out, &w->h,
                                         w->y);
         w->st.rejected += (long)(e->failed_steps - failed0);
@@ -239,6 +239,9 @@ static int gp_advance_adaptive(gp_ws *w, double t_out, pb_step_observer obs, voi
             w->fstatus = PB_ENONFINITE;
             return gp_fail(w, GSL_EBADFUNC);
         }
+        /* GSL shortens a step that would pass t_out to end on it */
+        if (t == t_out && h_proposed > t_out - w->t)
+            w->st.output_cut++;
         w->t = t;
         memcpy(w->ygood, w->y, (size_t)w->n * sizeof(double));
         w->st.steps++;

@@ -46,6 +46,8 @@ typedef struct pb_method_stats {
     long steps;            /* accepted steps */
     long rejected;         /* rejected attempts (adaptive) */
     long startup_steps;    /* steps spent starting a multistep method */
+    long output_cut;       /* accepted steps an adaptive method shortened to land
+                            * exactly on an output time: cost the output grid adds */
     double t_fail;         /* time of the last good state when a step failed */
 } pb_method_stats;
 

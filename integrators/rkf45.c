@@ -262,6 +262,8 @@ static int rkf45_advance(void *ws, double t_out, pb_step_observer obs, void *oct
             return s;
         }
         if (err <= 1.0) {
+            if (last && h < w->h)
+                w->st.output_cut++;
             /* A clamped step shorter than the proposal says nothing about the
              * step the solution allows, so the proposal and the PI memory are
              * kept for the next call. */

@@ -8,6 +8,7 @@
 #include <sys/wait.h>
 #include <time.h>
 #include <jansson.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -447,6 +448,42 @@ Test(cli, rerun_replaces_earlier_run)
     cr_assert(!pbt_exists(path), "an earlier series is still there");
     snprintf(path, sizeof path, "%s/series/kepler-e0__leapfrog__n100__o10.csv", dir);
     cr_assert(pbt_exists(path));
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+/* A diverging case is a result, not an error: exit 0, and the table says
+ * when it diverged, in the problem's time unit and in orbits. At 8 steps per
+ * orbit RK4 leaves kepler-e0.9 on its first step (t = T/8 = pi/4 TU). */
+Test(cli, divergence_reported_with_time_unit_and_orbits)
+{
+    char dir[256], path[400];
+    pbt_tmpdir(dir, sizeof dir);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0.9,leo-near-circular", "--methods",
+                                     "rk4", "--steps-per-orbit", "8", "--orbits", "100", "--repeats", "0",
+                                     "--out", dir, NULL}), 0, "%s", err_buf);
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *doc = json_load_file(path, 0, NULL);
+    cr_assert_not_null(doc);
+    size_t i;
+    json_t *c;
+    int seen = 0;
+    json_array_foreach(json_object_get(doc, "cases"), i, c) {
+        cr_assert_str_eq(json_string_value(json_object_get(c, "status")), "diverged");
+        double at = json_number_value(json_object_get(c, "diverged_at"));
+        double orbits = json_number_value(json_object_get(c, "diverged_at_orbits"));
+        int km = !strcmp(json_string_value(json_object_get(c, "units")), "km-s");
+        if (!km)
+            cr_assert_float_eq(at, atan(1.0), 1e-12);
+        char want[200];
+        snprintf(want, sizeof want, "%s: diverged at t = %.6g %s (%.4g orbits)",
+                 json_string_value(json_object_get(c, "id")), at, km ? "s" : "TU", orbits);
+        cr_assert(strstr(out_buf, want), "missing \"%s\" in:\n%s", want, out_buf);
+        seen++;
+    }
+    cr_assert_eq(seen, 2);
+    json_decref(doc);
     char cmd[600];
     snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
     cr_assert_eq(system(cmd), 0);
