@@ -456,7 +456,9 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     if (s) {
         pb_method_stats st;
         m->get_stats(ws, &st);
+        /* a step budget ends the case where the last step left it */
         res->diverged_at = s == PB_EDIVERGED ? w.t_escape
+                         : s == PB_EMAXSTEPS ? t
                          : counter.saw_nonfinite ? counter.t_nonfinite : st.t_fail;
         res->status_detail = s == PB_EDIVERGED && w.why ? w.why
                            : counter.saw_nonfinite ? "the force became non-finite"

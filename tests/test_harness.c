@@ -239,6 +239,21 @@ Test(harness, divergence_reported_with_time)
     pb_case_result_free(&r);
 }
 
+/* A step budget ends the case where its last step left it, and that time is
+ * reported: 5 fixed steps of T/100 end at t = T/20 (the grid, by
+ * construction), not at the start. */
+Test(harness, max_steps_reports_the_time_reached)
+{
+    pb_case_spec s = spec_fixed("kepler-e0.6", "rk4", 100, 2);
+    s.max_steps = 5;
+    pb_case_result r;
+    cr_assert_eq(pb_case_run(&s, &r), 0);
+    cr_assert_str_eq(r.status_name, "max_steps");
+    cr_assert_float_eq(r.diverged_at, s.problem.period / 20, 1e-14);
+    cr_assert_float_eq(r.t_end, r.diverged_at, 0);
+    pb_case_result_free(&r);
+}
+
 /* --- independent check with GSL's rk8pd at tight tolerance --- */
 static int gsl_kepler(double t, const double y[], double f[], void *params)
 {
