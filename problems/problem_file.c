@@ -16,6 +16,12 @@
 
 #define DEG (M_PI / 180.0)
 
+/* inih keeps at most MAX_SECTION - 1 = 49 characters between the brackets
+ * (MAX_SECTION is 50 in inih's ini.c and not exported) and cuts the rest
+ * silently, so "[case NAME]" allows a NAME of 49 - strlen("case ") = 44. */
+#define PF_SECTION_MAX 49
+#define PF_CASE_NAME_MAX (PF_SECTION_MAX - 5)
+
 enum {
     K_UNITS, K_MU, K_BODY, K_FORCE, K_A, K_E, K_I, K_RAAN, K_ARGP, K_NU, K_R, K_V,
     K_ORBITS, K_HORIZON, K_RADIUS, K_J2, K_DESC, K_COUNT
@@ -49,6 +55,9 @@ typedef struct pf_ctx {
     pb_problem *out;
     int n, cap;
     int *case_lines;          /* header line of each finished case */
+    int hdr_line;             /* line of the latest header seen by the reader */
+    int hdr_keys;             /* keys handled since that header */
+    char hdr_text[80];        /* its text between the brackets, for messages */
 } pf_ctx;
 
 static void pf_fail(pf_ctx *c, int line, const char *key, const char *fmt, ...)
@@ -67,26 +76,83 @@ static void pf_fail(pf_ctx *c, int line, const char *key, const char *fmt, ...)
         snprintf(c->err, c->errlen, "%s:%d: %s", c->path, line, msg);
 }
 
-/* inih's line source: fgets, counting lines and noting section headers. */
+/* A section whose header is followed by no key would vanish without a trace
+ * (inih reports only keys); say so at its header line. */
+static void pf_check_empty_section(pf_ctx *c)
+{
+    if (!c->hdr_line || c->hdr_keys)
+        return;
+    const char *t = c->hdr_text;
+    if (strncmp(t, "case", 4) == 0 && (t[4] == ' ' || t[4] == '\t')) {
+        t += 4;
+        while (*t == ' ' || *t == '\t')
+            t++;
+        pf_fail(c, c->hdr_line, NULL, "case '%s' has no keys", t);
+    } else {
+        pf_fail(c, c->hdr_line, NULL, "section '[%s]' has no keys", t);
+    }
+}
+
+/* Checks that need the raw header text, before inih shortens it. */
+static void pf_check_header(pf_ctx *c, const char *open)
+{
+    const char *close = strchr(open + 1, ']');
+    size_t len = close ? (size_t)(close - open - 1) : strlen(open + 1);
+    snprintf(c->hdr_text, sizeof c->hdr_text, "%.*s", (int)len, open + 1);
+    c->hdr_line = c->line;
+    c->hdr_keys = 0;
+    if (!close || len <= PF_SECTION_MAX)
+        return;  /* a missing ']' is inih's syntax error */
+    const char *q = open + 1;
+    if (strncmp(q, "case", 4) == 0 && (q[4] == ' ' || q[4] == '\t')) {
+        q += 4;
+        while (*q == ' ' || *q == '\t')
+            q++;
+        if ((size_t)(close - q) > PF_CASE_NAME_MAX) {
+            pf_fail(c, c->line, NULL, "case name '%.*s' is longer than %d characters (%d given)",
+                    (int)(close - q), q, PF_CASE_NAME_MAX, (int)(close - q));
+            return;
+        }
+    }
+    pf_fail(c, c->line, NULL, "section header is longer than %d characters between the brackets",
+            PF_SECTION_MAX);
+}
+
+/* inih's line source: fgets, counting lines and noting section headers.
+ * inih would join an indented line to the key above it (a continuation
+ * line), which reads as that key "given twice"; indented keys, headers and
+ * values are refused here instead (indented comments and blank lines pass). */
 static char *pf_reader(char *str, int num, void *stream)
 {
     pf_ctx *c = stream;
     if (c->failed)
         return NULL;
     char *s = fgets(str, num, c->f);
-    if (s) {
-        c->line++;
-        size_t len = strlen(s);
-        if (len == (size_t)num - 1 && s[len - 1] != '\n' && !feof(c->f)) {
-            /* inih's line buffer is fixed: say so rather than misparse the rest */
-            pf_fail(c, c->line, NULL, "line longer than %d characters", num - 2);
+    if (!s) {
+        pf_check_empty_section(c);
+        return NULL;
+    }
+    c->line++;
+    size_t len = strlen(s);
+    if (len == (size_t)num - 1 && s[len - 1] != '\n' && !feof(c->f)) {
+        /* inih's line buffer is fixed: say so rather than misparse the rest */
+        pf_fail(c, c->line, NULL, "line longer than %d characters", num - 2);
+        return NULL;
+    }
+    const char *q = s;
+    while (*q == ' ' || *q == '\t')
+        q++;
+    if (q > s && *q && !strchr("\r\n;#", *q)) {
+        pf_fail(c, c->line, NULL, "indented line: keys must start at the beginning of the line "
+                "(continuation lines are not supported)");
+        return NULL;
+    }
+    if (*q == '[') {
+        pf_check_empty_section(c);
+        pf_check_header(c, q);
+        c->section_line = c->line;
+        if (c->failed)
             return NULL;
-        }
-        const char *q = s;
-        while (*q == ' ' || *q == '\t')
-            q++;
-        if (*q == '[')
-            c->section_line = c->line;
     }
     return s;
 }
@@ -172,6 +238,7 @@ static int pf_handler(void *user, const char *section, const char *key, const ch
     pf_ctx *c = user;
     if (c->failed)
         return 1;
+    c->hdr_keys++;
     if (!c->have_cur || c->cur.line != c->section_line) {
         if (c->have_cur && pf_finish(c))
             return 1;

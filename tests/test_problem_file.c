@@ -197,6 +197,53 @@ Test(problem_file, orbits_for_open_orbit)
     pft_expect_error(HEAD "a = -40000\ne = 1.2\norbits = 3\n", 6, "orbits", "no period");
 }
 
+/* inih would read an indented line as a continuation of the key above it
+ * ("given twice"); it is refused at its own line instead, while indented
+ * comments and blank lines stay allowed. */
+Test(problem_file, indented_line_refused)
+{
+    pft_expect_error("[case d]\nunits = normalized\ndescription = x\n    a = 1\ne = 0\n", 4, NULL,
+                     "indented line: keys must start at the beginning of the line");
+    pft_expect_error("[case d]\nunits = normalized\na = 1\ne = 0\n\t[case e]\n", 5, NULL,
+                     "indented line");
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read("[case d]\nunits = normalized\n   ; note\n  \na = 1\ne = 0\n", &c, &n),
+                 PB_OK, "%s", pft_err);
+    cr_assert_eq(n, 1);
+    free(c);
+}
+
+/* inih keeps 49 characters between the brackets, so a name longer than 44
+ * would be cut short (and two names sharing 44 characters would clash). */
+Test(problem_file, case_name_too_long)
+{
+    const char *n44 = "abcdefghijabcdefghijabcdefghijabcdefghijabcd";
+    char text[512];
+    snprintf(text, sizeof text, "[case %se]\nunits = normalized\na = 1\ne = 0\n", n44);
+    pft_expect_error(text, 1, NULL, "is longer than 44 characters (45 given)");
+    snprintf(text, sizeof text, "[case %sX]\nunits = normalized\na = 1\ne = 0\n\n"
+             "[case %sY]\nunits = normalized\na = 2\ne = 0\n", n44, n44);
+    pft_expect_error(text, 1, NULL, "longer than 44 characters");
+    /* exactly 44 characters is kept whole */
+    snprintf(text, sizeof text, "[case %s]\nunits = normalized\na = 1\ne = 0\n", n44);
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read(text, &c, &n), PB_OK, "%s", pft_err);
+    cr_assert_str_eq(c[0].name, n44);
+    free(c);
+}
+
+/* A header with no key under it is an error at its own line, not a case
+ * that silently does not exist. */
+Test(problem_file, empty_case_section)
+{
+    pft_expect_error("[case c0]\n[case c1]\nunits = normalized\na = 1\ne = 0\n", 1, NULL,
+                     "case 'c0' has no keys");
+    pft_expect_error("[case c1]\nunits = normalized\na = 1\ne = 0\n\n[case c2]\n; later\n", 6, NULL,
+                     "case 'c2' has no keys");
+}
+
 /* A periapsis below the surface is a warning, not an error (rp = a(1-e) = 3500
  * km < R = 6378.137 km); the message names file and line of the case. */
 Test(problem_file, periapsis_below_surface_warns)
