@@ -22,6 +22,9 @@
 #define PF_SECTION_MAX 49
 #define PF_CASE_NAME_MAX (PF_SECTION_MAX - 5)
 
+/* largest |angle| in degrees still reduced modulo 360 to better than 1e-7 deg */
+#define PF_ANGLE_MAX 1e9
+
 enum {
     K_UNITS, K_MU, K_BODY, K_FORCE, K_A, K_E, K_I, K_RAAN, K_ARGP, K_NU, K_R, K_V,
     K_ORBITS, K_HORIZON, K_RADIUS, K_J2, K_DESC, K_COUNT
@@ -377,6 +380,19 @@ static int pf_finish(pf_ctx *c)
             FAIL_K(K_A, "semi-major axis must be > 0 for an ellipse (got %g)", a);
         if (e > 1 && a >= 0)
             FAIL_K(K_A, "semi-major axis must be < 0 for a hyperbola (got %g)", a);
+        /* Angles (common practice): i_deg must lie in [0, 180] (180 is a
+         * retrograde equatorial orbit); raan_deg, argp_deg and nu_deg may be
+         * any finite value and are taken modulo 360, up to |x| <= 1e9 deg,
+         * beyond which a double holds the fraction of a turn to worse than
+         * 1e-7 deg. There is no mean-anomaly key: the anomaly is true. */
+        if (!(cs->num[K_I] >= 0 && cs->num[K_I] <= 180))
+            FAIL_K(K_I, "inclination must be within [0, 180] deg (got %g)", cs->num[K_I]);
+        for (int k = K_RAAN; k <= K_NU; k++) {
+            if (fabs(cs->num[k]) > PF_ANGLE_MAX)
+                FAIL_K(k, "angle %g deg is too large to take modulo 360 (|value| must be "
+                       "<= %g deg)", cs->num[k], PF_ANGLE_MAX);
+            cs->num[k] = fmod(cs->num[k], 360.0);
+        }
         double nu = cs->num[K_NU] * DEG;
         if (e > 1 && 1.0 + e * cos(nu) <= 0)
             FAIL_K(K_NU, "true anomaly %g deg is beyond the hyperbola's asymptote (%.4f deg)",

@@ -197,6 +197,45 @@ Test(problem_file, orbits_for_open_orbit)
     pft_expect_error(HEAD "a = -40000\ne = 1.2\norbits = 3\n", 6, "orbits", "no period");
 }
 
+/* Inclination is restricted to [0, 180] deg, the other angles are taken
+ * modulo 360 (common practice for classical elements). */
+Test(problem_file, inclination_out_of_range)
+{
+    pft_expect_error(HEAD "a = 7000\ne = 0.1\ni_deg = 1000\n", 6, "i_deg",
+                     "inclination must be within [0, 180] deg (got 1000)");
+    pft_expect_error(HEAD "a = 7000\ne = 0.1\ni_deg = -1\n", 6, "i_deg", "within [0, 180]");
+    pft_expect_error(HEAD "a = 7000\ne = 0.1\ni_deg = 180.001\n", 6, "i_deg", "within [0, 180]");
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read(HEAD "a = 7000\ne = 0.1\ni_deg = 180\n", &c, &n), PB_OK, "%s", pft_err);
+    pb_elements el;
+    cr_assert_eq(pb_elements_from_state(c[0].mu, c[0].r0, c[0].v0, &el), PB_OK);
+    cr_assert_float_eq(el.i, M_PI, 1e-12);  /* round trip to 1e-12 (REFERENCES.md) */
+    free(c);
+}
+
+/* raan/argp/nu of 370, 540 and -340 deg give the same state as 10, 180 and
+ * 20 deg (modulo 360, common practice), to 1e-12 relative; absurdly large
+ * values whose fraction of a turn is lost are refused. */
+Test(problem_file, angles_taken_modulo_360)
+{
+    pb_problem *c, *d;
+    int n;
+    cr_assert_eq(pft_read(HEAD "a = 24396\ne = 0.7283\ni_deg = 27\nraan_deg = 370\nargp_deg = 540\n"
+                          "nu_deg = -340\n", &c, &n), PB_OK, "%s", pft_err);
+    cr_assert_eq(pft_read(HEAD "a = 24396\ne = 0.7283\ni_deg = 27\nraan_deg = 10\nargp_deg = 180\n"
+                          "nu_deg = 20\n", &d, &n), PB_OK, "%s", pft_err);
+    for (int k = 0; k < 3; k++) {
+        cr_assert_float_eq(c[0].r0[k], d[0].r0[k], 1e-12 * 24396.0);
+        cr_assert_float_eq(c[0].v0[k], d[0].v0[k], 1e-12 * 10.0);
+    }
+    free(c);
+    free(d);
+    pft_expect_error(HEAD "a = 7000\ne = 0.1\nraan_deg = 1e12\n", 6, "raan_deg", "too large");
+    pft_expect_error(HEAD "a = 7000\ne = 0.1\nargp_deg = -2e9\n", 6, "argp_deg", "too large");
+    pft_expect_error(HEAD "a = 7000\ne = 0.1\nnu_deg = 1e300\n", 6, "nu_deg", "too large");
+}
+
 /* inih would read an indented line as a continuation of the key above it
  * ("given twice"); it is refused at its own line instead, while indented
  * comments and blank lines stay allowed. */
