@@ -8,6 +8,7 @@
 #include <gsl/gsl_statistics_double.h>
 #include "report_data.h"
 #include "baseline.h"
+#include "run_dir.h"
 
 static double data_num(const json_t *o, const char *key)
 {
@@ -52,6 +53,11 @@ static int data_case(const json_t *o, pb_report_case *c, char *err, size_t errle
     c->units = data_str(o, "units", "normalized");
     c->status = data_str(o, "status", "crashed");
     c->series = data_str(o, "series", NULL);
+    if (c->series && !pb_series_path_ok(c->series)) {
+        snprintf(err, errlen, "%s: cases[%d] (%s): \"series\" is \"%.200s\", not a file below series/",
+                 path, i, c->id, c->series);
+        return -1;
+    }
     c->order = (int)data_long(o, "method_order");
     c->from_gsl = json_is_true(json_object_get(o, "from_gsl"));
     c->steps_per_orbit = data_long(o, "steps_per_orbit");

@@ -1,4 +1,5 @@
 /* run_dir.c - atomic files and the per-case CSV series. */
+#include <ctype.h>
 #include <errno.h>
 #include <stdarg.h>
 #include <math.h>
@@ -167,6 +168,18 @@ int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_res
     return rc;
 }
 
+int pb_series_path_ok(const char *rel)
+{
+    static const char prefix[] = "series/", suffix[] = ".csv";
+    size_t n = rel ? strlen(rel) : 0, lp = sizeof prefix - 1, ls = sizeof suffix - 1;
+    if (n <= lp + ls || strncmp(rel, prefix, lp) || strcmp(rel + n - ls, suffix) || strstr(rel, ".."))
+        return 0;
+    for (const char *c = rel + lp; *c; c++)
+        if (!isalnum((unsigned char)*c) && !strchr("._+-", *c))
+            return 0;
+    return 1;
+}
+
 /* 1 if some case of summary names this series path */
 static int run_dir_names(const json_t *summary, const char *rel)
 {
@@ -204,7 +217,7 @@ int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary)
     json_array_foreach(json_object_get(old, "cases"), i, c) {
         /* the earlier run's series that the new run does not write again */
         const char *sr = json_string_value(json_object_get(c, "series"));
-        if (sr && !strncmp(sr, "series/", 7) && !strstr(sr, "..") && !run_dir_names(summary, sr)) {
+        if (pb_series_path_ok(sr) && !run_dir_names(summary, sr)) {
             snprintf(path, sizeof path, "%s/%s", dir, sr);
             if (unlink(path) == 0)
                 removed++;

@@ -28,6 +28,12 @@ int pb_json_write_atomic(const char *path, const json_t *doc);
  * dir/series/<id>.csv atomically; 0 or -1. */
 int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res);
 
+/* 1 if rel, a case's "series" entry, names a file below the run's series/
+ * folder ("series/<file-safe id>.csv"): the only paths report, merge and
+ * prune will read, copy or remove, so a doctored summary cannot point them
+ * at another file. */
+int pb_series_path_ok(const char *rel);
+
 /* The summary.json already in dir if propbench wrote it (new reference),
  * else NULL: read before a run writes, so that only an earlier propbench
  * run is ever cleaned up and a user's own folder given as --out never is. */

@@ -13,6 +13,7 @@
 #include <fcntl.h>
 #include <unistd.h>
 #include "test_support.h"
+#include "../bench/run_dir.h"
 #include "../bench/report_data.h"
 #include "../bench/report_gp.h"
 #include "../bench/report_table.h"
@@ -124,6 +125,32 @@ Test(report, bad_summary_exit_2_naming_the_file)
     fclose(f);
     cr_assert_eq(rpt_report(dir, NULL, err, sizeof err), 2);
     cr_assert(strstr(err, "cases[0]") && strstr(err, "tolerance"), "%s", err);
+}
+
+/* A summary whose "series" points outside its series/ folder is refused
+ * before anything is read or written: report would otherwise read (and
+ * quote in a warning) any file the doctored path names. */
+Test(report, series_path_outside_the_run_is_refused)
+{
+    static const char *const bad[] = {"../../../../etc/passwd", "series/../summary.json",
+                                      "/etc/passwd", "series/a/b.csv", "series/.csv", "series/x.txt"};
+    for (size_t k = 0; k < sizeof bad / sizeof bad[0]; k++) {
+        char dir[256], path[400], out[2048], err[4096];
+        pbt_tmpdir(dir, sizeof dir);
+        snprintf(path, sizeof path, "%s/summary.json", dir);
+        FILE *f = fopen(path, "w");
+        cr_assert_not_null(f);
+        fprintf(f, "{\"format\": 1, \"cases\": [{\"id\": \"a\", \"problem\": \"p\", \"method\": \"m\",\n"
+                   " \"series\": \"%s\", \"status\": \"crashed\"}]}\n", bad[k]);
+        fclose(f);
+        const char *args[] = {"report", dir, "--quiet", "--no-plots", NULL};
+        cr_assert_eq(pbt_run_cli(args, out, sizeof out, err, sizeof err), 2, "%s: %s", bad[k], err);
+        cr_assert(strstr(err, "cases[0]") && strstr(err, "not a file below series/"), "%s: %s", bad[k], err);
+        cr_assert(!strstr(err, "root:"), "%s", err);
+        snprintf(path, sizeof path, "%s/report.html", dir);
+        cr_assert(!pbt_exists(path), "%s written for %s", path, bad[k]);
+    }
+    cr_assert(pb_series_path_ok("series/kepler-e0.6__rkf45__tol1e-08__o100.csv"));
 }
 
 Test(report, gnuplot_missing_still_writes_data_and_scripts)
