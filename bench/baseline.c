@@ -80,10 +80,62 @@ static const char *baseline_numbers_bad(const json_t *m, const json_t *n)
     return NULL;
 }
 
-/* Every case an object with a unique string id and a string status. */
-static int baseline_cases_ok(const char *path, const json_t *d, int is_baseline, char *err,
-                             size_t errlen)
+/* The compared key missing from a finished case (any status but "crashed"),
+ * or NULL. pb_case_to_json writes every metric (null when not finite or not
+ * meaningful), both growth classes, the counts and the fingerprint whatever
+ * the status (ok, diverged, max_steps); a crashed case has only its
+ * settings. A key skipped here would silently drop out of the comparison. */
+static const char *baseline_key_missing(const json_t *m, const json_t *n, const char **group,
+                                        const char *mname, const char *nname)
 {
+    *group = mname;
+    for (const char *const *k = pb_check_metrics; *k; k++)
+        if (!json_object_get(m, *k))
+            return *k;
+    for (const char *const *k = baseline_classes; *k; k++)
+        if (!json_is_string(json_object_get(m, *k)))
+            return *k;
+    *group = nname;
+    for (const char *const *k = baseline_counts; *k; k++)
+        if (!json_object_get(n, *k))
+            return *k;
+    return NULL;
+}
+
+/* A baseline case's "scale" (the floor's unit) must hold a finite positive
+ * length and speed: 0 would remove the floor, a missing one silently
+ * tighten it. 0, or -1 with "key ..." text in why. */
+static int baseline_scale_ok(const json_t *c, char *why, size_t len)
+{
+    const json_t *sc = json_object_get(c, "scale");
+    if (!json_is_object(sc)) {
+        snprintf(why, len, "key 'scale' missing");
+        return -1;
+    }
+    static const char *const keys[] = {"length", "speed"};
+    for (int i = 0; i < 2; i++) {
+        const json_t *v = json_object_get(sc, keys[i]);
+        if (!json_is_number(v) || !isfinite(json_number_value(v)) || json_number_value(v) <= 0) {
+            char got[48] = "missing";
+            if (json_is_number(v))
+                snprintf(got, sizeof got, "%g", json_number_value(v));
+            snprintf(why, len, "key 'scale.%s' must be a positive finite number, got %s", keys[i],
+                     got);
+            return -1;
+        }
+    }
+    return 0;
+}
+
+/* What the cases of a document are checked for. */
+enum { CASES_SUMMARY = 0, CASES_BASELINE = 1, CASES_SUMMARY_COMPLETE = 2 };
+
+/* Every case an object with a unique string id and a string status; in a
+ * baseline, or a summary checked for completeness, every finished case with
+ * all the keys the comparison reads. */
+static int baseline_cases_ok(const char *path, const json_t *d, int mode, char *err, size_t errlen)
+{
+    int is_baseline = mode == CASES_BASELINE;
     json_t *cs = json_object_get(d, "cases");
     if (!json_is_array(cs)) {
         snprintf(err, errlen, "%s: corrupt: no array 'cases'", path);
@@ -109,8 +161,9 @@ static int baseline_cases_ok(const char *path, const json_t *d, int is_baseline,
             why = "lacks 'settings', 'metrics', 'counts' or 'fingerprint'";
         if (!why && is_baseline)
             why = baseline_numbers_bad(json_object_get(c, "metrics"), json_object_get(c, "counts"));
-        if (!why && !is_baseline &&
-            strcmp(json_string_value(json_object_get(c, "status")), "crashed") != 0) {
+        int finished = why == NULL &&
+                       strcmp(json_string_value(json_object_get(c, "status")), "crashed") != 0;
+        if (finished && !is_baseline) {
             /* a finished case of a run: metrics and cost as the writer makes them */
             json_t *m = json_object_get(c, "metrics"), *n = json_object_get(c, "cost");
             why = (!json_is_object(m) || !json_is_object(n)) ? "lacks the objects 'metrics' or 'cost'"
@@ -122,10 +175,38 @@ static int baseline_cases_ok(const char *path, const json_t *d, int is_baseline,
             rc = -1;
             break;
         }
+        const char *group = NULL, *key = NULL;
+        if (finished && mode != CASES_SUMMARY)
+            key = baseline_key_missing(json_object_get(c, "metrics"),
+                                       json_object_get(c, is_baseline ? "counts" : "cost"), &group,
+                                       "metrics", is_baseline ? "counts" : "cost");
+        if (!key && finished && mode == CASES_SUMMARY_COMPLETE &&
+            !json_is_string(json_object_get(c, "fingerprint"))) {
+            key = "fingerprint";
+            group = NULL;
+        }
+        if (key) {
+            snprintf(err, errlen, "%s: case %s: key '%s' missing%s%s%s (every '%s' case has it)",
+                     path, id, key, group ? " from '" : "", group ? group : "", group ? "'" : "",
+                     json_string_value(json_object_get(c, "status")));
+            rc = -1;
+            break;
+        }
+        char sw[160];
+        if (is_baseline && baseline_scale_ok(c, sw, sizeof sw)) {
+            snprintf(err, errlen, "%s: case %s: %s", path, id, sw);
+            rc = -1;
+            break;
+        }
         json_object_set_new(seen, id, json_true());
     }
     json_decref(seen);
     return rc;
+}
+
+int pb_summary_complete(const char *path, const json_t *doc, char *err, size_t errlen)
+{
+    return baseline_cases_ok(path, doc, CASES_SUMMARY_COMPLETE, err, errlen);
 }
 
 int pb_summary_load(const char *path, json_t **out, char *err, size_t errlen)
@@ -135,7 +216,7 @@ int pb_summary_load(const char *path, json_t **out, char *err, size_t errlen)
     if (!d)
         return -1;
     if (!json_is_object(d) || baseline_format_ok(path, d, 1, "run summary", err, errlen) ||
-        baseline_cases_ok(path, d, 0, err, errlen)) {
+        baseline_cases_ok(path, d, CASES_SUMMARY, err, errlen)) {
         if (!json_is_object(d))
             snprintf(err, errlen, "%s: not a run summary (not a JSON object)", path);
         json_decref(d);
@@ -159,7 +240,7 @@ int pb_baseline_load(const char *path, json_t **out, char *err, size_t errlen)
         return -1;
     }
     if (baseline_format_ok(path, d, PB_BASELINE_FORMAT, "baseline", err, errlen) ||
-        baseline_cases_ok(path, d, 1, err, errlen)) {
+        baseline_cases_ok(path, d, CASES_BASELINE, err, errlen)) {
         json_decref(d);
         return -1;
     }
@@ -390,7 +471,7 @@ static int check_metrics(pb_check_report *r, const char *id, const json_t *bc, c
     static const char *const cls_text[] = {"below ref floor", "", "null"};
     for (const char *const *k = pb_check_metrics; *k; k++) {
         if (!json_object_get(bm, *k))
-            continue; /* not measured in the baseline (crashed case, older file) */
+            continue; /* not measured in the baseline (a crashed case; the loader refuses others) */
         double b, x;
         int cb = check_value(bm, *k, &b), cx = check_value(rm, *k, &x);
         double t = check_tolerance(o, *k), f = check_floor(o, bc, *k);

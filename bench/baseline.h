@@ -19,6 +19,14 @@
  * 0, or -1 with a message naming path in err. */
 int pb_summary_load(const char *path, json_t **out, char *err, size_t errlen);
 
+/* Whether every finished case (any status but "crashed") of a loaded summary
+ * has every key the comparison reads (metrics, growth classes, counts,
+ * fingerprint), as pb_case_to_json always writes them; the basic checks of
+ * pb_summary_load as well. For baseline, check and merge, which must not
+ * skip a value silently. 0, or -1 with a message naming path, the case id
+ * and the key in err. */
+int pb_summary_complete(const char *path, const json_t *doc, char *err, size_t errlen);
+
 /* New reference: the baseline document of a loaded summary (each case's
  * settings, status, accuracy metrics, counts, timing, fingerprint and
  * scale; the summary's machine and build). NULL when out of memory. */

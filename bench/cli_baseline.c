@@ -44,6 +44,10 @@ int pb_cli_baseline(int argc, char **argv)
     json_t *summary;
     if (pb_summary_load(path, &summary, err, sizeof err))
         return pb_cli_error("baseline", "%s", err);
+    if (pb_summary_complete(path, summary, err, sizeof err)) {
+        json_decref(summary);
+        return pb_cli_error("baseline", "%s", err);
+    }
     if (json_array_size(json_object_get(summary, "cases")) == 0) {
         /* `check` refuses such a baseline, so do not write one */
         json_decref(summary);

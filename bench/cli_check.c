@@ -280,7 +280,8 @@ int pb_cli_check(int argc, char **argv)
     pb_check_report r = {0};
     int rc = PB_EXIT_USAGE;
     if (pb_baseline_load(base_path, &base, err, sizeof err) ||
-        pb_summary_load(run_path, &summary, err, sizeof err)) {
+        pb_summary_load(run_path, &summary, err, sizeof err) ||
+        pb_summary_complete(run_path, summary, err, sizeof err)) {
         pb_cli_error("check", "%s", err);
         goto out;
     }

@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "cli.h"
+#include "baseline.h"
 #include "case_json.h"
 #include "run_dir.h"
 #include "sweep.h"
@@ -68,6 +69,11 @@ int pb_cli_merge(int argc, char **argv)
         json_t *fmt = json_object_get(docs[i], "format");
         if (!json_is_integer(fmt) || json_integer_value(fmt) != PB_SUMMARY_FORMAT) {
             pb_cli_error("merge", "%s: key 'format': expected %d", path, PB_SUMMARY_FORMAT);
+            goto out;
+        }
+        char why[1024];
+        if (pb_summary_complete(path, docs[i], why, sizeof why)) {
+            pb_cli_error("merge", "%s", why);
             goto out;
         }
         json_t *tc = json_object_get(docs[i], "total_cases");

@@ -360,6 +360,86 @@ Test(check, empty_cases_exit_2_in_baseline_and_check)
     cr_assert_eq(ctx.out[0], 0, "nothing compared, nothing printed: %s", ctx.out);
 }
 
+static void edit_no_pos_err(json_t *cs)
+{
+    json_object_del(json_object_get(pbc_case(cs, "rk4"), "metrics"), "pos_err_max");
+}
+
+static void edit_crashed(json_t *cs)
+{
+    /* what pb_case_crashed_json writes: settings and status, no results */
+    json_t *c = pbc_case(cs, "leapfrog");
+    json_object_set_new(c, "status", json_string("crashed"));
+    json_object_del(c, "metrics");
+    json_object_del(c, "cost");
+    json_object_del(c, "fingerprint");
+}
+
+/* Edit the baseline file in place. */
+static void pbc_base_edit(const char *path, void (*edit)(json_t *case0))
+{
+    json_t *b = json_load_file(path, 0, NULL);
+    cr_assert_not_null(b);
+    edit(json_array_get(json_object_get(b, "cases"), 0));
+    cr_assert_eq(json_dump_file(b, path, 0), 0);
+    json_decref(b);
+}
+
+static void base_no_energy(json_t *c) { json_object_del(json_object_get(c, "metrics"), "energy_rel_max"); }
+static void base_no_scale(json_t *c) { json_object_del(c, "scale"); }
+static void base_zero_scale(json_t *c)
+{
+    json_object_set_new(json_object_get(c, "scale"), "length", json_real(0));
+}
+
+Test(check, missing_keys_exit_2_naming_file_case_and_key)
+{
+    char id0[200];
+    json_t *b = json_load_file(ctx.base, 0, NULL);
+    cr_assert_not_null(b);
+    snprintf(id0, sizeof id0, "%s",
+             json_string_value(json_object_get(json_array_get(json_object_get(b, "cases"), 0), "id")));
+    json_decref(b);
+    const char *rk4 = "kepler-e0.6__rk4__n200__o10";
+
+    /* a run summary without pos_err_max: baseline, check and merge refuse it */
+    const char *d = pbc_doctor(&ctx, "nopos", edit_no_pos_err);
+    char summary[200], out[200];
+    snprintf(summary, sizeof summary, "%s/summary.json", d);
+    snprintf(out, sizeof out, "%s/nopos.json", ctx.dir);
+    char *bl[] = {(char *)pbc_bin(), "baseline", (char *)d, "--out", out, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, bl), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
+    cr_assert_not(pbt_exists(out));
+    cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
+    snprintf(out, sizeof out, "%s/merged", ctx.dir);
+    char *mg[] = {(char *)pbc_bin(), "merge", "--out", out, (char *)d, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, mg), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
+
+    /* a crashed case has no results at all and is still a valid run */
+    d = pbc_doctor(&ctx, "crashed", edit_crashed);
+    snprintf(out, sizeof out, "%s/crashed.json", ctx.dir);
+    char *bc[] = {(char *)pbc_bin(), "baseline", (char *)d, "--out", out, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, bc), 0, "%s", ctx.err);
+
+    /* a baseline without a metric, without a scale, with a zero scale */
+    pbc_base_edit(ctx.base, base_no_energy);
+    cr_assert_eq(pbc_check(&ctx, ctx.run, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, ctx.base, id0, "key 'energy_rel_max' missing"), "%s", ctx.err);
+    char *rb[] = {(char *)pbc_bin(), "baseline", ctx.run, "--out", ctx.base, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, rb), 0, "%s", ctx.err);
+    pbc_base_edit(ctx.base, base_no_scale);
+    cr_assert_eq(pbc_check(&ctx, ctx.run, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, ctx.base, id0, "key 'scale' missing"), "%s", ctx.err);
+    cr_assert_eq(pbc_spawn(&ctx, rb), 0, "%s", ctx.err);
+    pbc_base_edit(ctx.base, base_zero_scale);
+    cr_assert_eq(pbc_check(&ctx, ctx.run, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, ctx.base, id0, "key 'scale.length' must be a positive finite number, got 0"),
+              "%s", ctx.err);
+}
+
 /* ---- JUnit XML and Markdown ---- */
 
 static void edit_for_junit(json_t *cs)
