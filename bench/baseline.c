@@ -356,9 +356,9 @@ int pb_check_options_metric(pb_check_options *o, const char *arg, char *err, siz
     char *end;
     errno = 0;
     double t = strtod(eq + 1, &end);
-    if (end == eq + 1 || *end || errno || !isfinite(t) || t < 0) {
-        snprintf(err, errlen, "--metric-tolerance %s: expects a relative tolerance >= 0, got '%s'",
-                 *k, eq + 1);
+    if (end == eq + 1 || *end || errno || !isfinite(t) || t < 0 || t > PB_CHECK_TOLERANCE_MAX) {
+        snprintf(err, errlen, "--metric-tolerance %s: expects a relative tolerance from 0 to %g, "
+                 "got '%s'", *k, PB_CHECK_TOLERANCE_MAX, eq + 1);
         return -1;
     }
     int i = 0;

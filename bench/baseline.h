@@ -14,6 +14,15 @@
 #define PB_CHECK_FLOOR 1e-14      /* round-off floor, relative to the case's scale */
 #define PB_CHECK_TIMING_RATIO 1.5
 #define PB_CHECK_METRIC_MAX 16
+/* Limits of the options: beyond them the gate passes anything. A tolerance
+ * of 100 already lets a metric get 101 times worse, far past any method or
+ * build change one would accept without a look (0 is sane: bit-identical
+ * reruns, only the floor left); a floor of 1e-3 of the orbit's size is a
+ * kilometre-class error on an Earth orbit, far above round-off; a timing
+ * ratio of 100 is two orders of magnitude slower. */
+#define PB_CHECK_TOLERANCE_MAX 100.0
+#define PB_CHECK_FLOOR_MAX 1e-3
+#define PB_CHECK_TIMING_RATIO_MAX 100.0
 
 /* Read and validate a run's summary.json (format 1) into *out (caller owns).
  * 0, or -1 with a message naming path in err. */
@@ -82,7 +91,8 @@ typedef struct pb_check_report {
 void pb_check_options_default(pb_check_options *o);
 
 /* Parse "NAME=REL" into an override; 0, or -1 with a message in err (unknown
- * metric name, bad number, too many overrides). */
+ * metric name, bad number or one outside [0, PB_CHECK_TOLERANCE_MAX], too
+ * many overrides). */
 int pb_check_options_metric(pb_check_options *o, const char *arg, char *err, size_t errlen);
 
 /* Compare run (a baseline document made from the run's summary) with base.

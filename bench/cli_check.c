@@ -23,17 +23,19 @@ static void check_help(FILE *f)
 "                     run > (1 + REL) * baseline + floor; the floor (default\n"
 "                     %g, relative to the orbit's size or speed for positions\n"
 "                     and velocities) keeps round-off noise from flagging\n"
+"                     (REL from 0 to %g, the floor from 0 to %g)\n"
 "  --metric-tolerance NAME=REL  another tolerance for one metric (repeatable)\n"
 "  status, settings, steps, evals, rejected, startup_steps   must not change\n"
 "  --timing           also compare ns per step; regression when the run is\n"
-"                     slower by more than the ratio R (default %g)\n"
+"                     slower by more than the ratio R (default %g, at most %g)\n"
 "  fingerprints       bit changes are reported; --strict makes them fail\n"
 "  cases              missing from the run: regression; new ones: listed\n"
 "Compiler, build flags or machine differing from the baseline's: a warning.\n"
 "  --junit FILE       JUnit XML, one test case per case and metric\n"
 "  --markdown FILE    a summary for a CI page\n\n"
 "exit status: 0 no regression, 1 regression, 2 bad, corrupt or incompatible files\n",
-            PB_CHECK_TOLERANCE, PB_CHECK_FLOOR, PB_CHECK_TIMING_RATIO);
+            PB_CHECK_TOLERANCE, PB_CHECK_FLOOR, PB_CHECK_TOLERANCE_MAX, PB_CHECK_FLOOR_MAX,
+            PB_CHECK_TIMING_RATIO, PB_CHECK_TIMING_RATIO_MAX);
 }
 
 static int check_rank(pb_check_verdict v)
@@ -243,8 +245,9 @@ int pb_cli_check(int argc, char **argv)
         case O_TOL:
             if (pb_cli_double("check", "--tolerance", optarg, &o.tolerance))
                 return PB_EXIT_USAGE;
-            if (o.tolerance < 0)
-                return pb_cli_error("check", "--tolerance must be >= 0, got '%s'", optarg);
+            if (o.tolerance < 0 || o.tolerance > PB_CHECK_TOLERANCE_MAX)
+                return pb_cli_error("check", "--tolerance must be from 0 to %g, got '%s'",
+                                    PB_CHECK_TOLERANCE_MAX, optarg);
             break;
         case O_MTOL:
             if (pb_check_options_metric(&o, optarg, err, sizeof err))
@@ -253,15 +256,17 @@ int pb_cli_check(int argc, char **argv)
         case O_FLOOR:
             if (pb_cli_double("check", "--floor", optarg, &o.floor))
                 return PB_EXIT_USAGE;
-            if (o.floor < 0)
-                return pb_cli_error("check", "--floor must be >= 0, got '%s'", optarg);
+            if (o.floor < 0 || o.floor > PB_CHECK_FLOOR_MAX)
+                return pb_cli_error("check", "--floor must be from 0 to %g, got '%s'",
+                                    PB_CHECK_FLOOR_MAX, optarg);
             break;
         case O_TIMING: o.timing = 1; break;
         case O_RATIO:
             if (pb_cli_double("check", "--timing-ratio", optarg, &o.timing_ratio))
                 return PB_EXIT_USAGE;
-            if (o.timing_ratio < 1)
-                return pb_cli_error("check", "--timing-ratio must be >= 1, got '%s'", optarg);
+            if (o.timing_ratio < 1 || o.timing_ratio > PB_CHECK_TIMING_RATIO_MAX)
+                return pb_cli_error("check", "--timing-ratio must be from 1 to %g, got '%s'",
+                                    PB_CHECK_TIMING_RATIO_MAX, optarg);
             o.timing = 1;
             break;
         case O_STRICT: o.strict = 1; break;

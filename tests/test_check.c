@@ -440,6 +440,31 @@ Test(check, missing_keys_exit_2_naming_file_case_and_key)
               "%s", ctx.err);
 }
 
+Test(check, options_beyond_sane_limits_exit_2)
+{
+    /* limits from baseline.h (our choice): a tolerance above 100 (101 times
+     * worse) or a floor above 1e-3 of the orbit's size passes anything */
+    static const char *const bad[][3] = {
+        {"--tolerance", "1e300", "--tolerance must be from 0 to 100, got '1e300'"},
+        {"--tolerance", "100.5", "--tolerance must be from 0 to 100, got '100.5'"},
+        {"--metric-tolerance", "energy_rel_max=1e300",
+         "--metric-tolerance energy_rel_max: expects a relative tolerance from 0 to 100, got '1e300'"},
+        {"--floor", "1e300", "--floor must be from 0 to 0.001, got '1e300'"},
+        {"--floor", "0.002", "--floor must be from 0 to 0.001, got '0.002'"},
+        {"--timing-ratio", "1e300", "--timing-ratio must be from 1 to 100, got '1e300'"},
+    };
+    for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
+        cr_assert_eq(pbc_check(&ctx, ctx.run, bad[i][0], bad[i][1], NULL), 2, "%s %s: %s%s",
+                     bad[i][0], bad[i][1], ctx.out, ctx.err);
+        cr_assert(pbc_line_has(ctx.err, "propbench check: error:", bad[i][2], ""), "%s", ctx.err);
+        cr_assert_eq(ctx.out[0], 0, "nothing compared: %s", ctx.out);
+    }
+    /* the limits themselves are accepted */
+    cr_assert_eq(pbc_check(&ctx, ctx.run, "--tolerance", "100", NULL), 0, "%s", ctx.err);
+    cr_assert_eq(pbc_check(&ctx, ctx.run, "--floor", "1e-3", NULL), 0, "%s", ctx.err);
+    cr_assert_eq(pbc_check(&ctx, ctx.run, "--metric-tolerance", "pos_err_max=0", NULL), 0, "%s", ctx.err);
+}
+
 /* ---- JUnit XML and Markdown ---- */
 
 static void edit_for_junit(json_t *cs)
