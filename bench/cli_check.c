@@ -1,11 +1,13 @@
 /* cli_check.c - `propbench check --baseline FILE RUN_DIR`: compare a run
  * with a baseline (rules in baseline.h), print a table, optionally write
  * JUnit XML and a Markdown summary. Exit 0 pass, 1 regression, 2 bad input. */
+#include <errno.h>
 #include <getopt.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 #include "cli.h"
 #include "baseline.h"
 #include "junit.h"
@@ -284,6 +286,8 @@ int pb_cli_check(int argc, char **argv)
     json_t *base = NULL, *summary = NULL, *run = NULL;
     pb_check_report r = {0};
     int rc = PB_EXIT_USAGE;
+    char jtmp[4200] = "", mtmp[4200] = "";
+    const char *jdone = NULL;   /* a report already renamed into place */
     if (pb_baseline_load(base_path, &base, err, sizeof err) ||
         pb_summary_load(run_path, &summary, err, sizeof err) ||
         pb_summary_complete(run_path, summary, err, sizeof err)) {
@@ -304,16 +308,39 @@ int pb_cli_check(int argc, char **argv)
     check_print_details(stdout, &r);
     printf("\n");
     check_print_totals(stdout, &r, &o);
-    if (junit && check_junit(junit, &r)) {
+    /* both reports under temporary names first, renamed only when both are
+     * written: a failed invocation (exit 2) leaves neither behind */
+    if (junit)
+        snprintf(jtmp, sizeof jtmp, "%s.part.%ld", junit, (long)getpid());
+    if (md)
+        snprintf(mtmp, sizeof mtmp, "%s.part.%ld", md, (long)getpid());
+    if (junit && check_junit(jtmp, &r)) {
         pb_cli_error("check", "%s: cannot write the JUnit report", junit);
         goto out;
     }
-    if (md && check_markdown(md, &r, &o, base_path, run_path)) {
+    if (md && check_markdown(mtmp, &r, &o, base_path, run_path)) {
         pb_cli_error("check", "%s: cannot write the Markdown summary", md);
+        goto out;
+    }
+    if (junit && rename(jtmp, junit)) {
+        pb_cli_error("check", "%s: cannot write the JUnit report: %s", junit, strerror(errno));
+        goto out;
+    }
+    jdone = junit;
+    if (md && rename(mtmp, md)) {
+        pb_cli_error("check", "%s: cannot write the Markdown summary: %s", md, strerror(errno));
         goto out;
     }
     rc = pb_check_failed(&r, &o) ? PB_EXIT_FAIL : PB_EXIT_OK;
 out:
+    if (rc == PB_EXIT_USAGE) {
+        if (*jtmp)
+            unlink(jtmp);
+        if (*mtmp)
+            unlink(mtmp);
+        if (jdone)
+            unlink(jdone);
+    }
     pb_check_report_free(&r);
     json_decref(run);
     json_decref(summary);

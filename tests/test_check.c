@@ -511,6 +511,49 @@ Test(check, junit_is_well_formed_one_testcase_per_case_and_metric)
     cr_assert(strstr(text, "| kepler-e0.6__rk4__n200__o10 | pos_err_max |"), "%s", text);
 }
 
+/* Number of entries of dir other than . and .. */
+static int pbc_entries(const char *dir)
+{
+    char *ls[] = {"ls", "-A", (char *)dir, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, ls), 0, "%s", ctx.err);
+    int n = 0;
+    for (const char *p = ctx.out; *p; p++)
+        n += *p == '\n';
+    return n;
+}
+
+Test(check, failed_report_leaves_no_output_file)
+{
+    /* on exit 2 nothing this invocation wrote may stay: the JUnit file is not
+     * left when the Markdown one cannot be written, nor the other way round */
+    char d[200], xml[240], md[240], badxml[240], badmd[240];
+    snprintf(d, sizeof d, "%s/reports", ctx.dir);
+    cr_assert_eq(mkdir(d, 0755), 0);
+    snprintf(xml, sizeof xml, "%s/j.xml", d);
+    snprintf(md, sizeof md, "%s/x.md", d);
+    snprintf(badxml, sizeof badxml, "%s/no-such-dir/j.xml", ctx.dir);
+    snprintf(badmd, sizeof badmd, "%s/no-such-dir/x.md", ctx.dir);
+    char *a1[] = {(char *)pbc_bin(), "check", "--baseline", ctx.base, ctx.run, "--junit", xml,
+                  "--markdown", badmd, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, a1), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, "propbench check: error:", badmd,
+                           "cannot write the Markdown summary"), "%s", ctx.err);
+    cr_assert_not(pbt_exists(xml), "%s was left", xml);
+    cr_assert_eq(pbc_entries(d), 0, "a temporary file was left: %s", ctx.out);
+    char *a2[] = {(char *)pbc_bin(), "check", "--baseline", ctx.base, ctx.run, "--junit", badxml,
+                  "--markdown", md, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, a2), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, "propbench check: error:", badxml,
+                           "cannot write the JUnit report"), "%s", ctx.err);
+    cr_assert_eq(pbc_entries(d), 0, "a file was left: %s", ctx.out);
+    /* both writable: both written */
+    char *a3[] = {(char *)pbc_bin(), "check", "--baseline", ctx.base, ctx.run, "--junit", xml,
+                  "--markdown", md, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, a3), 0, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbt_exists(xml) && pbt_exists(md));
+    cr_assert_eq(pbc_entries(d), 2, "%s", ctx.out);
+}
+
 Test(check, junit_escape_unit)
 {
     char out[64];
