@@ -60,10 +60,21 @@ int pb_cli_merge(int argc, char **argv)
     for (int i = 0; i < nshards; i++) {
         char path[4200];
         snprintf(path, sizeof path, "%s/summary.json", argv[optind + i]);
+        /* opened here so that a missing shard gets errno's words, not
+         * jansson's line -1 */
+        FILE *f = fopen(path, "rb");
+        if (!f) {
+            pb_cli_error("merge", "cannot read %s: %s", path, strerror(errno));
+            goto out;
+        }
         json_error_t e;
-        docs[i] = json_load_file(path, 0, &e);
+        docs[i] = json_loadf(f, 0, &e);
+        fclose(f);
         if (!docs[i]) {
-            pb_cli_error("merge", "%s:%d: cannot read: %s", path, e.line, e.text);
+            if (e.line > 0)
+                pb_cli_error("merge", "%s:%d: cannot read: %s", path, e.line, e.text);
+            else
+                pb_cli_error("merge", "cannot read %s: %s", path, e.text);
             goto out;
         }
         json_t *fmt = json_object_get(docs[i], "format");

@@ -4,6 +4,7 @@
  * XML parsed by xmllint, and bit-for-bit reproducible fingerprints. */
 #include <criterion/criterion.h>
 #include <jansson.h>
+#include <errno.h>
 #include <fcntl.h>
 #include <spawn.h>
 #include <stdio.h>
@@ -463,6 +464,22 @@ Test(check, options_beyond_sane_limits_exit_2)
     cr_assert_eq(pbc_check(&ctx, ctx.run, "--tolerance", "100", NULL), 0, "%s", ctx.err);
     cr_assert_eq(pbc_check(&ctx, ctx.run, "--floor", "1e-3", NULL), 0, "%s", ctx.err);
     cr_assert_eq(pbc_check(&ctx, ctx.run, "--metric-tolerance", "pos_err_max=0", NULL), 0, "%s", ctx.err);
+}
+
+Test(check, merge_names_a_missing_shard_without_a_line)
+{
+    /* a shard directory without summary.json: the file and the system's
+     * reason (ENOENT), no line number (there is none) */
+    char shard[200], out[200], msg[600];
+    snprintf(shard, sizeof shard, "%s/empty-shard", ctx.dir);
+    snprintf(out, sizeof out, "%s/merged", ctx.dir);
+    cr_assert_eq(mkdir(shard, 0755), 0);
+    char *mg[] = {(char *)pbc_bin(), "merge", "--out", out, shard, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, mg), 2, "%s%s", ctx.out, ctx.err);
+    snprintf(msg, sizeof msg, "propbench merge: error: cannot read %s/summary.json: %s\n", shard,
+             strerror(ENOENT));
+    cr_assert_str_eq(ctx.err, msg);
+    cr_assert_not(strstr(ctx.err, ":-1"), "%s", ctx.err);
 }
 
 /* ---- JUnit XML and Markdown ---- */
