@@ -4,6 +4,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 #include "cli.h"
 #include "case_json.h"
 #include "harness.h"
@@ -42,11 +43,14 @@ int pb_cli_run(int argc, char **argv)
     else
         snprintf(dir, sizeof dir, "results/runs/%s", id);
 
+    if (pb_run_dir_prepare(dir, err, sizeof err))
+        return pb_cli_error("run", "%s", err);
     json_t *previous = pb_run_dir_previous(dir); /* before this run writes anything */
     pb_case_result res;
     int s = pb_case_run(&spec, &res);
     if (s) {
         json_decref(previous);
+        pb_run_dir_unprepare(dir);
         return pb_cli_error("run", "case %s could not be run: %s", id, pb_strerror(s));
     }
     if (!o.quiet)
@@ -56,7 +60,14 @@ int pb_cli_run(int argc, char **argv)
     json_t *doc = pb_summary_new(cases);
     char path[4200];
     snprintf(path, sizeof path, "%s/summary.json", dir);
-    int bad = pb_mkdirs(dir) || pb_series_write(dir, &spec, &res) || pb_json_write_atomic(path, doc);
+    int bad = pb_series_write(dir, &spec, &res);
+    if (!bad && pb_json_write_atomic(path, doc)) {
+        /* a series without its summary is a half-written result */
+        char series[4200 + PB_CASE_ID_MAX];
+        snprintf(series, sizeof series, "%s/series/%s.csv", dir, res.id);
+        unlink(series);
+        bad = 1;
+    }
     int pruned = bad ? 0 : pb_run_dir_prune(dir, previous, doc);
     json_decref(previous);
     if (pruned && !o.quiet)
@@ -64,6 +75,7 @@ int pb_cli_run(int argc, char **argv)
     json_decref(doc);
     if (bad) {
         pb_case_result_free(&res);
+        pb_run_dir_unprepare(dir);
         fprintf(stderr, "propbench run: error: cannot write the run directory %s\n", dir);
         return PB_EXIT_USAGE;
     }

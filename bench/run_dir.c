@@ -30,7 +30,49 @@ int pb_mkdirs(const char *path)
     }
     if (mkdir(buf, 0777) && errno != EEXIST)
         return -1;
+    /* EEXIST alone could be a file of that name, which no write below
+     * could get through */
+    struct stat st;
+    if (stat(buf, &st))
+        return -1;
+    if (!S_ISDIR(st.st_mode)) {
+        errno = ENOTDIR;
+        return -1;
+    }
     return 0;
+}
+
+int pb_run_dir_prepare(const char *dir, char *err, size_t errlen)
+{
+    char sdir[4200], sum[4200];
+    snprintf(sdir, sizeof sdir, "%s/series", dir);
+    snprintf(sum, sizeof sum, "%s/summary.json", dir);
+    const char *bad = pb_mkdirs(dir) ? dir : pb_mkdirs(sdir) ? sdir : NULL;
+    if (bad) {
+        snprintf(err, errlen, "cannot create the folder %s: %s", bad, strerror(errno));
+        return -1;
+    }
+    struct stat st;
+    if (!stat(sum, &st) && !S_ISREG(st.st_mode)) {
+        snprintf(err, errlen, "%s is there and is not a file: the summary could not be written", sum);
+        pb_run_dir_unprepare(dir);
+        return -1;
+    }
+    if (access(dir, W_OK | X_OK) || access(sdir, W_OK | X_OK)) {
+        snprintf(err, errlen, "cannot write in %s: %s", access(dir, W_OK | X_OK) ? dir : sdir,
+                 strerror(errno));
+        pb_run_dir_unprepare(dir);
+        return -1;
+    }
+    return 0;
+}
+
+void pb_run_dir_unprepare(const char *dir)
+{
+    char sdir[4200];
+    snprintf(sdir, sizeof sdir, "%s/series", dir);
+    rmdir(sdir);
+    rmdir(dir);
 }
 
 int pb_write_atomic(const char *path, const char *data, size_t len)

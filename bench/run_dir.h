@@ -10,8 +10,20 @@
 #include <jansson.h>
 #include "case.h"
 
-/* mkdir -p; 0 or -1 with errno. */
+/* mkdir -p; 0, or -1 with errno (ENOTDIR when path is there but is not a
+ * directory). */
 int pb_mkdirs(const char *path);
+
+/* Before any case runs: make dir and dir/series, and check that
+ * dir/summary.json is absent or a plain file and that dir can be written,
+ * so a run never computes for minutes and then fails to write, or leaves
+ * series behind a summary it could not write. 0, or -1 with a one-line
+ * reason (naming the path) in err. */
+int pb_run_dir_prepare(const char *dir, char *err, size_t errlen);
+
+/* Undo pb_run_dir_prepare where nothing was written: remove dir/series and
+ * dir if they are empty (a folder that holds anything is left alone). */
+void pb_run_dir_unprepare(const char *dir);
 
 /* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1. */
 int pb_write_atomic(const char *path, const char *data, size_t len);

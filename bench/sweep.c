@@ -140,8 +140,11 @@ static json_t *sweep_collect(const char *work, int i, const pb_case_spec *spec, 
         char from[8400], to[8400];
         snprintf(from, sizeof from, "%s/%s", work, series);
         snprintf(to, sizeof to, "%s/%s", dir, series);
-        if (rename(from, to))
+        if (rename(from, to)) {
+            fprintf(stderr, "propbench sweep: warning: cannot move %s to %s: %s; the case has no series\n",
+                    from, to, strerror(errno));
             json_object_del(o, "series");
+        }
     }
     return o;
 }
@@ -199,14 +202,18 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
     sigdelset(&waiting, SIGTERM);
     sigdelset(&waiting, SIGCHLD);
     json_t *previous = pb_run_dir_previous(dir); /* before this sweep writes anything */
-    char work[4200], sdir[4200];
+    char work[4200];
     snprintf(work, sizeof work, "%s/.work.%ld", dir, (long)getpid());
-    snprintf(sdir, sizeof sdir, "%s/series", dir);
     int *mine = NULL, *exited_ok = NULL, *slot_case = NULL;
     pid_t *pids = NULL;
     int rc = -1;
-    if (pb_mkdirs(dir) || pb_mkdirs(sdir) || pb_mkdirs(work)) {
-        fprintf(stderr, "propbench sweep: error: cannot create %s: %s\n", work, strerror(errno));
+    char why[4400];
+    if (pb_run_dir_prepare(dir, why, sizeof why)) {
+        fprintf(stderr, "propbench sweep: error: %s\n", why);
+        goto restore;
+    }
+    if (pb_mkdirs(work)) {
+        fprintf(stderr, "propbench sweep: error: cannot create the folder %s: %s\n", work, strerror(errno));
         goto restore;
     }
     size_t cap = (size_t)(list->n > 0 ? list->n : 1);
@@ -284,6 +291,7 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
         while (wait(NULL) > 0 || errno == EINTR)
             ;
         sweep_clean(work);
+        pb_run_dir_unprepare(dir);
         fprintf(stderr, "propbench sweep: interrupted; %s was left as it was\n", dir);
         rc = -2;
         goto restore;
@@ -308,6 +316,19 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
     char path[4300];
     snprintf(path, sizeof path, "%s/summary.json", dir);
     rc = pb_json_write_atomic(path, doc) ? -1 : 0;
+    if (rc) {
+        /* series without their summary are a half-written result */
+        size_t i;
+        json_t *c;
+        json_array_foreach(cases, i, c) {
+            const char *sr = json_string_value(json_object_get(c, "series"));
+            char f[8400];
+            snprintf(f, sizeof f, "%s/%s", dir, sr ? sr : "");
+            if (pb_series_path_ok(sr))
+                unlink(f);
+        }
+        pb_run_dir_unprepare(dir);
+    }
     if (rc == 0 && previous) {
         int pruned = pb_run_dir_prune(dir, previous, doc);
         if (pruned && !opt->quiet)

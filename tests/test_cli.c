@@ -488,3 +488,41 @@ Test(cli, divergence_reported_with_time_unit_and_orbits)
     snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
     cr_assert_eq(system(cmd), 0);
 }
+
+/* An output folder that cannot take a run is found before any case runs:
+ * exit 2 naming the path, and the folder is left exactly as it was (no
+ * series behind a summary that could not be written, no empty folders). */
+static void cli_unwritable_out(const char *verb, const char *setup, const char *want_msg,
+                               const char *want_left)
+{
+    char dir[256], d[300], cmd[800];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(d, sizeof d, "%s/D", dir);
+    snprintf(cmd, sizeof cmd, "cd '%s' && %s", dir, setup);
+    cr_assert_eq(system(cmd), 0);
+    const char *run[] = {"run", "--problem", "kepler-e0", "--method", "rk4", "--steps-per-orbit", "100",
+                         "--orbits", "2", "--quiet", "--out", d, NULL};
+    const char *sweep[] = {"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit",
+                           "100", "--orbits", "2", "--quiet", "--out", d, NULL};
+    cr_assert_eq(cli(strcmp(verb, "run") ? sweep : run), 2, "%s after '%s': %s", verb, setup, err_buf);
+    cr_assert(strstr(err_buf, want_msg), "%s after '%s': %s", verb, setup, err_buf);
+    snprintf(cmd, sizeof cmd, "cd '%s' && find D | sort | tr '\\n' ' ' > list.txt", dir);
+    cr_assert_eq(system(cmd), 0);
+    snprintf(cmd, sizeof cmd, "%s/list.txt", dir);
+    char got[512];
+    pbt_read_into(cmd, got, sizeof got);
+    cr_assert_str_eq(got, want_left, "%s after '%s'", verb, setup);
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
+
+Test(cli, unwritable_out_found_before_running)
+{
+    for (int k = 0; k < 2; k++) {
+        const char *verb = k ? "sweep" : "run";
+        cli_unwritable_out(verb, "mkdir -p D/summary.json", "D/summary.json is there and is not a file",
+                           "D D/summary.json ");
+        cli_unwritable_out(verb, "mkdir D && echo x > D/series", "cannot create the folder",
+                           "D D/series ");
+    }
+}
