@@ -22,6 +22,26 @@
 #define PF_SECTION_MAX 49
 #define PF_CASE_NAME_MAX (PF_SECTION_MAX - 5)
 
+/* Ranges that keep every derived quantity (period, speeds, a^3/mu) far from
+ * overflow and refuse typing errors with a message naming the key instead of
+ * a failure deep in the run (our limits, common practice where no source):
+ * mu: 1e-20 .. 1e20 (in km^3/s^2, G times 0.15 kg to 7.5e8 Suns); radius:
+ * 1e-6 .. 1e10 (the largest stars are ~1e9 km); sizes |a| and |r|: 1e-6 ..
+ * 1e12 times the reference length (the radius if known, else 1 unit); the
+ * speed at most 1e3 times the local escape speed; |e - 1| >= 1e-6 for
+ * elements (closer is a near-parabola that a and e describe badly); the
+ * horizon 1e-3 .. 1e8 orbits, or that many times the time scale. */
+#define PF_MU_MIN 1e-20
+#define PF_MU_MAX 1e20
+#define PF_RADIUS_MIN 1e-6
+#define PF_RADIUS_MAX 1e10
+#define PF_SIZE_MIN 1e-6
+#define PF_SIZE_MAX 1e12
+#define PF_ESCAPE_MAX 1e3
+#define PF_PARABOLIC_GAP 1e-6
+#define PF_HORIZON_MIN 1e-3
+#define PF_HORIZON_MAX 1e8
+
 /* largest |angle| in degrees still reduced modulo 360 to better than 1e-7 deg */
 #define PF_ANGLE_MAX 1e9
 
@@ -335,11 +355,16 @@ static int pf_finish(pf_ctx *c)
         FAIL_K(K_MU, "missing in case '%s' (give mu or body)", cs->name);
     if (!(mu > 0))
         FAIL_K(K_MU, "mu must be > 0 (got %g)", mu);
+    if (!(mu >= PF_MU_MIN && mu <= PF_MU_MAX))
+        FAIL_K(K_MU, "mu must be within [%g, %g] (got %g)", PF_MU_MIN, PF_MU_MAX, mu);
     double radius = body ? body->radius : 0.0, j2 = body ? body->j2 : 0.0;
     if (L[K_RADIUS]) {
         radius = cs->num[K_RADIUS];
         if (!(radius > 0))
             FAIL_K(K_RADIUS, "radius must be > 0 (got %g)", radius);
+        if (!(radius >= PF_RADIUS_MIN && radius <= PF_RADIUS_MAX))
+            FAIL_K(K_RADIUS, "radius must be within [%g, %g] (got %g)", PF_RADIUS_MIN,
+                   PF_RADIUS_MAX, radius);
     }
     if (L[K_J2])
         j2 = cs->num[K_J2];
@@ -349,6 +374,9 @@ static int pf_finish(pf_ctx *c)
     if (with_j2 && !L[K_J2] && !body)
         FAIL_K(K_J2, "missing in case '%s' (force = j2 needs body or radius and j2)", cs->name);
 
+    /* the reference length for the size checks */
+    double len0 = radius > 0 ? radius : 1.0;
+    const char *len0_what = radius > 0 ? "the body's radius" : "the unit length";
     int first_el = pf_first_element_key(cs);
     int has_state = L[K_R] || L[K_V];
     double r0[3], v0[3], rp = NAN;
@@ -362,6 +390,10 @@ static int pf_finish(pf_ctx *c)
             FAIL_K(L[K_R] ? K_V : K_R, "missing in case '%s' (a state needs both r and v)", cs->name);
         memcpy(r0, cs->vec[0], sizeof r0);
         memcpy(v0, cs->vec[1], sizeof v0);
+        double rn = hypot(hypot(r0[0], r0[1]), r0[2]);  /* no underflow for tiny r */
+        if (rn > 0 && !(rn >= PF_SIZE_MIN * len0 && rn <= PF_SIZE_MAX * len0))
+            FAIL_K(K_R, "|r| = %g is outside [%g, %g] times %s (%g)", rn, PF_SIZE_MIN,
+                   PF_SIZE_MAX, len0_what, len0);
         pb_elements el;
         if (pb_elements_from_state(mu, r0, v0, &el))
             FAIL_K(K_R, "degenerate state (zero position or angular momentum)");
@@ -376,10 +408,17 @@ static int pf_finish(pf_ctx *c)
             FAIL_K(K_E, "eccentricity must be >= 0 (got %g)", e);
         if (e == 1)
             FAIL_K(K_E, "a parabola (e = 1) cannot be given by a and e; give r and v");
+        /* the margin keeps e = 1 +- 1e-6 as typed (1.000001 - 1 is below 1e-6 in doubles) */
+        if (fabs(e - 1) < PF_PARABOLIC_GAP * (1 - 1e-9))
+            FAIL_K(K_E, "e = %.12g is too close to parabolic for elements (|e - 1| < %g); "
+                   "give a state vector r, v", e, PF_PARABOLIC_GAP);
         if (e < 1 && a <= 0)
             FAIL_K(K_A, "semi-major axis must be > 0 for an ellipse (got %g)", a);
         if (e > 1 && a >= 0)
             FAIL_K(K_A, "semi-major axis must be < 0 for a hyperbola (got %g)", a);
+        if (!(fabs(a) >= PF_SIZE_MIN * len0 && fabs(a) <= PF_SIZE_MAX * len0))
+            FAIL_K(K_A, "|a| = %g is outside [%g, %g] times %s (%g)", fabs(a), PF_SIZE_MIN,
+                   PF_SIZE_MAX, len0_what, len0);
         /* Angles (common practice): i_deg must lie in [0, 180] (180 is a
          * retrograde equatorial orbit); raan_deg, argp_deg and nu_deg may be
          * any finite value and are taken modulo 360, up to |x| <= 1e9 deg,
@@ -403,6 +442,15 @@ static int pf_finish(pf_ctx *c)
             FAIL_K(K_A, "elements do not define an orbit");
         rp = a * (1.0 - e);
     }
+    {
+        /* (v / v_esc)^2 = v^2 |r| / (2 mu), vis-viva (REFERENCES.md) */
+        double rr = sqrt(r0[0] * r0[0] + r0[1] * r0[1] + r0[2] * r0[2]);
+        double vv = v0[0] * v0[0] + v0[1] * v0[1] + v0[2] * v0[2];
+        double ratio = sqrt(vv * rr / (2.0 * mu));
+        if (!(ratio <= PF_ESCAPE_MAX))
+            FAIL_K(has_state ? K_V : K_E, "the speed %g is %.3g times the escape speed at |r| = %g "
+                   "(at most %g)", sqrt(vv), ratio, rr, PF_ESCAPE_MAX);
+    }
 
     pb_problem *p = &c->out[c->n];
     const char *desc = L[K_DESC] ? cs->str[K_DESC] : "user problem";
@@ -420,11 +468,21 @@ static int pf_finish(pf_ctx *c)
             FAIL_K(K_ORBITS, "the orbit is open (no period); give horizon_s instead");
         if (!(cs->num[K_ORBITS] > 0))
             FAIL_K(K_ORBITS, "must be > 0 (got %g)", cs->num[K_ORBITS]);
+        if (!(cs->num[K_ORBITS] >= PF_HORIZON_MIN && cs->num[K_ORBITS] <= PF_HORIZON_MAX))
+            FAIL_K(K_ORBITS, "must be within [%g, %g] (got %g)", PF_HORIZON_MIN, PF_HORIZON_MAX,
+                   cs->num[K_ORBITS]);
         p->default_orbits = cs->num[K_ORBITS];
         p->default_horizon_s = 0.0;
     } else if (L[K_HORIZON]) {
         if (!(cs->num[K_HORIZON] > 0))
             FAIL_K(K_HORIZON, "must be > 0 (got %g)", cs->num[K_HORIZON]);
+        /* the time scale: the period, or for an open orbit the period of a
+         * circle at the periapsis distance */
+        double ts = p->period > 0 ? p->period : 2.0 * M_PI * sqrt(rp * rp * rp / mu);
+        double hs = cs->num[K_HORIZON];
+        if (!(hs >= PF_HORIZON_MIN * ts && hs <= PF_HORIZON_MAX * ts))
+            FAIL_K(K_HORIZON, "must be within [%g, %g] times the %s %g (got %g)", PF_HORIZON_MIN,
+                   PF_HORIZON_MAX, p->period > 0 ? "period" : "periapsis time scale", ts, hs);
         /* a horizon given in seconds stays in seconds (ids read __s<seconds>) */
         p->default_horizon_s = cs->num[K_HORIZON];
         p->default_orbits = 0.0;

@@ -283,6 +283,76 @@ Test(problem_file, empty_case_section)
                      "case 'c2' has no keys");
 }
 
+#define NORM "[case n]\nunits = normalized\n"   /* lines 1-2 */
+
+/* The horizon keys are checked when read: 1e-3 .. 1e8 orbits, or that many
+ * periods in seconds (our limits, common practice), named by key instead of
+ * "1e+302 steps are too many for one case" at run time. */
+Test(problem_file, horizon_out_of_range)
+{
+    pft_expect_error(NORM "a = 1\ne = 0.1\norbits = 1e300\n", 5, "orbits", "must be within [0.001, 1e+08]");
+    pft_expect_error(NORM "a = 1\ne = 0.1\norbits = 1e-9\n", 5, "orbits", "must be within");
+    /* period 2 pi for a = 1, mu = 1 (Kepler's third law, REFERENCES.md) */
+    pft_expect_error(NORM "a = 1\ne = 0.1\nhorizon_s = 1e300\n", 5, "horizon_s",
+                     "times the period 6.28319");
+    /* open orbit: the period of a circle at rp = |a|(e - 1) = 0.5 is 2 pi 0.5^1.5 = 2.22144 */
+    pft_expect_error(NORM "a = -1\ne = 1.5\nhorizon_s = 1e300\n", 5, "horizon_s",
+                     "periapsis time scale 2.22144");
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read(NORM "a = 1\ne = 0.1\norbits = 1e8\n", &c, &n), PB_OK, "%s", pft_err);
+    cr_assert_eq(c[0].default_orbits, 1e8);
+    free(c);
+}
+
+/* mu and radius within physical ranges (1e-20 .. 1e20, 1e-6 .. 1e10; our
+ * limits, common practice): mu = 1e-300 used to end as "horizon must be
+ * positive" at run time. */
+Test(problem_file, mu_and_radius_out_of_range)
+{
+    pft_expect_error(NORM "mu = 1e-300\na = 1\ne = 0.1\n", 3, "mu", "mu must be within [1e-20, 1e+20]");
+    pft_expect_error(NORM "mu = 1e30\na = 1\ne = 0.1\n", 3, "mu", "within");
+    pft_expect_error(NORM "radius = 1e-300\na = 1\ne = 0.1\n", 3, "radius", "radius must be within");
+}
+
+/* A hyperbola a hair from parabolic is refused by elements (it failed to
+ * converge at run time); |e - 1| = 1e-6 itself is still accepted. */
+Test(problem_file, near_parabolic_elements)
+{
+    pft_expect_error(HEAD "a = -44289\ne = 1.0000000001\nhorizon_s = 1000\n", 5, "e",
+                     "too close to parabolic for elements");
+    pft_expect_error(HEAD "a = 44289\ne = 0.9999999999\n", 5, "e", "give a state vector");
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read(NORM "a = -1\ne = 1.000001\nhorizon_s = 1e-3\n", &c, &n), PB_OK, "%s", pft_err);
+    free(c);
+}
+
+/* (v / v_esc)^2 = v^2 r / (2 mu) (vis-viva, REFERENCES.md): r = 1, v = 1e10
+ * is 7.07e9 times the escape speed sqrt(2); at most 1e3 is accepted. */
+Test(problem_file, speed_far_beyond_escape)
+{
+    pft_expect_error(NORM "r = 1,0,0\nv = 0,1e10,0\nhorizon_s = 10\n", 4, "v",
+                     "7.07e+09 times the escape speed");
+    /* elements: at periapsis (v/v_esc)^2 = (1 + e)/2, so e = 1e7 is 2.24e3 */
+    pft_expect_error(NORM "a = -1e-3\ne = 1e7\nhorizon_s = 1\n", 4, "e", "2.24e+03 times the escape");
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read(NORM "r = 1,0,0\nv = 0,14,0\nhorizon_s = 1\n", &c, &n), PB_OK, "%s", pft_err);
+    free(c);
+}
+
+/* a = 1e-300 or 1e300 (normalized) used to read "the orbit is open (no
+ * period)"; sizes are bounded to 1e-6 .. 1e12 times the radius or unit. */
+Test(problem_file, orbit_size_out_of_range)
+{
+    pft_expect_error(NORM "a = 1e-300\ne = 0.1\norbits = 1\n", 3, "a",
+                     "|a| = 1e-300 is outside [1e-06, 1e+12] times the unit length");
+    pft_expect_error(NORM "a = 1e300\ne = 0.1\norbits = 1\n", 3, "a", "outside");
+    pft_expect_error(HEAD "a = 1e17\ne = 0.1\n", 4, "a", "times the body's radius (6378.14)");
+    pft_expect_error(NORM "r = 1e-200, 0, 0\nv = 0, 1, 0\nhorizon_s = 1\n", 3, "r", "|r| = 1e-200 is outside");
+}
+
 /* A periapsis below the surface is a warning, not an error (rp = a(1-e) = 3500
  * km < R = 6378.137 km); the message names file and line of the case. */
 Test(problem_file, periapsis_below_surface_warns)
