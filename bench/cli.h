@@ -25,6 +25,11 @@ int pb_cli_error(const char *verb, const char *fmt, ...) __attribute__((format(p
 int pb_cli_double(const char *verb, const char *opt, const char *s, double *out);
 int pb_cli_long(const char *verb, const char *opt, const char *s, long *out);
 
+/* Split a comma list in place into at most max items (at least one); -1
+ * with a message naming the option when it is empty, has an empty item
+ * ("a,,b", a leading or trailing comma) or has more than max. */
+int pb_cli_split(const char *verb, const char *opt, char *s, char **items, int max);
+
 /* Resolve a problem name from the catalogue into out; error message if unknown. */
 int pb_cli_problem(const char *verb, const char *name, pb_problem *out);
 /* Resolve a method name; error message (with the list of names) if unknown. */

@@ -126,11 +126,13 @@ int pb_cli_select(int argc, char **argv)
     const pb_method_type *list[64];
     int n = 0;
     if (methods) {
-        for (char *tok = strtok(methods, ","); tok && n < 64; tok = strtok(NULL, ",")) {
-            if (!(list[n] = pb_cli_method("select", tok)))
+        char *names[64];
+        n = pb_cli_split("select", "--methods", methods, names, 64);
+        if (n < 0)
+            return PB_EXIT_USAGE;
+        for (int i = 0; i < n; i++)
+            if (!(list[i] = pb_cli_method("select", names[i])))
                 return PB_EXIT_USAGE;
-            n++;
-        }
     } else {
         for (const pb_method_type *const *t = pb_method_table; *t && n < 64; t++)
             list[n++] = *t;

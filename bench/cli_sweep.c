@@ -30,21 +30,6 @@ static void sweep_help(FILE *f)
 "suites: propbench list suites\n");
 }
 
-/* Split a comma list in place into at most max items; -1 (message printed)
- * when there are more. */
-static int sweep_split(const char *opt, char *s, char **items, int max)
-{
-    int n = 0;
-    for (char *tok = strtok(s, ","); tok; tok = strtok(NULL, ",")) {
-        if (n == max) {
-            pb_cli_error("sweep", "%s takes at most %d values", opt, max);
-            return -1;
-        }
-        items[n++] = tok;
-    }
-    return n;
-}
-
 enum { SW_SUITE = 300, SW_PROBLEMS, SW_METHODS, SW_STEPS, SW_TOLS, SW_ORBITS, SW_OUT,
        SW_SHARD, SW_REPEATS, SW_COST, SW_REPORT, SW_QUIET, SW_HELP, SW_COMP, SW_FILE, SW_CASE };
 
@@ -134,21 +119,25 @@ int pb_cli_sweep(int argc, char **argv)
         if (pfile && pb_problem_source_cases("sweep", pfile, pcase, &fcases, &nf))
             goto out;
         char *pn[64], *mn[64], *sn[64], *tn[64];
-        int np = problems ? sweep_split("--problems", problems, pn, 64) : 0;
-        int nm = sweep_split("--methods", methods, mn, 64);
-        int ns = steps ? sweep_split("--steps-per-orbit", steps, sn, 64) : 0;
-        int nt = tols ? sweep_split("--tolerances", tols, tn, 64) : 0;
+        int np = problems ? pb_cli_split("sweep", "--problems", problems, pn, 64) : 0;
+        int nm = pb_cli_split("sweep", "--methods", methods, mn, 64);
+        int ns = steps ? pb_cli_split("sweep", "--steps-per-orbit", steps, sn, 64) : 0;
+        int nt = tols ? pb_cli_split("sweep", "--tolerances", tols, tn, 64) : 0;
         if (np < 0 || nm < 0 || ns < 0 || nt < 0)
             goto out;
         long sv[64];
         double tv[64];
         for (int i = 0; i < ns; i++)
-            if (pb_cli_long("sweep", "--steps-per-orbit", sn[i], &sv[i]) || sv[i] < 1 || sv[i] > 100000000L) {
+            if (pb_cli_long("sweep", "--steps-per-orbit", sn[i], &sv[i]))
+                goto out;
+            else if (sv[i] < 1 || sv[i] > 100000000L) {
                 pb_cli_error("sweep", "--steps-per-orbit values must be whole numbers in 1..1e8 (got '%s')", sn[i]);
                 goto out;
             }
         for (int i = 0; i < nt; i++)
-            if (pb_cli_double("sweep", "--tolerances", tn[i], &tv[i]) || !(tv[i] > 0 && tv[i] < 1)) {
+            if (pb_cli_double("sweep", "--tolerances", tn[i], &tv[i]))
+                goto out;
+            else if (!(tv[i] > 0 && tv[i] < 1)) {
                 pb_cli_error("sweep", "--tolerances values must be in (0, 1) (got '%s')", tn[i]);
                 goto out;
             }
@@ -158,6 +147,12 @@ int pb_cli_sweep(int argc, char **argv)
                 p = fcases[i - np]; /* the problem file's cases after the named ones */
             else if (pb_cli_problem("sweep", pn[i], &p))
                 goto out;
+            if (orbits > 0 && !(p.period > 0)) {
+                pb_cli_error("sweep", "--orbits: problem '%s' has no period; its horizon is a time "
+                             "(%.6g %s, from its definition), so leave --orbits out for it",
+                             p.name, p.default_horizon_s, p.units == PB_UNITS_KM_S ? "s" : "TU");
+                goto out;
+            }
             for (int j = 0; j < nm; j++) {
                 const pb_method_type *m = pb_cli_method("sweep", mn[j]);
                 if (!m)

@@ -38,12 +38,34 @@ int pb_cli_long(const char *verb, const char *opt, const char *s, long *out)
     char *end;
     errno = 0;
     long x = strtol(s, &end, 10);
-    if (end == s || *end || errno == ERANGE) {
+    if (end == s || *end) {
         pb_cli_error(verb, "%s expects a whole number, got '%s'", opt, s);
+        return -1;
+    }
+    if (errno == ERANGE) {
+        pb_cli_error(verb, "%s: '%s' is out of range", opt, s);
         return -1;
     }
     *out = x;
     return 0;
+}
+
+int pb_cli_split(const char *verb, const char *opt, char *s, char **items, int max)
+{
+    size_t len = strlen(s);
+    if (!len || s[0] == ',' || s[len - 1] == ',' || strstr(s, ",,")) {
+        pb_cli_error(verb, "%s: an empty name or value in '%s'", opt, s);
+        return -1;
+    }
+    int n = 0;
+    for (char *tok = strtok(s, ","); tok; tok = strtok(NULL, ",")) {
+        if (n == max) {
+            pb_cli_error(verb, "%s takes at most %d values", opt, max);
+            return -1;
+        }
+        items[n++] = tok;
+    }
+    return n;
 }
 
 int pb_cli_problem(const char *verb, const char *name, pb_problem *out)

@@ -62,6 +62,30 @@ Test(cli, bad_input_exits_2_and_writes_nothing)
     cr_assert(strstr(err_buf, "frobnicate"));
 }
 
+static int cli_count(const char *hay, const char *needle)
+{
+    int n = 0;
+    for (const char *s = hay; (s = strstr(s, needle)); s += strlen(needle))
+        n++;
+    return n;
+}
+
+/* Lists: an empty list or item is bad input, not an empty grid or a
+ * requirement "not met"; one mistake gives one message. */
+Test(cli, bad_lists_and_ranges_exit_2_with_one_message)
+{
+    expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "", "--steps-per-orbit", "100", NULL}, "--methods");
+    expect_bad((const char *[]){"sweep", "--problems", ",", "--methods", "rk4", "--steps-per-orbit", "100", NULL}, "--problems");
+    expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4,,leapfrog", "--steps-per-orbit", "100", NULL}, "rk4,,leapfrog");
+    expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit", "100,abc", NULL}, "abc");
+    cr_assert_eq(cli_count(err_buf, "error:"), 1, "%s", err_buf);
+    expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rkf45", "--tolerances", "nan", NULL}, "nan");
+    cr_assert_eq(cli_count(err_buf, "error:"), 1, "%s", err_buf);
+    expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit", "99999999999999999999999", NULL}, "out of range");
+    expect_bad((const char *[]){"sweep", "--problems", "hyperbolic-flyby", "--methods", "rk4", "--steps-per-orbit", "100", "--orbits", "2", NULL}, "no period");
+    expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "10", "--methods", "", "--max-pos-err", "1e-3", NULL}, "--methods");
+}
+
 Test(cli, help_on_every_verb)
 {
     const char *verbs[] = {"list", "run", "sweep", "merge", "select", NULL};
