@@ -6,6 +6,8 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 #include "cli.h"
 #include "report_data.h"
 #include "report_gnuplot.h"
@@ -92,6 +94,17 @@ int pb_cli_report(int argc, char **argv)
         pb_cli_error("report", "out of memory");
         goto done;
     }
+    /* the report's own files must be writable before any script is */
+    static const char *const outputs[] = {"report.html", "report.md"};
+    for (int i = 0; i < 2; i++) {
+        char f[PATH_MAX + 16];
+        struct stat st;
+        snprintf(f, sizeof f, "%s/%s", out, outputs[i]);
+        if (!stat(f, &st) && !S_ISREG(st.st_mode)) {
+            pb_cli_error("report", "%s is there and is not a file: the report could not be written", f);
+            goto done;
+        }
+    }
     snprintf(plots, sizeof plots, "%s/plots", out);
     if (pb_mkdirs(plots) || !realpath(dir, rdir) || !realpath(out, odir)) {
         pb_cli_error("report", "%s: cannot create the plots folder", plots);
@@ -139,7 +152,14 @@ int pb_cli_report(int argc, char **argv)
         }
     }
     pb_report_view v = {&run, out, report_title(&run, dir, title, sizeof title), made, drawn, why};
-    if (pb_report_html_write(&v, err, sizeof err) || pb_report_md_write(&v, err, sizeof err)) {
+    int html_bad = pb_report_html_write(&v, err, sizeof err);
+    if (html_bad || pb_report_md_write(&v, err, sizeof err)) {
+        if (!html_bad) {
+            /* the new report.html without its report.md is a half-written report */
+            char html[PATH_MAX + 16];
+            snprintf(html, sizeof html, "%s/report.html", out);
+            unlink(html);
+        }
         pb_cli_error("report", "%s", err);
         rc = PB_EXIT_USAGE;
         goto done;

@@ -153,6 +153,33 @@ Test(report, series_path_outside_the_run_is_refused)
     cr_assert(pb_series_path_ok("series/kepler-e0.6__rkf45__tol1e-08__o100.csv"));
 }
 
+/* An output folder that cannot take report.html or report.md is refused
+ * before any script or table is written: exit 2 naming the path, nothing
+ * left behind. */
+Test(report, unwritable_report_leaves_nothing)
+{
+    static const char *const blocked[] = {"report.html", "report.md"};
+    char run[256];
+    pbt_tmpdir(run, sizeof run);
+    const char *sweep[] = {"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit", "100",
+                           "--orbits", "2", "--repeats", "0", "--quiet", "--out", run, NULL};
+    char out[4096], err[4096];
+    cr_assert_eq(pbt_run_cli(sweep, out, sizeof out, err, sizeof err), 0, "%s", err);
+    for (int k = 0; k < 2; k++) {
+        char dir[256], b[400], plots[400];
+        pbt_tmpdir(dir, sizeof dir);
+        snprintf(b, sizeof b, "%s/%s", dir, blocked[k]);
+        cr_assert_eq(mkdir(b, 0755), 0);
+        const char *args[] = {"report", run, "--out", dir, "--no-plots", "--quiet", NULL};
+        cr_assert_eq(pbt_run_cli(args, out, sizeof out, err, sizeof err), 2, "%s", err);
+        cr_assert(strstr(err, b) && strstr(err, "is not a file"), "%s", err);
+        snprintf(plots, sizeof plots, "%s/plots", dir);
+        cr_assert(!pbt_exists(plots), "plots/ written although %s is blocked", blocked[k]);
+        snprintf(b, sizeof b, "%s/%s", dir, blocked[1 - k]);
+        cr_assert(!pbt_exists(b), "%s written although %s is blocked", b, blocked[k]);
+    }
+}
+
 Test(report, gnuplot_missing_still_writes_data_and_scripts)
 {
     char dir[256], err[8192], path[600];
