@@ -14,6 +14,7 @@
 #define UV_SQRT sqrt
 #define UV_SIN sin
 #define UV_SINH sinh
+#define UV_LOG log
 #define UV_FABS fabs
 #define UV_ROUND nearbyint
 #define UV_FMA fma
@@ -27,6 +28,7 @@
 #undef UV_SQRT
 #undef UV_SIN
 #undef UV_SINH
+#undef UV_LOG
 #undef UV_FABS
 #undef UV_ROUND
 #undef UV_FMA
@@ -40,6 +42,7 @@
 #define UV_SQRT sqrtq
 #define UV_SIN sinq
 #define UV_SINH sinhq
+#define UV_LOG logq
 #define UV_FABS fabsq
 #define UV_ROUND nearbyintq
 #define UV_FMA fmaq

@@ -1,7 +1,7 @@
 /* universal_impl.h - the universal-variable two-body flow, written once and
  * included by universal.c for double and for __float128 (Bate, Mueller, White
  * (1971) ch. 4; Vallado 4th ed. Alg. 8). The includer defines UV_REAL, UV_SUF,
- * UV_PUBLIC, UV_EPS, UV_PI and the math macros UV_SQRT, UV_SIN, ... */
+ * UV_PUBLIC, UV_EPS, UV_PI and the math macros UV_SQRT, UV_SIN, UV_LOG, ... */
 
 #define UV_CAT2(a, b) a##b
 #define UV_CAT(a, b) UV_CAT2(a, b)
@@ -53,7 +53,8 @@ static UV_REAL UV_FN(uv_residual)(UV_REAL x, UV_REAL alpha, UV_REAL r0n, UV_REAL
 
 /* Contract: the exact two-body state (r, v) at dt after (r0, v0), for any
  * conic. Returns PB_EINVAL for mu <= 0 or r0 = 0, PB_ENOCONV if the
- * universal anomaly cannot be found (overflow on a huge hyperbolic span). */
+ * universal anomaly cannot be found (a span so long that even the bracket
+ * overflows). */
 int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
               UV_REAL *r, UV_REAL *v)
 {
@@ -83,6 +84,17 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
     } else {
         x = smu * dt / r0n;
         lo = hi = 0;
+        if (alpha < 0) {
+            /* Vallado 4th ed. Alg. 8's hyperbolic starter, far closer than
+             * the above on long spans, where Newton on the exponential
+             * residual would creep in steps of about sqrt(-a) */
+            UV_REAL sg = dt > 0 ? 1 : -1, sma = UV_SQRT(-1 / alpha);
+            UV_REAL q = -2 * mu * alpha * dt /
+                        (sigma0 * smu + sg * UV_SQRT(mu / -alpha) * (1 - r0n * alpha));
+            UV_REAL xs = q > 0 ? sg * sma * UV_LOG(q) : 0;
+            if (UV_FINITE(xs) && xs * dt > 0)
+                x = xs;
+        }
     }
     if (dt == 0) {
         for (int i = 0; i < 3; i++) {
@@ -94,14 +106,16 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
     UV_REAL smu_dt = smu * dt, dF;
     if (!(alpha > 0)) {
         /* Bracket by doubling away from 0 in the direction of dt; F grows at
-         * least like x^3 (parabola) or exponentially (hyperbola). */
+         * least like x^3 (parabola) or exponentially (hyperbola). F is
+         * increasing, so where the Stumpff functions overflow F is beyond the
+         * root: a non-finite F ends the bracket as an overshoot would. */
         UV_REAL step = x;
         int n = 0;
         for (;;) {
-            UV_REAL F = UV_FN(uv_residual)(step, alpha, r0n, sigma0, smu_dt, &dF);
-            if (!UV_FINITE(F))
+            if (!UV_FINITE(step))
                 return PB_ENOCONV;
-            if ((dt > 0 && F >= 0) || (dt < 0 && F <= 0))
+            UV_REAL F = UV_FN(uv_residual)(step, alpha, r0n, sigma0, smu_dt, &dF);
+            if (!UV_FINITE(F) || (dt > 0 && F >= 0) || (dt < 0 && F <= 0))
                 break;
             if (++n > 2000)
                 return PB_ENOCONV;
@@ -124,6 +138,15 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
     int it;
     for (it = 0; it < 400; it++) {
         UV_REAL F = UV_FN(uv_residual)(x, alpha, r0n, sigma0, smu_dt, &dF);
+        if (!UV_FINITE(F)) {
+            /* overflow: past the root on the side of x's sign (see above) */
+            if (x > 0)
+                hi = x;
+            else
+                lo = x;
+            x = lo + (hi - lo) / 2;
+            continue;
+        }
         if (F == 0)
             break;
         if (F < 0)
@@ -131,7 +154,9 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
         else
             hi = x;
         UV_REAL xn = x - F / dF;
-        if (!(xn > lo && xn < hi))
+        /* after 50 Newton steps bisection alone finishes (a bracket of any
+         * double width closes in far fewer than the remaining 350) */
+        if (!(xn > lo && xn < hi) || it >= 50)
             xn = lo + (hi - lo) / 2;
         UV_REAL dx = xn - x;
         x = xn;

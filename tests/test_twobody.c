@@ -399,3 +399,31 @@ Test(twobody, universal_from_any_anomaly)
                 }
             }
 }
+
+/* Fast hyperbolic spans, where the first guess of the universal anomaly is
+ * far past the root and the Stumpff functions overflow there (these used to
+ * fail to converge). From periapsis r0 = (rp, 0, 0), v0 = (0, vp, 0), mu = 1:
+ * a = 1/(2/rp - vp^2) < 0, e = 1 - rp/a, and the hyperbolic Kepler equation
+ * M = e sinh H - H with M = sqrt(-1/a^3) t gives |r| = a (1 - e cosh H)
+ * (REFERENCES.md conics). Agreement to 1e-12 relative, double and quad. */
+Test(twobody, universal_fast_hyperbola_long_span)
+{
+    const double vps[] = {2.0, 14.1, 14.1, 100.0};
+    const double ts[] = {1000.0, 100.0, 1e4, 1e3};
+    for (int k = 0; k < 4; k++) {
+        double r0[3] = {1, 0, 0}, v0[3] = {0, vps[k], 0}, r[3], v[3];
+        double a = 1 / (2 - vps[k] * vps[k]), e = 1 - 1 / a;
+        for (int sgn = -1; sgn <= 1; sgn += 2) {
+            double t = sgn * ts[k];
+            cr_assert_eq(pb_universal_propagate(1.0, r0, v0, t, r, v), PB_OK, "vp=%g t=%g", vps[k], t);
+            double H = pb_kepler_solve_hyperbolic(sqrt(-1 / (a * a * a)) * t, e);
+            double want = a * (1 - e * cosh(H)), got = sqrt(r[0] * r[0] + r[1] * r[1] + r[2] * r[2]);
+            cr_expect(fabs(got - want) <= 1e-12 * want, "vp=%g t=%g |r|=%.17g want %.17g", vps[k], t, got, want);
+            cr_expect(sgn * r[1] > 0, "moves along +y forward in time");
+            __float128 rq0[3] = {1, 0, 0}, vq0[3] = {0, vps[k], 0}, rq[3], vq[3];
+            cr_assert_eq(pb_universal_propagate_q(1, rq0, vq0, t, rq, vq), PB_OK);
+            for (int i = 0; i < 3; i++)
+                cr_expect(fabs(r[i] - (double)rq[i]) <= 1e-12 * want, "quad i=%d", i);
+        }
+    }
+}
