@@ -63,18 +63,17 @@ $(B)/bench_main: $(B)/bench/bench_main.o $(B)/libpropbench.a
 # Tests find the CLI through PB_BIN and write scratch files below PB_TMP.
 test: test-plain test-asan
 
-# Scratch is removed after a passing run and kept after a failing one.
+# Each run's scratch is its own (test-scratch.<pid>), so two runs in one tree
+# never share it; it is removed after a passing run, kept after a failing one.
 test-plain: $(B)/run_tests $(BIN)
 	PB_WITH_BROWSER=1 sh scripts/install-deps.sh
-	rm -rf $(B)/test-scratch
-	PB_TMP=$(CURDIR)/$(B)/test-scratch PB_BIN=$(CURDIR)/$(BIN) PB_ROOT=$(CURDIR) ./$(B)/run_tests --jobs 2
-	rm -rf $(B)/test-scratch
+	d=$(CURDIR)/$(B)/test-scratch.$$$$ && \
+	PB_TMP=$$d PB_BIN=$(CURDIR)/$(BIN) PB_ROOT=$(CURDIR) ./$(B)/run_tests --jobs 2 && rm -rf $$d
 
 test-asan: $(BA)/run_tests $(BIN_A)
-	rm -rf $(BA)/test-scratch
-	PB_TMP=$(CURDIR)/$(BA)/test-scratch LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
-	PB_SANITIZED=1 PB_BIN=$(CURDIR)/$(BIN_A) PB_ROOT=$(CURDIR) ./$(BA)/run_tests --jobs 2
-	rm -rf $(BA)/test-scratch
+	d=$(CURDIR)/$(BA)/test-scratch.$$$$ && \
+	PB_TMP=$$d LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
+	PB_SANITIZED=1 PB_BIN=$(CURDIR)/$(BIN_A) PB_ROOT=$(CURDIR) ./$(BA)/run_tests --jobs 2 && rm -rf $$d
 
 demo: $(BIN)
 	sh scripts/demo.sh $(BIN)

@@ -69,6 +69,8 @@ int pb_run_dir_prepare(const char *dir, char *err, size_t errlen)
 
 void pb_run_dir_unprepare(const char *dir)
 {
+    if (!dir)
+        return;
     char sdir[4200];
     snprintf(sdir, sizeof sdir, "%s/series", dir);
     rmdir(sdir);
