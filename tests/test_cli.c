@@ -550,3 +550,34 @@ Test(cli, unwritable_out_found_before_running)
                            "D D/series ");
     }
 }
+
+/* merge refuses a shard whose series path leaves its series/ folder, and a
+ * copy that fails midway takes back what it copied: exit 2, no output. */
+Test(cli, merge_failure_leaves_no_output)
+{
+    char dir[256], a[300], b[300], m[300], cmd[1200];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(a, sizeof a, "%s/a", dir);
+    snprintf(b, sizeof b, "%s/b", dir);
+    snprintf(m, sizeof m, "%s/m", dir);
+    const char *shard_sweep[] = {"sweep", "--problems", "kepler-e0.6", "--methods", "rk4,leapfrog", "--steps-per-orbit",
+                          "100,200", "--orbits", "5", "--repeats", "0", "--quiet", "--shard", "1/2", "--out", a, NULL};
+    cr_assert_eq(cli(shard_sweep), 0, "%s", err_buf);
+    shard_sweep[13] = "2/2";
+    shard_sweep[15] = b;
+    cr_assert_eq(cli(shard_sweep), 0, "%s", err_buf);
+    /* the last series of shard b becomes a folder: its copy fails after others succeeded */
+    snprintf(cmd, sizeof cmd, "f=$(ls '%s'/series/*.csv | tail -1) && rm \"$f\" && mkdir \"$f\"", b);
+    cr_assert_eq(system(cmd), 0);
+    cr_assert_eq(cli((const char *[]){"merge", "--out", m, a, b, NULL}), 2);
+    cr_assert(strstr(err_buf, "cannot copy"), "%s", err_buf);
+    cr_assert(!pbt_exists(m), "merge left %s behind", m);
+    /* a doctored series path is refused before anything is written */
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'/series/*.csv && sed -i 's|\"series/|\"series/../../|' '%s'/summary.json", b, b);
+    cr_assert_eq(system(cmd), 0);
+    cr_assert_eq(cli((const char *[]){"merge", "--out", m, a, b, NULL}), 2);
+    cr_assert(strstr(err_buf, "not a file below series/"), "%s", err_buf);
+    cr_assert(!pbt_exists(m));
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}
