@@ -38,6 +38,10 @@ const pb_method_type *pb_cli_method(const char *verb, const char *name);
 /* Print a one-case result as a short table a person can read. */
 void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res);
 
+/* A warning when `steps` of fixed-step integration will take long (more
+ * than 1e9 steps: minutes to an hour of one core), with how to cap it. */
+void pb_cli_warn_long(const char *verb, double steps);
+
 /* 1 when stderr is a terminal (progress lines are drawn only then). */
 int pb_cli_progress_wanted(int quiet);
 

@@ -45,6 +45,7 @@ int pb_cli_run(int argc, char **argv)
 
     if (pb_run_dir_prepare(dir, err, sizeof err))
         return pb_cli_error("run", "%s", err);
+    pb_cli_warn_long("run", pb_case_fixed_steps(&spec));
     json_t *previous = pb_run_dir_previous(dir); /* before this run writes anything */
     pb_case_result res;
     int s = pb_case_run(&spec, &res);

@@ -219,6 +219,11 @@ int pb_cli_sweep(int argc, char **argv)
     snprintf(dir, sizeof dir, "%s", out ? out : suite ? suite : "grid");
     if (!out)
         snprintf(dir, sizeof dir, "results/runs/%s", suite ? suite : "grid");
+    double fixed_steps = 0;
+    for (int i = 0; i < list.n; i++)
+        if (shard_n <= 1 || i % shard_n == shard_k - 1)
+            fixed_steps += pb_case_fixed_steps(&list.cases[i]);
+    pb_cli_warn_long("sweep", fixed_steps);
     pb_sweep_options so = {(int)jobs, shard_k, shard_n, pb_cli_progress_wanted(quiet), suite ? suite : "grid", quiet};
     if (!quiet)
         fprintf(stderr, "propbench sweep: %d cases%s into %s with %ld worker%s\n",

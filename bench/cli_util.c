@@ -95,3 +95,13 @@ int pb_cli_progress_wanted(int quiet)
 {
     return !quiet && isatty(STDERR_FILENO);
 }
+
+void pb_cli_warn_long(const char *verb, double steps)
+{
+    /* 50 to 500 ns a step spans rk4 to yoshida8 and GSL's rk8pd here
+     * (make bench; machine-dependent) */
+    if (steps > 1e9)
+        fprintf(stderr, "propbench %s: warning: %.3g steps of fixed-step integration: at 50 to 500 ns a "
+                "step that is %.3g to %.3g minutes of one core; --max-steps N ends a case early\n",
+                verb, steps, steps * 50e-9 / 60, steps * 500e-9 / 60);
+}

@@ -100,6 +100,15 @@ static double harness_step(const pb_case_spec *spec)
     return 0;
 }
 
+double pb_case_fixed_steps(const pb_case_spec *spec)
+{
+    double h = harness_step(spec);
+    if (!spec->method || !(spec->method->flags & PB_KIND_FIXED) || !(h > 0))
+        return 0;
+    double n = pb_case_horizon(spec) / h;
+    return spec->max_steps > 0 && spec->max_steps < n ? (double)spec->max_steps : n;
+}
+
 int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
 {
     const pb_method_type *m = spec->method;

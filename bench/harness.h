@@ -14,6 +14,11 @@ void pb_case_id(const pb_case_spec *spec, char *out, size_t outlen);
 /* Horizon in time units. */
 double pb_case_horizon(const pb_case_spec *spec);
 
+/* Steps a fixed-step case takes to its horizon, or to its --max-steps if
+ * that comes first (0 for an adaptive method, whose count is known only
+ * after the run). */
+double pb_case_fixed_steps(const pb_case_spec *spec);
+
 /* Run the case: a metric pass (errors at every sample, invariant maxima over
  * every step) then, if spec->repeats > 0, a separate timing pass with no
  * metric work. The result's status says how the integration ended; the

@@ -3,6 +3,7 @@
  * for shards merged; a crashing case is recorded; select finds an answer
  * known by construction. */
 #include <criterion/criterion.h>
+#include <criterion/redirect.h>
 #include <dirent.h>
 #include <signal.h>
 #include <sys/wait.h>
@@ -15,6 +16,7 @@
 #include <fcntl.h>
 #include <unistd.h>
 #include "test_support.h"
+#include "../bench/cli.h"
 
 static char out_buf[1 << 16], err_buf[1 << 16];
 
@@ -580,4 +582,27 @@ Test(cli, merge_failure_leaves_no_output)
     cr_assert(!pbt_exists(m));
     snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
     cr_assert_eq(system(cmd), 0);
+}
+
+/* A case of more than 1e9 fixed steps is announced with the time it may
+ * take; a --max-steps budget below that silences it (the run stops there). */
+Test(cli, long_fixed_step_run_is_announced)
+{
+    char dir[256];
+    pbt_tmpdir(dir, sizeof dir);
+    cr_assert_eq(cli((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4", "--steps-per-orbit",
+                                     "100000000", "--orbits", "100", "--max-steps", "1000", "--repeats", "0",
+                                     "--quiet", "--out", dir, NULL}), 0, "%s", err_buf);
+    cr_assert(!strstr(err_buf, "steps of fixed-step integration"), "%s", err_buf);
+    cr_assert(strstr(err_buf, "maximum number of steps reached"), "%s", err_buf);
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+    /* 1e10 steps at 50 and 500 ns: 8.33 and 83.3 minutes (arithmetic) */
+    cr_redirect_stderr();
+    pb_cli_warn_long("run", 1e10);
+    pb_cli_warn_long("run", 1e9);
+    fflush(stderr);
+    cr_assert_stderr_eq_str("propbench run: warning: 1e+10 steps of fixed-step integration: at 50 to 500 ns "
+                            "a step that is 8.33 to 83.3 minutes of one core; --max-steps N ends a case early\n");
 }
