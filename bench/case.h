@@ -57,6 +57,7 @@ typedef struct pb_case_result {
     pb_sample *samples;       /* owned */
     /* summary */
     double energy_rel_max, energy_rel_final;
+    int energy_rel_to_parts; /* 1: relative to v0^2/2 + mu/r0, not |E0| (pb_energy_scale) */
     double angmom_rel_max, angmom_rel_final;
     double pos_err_max, pos_err_final, vel_err_max, vel_err_final;
     double radial_final, along_final, cross_final;

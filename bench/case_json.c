@@ -95,6 +95,8 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     json_t *mt = json_object();
     int km = spec->problem.units == PB_UNITS_KM_S;
     json_object_set_new(mt, "energy_rel_max", pb_json_real(res->energy_rel_max));
+    if (res->energy_rel_to_parts)
+        json_object_set_new(mt, "energy_rel_to", json_string("v0^2/2 + mu/|r0| (near-parabolic start)"));
     json_object_set_new(mt, "energy_rel_final", pb_json_real(res->energy_rel_final));
     json_object_set_new(mt, "angmom_rel_max", pb_json_real(res->angmom_rel_max));
     json_object_set_new(mt, "angmom_rel_final", pb_json_real(res->angmom_rel_final));

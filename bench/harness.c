@@ -27,7 +27,7 @@
 
 typedef struct harness_watch {
     const pb_problem *p;
-    double E0, H0, r_limit;
+    double E0, E_scale, H0, r_limit;
     double e_win, h_win, e_max, h_max;
     double t_escape;
     const char *why;          /* which divergence test stopped the run */
@@ -39,7 +39,7 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
     const pb_problem *p = w->p;
     double e = 0;
     if (p->energy) {
-        e = pb_rel_err(p->energy(p, t, r, v), w->E0);
+        e = fabs(p->energy(p, t, r, v) - w->E0) / w->E_scale;
         if (e > w->e_win) w->e_win = e;
     }
     if (p->angmom) {
@@ -48,7 +48,7 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
     }
     /* an energy error of 100% means the orbit is no longer the problem's
      * (a bound orbit has become unbound, or the reverse) */
-    if (p->energy && !(e <= HARNESS_ENERGY_DIVERGED) && w->E0 != 0) {
+    if (p->energy && !(e <= HARNESS_ENERGY_DIVERGED)) {
         w->t_escape = t;
         w->why = "relative energy error passed 100%";
         return PB_EDIVERGED;
@@ -404,6 +404,8 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     memset(&w, 0, sizeof w);
     w.p = p;
     w.E0 = p->energy ? p->energy(p, p->t0, p->r0, p->v0) : NAN;
+    w.E_scale = p->energy ? pb_energy_scale(p, w.E0) : NAN;
+    res->energy_rel_to_parts = p->energy && w.E_scale != fabs(w.E0);
     w.H0 = p->angmom ? p->angmom(p, p->r0, p->v0) : NAN;
     double a, r0n = harness_orbit_size(p, &a);
     if (p->force != PB_FORCE_TWO_BODY)
@@ -433,7 +435,7 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
         long double rt[PB_DIM_MAX], vt[PB_DIM_MAX];
         pb_truth_state(truth, k, rt, vt);
         pb_sample *smp = &res->samples[k];
-        pb_metrics_sample(p, t, r, v, rt, vt, w.E0, w.H0, smp);
+        pb_metrics_sample(p, t, r, v, rt, vt, w.E0, w.E_scale, w.H0, smp);
         /* the apsidal angle accumulates: unwrap it from sample to sample so a
          * precession past +-pi keeps its sign and size (samples are close
          * enough that the angle moves by less than pi between them) */

@@ -19,6 +19,19 @@ static double dot3(const double *a, const double *b)
 
 static double norm3(const double *a) { return sqrt(dot3(a, a)); }
 
+double pb_energy_scale(const pb_problem *p, double E0)
+{
+    double r2 = 0, v2 = 0;
+    for (int i = 0; i < p->dim; i++) {
+        r2 += p->r0[i] * p->r0[i];
+        v2 += p->v0[i] * p->v0[i];
+    }
+    double parts = 0.5 * v2 + (r2 > 0 ? p->mu / sqrt(r2) : 0);
+    if (fabs(E0) >= 1e-6 * parts || !(parts > 0))
+        return E0 != 0 ? fabs(E0) : 1.0;
+    return parts;
+}
+
 double pb_rel_err(double x, double x0)
 {
     return x0 != 0 ? fabs(x - x0) / fabs(x0) : fabs(x - x0);
@@ -42,7 +55,7 @@ static void metrics_eccvec(double mu, const double *r, const double *v, double *
 
 void pb_metrics_sample(const pb_problem *p, double t, const double *r, const double *v,
                        const long double *rt, const long double *vt,
-                       double E0, double H0, pb_sample *s)
+                       double E0, double E_scale, double H0, pb_sample *s)
 {
     double r3[3] = {0}, v3[3] = {0}, rt3[3] = {0}, vt3[3] = {0};
     long double dr[3] = {0}, dv[3] = {0};
@@ -55,7 +68,7 @@ void pb_metrics_sample(const pb_problem *p, double t, const double *r, const dou
         dv[i] = (long double)v[i] - vt[i];
     }
     s->t = t;
-    s->energy_rel = p->energy ? pb_rel_err(p->energy(p, t, r, v), E0) : NAN;
+    s->energy_rel = p->energy ? fabs(p->energy(p, t, r, v) - E0) / E_scale : NAN;
     s->angmom_rel = p->angmom ? pb_rel_err(p->angmom(p, r, v), H0) : NAN;
     double d3[3] = {(double)dr[0], (double)dr[1], (double)dr[2]};
     s->pos_err = (double)sqrtl(dr[0] * dr[0] + dr[1] * dr[1] + dr[2] * dr[2]);
