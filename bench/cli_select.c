@@ -122,6 +122,17 @@ int pb_cli_select(int argc, char **argv)
     base.repeats = 3;
     base.linear_samples = 100; /* as `run` samples by default, so a run reproduces the answer */
     base.cache_dir = "results/cache";
+    {
+        /* the coarsest step the search tries (4 a period) must make a case
+         * run can take at all; past that the horizon is not a question */
+        pb_case_spec probe = base;
+        probe.method = pb_method_find("rk4");
+        probe.steps_per_orbit = 4;
+        char why[512];
+        if (probe.method && pb_case_validate(&probe, why, sizeof why))
+            return pb_cli_error("select", "%s %.6g: %s", orbits > 0 ? "--orbits" : "--horizon-s",
+                                orbits > 0 ? orbits : horizon, why);
+    }
 
     const pb_method_type *list[64];
     int n = 0;

@@ -86,6 +86,7 @@ Test(cli, bad_lists_and_ranges_exit_2_with_one_message)
     expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit", "99999999999999999999999", NULL}, "out of range");
     expect_bad((const char *[]){"sweep", "--problems", "hyperbolic-flyby", "--methods", "rk4", "--steps-per-orbit", "100", "--orbits", "2", NULL}, "no period");
     expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "10", "--methods", "", "--max-pos-err", "1e-3", NULL}, "--methods");
+    expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "1e300", "--max-pos-err", "1e-3", NULL}, "too many");
 }
 
 Test(cli, help_on_every_verb)
