@@ -7,6 +7,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include "baseline.h"
 #include "../problems/catalogue.h"
 
@@ -30,6 +31,12 @@ static json_t *baseline_read(const char *path, char *err, size_t errlen)
     FILE *f = fopen(path, "rb");
     if (!f) {
         snprintf(err, errlen, "%s: cannot open: %s", path, strerror(errno));
+        return NULL;
+    }
+    struct stat st;
+    if (!fstat(fileno(f), &st) && S_ISDIR(st.st_mode)) {
+        fclose(f);
+        snprintf(err, errlen, "%s: is a folder, not a JSON file", path);
         return NULL;
     }
     json_error_t e;

@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <ini.h>
 #include "problem_file.h"
 #include "bodies.h"
@@ -560,6 +561,12 @@ int pb_problem_file_read(const char *path, pb_problem **cases, int *ncases,
     c.f = fopen(path, "r");
     if (!c.f) {
         snprintf(err, errlen, "%s: cannot read the problem file: %s", path, strerror(errno));
+        return PB_EINVAL;
+    }
+    struct stat st;
+    if (!fstat(fileno(c.f), &st) && S_ISDIR(st.st_mode)) {
+        fclose(c.f);
+        snprintf(err, errlen, "%s: is a folder, not a problem file", path);
         return PB_EINVAL;
     }
     int r = ini_parse_stream(pf_reader, &c, pf_handler_grow, &c);

@@ -87,6 +87,13 @@ Test(cli, bad_lists_and_ranges_exit_2_with_one_message)
     expect_bad((const char *[]){"sweep", "--problems", "hyperbolic-flyby", "--methods", "rk4", "--steps-per-orbit", "100", "--orbits", "2", NULL}, "no period");
     expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "10", "--methods", "", "--max-pos-err", "1e-3", NULL}, "--methods");
     expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "1e300", "--max-pos-err", "1e-3", NULL}, "too many");
+    /* a folder where a file belongs is called a folder, not an empty or corrupt file */
+    char dir[256];
+    pbt_tmpdir(dir, sizeof dir);
+    expect_bad((const char *[]){"run", "--problem-file", dir, "--method", "rk4", "--steps-per-orbit", "100", NULL}, "is a folder");
+    cr_assert_eq(cli((const char *[]){"check", "--baseline", dir, dir, NULL}), 2);
+    cr_assert(strstr(err_buf, dir) && strstr(err_buf, "is a folder"), "%s", err_buf);
+    rmdir(dir);
 }
 
 Test(cli, help_on_every_verb)
