@@ -29,22 +29,6 @@ static int merge_cmp(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-/* Remove the series copied for these cases (and the folders, when that
- * leaves them empty): a merge that fails leaves no half-written result. */
-static void merge_unwrite(const char *out, const json_t *cases)
-{
-    size_t i;
-    const json_t *c;
-    json_array_foreach(cases, i, c) {
-        const char *sr = json_string_value(json_object_get(c, "series"));
-        char f[8400];
-        snprintf(f, sizeof f, "%s/%s", out, sr ? sr : "");
-        if (pb_series_path_ok(sr))
-            unlink(f);
-    }
-    pb_run_dir_unprepare(out);
-}
-
 int pb_cli_merge(int argc, char **argv)
 {
     static const struct option opts[] = {{"out", required_argument, 0, 'o'},
@@ -198,7 +182,7 @@ int pb_cli_merge(int argc, char **argv)
             snprintf(b, sizeof b, "%s/%s", out, series);
             if (pb_copy_file(a, b)) {
                 pb_cli_error("merge", "cannot copy %s to %s", a, b);
-                merge_unwrite(out, cases);
+                pb_run_dir_unwrite(out, cases);
                 json_decref(cases);
                 free(v);
                 goto out;
@@ -218,7 +202,7 @@ int pb_cli_merge(int argc, char **argv)
     snprintf(path, sizeof path, "%s/summary.json", out);
     int w = pb_json_write_atomic(path, doc);
     if (w)
-        merge_unwrite(out, json_object_get(doc, "cases"));
+        pb_run_dir_unwrite(out, json_object_get(doc, "cases"));
     json_decref(doc);
     if (w) {
         pb_cli_error("merge", "cannot write %s", path);

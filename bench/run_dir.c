@@ -77,6 +77,20 @@ void pb_run_dir_unprepare(const char *dir)
     rmdir(dir);
 }
 
+void pb_run_dir_unwrite(const char *dir, const json_t *cases)
+{
+    size_t i;
+    const json_t *c;
+    json_array_foreach(cases, i, c) {
+        const char *sr = json_string_value(json_object_get(c, "series"));
+        char f[8400];
+        snprintf(f, sizeof f, "%s/%s", dir, sr ? sr : "");
+        if (pb_series_path_ok(sr))
+            unlink(f);
+    }
+    pb_run_dir_unprepare(dir);
+}
+
 int pb_write_atomic(const char *path, const char *data, size_t len)
 {
     char tmp[4200];

@@ -25,6 +25,11 @@ int pb_run_dir_prepare(const char *dir, char *err, size_t errlen);
  * dir if they are empty (a folder that holds anything is left alone). */
 void pb_run_dir_unprepare(const char *dir);
 
+/* Take back a run that could not be finished: remove the series the cases
+ * name (only paths pb_series_path_ok accepts), then the folders if that
+ * leaves them empty, so no series is left without its summary. */
+void pb_run_dir_unwrite(const char *dir, const json_t *cases);
+
 /* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1. */
 int pb_write_atomic(const char *path, const char *data, size_t len);
 

@@ -316,19 +316,8 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
     char path[4300];
     snprintf(path, sizeof path, "%s/summary.json", dir);
     rc = pb_json_write_atomic(path, doc) ? -1 : 0;
-    if (rc) {
-        /* series without their summary are a half-written result */
-        size_t i;
-        json_t *c;
-        json_array_foreach(cases, i, c) {
-            const char *sr = json_string_value(json_object_get(c, "series"));
-            char f[8400];
-            snprintf(f, sizeof f, "%s/%s", dir, sr ? sr : "");
-            if (pb_series_path_ok(sr))
-                unlink(f);
-        }
-        pb_run_dir_unprepare(dir);
-    }
+    if (rc)
+        pb_run_dir_unwrite(dir, cases);
     if (rc == 0 && previous) {
         int pruned = pb_run_dir_prune(dir, previous, doc);
         if (pruned && !opt->quiet)
