@@ -4,7 +4,6 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 #include "cli.h"
 #include "case_json.h"
 #include "harness.h"
@@ -63,10 +62,7 @@ int pb_cli_run(int argc, char **argv)
     snprintf(path, sizeof path, "%s/summary.json", dir);
     int bad = pb_series_write(dir, &spec, &res);
     if (!bad && pb_json_write_atomic(path, doc)) {
-        /* a series without its summary is a half-written result */
-        char series[4200 + PB_CASE_ID_MAX];
-        snprintf(series, sizeof series, "%s/series/%s.csv", dir, res.id);
-        unlink(series);
+        pb_run_dir_unwrite(dir, cases); /* no series without its summary */
         bad = 1;
     }
     int pruned = bad ? 0 : pb_run_dir_prune(dir, previous, doc);
