@@ -109,9 +109,11 @@ int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen
     snprintf(path, sizeof path, "%s/summary.json", dir);
     json_t *doc;
     /* the same checks as check and baseline apply: readable, valid JSON, our
-     * format, and every finished case with numeric metrics and counts */
+     * format, and every finished case with all its metrics and counts */
     if (pb_summary_load(path, &doc, err, errlen))
         return -1;
+    if (pb_summary_complete(path, doc, err, errlen))
+        goto fail;
     const json_t *fmt = json_object_get(doc, "format");
     const json_t *cases = json_object_get(doc, "cases");
     if (!json_is_integer(fmt) || json_integer_value(fmt) != 1) {

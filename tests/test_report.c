@@ -124,6 +124,17 @@ Test(report, bad_summary_exit_2_naming_the_file)
           " \"status\": \"ok\", \"metrics\": {}, \"cost\": {}}]}\n", f);
     fclose(f);
     cr_assert_eq(rpt_report(dir, NULL, err, sizeof err), 2);
+    cr_assert(strstr(err, path) && strstr(err, "case a") && strstr(err, "key 'energy_rel_max' missing"),
+              "%s", err);
+
+    /* complete, but with neither a step nor a tolerance: no setting to plot against */
+    char out[4096], cmd[800];
+    const char *sweep[] = {"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit", "100",
+                           "--orbits", "2", "--repeats", "0", "--quiet", "--out", dir, NULL};
+    cr_assert_eq(pbt_run_cli(sweep, out, sizeof out, err, sizeof err), 0, "%s", err);
+    snprintf(cmd, sizeof cmd, "sed -i '/\"steps_per_orbit\"/d' '%s'", path);
+    cr_assert_eq(system(cmd), 0);
+    cr_assert_eq(rpt_report(dir, NULL, err, sizeof err), 2);
     cr_assert(strstr(err, "cases[0]") && strstr(err, "tolerance"), "%s", err);
 }
 
