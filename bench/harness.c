@@ -209,7 +209,10 @@ static void harness_config(const pb_case_spec *spec, double horizon, pb_method_c
          * O(1)-and-larger state components of both unit systems */
         cfg->rtol = spec->tolerance;
         cfg->atol = spec->tolerance;
-        cfg->min_step = 1e-13 * cfg->time_scale;
+        /* the horizon bounds it too: a near-escape ellipse's period can be
+         * 1e20 times a short horizon, and a floor above the horizon would
+         * end the case before its first step */
+        cfg->min_step = 1e-13 * fmin(cfg->time_scale, horizon);
         cfg->max_steps = spec->max_steps > 0 ? spec->max_steps : 50000000L;
     }
 }

@@ -477,13 +477,18 @@ static int pf_finish(pf_ctx *c)
     } else if (L[K_HORIZON]) {
         if (!(cs->num[K_HORIZON] > 0))
             FAIL_K(K_HORIZON, "must be > 0 (got %g)", cs->num[K_HORIZON]);
-        /* the time scale: the period, or for an open orbit the period of a
-         * circle at the periapsis distance */
-        double ts = p->period > 0 ? p->period : 2.0 * M_PI * sqrt(rp * rp * rp / mu);
+        /* at least a little of the periapsis passage (the period of a circle
+         * at the periapsis distance, which is below the period of any
+         * ellipse: a near-escape ellipse's period is no guide to a short
+         * horizon), at most as many periods as `orbits` allows */
+        double tp = 2.0 * M_PI * sqrt(rp * rp * rp / mu), ts = p->period > 0 ? p->period : tp;
         double hs = cs->num[K_HORIZON];
-        if (!(hs >= PF_HORIZON_MIN * ts && hs <= PF_HORIZON_MAX * ts))
-            FAIL_K(K_HORIZON, "must be within [%g, %g] times the %s %g (got %g)", PF_HORIZON_MIN,
-                   PF_HORIZON_MAX, p->period > 0 ? "period" : "periapsis time scale", ts, hs);
+        if (!(hs >= PF_HORIZON_MIN * tp))
+            FAIL_K(K_HORIZON, "must be at least %g times the periapsis time scale %g (got %g)",
+                   PF_HORIZON_MIN, tp, hs);
+        if (!(hs <= PF_HORIZON_MAX * ts))
+            FAIL_K(K_HORIZON, "must be at most %g times the %s %g (got %g)", PF_HORIZON_MAX,
+                   p->period > 0 ? "period" : "periapsis time scale", ts, hs);
         /* a horizon given in seconds stays in seconds (ids read __s<seconds>) */
         p->default_horizon_s = cs->num[K_HORIZON];
         p->default_orbits = 0.0;

@@ -395,3 +395,28 @@ Test(harness, near_parabolic_energy_relative_to_its_parts)
     double Eq = q.energy(&q, 0, q.r0, q.v0);
     cr_assert_eq(pb_energy_scale(&q, Eq), fabs(Eq));
 }
+
+/* The adaptive minimum step is bounded by the horizon as well as the period:
+ * for an ellipse one ulp below escape speed (period ~1e24 TU) a floor of
+ * 1e-13 periods was longer than a 10 TU horizon and ended the case at t = 0.
+ * Now rkf45 finishes, and its final position agrees with the exact flow. */
+Test(harness, near_escape_adaptive_min_step)
+{
+    pb_problem p;
+    double r0[3] = {1, 0, 0}, v0[3] = {0, 1.414213562373095, 0};
+    pb_problem_init_twobody(&p, "near-escape", "one ulp below escape speed", PB_UNITS_NORMALIZED, 1.0, r0, v0);
+    cr_assert_gt(p.period, 1e20);
+    pb_case_spec s;
+    memset(&s, 0, sizeof s);
+    s.problem = p;
+    s.method = pb_method_find("rkf45");
+    s.tolerance = 1e-10;
+    s.horizon_s = 10;
+    s.linear_samples = 10;
+    pb_case_result r;
+    cr_assert_eq(pb_case_run(&s, &r), 0);
+    cr_assert_str_eq(r.status_name, "ok", "%s at t = %g", r.status_detail, r.diverged_at);
+    cr_assert_gt(r.steps, 10);
+    cr_assert_lt(r.pos_err_final, 1e-6);
+    pb_case_result_free(&r);
+}

@@ -462,3 +462,23 @@ Test(problem_file, shipped_examples_parse)
     cr_assert_float_eq(el.a * (1 - el.e), 24396.0 * (1 - 0.7283), 1e-6);
     free(c);
 }
+
+/* An ellipse one ulp below escape speed (r = 1, v = 1.414213562373095) has a
+ * period near 1e24 TU, but a short horizon is still a question about its
+ * periapsis passage: horizon_s is bounded below by the periapsis time scale
+ * 2 pi sqrt(rp^3/mu) (Kepler's third law for the circle at rp), not the
+ * period. */
+Test(problem_file, near_escape_ellipse_short_horizon)
+{
+    pb_problem *c;
+    int n;
+    cr_assert_eq(pft_read(NORM "r = 1,0,0\nv = 0,1.414213562373095,0\nhorizon_s = 10\n", &c, &n), PB_OK,
+                 "%s", pft_err);
+    cr_assert_gt(c[0].period, 1e20);
+    cr_assert_eq(c[0].default_horizon_s, 10.0);
+    free(c);
+    cr_assert_eq(pft_read(NORM "r = 1,0,0\nv = 0,1.41421,0\nhorizon_s = 10\n", &c, &n), PB_OK, "%s", pft_err);
+    free(c);
+    pft_expect_error(NORM "r = 1,0,0\nv = 0,1.41421,0\nhorizon_s = 1e-4\n", 5, "horizon_s",
+                     "at least 0.001 times the periapsis time scale 6.28319");
+}
