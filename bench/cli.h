@@ -8,6 +8,9 @@
 
 enum { PB_EXIT_OK = 0, PB_EXIT_FAIL = 1, PB_EXIT_USAGE = 2 };
 
+/* The longest horizon in periods any verb takes (as problem files do). */
+#define PB_CLI_ORBITS_MAX 1e8
+
 int pb_cli_list(int argc, char **argv);
 int pb_cli_run(int argc, char **argv);
 int pb_cli_sweep(int argc, char **argv);

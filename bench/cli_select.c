@@ -105,6 +105,8 @@ int pb_cli_select(int argc, char **argv)
     const pb_problem *p = &base.problem;
     if (!orbits == !horizon)
         return pb_cli_error("select", "give exactly one of --orbits N or --horizon-s S");
+    if (orbits > PB_CLI_ORBITS_MAX)
+        return pb_cli_error("select", "--orbits must be in (0, %g], got '%.6g'", PB_CLI_ORBITS_MAX, orbits);
     if (orbits > 0 && !(p->period > 0))
         return pb_cli_error("select", "problem '%s' has no period: give --horizon-s", p->name);
     if (pos > 0 && pos_m > 0)
@@ -132,6 +134,12 @@ int pb_cli_select(int argc, char **argv)
         if (probe.method && pb_case_validate(&probe, why, sizeof why))
             return pb_cli_error("select", "%s %.6g: %s", orbits > 0 ? "--orbits" : "--horizon-s",
                                 orbits > 0 ? orbits : horizon, why);
+        double coarsest = pb_case_fixed_steps(&probe);
+        if (coarsest > PB_SELECT_MAX_STEPS)
+            return pb_cli_error("select", "%s %.6g: even the search's coarsest step (4 a period) needs "
+                                "%.3g steps, past its budget of %.3g a case; shorten the horizon",
+                                orbits > 0 ? "--orbits" : "--horizon-s", orbits > 0 ? orbits : horizon,
+                                coarsest, PB_SELECT_MAX_STEPS);
     }
 
     const pb_method_type *list[64];

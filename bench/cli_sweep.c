@@ -70,7 +70,8 @@ int pb_cli_sweep(int argc, char **argv)
         case SW_COMP: comp = 1; break;
         case SW_ORBITS:
             if (pb_cli_double("sweep", "--orbits", optarg, &orbits)) return PB_EXIT_USAGE;
-            if (!(orbits > 0)) return pb_cli_error("sweep", "--orbits must be positive, got '%s'", optarg);
+            if (!(orbits > 0) || orbits > PB_CLI_ORBITS_MAX)
+                return pb_cli_error("sweep", "--orbits must be in (0, %g], got '%s'", PB_CLI_ORBITS_MAX, optarg);
             break;
         case SW_COST:
             if (pb_cli_double("sweep", "--eval-cost-us", optarg, &cost)) return PB_EXIT_USAGE;
@@ -181,7 +182,9 @@ int pb_cli_sweep(int argc, char **argv)
                     s.cache_dir = "results/cache";
                     char err[512];
                     if (pb_case_validate(&s, err, sizeof err)) {
-                        pb_cli_error("sweep", "%s", err);
+                        char id[PB_CASE_ID_MAX];
+                        pb_case_id(&s, id, sizeof id);
+                        pb_cli_error("sweep", "case %s (--steps-per-orbit/--tolerances x --orbits): %s", id, err);
                         goto out;
                     }
                     if (pb_case_list_add(&list, &s)) {

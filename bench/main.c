@@ -38,6 +38,11 @@ int main(int argc, char **argv)
         main_usage(stdout);
         return PB_EXIT_OK;
     }
+    /* No option of any verb takes an empty value, and an empty path would
+     * name the current folder's parent or the root ("" + "/plots"). */
+    for (int i = 2; i < argc; i++)
+        if (!argv[i][0])
+            return pb_cli_error(argv[1], "an empty value after %s", argv[i - 1]);
     for (const main_verb *v = main_verbs; v->name; v++)
         if (!strcmp(argv[1], v->name))
             return v->fn(argc - 1, argv + 1);

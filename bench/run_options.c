@@ -90,8 +90,8 @@ int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options
             break;
         case OPT_ORBITS:
             if (pb_cli_double(verb, "--orbits", a, &o->orbits)) return PB_EXIT_USAGE;
-            if (!(o->orbits > 0) || o->orbits > 1e8)
-                return pb_cli_error(verb, "--orbits must be in (0, 1e8], got '%s'", a);
+            if (!(o->orbits > 0) || o->orbits > PB_CLI_ORBITS_MAX)
+                return pb_cli_error(verb, "--orbits must be in (0, %g], got '%s'", PB_CLI_ORBITS_MAX, a);
             o->have_orbits = 1;
             break;
         case OPT_HORIZON:

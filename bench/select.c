@@ -10,7 +10,6 @@
 #include "harness.h"
 
 #define SELECT_MAX_SPO 1048576     /* 2^20 steps per orbit */
-#define SELECT_MAX_STEPS 2e7       /* per case */
 
 int pb_requirement_met(const pb_requirement *req, const pb_case_result *res)
 {
@@ -98,7 +97,7 @@ static int select_search(const pb_case_spec *base, const pb_method_type *m, cons
     if (!(hi > 0)) {
         if (!(lo > 0))
             snprintf(out->note, sizeof out->note, "the horizon is too long for the step budget "
-                     "(%.0g steps a case)", SELECT_MAX_STEPS);
+                     "(%.0g steps a case)", PB_SELECT_MAX_STEPS);
         else if (ax->fixed)
             snprintf(out->note, sizeof out->note, "no step up to %.0f per orbit meets it", lo);
         else
@@ -161,7 +160,7 @@ int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
     if (m->flags & PB_KIND_FIXED) {
         /* doubling from 4 steps per orbit, within a budget of steps per case */
         double T = base->problem.period > 0 ? base->problem.period : pb_case_horizon(base);
-        double last = fmin(SELECT_MAX_SPO, floor(SELECT_MAX_STEPS * T / pb_case_horizon(base)));
+        double last = fmin(SELECT_MAX_SPO, floor(PB_SELECT_MAX_STEPS * T / pb_case_horizon(base)));
         select_axis ax = {1, 4, 2, last, 1.0, 2}; /* bisect to adjacent whole numbers */
         rc = select_search(base, m, &ax, req, out);
     } else {

@@ -6,6 +6,9 @@
 #include <jansson.h>
 #include "case.h"
 
+/* The most steps one case of the search may take (its budget). */
+#define PB_SELECT_MAX_STEPS 2e7
+
 typedef struct pb_requirement {
     double max_pos_err;     /* problem length units; 0: not required */
     double max_energy_rel;  /* 0: not required */

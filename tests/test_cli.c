@@ -86,7 +86,14 @@ Test(cli, bad_lists_and_ranges_exit_2_with_one_message)
     expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit", "99999999999999999999999", NULL}, "out of range");
     expect_bad((const char *[]){"sweep", "--problems", "hyperbolic-flyby", "--methods", "rk4", "--steps-per-orbit", "100", "--orbits", "2", NULL}, "no period");
     expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "10", "--methods", "", "--max-pos-err", "1e-3", NULL}, "--methods");
-    expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "1e300", "--max-pos-err", "1e-3", NULL}, "too many");
+    expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "1e300", "--max-pos-err", "1e-3", NULL}, "(0, 1e+08]");
+    /* one range for --orbits in every verb; select's own step budget is usage, not "not met" */
+    expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit", "100", "--orbits", "1e9", NULL}, "(0, 1e+08]");
+    expect_bad((const char *[]){"run", "--problem", "kepler-e0", "--method", "rk4", "--steps-per-orbit", "100", "--orbits", "1e9", NULL}, "(0, 1e+08]");
+    expect_bad((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "1e7", "--max-pos-err", "1e-3", "--methods", "rk4", NULL}, "past its budget");
+    expect_bad((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit", "100000000", "--orbits", "1e8", NULL}, "case kepler-e0__rk4__n100000000");
+    /* an empty value never names a path: "" + "/plots" would be the root's */
+    expect_bad((const char *[]){"report", "results/runs/none", "--out", "", NULL}, "an empty value after --out");
     /* a folder where a file belongs is called a folder, not an empty or corrupt file */
     char dir[256];
     pbt_tmpdir(dir, sizeof dir);
