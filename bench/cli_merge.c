@@ -60,30 +60,12 @@ int pb_cli_merge(int argc, char **argv)
     for (int i = 0; i < nshards; i++) {
         char path[4200];
         snprintf(path, sizeof path, "%s/summary.json", argv[optind + i]);
-        /* opened here so that a missing shard gets errno's words, not
-         * jansson's line -1 */
-        FILE *f = fopen(path, "rb");
-        if (!f) {
-            pb_cli_error("merge", "cannot read %s: %s", path, strerror(errno));
-            goto out;
-        }
-        json_error_t e;
-        docs[i] = json_loadf(f, 0, &e);
-        fclose(f);
-        if (!docs[i]) {
-            if (e.line > 0)
-                pb_cli_error("merge", "%s:%d: cannot read: %s", path, e.line, e.text);
-            else
-                pb_cli_error("merge", "cannot read %s: %s", path, e.text);
-            goto out;
-        }
-        json_t *fmt = json_object_get(docs[i], "format");
-        if (!json_is_integer(fmt) || json_integer_value(fmt) != PB_SUMMARY_FORMAT) {
-            pb_cli_error("merge", "%s: key 'format': expected %d", path, PB_SUMMARY_FORMAT);
-            goto out;
-        }
+        /* the loader check, baseline and report use: errno's words for a
+         * missing file, "is a folder", line and column for corrupt JSON,
+         * the format, then every finished case complete */
         char why[1024];
-        if (pb_summary_complete(path, docs[i], why, sizeof why)) {
+        if (pb_summary_load(path, &docs[i], why, sizeof why) ||
+            pb_summary_complete(path, docs[i], why, sizeof why)) {
             pb_cli_error("merge", "%s", why);
             goto out;
         }

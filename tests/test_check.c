@@ -476,7 +476,7 @@ Test(check, merge_names_a_missing_shard_without_a_line)
     cr_assert_eq(mkdir(shard, 0755), 0);
     char *mg[] = {(char *)pbc_bin(), "merge", "--out", out, shard, NULL};
     cr_assert_eq(pbc_spawn(&ctx, mg), 2, "%s%s", ctx.out, ctx.err);
-    snprintf(msg, sizeof msg, "propbench merge: error: cannot read %s/summary.json: %s\n", shard,
+    snprintf(msg, sizeof msg, "propbench merge: error: %s/summary.json: cannot open: %s\n", shard,
              strerror(ENOENT));
     cr_assert_str_eq(ctx.err, msg);
     cr_assert_not(strstr(ctx.err, ":-1"), "%s", ctx.err);

@@ -13,6 +13,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <fcntl.h>
 #include <unistd.h>
 #include "test_support.h"
@@ -100,6 +101,14 @@ Test(cli, bad_lists_and_ranges_exit_2_with_one_message)
     expect_bad((const char *[]){"run", "--problem-file", dir, "--method", "rk4", "--steps-per-orbit", "100", NULL}, "is a folder");
     cr_assert_eq(cli((const char *[]){"check", "--baseline", dir, dir, NULL}), 2);
     cr_assert(strstr(err_buf, dir) && strstr(err_buf, "is a folder"), "%s", err_buf);
+    char sj[300], mo[300];
+    snprintf(sj, sizeof sj, "%s/summary.json", dir);
+    snprintf(mo, sizeof mo, "%s/m", dir);
+    cr_assert_eq(mkdir(sj, 0755), 0);
+    cr_assert_eq(cli((const char *[]){"merge", "--out", mo, dir, NULL}), 2);
+    cr_assert(strstr(err_buf, sj) && strstr(err_buf, "is a folder"), "%s", err_buf);
+    cr_assert(!pbt_exists(mo));
+    rmdir(sj);
     rmdir(dir);
 }
 
