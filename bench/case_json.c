@@ -96,7 +96,7 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     int km = spec->problem.units == PB_UNITS_KM_S;
     json_object_set_new(mt, "energy_rel_max", pb_json_real(res->energy_rel_max));
     if (res->energy_rel_to_parts)
-        json_object_set_new(mt, "energy_rel_to", json_string("v0^2/2 + mu/|r0| (near-parabolic start)"));
+        json_object_set_new(mt, "energy_rel_to", json_string("v0^2/2 + mu/|r0| (near-parabolic start: |E0| under 1e-6 of it)"));
     json_object_set_new(mt, "energy_rel_final", pb_json_real(res->energy_rel_final));
     json_object_set_new(mt, "angmom_rel_max", pb_json_real(res->angmom_rel_max));
     json_object_set_new(mt, "angmom_rel_final", pb_json_real(res->angmom_rel_final));

@@ -85,8 +85,8 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
         print_invariant(p->energy_label ? p->energy_label : "energy", res->energy_rel_max,
                         res->energy_rel_final);
     if (res->energy_rel_to_parts)
-        printf("  %-22s relative to v0^2/2 + mu/|r0|: the start is so nearly parabolic that\n"
-               "  %-22s |E0| is round-off\n", "", "");
+        printf("  %-22s relative to v0^2/2 + mu/|r0|, not |E0|: the start is nearly parabolic\n"
+               "  %-22s (|E0| under 1e-6 of it), so most of |E0| is cancellation\n", "", "");
     if (p->angmom)
         print_invariant(p->angmom_label ? p->angmom_label : "angular momentum", res->angmom_rel_max,
                         res->angmom_rel_final);

@@ -14,9 +14,11 @@ void pb_metrics_sample(const pb_problem *p, double t, const double *r, const dou
                        double E0, double E_scale, double H0, pb_sample *s);
 
 /* What an energy error is relative to: |E0|, except for a nearly parabolic
- * start (|E0| below 1e-6 of v0^2/2 + mu/|r0|), where |E0| is round-off and a
- * relative error in it means nothing; there it is v0^2/2 + mu/|r0|, the
- * size of the two energies that cancel (common practice). */
+ * start (|E0| below 1e-6 of v0^2/2 + mu/|r0|), where |E0| is a small
+ * difference of two large energies (at a parabola, pure round-off) and an
+ * error relative to it measures that cancellation more than the method;
+ * there it is v0^2/2 + mu/|r0|, the size of the two energies that cancel
+ * (common practice). */
 double pb_energy_scale(const pb_problem *p, double E0);
 
 /* Relative error |x - x0| / |x0| (absolute when x0 == 0). */
