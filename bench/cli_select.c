@@ -256,7 +256,11 @@ int pb_cli_select(int argc, char **argv)
             printf("%4d %-15s %-18s %10ld %12.3e %12.3e %10.1f %12.4g\n", ++rank, mname,
                    setting, r->evals, pe, r->energy_rel_max, r->ns_per_step, s->projected_s);
         }
-        printf("(* GSL's stepper)\n");
+        int gsl_shown = 0;
+        for (int i = 0; i < m; i++)
+            gsl_shown |= sel[i].found && (sel[i].method->flags & PB_FROM_GSL);
+        if (gsl_shown)
+            printf("(* GSL's stepper)\n");
         long cut_lo = -1, cut_hi = 0;
         for (int i = 0; i < m; i++)
             if (sel[i].found && (sel[i].method->flags & PB_KIND_ADAPTIVE)) {

@@ -6,6 +6,7 @@
 #include <string.h>
 #include "cli.h"
 #include "harness.h"
+#include "run_dir.h"
 #include "suites.h"
 #include "sweep.h"
 #include "problem_source.h"
@@ -227,6 +228,12 @@ int pb_cli_sweep(int argc, char **argv)
         if (shard_n <= 1 || i % shard_n == shard_k - 1)
             fixed_steps += pb_case_fixed_steps(&list.cases[i]);
     pb_cli_warn_long("sweep", fixed_steps);
+    /* the output folder is checked before the banner, so a refusal is one line */
+    char why[4400];
+    if (pb_run_dir_prepare(dir, why, sizeof why)) {
+        pb_cli_error("sweep", "%s", why);
+        goto out;
+    }
     pb_sweep_options so = {(int)jobs, shard_k, shard_n, pb_cli_progress_wanted(quiet), suite ? suite : "grid", quiet};
     if (!quiet)
         fprintf(stderr, "propbench sweep: %d cases%s into %s with %ld worker%s\n",

@@ -295,5 +295,8 @@ int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary)
         if (unlink(path) == 0)
             removed++;
     }
+    /* the earlier report's folder, if nothing else is in it now */
+    snprintf(path, sizeof path, "%s/plots", dir);
+    rmdir(path);
     return removed;
 }
