@@ -494,6 +494,8 @@ Test(cli, rerun_replaces_earlier_run)
                                      "--steps-per-orbit", "100", "--orbits", "10", "--repeats", "0",
                                      "--quiet", "--out", dir, NULL}), 0, "%s", err_buf);
     cr_assert(!pbt_exists(path), "the earlier report is still there");
+    snprintf(path, sizeof path, "%s/plots", dir);
+    cr_assert(!pbt_exists(path), "the earlier report's plots/ folder is still there");
     snprintf(path, sizeof path, "%s/series/kepler-e0.5__rk4__n100__o10.csv", dir);
     cr_assert(!pbt_exists(path), "an earlier series is still there");
     snprintf(path, sizeof path, "%s/series/kepler-e0__leapfrog__n100__o10.csv", dir);
