@@ -4,7 +4,7 @@
 #include <string.h>
 #include "fingerprint.h"
 
-static uint64_t fnv_bytes(uint64_t h, const void *p, size_t n)
+uint64_t pb_fnv1a64(uint64_t h, const void *p, size_t n)
 {
     const unsigned char *b = p;
     for (size_t i = 0; i < n; i++) {
@@ -17,9 +17,9 @@ static uint64_t fnv_bytes(uint64_t h, const void *p, size_t n)
 void pb_fingerprint_state(double t, const double *r, const double *v, int dim,
                           char *out, size_t outlen)
 {
-    uint64_t h = UINT64_C(0xcbf29ce484222325);
-    h = fnv_bytes(h, &t, sizeof t);
-    h = fnv_bytes(h, r, (size_t)dim * sizeof(double));
-    h = fnv_bytes(h, v, (size_t)dim * sizeof(double));
+    uint64_t h = PB_FNV1A64_INIT;
+    h = pb_fnv1a64(h, &t, sizeof t);
+    h = pb_fnv1a64(h, r, (size_t)dim * sizeof(double));
+    h = pb_fnv1a64(h, v, (size_t)dim * sizeof(double));
     snprintf(out, outlen, "fnv1a64:%016" PRIx64, h);
 }

@@ -17,6 +17,7 @@
 #include <dirent.h>
 #include "sweep.h"
 #include "case_json.h"
+#include "fingerprint.h"
 #include "harness.h"
 #include "run_dir.h"
 #include "progress.h"
@@ -77,33 +78,23 @@ static void sweep_child(const pb_case_spec *spec, int index, const char *work, c
     _exit(rc ? 3 : 0);
 }
 
-static uint64_t sweep_fnv(uint64_t h, const void *p, size_t n)
-{
-    const unsigned char *b = p;
-    for (size_t i = 0; i < n; i++) {
-        h ^= b[i];
-        h *= UINT64_C(0x100000001b3);
-    }
-    return h;
-}
-
 void pb_sweep_identity(const pb_case_list *list, char *out, size_t outlen)
 {
-    uint64_t h = UINT64_C(0xcbf29ce484222325);
+    uint64_t h = PB_FNV1A64_INIT;
     for (int i = 0; i < list->n; i++) {
         const pb_case_spec *c = &list->cases[i];
         char id[PB_CASE_ID_MAX];
         pb_case_id(c, id, sizeof id);
-        h = sweep_fnv(h, id, strlen(id) + 1);
+        h = pb_fnv1a64(h, id, strlen(id) + 1);
         /* what the id does not show: the problem's own numbers and the
          * settings that change results, so edited inputs do not merge */
         const pb_problem *p = &c->problem;
         double nums[] = {p->mu, p->body_radius, p->j2, p->t0, p->r0[0], p->r0[1], p->r0[2],
                          p->v0[0], p->v0[1], p->v0[2], c->eval_cost_us};
         int ints[] = {p->force, p->units, c->repeats, c->linear_samples, c->compensated};
-        h = sweep_fnv(h, nums, sizeof nums);
-        h = sweep_fnv(h, ints, sizeof ints);
-        h = sweep_fnv(h, &c->max_steps, sizeof c->max_steps);
+        h = pb_fnv1a64(h, nums, sizeof nums);
+        h = pb_fnv1a64(h, ints, sizeof ints);
+        h = pb_fnv1a64(h, &c->max_steps, sizeof c->max_steps);
     }
     snprintf(out, outlen, "%d:%016llx", list->n, (unsigned long long)h);
 }
