@@ -196,29 +196,6 @@ Test(gsl_peers, one_call_reproduces_gsl_driver)
     }
 }
 
-/* Run m from t0 to t_end in nsamp equal advance calls; returns the final state. */
-static pbt_result tg_split(const pb_method_type *m, const pb_problem *p,
-                           const pb_method_config *c, double t_end, int nsamp)
-{
-    pbt_result res = {0};
-    pb_force_counter cnt;
-    pb_force f;
-    pb_force_counter_init(&cnt, p, &f);
-    void *ws = m->alloc(p->dim);
-    cr_assert_not_null(ws);
-    res.status = m->start(ws, &f, c, p->t0, p->r0, p->v0);
-    for (int k = 1; k <= nsamp && !res.status; k++)
-        res.status = m->advance(ws, t_end * k / nsamp, NULL, NULL);
-    m->get_state(ws, &res.t, res.r, res.v);
-    pb_method_stats st;
-    m->get_stats(ws, &st);
-    res.steps = st.steps;
-    res.rejected = st.rejected;
-    res.evals = cnt.evals;
-    m->free(ws);
-    return res;
-}
-
 Test(gsl_peers, split_advance_matches_one_call)
 {
     /* 100 sample times over two orbits of e = 0.5 at tol 1e-10: the final
@@ -232,7 +209,7 @@ Test(gsl_peers, split_advance_matches_one_call)
     for (int m = 0; m < TG_NADAPTIVE; m++) {
         pb_method_config c = tg_cfg(1e-10);
         pbt_result one = pbt_integrate(tg_adaptive[m], &p, &c, 2 * p.period);
-        pbt_result split = tg_split(tg_adaptive[m], &p, &c, 2 * p.period, nsamp);
+        pbt_result split = pbt_integrate_split(tg_adaptive[m], &p, &c, 2 * p.period, nsamp);
         cr_assert_eq(one.status, PB_OK);
         cr_assert_eq(split.status, PB_OK);
         cr_assert_eq(split.t, 2 * p.period);
@@ -252,7 +229,7 @@ Test(gsl_peers, split_advance_matches_one_call)
     pb_method_config c = tg_cfg(0);
     c.h = p.period / 400;
     pbt_result one = pbt_integrate(&pb_method_gsl_rk4, &p, &c, 2 * p.period);
-    pbt_result split = tg_split(&pb_method_gsl_rk4, &p, &c, 2 * p.period, nsamp);
+    pbt_result split = pbt_integrate_split(&pb_method_gsl_rk4, &p, &c, 2 * p.period, nsamp);
     cr_assert_eq(one.status, PB_OK);
     cr_assert_eq(split.status, PB_OK);
     for (int i = 0; i < 3; i++) {

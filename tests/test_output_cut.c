@@ -4,11 +4,10 @@
 #include <math.h>
 #include <string.h>
 #include "test_support.h"
-#include "../bench/force_counter.h"
 
-/* Advance over one orbit of kepler-e0.5 in `calls` equal pieces; the stats
- * after the last one. */
-static pb_method_stats oc_run(const char *name, int calls)
+/* Advance over one orbit of kepler-e0.5 at tolerance 1e-8 in `calls` equal
+ * pieces. */
+static pbt_result oc_run(const char *name, int calls)
 {
     const pb_method_type *m = pb_method_find(name);
     cr_assert_not_null(m, "%s", name);
@@ -18,18 +17,9 @@ static pb_method_stats oc_run(const char *name, int calls)
     memset(&cfg, 0, sizeof cfg);
     cfg.rtol = cfg.atol = 1e-8;
     cfg.time_scale = p.period;
-    pb_force_counter c;
-    pb_force f;
-    pb_force_counter_init(&c, &p, &f);
-    void *ws = m->alloc(p.dim);
-    cr_assert_not_null(ws);
-    cr_assert_eq(m->start(ws, &f, &cfg, p.t0, p.r0, p.v0), PB_OK);
-    for (int k = 1; k <= calls; k++)
-        cr_assert_eq(m->advance(ws, p.t0 + p.period * k / calls, NULL, NULL), PB_OK);
-    pb_method_stats st;
-    m->get_stats(ws, &st);
-    m->free(ws);
-    return st;
+    pbt_result r = pbt_integrate_split(m, &p, &cfg, p.t0 + p.period, calls);
+    cr_assert_eq(r.status, PB_OK, "%s", name);
+    return r;
 }
 
 /* One call: at most the final step is cut. Many calls: every output time can
@@ -39,7 +29,7 @@ Test(output_cut, counted_per_output_time)
 {
     static const char *const names[] = {"rkf45", "gsl-rkf45", "gsl-rkck", "gsl-rk8pd"};
     for (size_t i = 0; i < sizeof names / sizeof names[0]; i++) {
-        pb_method_stats one = oc_run(names[i], 1), many = oc_run(names[i], 200);
+        pbt_result one = oc_run(names[i], 1), many = oc_run(names[i], 200);
         cr_log_info("%s: 1 output: %ld steps, %ld cut; 200 outputs: %ld steps, %ld cut", names[i],
                     one.steps, one.output_cut, many.steps, many.output_cut);
         cr_assert_leq(one.output_cut, 1, "%s", names[i]);

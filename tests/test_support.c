@@ -10,6 +10,12 @@
 pbt_result pbt_integrate(const pb_method_type *m, const pb_problem *p,
                          const pb_method_config *cfg, double t_end)
 {
+    return pbt_integrate_split(m, p, cfg, t_end, 1);
+}
+
+pbt_result pbt_integrate_split(const pb_method_type *m, const pb_problem *p,
+                               const pb_method_config *cfg, double t_end, int pieces)
+{
     pbt_result res;
     memset(&res, 0, sizeof res);
     pb_force_counter c;
@@ -21,13 +27,14 @@ pbt_result pbt_integrate(const pb_method_type *m, const pb_problem *p,
         return res;
     }
     res.status = m->start(ws, &f, cfg, p->t0, p->r0, p->v0);
-    if (!res.status)
-        res.status = m->advance(ws, t_end, NULL, NULL);
+    for (int k = 1; k <= pieces && !res.status; k++)
+        res.status = m->advance(ws, k == pieces ? t_end : p->t0 + (t_end - p->t0) * k / pieces, NULL, NULL);
     m->get_state(ws, &res.t, res.r, res.v);
     pb_method_stats st;
     m->get_stats(ws, &st);
     res.steps = st.steps;
     res.rejected = st.rejected;
+    res.output_cut = st.output_cut;
     res.t_fail = st.t_fail;
     res.evals = c.evals;
     m->free(ws);

@@ -9,7 +9,7 @@ typedef struct pbt_result {
     int status;
     double t;                      /* time reached */
     double r[PB_DIM_MAX], v[PB_DIM_MAX];
-    long evals, steps, rejected;
+    long evals, steps, rejected, output_cut;
     double t_fail;
 } pbt_result;
 
@@ -17,6 +17,11 @@ typedef struct pbt_result {
  * (one advance call), through the harness's counting force wrapper. */
 pbt_result pbt_integrate(const pb_method_type *m, const pb_problem *p,
                          const pb_method_config *cfg, double t_end);
+
+/* The same in `pieces` advance calls to equally spaced output times (the
+ * last exactly t_end), as the harness's samples split a run. */
+pbt_result pbt_integrate_split(const pb_method_type *m, const pb_problem *p,
+                               const pb_method_config *cfg, double t_end, int pieces);
 
 /* Position error |r - r_exact(t)| against the problem's exact solution
  * evaluated in __float128. */
