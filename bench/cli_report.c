@@ -6,7 +6,6 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/stat.h>
 #include <unistd.h>
 #include "cli.h"
 #include "report_data.h"
@@ -98,9 +97,8 @@ int pb_cli_report(int argc, char **argv)
     static const char *const outputs[] = {"report.html", "report.md"};
     for (int i = 0; i < 2; i++) {
         char f[PATH_MAX + 16];
-        struct stat st;
         snprintf(f, sizeof f, "%s/%s", out, outputs[i]);
-        if (!stat(f, &st) && !S_ISREG(st.st_mode)) {
+        if (pb_path_blocked(f)) {
             pb_cli_error("report", "%s is there and is not a file: the report could not be written", f);
             goto done;
         }

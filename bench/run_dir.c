@@ -42,6 +42,12 @@ int pb_mkdirs(const char *path)
     return 0;
 }
 
+int pb_path_blocked(const char *path)
+{
+    struct stat st;
+    return !stat(path, &st) && !S_ISREG(st.st_mode);
+}
+
 int pb_run_dir_prepare(const char *dir, char *err, size_t errlen)
 {
     char sdir[4200], sum[4200];
@@ -52,8 +58,7 @@ int pb_run_dir_prepare(const char *dir, char *err, size_t errlen)
         snprintf(err, errlen, "cannot create the folder %s: %s", bad, strerror(errno));
         return -1;
     }
-    struct stat st;
-    if (!stat(sum, &st) && !S_ISREG(st.st_mode)) {
+    if (pb_path_blocked(sum)) {
         snprintf(err, errlen, "%s is there and is not a file: the summary could not be written", sum);
         pb_run_dir_unprepare(dir);
         return -1;

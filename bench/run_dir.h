@@ -14,6 +14,10 @@
  * directory). */
 int pb_mkdirs(const char *path);
 
+/* 1 if something that is not a plain file stands at path (a folder, say),
+ * so no file can be written there; 0 if it is absent or a plain file. */
+int pb_path_blocked(const char *path);
+
 /* Before any case runs: make dir and dir/series, and check that
  * dir/summary.json is absent or a plain file and that dir can be written,
  * so a run never computes for minutes and then fails to write, or leaves
