@@ -14,7 +14,9 @@ PB_LDLIBS  = $(shell pkg-config --libs $(PKGS) 2>/dev/null) -lquadmath -lm $(LDL
 TEST_LIBS  = $(shell pkg-config --libs criterion 2>/dev/null)
 SAN        := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
 
-LIB_SRC  := $(sort $(wildcard problems/*.c integrators/*.c) $(filter-out bench/main.c bench/bench_main.c,$(wildcard bench/*.c)))
+# Every .c below problems/, integrators/ and bench/'s layer folders is library
+# code, except the two programs' mains.
+LIB_SRC  := $(sort $(wildcard problems/*.c integrators/*.c) $(filter-out bench/cli/main.c bench/perf/%,$(wildcard bench/*/*.c)))
 TEST_SRC := $(sort $(wildcard tests/test_*.c))
 
 B  := build
@@ -46,9 +48,9 @@ $(B)/libpropbench.a: $(LIB_OBJ)
 $(BA)/libpropbench.a: $(LIB_OBJ_A)
 	@rm -f $@; ar rcs $@ $^
 
-$(BIN): $(B)/bench/main.o $(B)/libpropbench.a
+$(BIN): $(B)/bench/cli/main.o $(B)/libpropbench.a
 	$(CC) $(PB_CFLAGS) -o $@ $^ $(PB_LDLIBS)
-$(BIN_A): $(BA)/bench/main.o $(BA)/libpropbench.a
+$(BIN_A): $(BA)/bench/cli/main.o $(BA)/libpropbench.a
 	$(CC) $(PB_CFLAGS) $(SAN) -o $@ $^ $(PB_LDLIBS)
 
 $(B)/run_tests: $(TEST_OBJ) $(B)/libpropbench.a
@@ -56,7 +58,7 @@ $(B)/run_tests: $(TEST_OBJ) $(B)/libpropbench.a
 $(BA)/run_tests: $(TEST_OBJ_A) $(BA)/libpropbench.a
 	$(CC) $(PB_CFLAGS) $(SAN) -o $@ $^ $(TEST_LIBS) $(PB_LDLIBS)
 
-$(B)/bench_main: $(B)/bench/bench_main.o $(B)/libpropbench.a
+$(B)/bench_main: $(B)/bench/perf/bench_main.o $(B)/libpropbench.a
 	$(CC) $(PB_CFLAGS) -o $@ $^ $(PB_LDLIBS)
 
 # The suite runs twice: a plain optimised build, then under ASan + UBSan.
@@ -93,4 +95,4 @@ uninstall:
 clean:
 	rm -rf $(B)
 
--include $(LIB_OBJ:.o=.d) $(TEST_OBJ:.o=.d) $(LIB_OBJ_A:.o=.d) $(TEST_OBJ_A:.o=.d) $(B)/bench/main.d
+-include $(LIB_OBJ:.o=.d) $(TEST_OBJ:.o=.d) $(LIB_OBJ_A:.o=.d) $(TEST_OBJ_A:.o=.d) $(B)/bench/cli/main.d $(B)/bench/perf/bench_main.d

@@ -5,7 +5,7 @@
 #ifndef PB_METHOD_H
 #define PB_METHOD_H
 
-#include "../problems/problem.h"
+#include "problems/problem.h"
 
 /* Kind flags (capabilities are fields, never checks of a name). */
 enum {

@@ -1,7 +1,7 @@
 # plot-style.gp - propbench's look for every report figure: a warm paper
 # plot area, a 12-colour palette whose lines also differ by point shape (one
 # per method) so they stay apart in greyscale print; dash patterns separate
-# the steps or tolerances of one method. Kept equal to bench/report_style.c
+# the steps or tolerances of one method. Kept equal to bench/report/figure_style.c
 # (a test checks); each report copies it to plots/style.gp.
 set encoding utf8
 set datafile separator ','

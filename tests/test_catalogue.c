@@ -4,9 +4,9 @@
 #include <criterion/criterion.h>
 #include <math.h>
 #include <string.h>
-#include "../problems/catalogue.h"
-#include "../problems/summary.h"
-#include "../problems/twobody.h"
+#include "problems/catalogue.h"
+#include "problems/summary.h"
+#include "problems/twobody.h"
 
 Test(catalogue, every_entry_builds_with_a_horizon)
 {

@@ -14,10 +14,12 @@
 #include <sys/wait.h>
 #include <unistd.h>
 #include "test_support.h"
-#include "../bench/baseline.h"
-#include "../bench/harness.h"
-#include "../bench/junit.h"
-#include "../problems/catalogue.h"
+#include "bench/gate/baseline.h"
+#include "bench/gate/compare.h"
+#include "bench/store/summary_read.h"
+#include "bench/measure/harness.h"
+#include "bench/gate/junit.h"
+#include "problems/catalogue.h"
 
 extern char **environ;
 

@@ -17,7 +17,7 @@
 #include <fcntl.h>
 #include <unistd.h>
 #include "test_support.h"
-#include "../bench/cli.h"
+#include "bench/cli/cli.h"
 
 static char out_buf[1 << 16], err_buf[1 << 16];
 

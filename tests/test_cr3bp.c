@@ -4,9 +4,9 @@
 #include <criterion/criterion.h>
 #include <math.h>
 #include <string.h>
-#include "../problems/catalogue.h"
-#include "../problems/cr3bp.h"
-#include "../problems/reference.h"
+#include "problems/catalogue.h"
+#include "problems/cr3bp.h"
+#include "problems/reference.h"
 
 static pb_problem cr3t_arenstorf(void)
 {

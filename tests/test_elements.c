@@ -3,7 +3,7 @@
  * near-parabolic and hyperbolic orbits, and rejection of bad input. */
 #include <criterion/criterion.h>
 #include <math.h>
-#include "../problems/twobody.h"
+#include "problems/twobody.h"
 
 #define TE_MU 398600.4418 /* km^3/s^2, WGS-84 (common practice) */
 #define TE_DEG (M_PI / 180)

@@ -5,10 +5,10 @@
 #include <criterion/criterion.h>
 #include <math.h>
 #include <string.h>
-#include "../problems/twobody.h"
+#include "problems/twobody.h"
 #include "test_support.h"
 #define GJ_WANT_RATIONAL
-#include "../integrators/gauss_jackson_coeffs.h"
+#include "integrators/gauss_jackson_coeffs.h"
 
 extern const pb_method_type pb_method_gauss_jackson8;
 extern const pb_method_type pb_method_rk4;

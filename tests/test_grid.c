@@ -3,7 +3,7 @@
  * (method.h: advance reaches t_out exactly or returns PB_EINVAL). */
 #include <criterion/criterion.h>
 #include <math.h>
-#include "../integrators/method.h"
+#include "integrators/method.h"
 
 Test(grid, finds_grid_points_and_refuses_others)
 {

@@ -7,8 +7,8 @@
 #include <gsl/gsl_odeiv2.h>
 #include <math.h>
 #include <string.h>
-#include "../problems/twobody.h"
-#include "../bench/force_counter.h"
+#include "problems/twobody.h"
+#include "bench/measure/force_counter.h"
 #include "test_support.h"
 
 extern const pb_method_type pb_method_gsl_rk4, pb_method_gsl_rkf45, pb_method_gsl_rkck,

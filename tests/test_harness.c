@@ -6,12 +6,12 @@
 #include <string.h>
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_odeiv2.h>
-#include "../bench/growth.h"
-#include "../bench/harness.h"
-#include "../bench/metrics.h"
-#include "../bench/sampler.h"
-#include "../problems/catalogue.h"
-#include "../problems/twobody.h"
+#include "bench/measure/growth.h"
+#include "bench/measure/harness.h"
+#include "bench/measure/metrics.h"
+#include "bench/measure/sampler.h"
+#include "problems/catalogue.h"
+#include "problems/twobody.h"
 #include "test_support.h"
 
 static pb_problem kepler(const char *name)

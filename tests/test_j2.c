@@ -8,11 +8,11 @@
 #include <stdlib.h>
 #include <string.h>
 #include "test_support.h"
-#include "../problems/bodies.h"
-#include "../problems/catalogue.h"
-#include "../problems/j2.h"
-#include "../problems/reference.h"
-#include "../problems/twobody.h"
+#include "problems/bodies.h"
+#include "problems/catalogue.h"
+#include "problems/j2.h"
+#include "problems/reference.h"
+#include "problems/twobody.h"
 
 extern const pb_method_type pb_method_rk4;
 

@@ -5,7 +5,7 @@
 #include <float.h>
 #include <math.h>
 #include <quadmath.h>
-#include "../problems/twobody.h"
+#include "problems/twobody.h"
 
 /* Quad Newton refinement of a root of E - e sin E = M (exact double inputs). */
 static __float128 tk_ref_elliptic(double M, double e, double E)

@@ -5,8 +5,8 @@
 #include <math.h>
 #include <string.h>
 #include "test_support.h"
-#include "../bench/force_counter.h"
-#include "../problems/twobody.h"
+#include "bench/measure/force_counter.h"
+#include "problems/twobody.h"
 
 extern const pb_method_type pb_method_leapfrog;
 extern const pb_method_type pb_method_rk4;

@@ -8,7 +8,7 @@
 #include <math.h>
 #include <string.h>
 #include "test_support.h"
-#include "../problems/twobody.h"
+#include "problems/twobody.h"
 
 #define MX_METHODS_MAX 64
 #define MX_NPROB 4

@@ -7,8 +7,8 @@
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
-#include "../problems/problem_file.h"
-#include "../problems/twobody.h"
+#include "problems/problem_file.h"
+#include "problems/twobody.h"
 #include "test_support.h"
 
 static char pft_dir[64];

@@ -9,9 +9,9 @@
 #include <string.h>
 #include <time.h>
 #include <unistd.h>
-#include "../problems/catalogue.h"
-#include "../problems/reference.h"
-#include "../problems/truth.h"
+#include "problems/catalogue.h"
+#include "problems/reference.h"
+#include "problems/truth.h"
 #include "test_support.h"
 
 enum { NS = 100 };

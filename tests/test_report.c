@@ -13,10 +13,10 @@
 #include <fcntl.h>
 #include <unistd.h>
 #include "test_support.h"
-#include "../bench/run_dir.h"
-#include "../bench/report_data.h"
-#include "../bench/report_gp.h"
-#include "../bench/report_table.h"
+#include "bench/store/run_dir.h"
+#include "bench/report/report_data.h"
+#include "bench/report/figure_scripts.h"
+#include "bench/report/table.h"
 
 /* one suite-wide timeout: per-test timeouts make Criterion 2.4.1's runner leak */
 TestSuite(report, .timeout = 240);
@@ -95,7 +95,7 @@ Test(report, style_matches_template)
     snprintf(path, sizeof path, "%s/scripts/plot-style.gp", root ? root : ".");
     char *s = pbt_slurp_file(path, NULL);
     cr_assert_not_null(s, "cannot read %s", path);
-    cr_assert_str_eq(s, pb_report_style_gp, "scripts/plot-style.gp and bench/report_style.c differ");
+    cr_assert_str_eq(s, pb_report_style_gp, "scripts/plot-style.gp and bench/report/figure_style.c differ");
     free(s);
 }
 

@@ -8,9 +8,9 @@
 #include <gsl/gsl_fit.h>
 #include <gsl/gsl_odeiv2.h>
 #include <math.h>
-#include "../problems/twobody.h"
+#include "problems/twobody.h"
 #include "test_support.h"
-#include "../bench/force_counter.h"
+#include "bench/measure/force_counter.h"
 
 extern const pb_method_type pb_method_rkf45;
 

@@ -4,8 +4,8 @@
 #include <stdlib.h>
 #include <string.h>
 #include "test_support.h"
-#include "../problems/twobody.h"
-#include "../bench/force_counter.h"
+#include "problems/twobody.h"
+#include "bench/measure/force_counter.h"
 
 pbt_result pbt_integrate(const pb_method_type *m, const pb_problem *p,
                          const pb_method_config *cfg, double t_end)

@@ -3,7 +3,7 @@
 #ifndef PB_TEST_SUPPORT_H
 #define PB_TEST_SUPPORT_H
 
-#include "../integrators/method.h"
+#include "integrators/method.h"
 
 typedef struct pbt_result {
     int status;

@@ -4,7 +4,7 @@
 #include <criterion/criterion.h>
 #include <math.h>
 #include <quadmath.h>
-#include "../problems/twobody.h"
+#include "problems/twobody.h"
 #include "test_support.h"
 
 #define TT_MU_EARTH 398600.4418 /* km^3/s^2, WGS-84 (common practice) */

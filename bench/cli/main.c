@@ -1,0 +1,52 @@
+/* main.c - propbench's command line: dispatch a verb to its handler. */
+#include <stdio.h>
+#include <string.h>
+#include <gsl/gsl_errno.h>
+#include "bench/cli/cli.h"
+
+typedef struct { const char *name; int (*fn)(int, char **); const char *what; } main_verb;
+
+static const main_verb main_verbs[] = {
+    {"list", pb_cli_list, "methods, problems and suites"},
+    {"run", pb_cli_run, "one case: problem x method x step or tolerance x horizon"},
+    {"sweep", pb_cli_sweep, "a suite or grid of cases (-j N workers, --shard K/N)"},
+    {"merge", pb_cli_merge, "join shards of a sweep into one run"},
+    {"report", pb_cli_report, "figures, report.html and report.md from a run directory"},
+    {"baseline", pb_cli_baseline, "keep a run as the reference for later checks"},
+    {"check", pb_cli_check, "compare a run with a baseline (exit 1 on regression)"},
+    {"select", pb_cli_select, "cheapest method and step meeting a requirement over a horizon"},
+    {NULL, NULL, NULL}
+};
+
+static void main_usage(FILE *f)
+{
+    fprintf(f, "usage: propbench VERB [options]   (propbench VERB --help)\n\nverbs:\n");
+    for (const main_verb *v = main_verbs; v->name; v++)
+        fprintf(f, "  %-9s %s\n", v->name, v->what);
+    fprintf(f, "\nexit status: 0 ok, 1 regression or requirement not met, 2 bad input or usage\n");
+}
+
+int main(int argc, char **argv)
+{
+    /* GSL's default handler aborts; every GSL status is checked where it is returned */
+    gsl_set_error_handler_off();
+    if (argc < 2) {
+        main_usage(stderr);
+        return PB_EXIT_USAGE;
+    }
+    if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
+        main_usage(stdout);
+        return PB_EXIT_OK;
+    }
+    /* No option of any verb takes an empty value, and an empty path would
+     * name the current folder's parent or the root ("" + "/plots"). */
+    for (int i = 2; i < argc; i++)
+        if (!argv[i][0])
+            return pb_cli_error(argv[1], "an empty value after %s", argv[i - 1]);
+    for (const main_verb *v = main_verbs; v->name; v++)
+        if (!strcmp(argv[1], v->name))
+            return v->fn(argc - 1, argv + 1);
+    fprintf(stderr, "propbench: error: unknown verb '%s'\n", argv[1]);
+    main_usage(stderr);
+    return PB_EXIT_USAGE;
+}

@@ -1,0 +1,107 @@
+/* options.c - shared command-line helpers (see cli.h). */
+#include <errno.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+#include "bench/cli/cli.h"
+#include "problems/catalogue.h"
+
+int pb_cli_error(const char *verb, const char *fmt, ...)
+{
+    va_list ap;
+    fprintf(stderr, "propbench %s: error: ", verb);
+    va_start(ap, fmt);
+    vfprintf(stderr, fmt, ap);
+    va_end(ap);
+    fputc('\n', stderr);
+    return PB_EXIT_USAGE;
+}
+
+int pb_cli_double(const char *verb, const char *opt, const char *s, double *out)
+{
+    char *end;
+    errno = 0;
+    double x = strtod(s, &end);
+    if (end == s || *end || errno == ERANGE || !isfinite(x)) {
+        pb_cli_error(verb, "%s expects a finite number, got '%s'", opt, s);
+        return -1;
+    }
+    *out = x;
+    return 0;
+}
+
+int pb_cli_long(const char *verb, const char *opt, const char *s, long *out)
+{
+    char *end;
+    errno = 0;
+    long x = strtol(s, &end, 10);
+    if (end == s || *end) {
+        pb_cli_error(verb, "%s expects a whole number, got '%s'", opt, s);
+        return -1;
+    }
+    if (errno == ERANGE) {
+        pb_cli_error(verb, "%s: '%s' is out of range", opt, s);
+        return -1;
+    }
+    *out = x;
+    return 0;
+}
+
+int pb_cli_split(const char *verb, const char *opt, char *s, char **items, int max)
+{
+    size_t len = strlen(s);
+    if (!len || s[0] == ',' || s[len - 1] == ',' || strstr(s, ",,")) {
+        pb_cli_error(verb, "%s: an empty name or value in '%s'", opt, s);
+        return -1;
+    }
+    int n = 0;
+    for (char *tok = strtok(s, ","); tok; tok = strtok(NULL, ",")) {
+        if (n == max) {
+            pb_cli_error(verb, "%s takes at most %d values", opt, max);
+            return -1;
+        }
+        items[n++] = tok;
+    }
+    return n;
+}
+
+int pb_cli_problem(const char *verb, const char *name, pb_problem *out)
+{
+    if (pb_problem_lookup(name, out) == PB_OK)
+        return 0;
+    fprintf(stderr, "propbench %s: error: unknown problem '%s'; known problems:", verb, name);
+    for (const pb_problem_entry *e = pb_problem_table; e->name; e++)
+        fprintf(stderr, " %s", e->name);
+    fprintf(stderr, " (see 'propbench list problems')\n");
+    return -1;
+}
+
+const pb_method_type *pb_cli_method(const char *verb, const char *name)
+{
+    const pb_method_type *m = pb_method_find(name);
+    if (m)
+        return m;
+    fprintf(stderr, "propbench %s: error: unknown method '%s'; known methods:", verb, name);
+    for (const pb_method_type *const *t = pb_method_table; *t; t++)
+        fprintf(stderr, " %s", (*t)->name);
+    fputc('\n', stderr);
+    return NULL;
+}
+
+int pb_cli_progress_wanted(int quiet)
+{
+    return !quiet && isatty(STDERR_FILENO);
+}
+
+void pb_cli_warn_long(const char *verb, double steps)
+{
+    /* 50 to 500 ns a step spans rk4 to yoshida8 and GSL's rk8pd here
+     * (make bench; machine-dependent) */
+    if (steps > 1e9)
+        fprintf(stderr, "propbench %s: warning: %.3g steps of fixed-step integration: at 50 to 500 ns a "
+                "step that is %.3g to %.3g minutes of one core; --max-steps N ends a case early\n",
+                verb, steps, steps * 50e-9 / 60, steps * 500e-9 / 60);
+}

@@ -1,0 +1,134 @@
+/* print_case.c - the short human-readable table of one case. Every number
+ * carries its unit; what was not measured reads "n/a", never 0 or nan. */
+#include <math.h>
+#include <stdio.h>
+#include "bench/cli/cli.h"
+#include "bench/measure/harness.h"
+
+/* A number with its unit, or n/a. */
+static void print_num(const char *fmt, double x, const char *unit)
+{
+    if (isfinite(x)) {
+        printf(fmt, x);
+        if (unit && *unit)
+            printf(" %s", unit);
+    } else {
+        printf("n/a");
+    }
+}
+
+static void print_growth(const char *what, const pb_growth *g, double period)
+{
+    printf("  %-22s ", what);
+    if (!isfinite(g->k)) {
+        printf("not enough samples to fit\n");
+        return;
+    }
+    printf("k = %5.2f +- %.2f  (%s, %d samples", g->k, g->k_err, g->cls, g->npoints);
+    if (period > 0)
+        printf(" from orbit %.0f%s", g->from / period,
+               g->from / period < 9.5 ? ": short horizon, fewer than 3 after 10" : "");
+    printf(")\n");
+}
+
+static void print_err(const char *label, double x, const char *unit, int below)
+{
+    printf("  %-22s ", label);
+    if (below)
+        printf("below the reference floor");
+    else
+        print_num("%.3e", x, unit);
+    printf("\n");
+}
+
+static void print_invariant(const char *label, double mx, double fin)
+{
+    printf("  %-22s max ", label);
+    print_num("%.3e", mx, NULL);
+    printf("   final ");
+    print_num("%.3e", fin, NULL);
+    printf("   (relative)\n");
+}
+
+void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
+{
+    const pb_problem *p = &spec->problem;
+    int km = p->units == PB_UNITS_KM_S;
+    const char *L = km ? "km" : "DU", *T = km ? "s" : "TU", *V = km ? "km/s" : "DU/TU";
+    printf("case %s\n", res->id);
+    printf("  %-22s %s (%s units)\n", "problem", p->name, km ? "km-s" : "normalized");
+    printf("  %-22s %s%s, order %d\n", "method", spec->method->name,
+           (spec->method->flags & PB_FROM_GSL) ? " (GSL's)" : "", spec->method->order);
+    if (spec->method->flags & PB_KIND_FIXED) {
+        printf("  %-22s h = %.6g %s", "step", res->h, T);
+        if (p->period > 0)
+            printf(" (%.6g steps per orbit)", p->period / res->h);
+        printf("%s\n", spec->compensated ? ", compensated" : "");
+    } else {
+        printf("  %-22s %.3g (relative = absolute)\n", "tolerance", spec->tolerance);
+    }
+    double hz = pb_case_horizon(spec);
+    if (p->period > 0)
+        printf("  %-22s %.6g %s (%.4g orbits)\n", "horizon", hz, T, hz / p->period);
+    else
+        printf("  %-22s %.6g %s\n", "horizon", hz, T);
+    if (res->status)
+        printf("  %-22s %s at t = %.9g %s: %s\n", "status", res->status_name, res->diverged_at, T,
+               res->status_detail ? res->status_detail : pb_strerror(res->status));
+    else
+        printf("  %-22s ok\n", "status");
+    if (res->saturated)
+        printf("  %-22s the position error exceeds a tenth of the orbit's size: this run\n"
+               "  %-22s follows another orbit, and its growth law and drifts mean little\n",
+               "WARNING", "");
+    if (p->energy)
+        print_invariant(p->energy_label ? p->energy_label : "energy", res->energy_rel_max,
+                        res->energy_rel_final);
+    if (res->energy_rel_to_parts)
+        printf("  %-22s relative to v0^2/2 + mu/|r0|, not |E0|: the start is nearly parabolic\n"
+               "  %-22s (|E0| under 1e-6 of it), so most of |E0| is cancellation\n", "", "");
+    if (p->angmom)
+        print_invariant(p->angmom_label ? p->angmom_label : "angular momentum", res->angmom_rel_max,
+                        res->angmom_rel_final);
+    print_err("position error, max", res->pos_err_max, L, res->below_floor);
+    print_err("position error, final", res->pos_err_final, L, res->below_floor);
+    if (km && !res->below_floor && isfinite(res->pos_err_max)) {
+        printf("  %-22s ", "  in metres");
+        print_num("%.3f", 1e3 * res->pos_err_final, "m");
+        printf(" (max ");
+        print_num("%.3f", 1e3 * res->pos_err_max, "m");
+        printf(")\n");
+    }
+    printf("  %-22s radial ", "final RIC error");
+    print_num("%+.3e", res->radial_final, NULL);
+    printf("  along ");
+    print_num("%+.3e", res->along_final, NULL);
+    printf("  cross ");
+    print_num("%+.3e", res->cross_final, L);
+    printf("\n");
+    print_err("velocity error, final", res->vel_err_final, V, 0);
+    if (p->keplerian) {
+        print_err("ecc-vector drift, max", res->ecc_drift_max, "", 0);
+        if (isfinite(res->apsidal_rate)) {
+            /* against the true orbit's own apsides: the error's precession */
+            printf("  %-22s %+.3e rad/orbit\n", "apsidal drift (error)", res->apsidal_rate);
+        }
+    }
+    print_growth("growth: position", &res->g_pos, p->period);
+    print_growth("growth: along-track", &res->g_along, p->period);
+    if (p->energy)
+        print_growth("growth: energy", &res->g_energy, p->period);
+    printf("  %-22s %ld steps, %ld evaluations, %ld rejected", "cost", res->steps, res->evals, res->rejected);
+    if (res->startup_steps)
+        printf(", %ld start-up", res->startup_steps);
+    printf("\n");
+    if (spec->method->flags & PB_KIND_ADAPTIVE)
+        printf("  %-22s %ld of the steps were shortened to land on a sample time (cost the\n"
+               "  %-22s output grid adds; --samples sets the grid, a longer horizon dilutes it)\n",
+               "output grid", res->output_cut, "");
+    if (isfinite(res->ns_per_step))
+        printf("  %-22s %.1f ns/step, %.1f ns/evaluation\n", "timing (median)", res->ns_per_step, res->ns_per_eval);
+    if (res->projected_s > 0)
+        printf("  %-22s %.3g s at %.3g us per evaluation\n", "projected cost", res->projected_s, spec->eval_cost_us);
+    printf("  %-22s %s\n", "fingerprint", res->fingerprint);
+}

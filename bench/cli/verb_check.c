@@ -1,0 +1,351 @@
+/* verb_check.c - `propbench check --baseline FILE RUN_DIR`: compare a run
+ * with a baseline (rules in baseline.h), print a table, optionally write
+ * JUnit XML and a Markdown summary. Exit 0 pass, 1 regression, 2 bad input. */
+#include <errno.h>
+#include <getopt.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+#include "bench/cli/cli.h"
+#include "bench/gate/baseline.h"
+#include "bench/gate/compare.h"
+#include "bench/store/summary_read.h"
+#include "bench/gate/junit.h"
+#include "bench/store/run_dir.h"
+
+static void check_help(FILE *f)
+{
+    fprintf(f,
+"usage: propbench check --baseline FILE RUN_DIR [--tolerance REL]\n"
+"                       [--metric-tolerance NAME=REL ...] [--floor REL]\n"
+"                       [--timing [--timing-ratio R]] [--strict]\n"
+"                       [--junit FILE] [--markdown FILE]\n\n"
+"Compare RUN_DIR/summary.json with a baseline made by 'propbench baseline'.\n"
+"  accuracy metrics   regression when worse by more than REL (default %g):\n"
+"                     run > (1 + REL) * baseline + floor; the floor (default\n"
+"                     %g, relative to the orbit's size or speed for positions\n"
+"                     and velocities) keeps round-off noise from flagging\n"
+"                     (REL from 0 to %g, the floor from 0 to %g)\n"
+"  --metric-tolerance NAME=REL  another tolerance for one metric (repeatable)\n"
+"  status, settings, steps, evals, rejected, startup_steps   must not change\n"
+"  --timing           also compare ns per step; regression when the run is\n"
+"                     slower by more than the ratio R (default %g, at most %g)\n"
+"  fingerprints       bit changes are reported; --strict makes them fail\n"
+"  cases              missing from the run: regression; new ones: listed\n"
+"Compiler, build flags or machine differing from the baseline's: a warning.\n"
+"  --junit FILE       JUnit XML, one test case per case and metric\n"
+"  --markdown FILE    a summary for a CI page\n\n"
+"exit status: 0 no regression, 1 regression, 2 bad, corrupt or incompatible files\n",
+            PB_CHECK_TOLERANCE, PB_CHECK_FLOOR, PB_CHECK_TOLERANCE_MAX, PB_CHECK_FLOOR_MAX,
+            PB_CHECK_TIMING_RATIO, PB_CHECK_TIMING_RATIO_MAX);
+}
+
+static int check_rank(pb_check_verdict v)
+{
+    switch (v) {
+    case PB_CHECK_REGRESSED: case PB_CHECK_MISSING: return 4;
+    case PB_CHECK_IMPROVED: return 3;
+    case PB_CHECK_NEW: return 2;
+    case PB_CHECK_CHANGED: return 1;
+    case PB_CHECK_SAME: break;
+    }
+    return 0;
+}
+
+static int check_is_metric(const char *item)
+{
+    for (const char *const *k = pb_summary_metric_keys; *k; k++)
+        if (!strcmp(*k, item))
+            return 1;
+    return 0;
+}
+
+/* One line per case, summarised from its consecutive rows [a, b). */
+typedef struct {
+    const pb_check_row *status, *worst, *bits;
+    int counts_same;
+    pb_check_verdict verdict;
+} check_case_sum;
+
+static check_case_sum check_summarise(const pb_check_row *a, const pb_check_row *b)
+{
+    check_case_sum s = {NULL, NULL, NULL, 1, PB_CHECK_SAME};
+    for (const pb_check_row *w = a; w < b; w++) {
+        if (!strcmp(w->item, "status") || !strcmp(w->item, "case"))
+            s.status = w;
+        else if (!strcmp(w->item, "fingerprint"))
+            s.bits = w;
+        else if (!strcmp(w->item, "steps") || !strcmp(w->item, "evals") ||
+                 !strcmp(w->item, "rejected") || !strcmp(w->item, "startup_steps"))
+            s.counts_same &= w->verdict == PB_CHECK_SAME;
+        /* the most severe verdict first, then the largest change */
+        if (check_is_metric(w->item) && w->rel != 0 &&
+            (!s.worst || check_rank(w->verdict) > check_rank(s.worst->verdict) ||
+             (check_rank(w->verdict) == check_rank(s.worst->verdict) && w->rel > s.worst->rel)))
+            s.worst = w;
+        if (check_rank(w->verdict) > check_rank(s.verdict))
+            s.verdict = w->verdict;
+    }
+    return s;
+}
+
+static size_t check_case_end(const pb_check_report *r, size_t i)
+{
+    size_t j = i + 1;
+    while (j < r->n && !strcmp(r->rows[j].case_id, r->rows[i].case_id))
+        j++;
+    return j;
+}
+
+static void check_print_table(FILE *f, const pb_check_report *r)
+{
+    fprintf(f, "%-46s %-9s %-17s %9s %-6s %-8s %s\n", "case", "status", "worst metric", "change",
+            "counts", "bits", "verdict");
+    for (size_t i = 0; i < r->n;) {
+        size_t j = check_case_end(r, i);
+        check_case_sum s = check_summarise(&r->rows[i], &r->rows[j]);
+        const char *st = !s.status ? "-" : strcmp(s.status->item, "case") ? s.status->run
+                         : s.status->verdict == PB_CHECK_MISSING ? "missing" : "new";
+        fprintf(f, "%-46s %-9s %-17s %9s %-6s %-8s %s\n", r->rows[i].case_id, st,
+                s.worst ? s.worst->item : "-", s.worst ? s.worst->change : "",
+                s.status && !strcmp(s.status->item, "case") ? "-" : s.counts_same ? "same" : "DIFFER",
+                s.bits ? (s.bits->verdict == PB_CHECK_SAME ? "same" : "changed") : "-",
+                pb_check_verdict_name(s.verdict));
+        i = j;
+    }
+}
+
+static void check_print_details(FILE *f, const pb_check_report *r)
+{
+    int any = 0;
+    for (size_t i = 0; i < r->n; i++) {
+        const pb_check_row *w = &r->rows[i];
+        if (w->verdict == PB_CHECK_SAME || w->verdict == PB_CHECK_NEW || w->verdict == PB_CHECK_MISSING)
+            continue;
+        if (!any++)
+            fprintf(f, "\ndifferences:\n%-46s %-20s %-24s %-24s %-14s %s\n", "case", "item",
+                    "baseline", "run", "change", "verdict");
+        fprintf(f, "%-46s %-20s %-24s %-24s %-14s %s\n", w->case_id, w->item, w->base, w->run,
+                w->change, pb_check_verdict_name(w->verdict));
+    }
+}
+
+static const char *check_outcome(const pb_check_report *r, const pb_check_options *o)
+{
+    return pb_check_failed(r, o) ? "FAIL" : "PASS";
+}
+
+static void check_print_totals(FILE *f, const pb_check_report *r, const pb_check_options *o)
+{
+    fprintf(f, "%ld cases compared: %ld regressions, %ld improvements, %ld fingerprint changes%s, "
+               "%ld missing, %ld new: %s\n",
+            r->cases, r->regressions, r->improvements, r->fingerprints_changed,
+            o->strict ? " (strict)" : "", r->missing, r->added, check_outcome(r, o));
+}
+
+static int check_junit(const char *path, const pb_check_report *r)
+{
+    pb_junit *j = pb_junit_new("propbench check");
+    int bad = !j;
+    for (size_t i = 0; !bad && i < r->n; i++) {
+        const pb_check_row *w = &r->rows[i];
+        char msg[700], detail[400];
+        snprintf(detail, sizeof detail, "baseline %s, run %s%s%s (%s)", w->base, w->run,
+                 *w->change ? ", " : "", w->change, pb_check_verdict_name(w->verdict));
+        snprintf(msg, sizeof msg, "%s %s: %s", w->case_id, w->item, detail);
+        int fails = w->verdict == PB_CHECK_REGRESSED || w->verdict == PB_CHECK_MISSING;
+        bad = pb_junit_add(j, w->case_id, w->item, fails ? msg : NULL, fails ? NULL : detail) != 0;
+    }
+    for (int k = 0; !bad && k < r->n_warnings; k++)
+        bad = pb_junit_add(j, "propbench.environment", "warning", NULL, r->warnings[k]) != 0;
+    bad = bad || pb_junit_write(j, path);
+    pb_junit_free(j);
+    return bad ? -1 : 0;
+}
+
+/* Markdown table cells cannot hold '|' or line breaks. */
+static void check_md_cell(FILE *f, const char *s)
+{
+    for (; *s; s++)
+        if (*s == '|')
+            fputs("\\|", f);
+        else
+            fputc(*s == '\n' ? ' ' : *s, f);
+}
+
+static int check_markdown(const char *path, const pb_check_report *r, const pb_check_options *o,
+                          const char *base_path, const char *run_path)
+{
+    char *buf = NULL;
+    size_t len = 0;
+    FILE *f = open_memstream(&buf, &len);
+    if (!f)
+        return -1;
+    fprintf(f, "## propbench check: %s\n\n", check_outcome(r, o));
+    fprintf(f, "Run `");
+    check_md_cell(f, run_path);
+    fprintf(f, "` against baseline `");
+    check_md_cell(f, base_path);
+    fprintf(f, "` (tolerance %g%%, round-off floor %g%s%s).\n\n", 100 * o->tolerance, o->floor,
+            o->timing ? ", timing compared" : "", o->strict ? ", strict fingerprints" : "");
+    fprintf(f, "| cases | regressions | improvements | fingerprint changes | missing | new |\n"
+               "|---:|---:|---:|---:|---:|---:|\n| %ld | %ld | %ld | %ld | %ld | %ld |\n\n",
+            r->cases, r->regressions, r->improvements, r->fingerprints_changed, r->missing, r->added);
+    for (int k = 0; k < r->n_warnings; k++) {
+        fprintf(f, "- warning: ");
+        check_md_cell(f, r->warnings[k]);
+        fputc('\n', f);
+    }
+    if (r->n_warnings)
+        fputc('\n', f);
+    int any = 0;
+    for (size_t i = 0; i < r->n; i++) {
+        const pb_check_row *w = &r->rows[i];
+        if (w->verdict == PB_CHECK_SAME)
+            continue;
+        if (!any++)
+            fprintf(f, "| case | item | baseline | run | change | verdict |\n|---|---|---|---|---|---|\n");
+        const char *cells[] = {w->case_id, w->item, w->base, w->run, w->change,
+                               pb_check_verdict_name(w->verdict)};
+        for (int k = 0; k < 6; k++) {
+            fputs("| ", f);
+            check_md_cell(f, cells[k]);
+            fputc(' ', f);
+        }
+        fputs("|\n", f);
+    }
+    if (!any)
+        fprintf(f, "Every case matches its baseline within tolerance, bit for bit.\n");
+    if (fclose(f)) {
+        free(buf);
+        return -1;
+    }
+    int rc = pb_write_atomic(path, buf, len);
+    free(buf);
+    return rc;
+}
+
+int pb_cli_check(int argc, char **argv)
+{
+    enum { O_BASE = 256, O_TOL, O_MTOL, O_FLOOR, O_TIMING, O_RATIO, O_STRICT, O_JUNIT, O_MD };
+    static const struct option opts[] = {
+        {"baseline", required_argument, 0, O_BASE}, {"tolerance", required_argument, 0, O_TOL},
+        {"metric-tolerance", required_argument, 0, O_MTOL}, {"floor", required_argument, 0, O_FLOOR},
+        {"timing", no_argument, 0, O_TIMING}, {"timing-ratio", required_argument, 0, O_RATIO},
+        {"strict", no_argument, 0, O_STRICT}, {"junit", required_argument, 0, O_JUNIT},
+        {"markdown", required_argument, 0, O_MD}, {"help", no_argument, 0, 'h'}, {0, 0, 0, 0}};
+    pb_check_options o;
+    pb_check_options_default(&o);
+    const char *base_path = NULL, *junit = NULL, *md = NULL;
+    char err[1024];
+    optind = 1;
+    opterr = 0;
+    int c;
+    while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
+        switch (c) {
+        case O_BASE: base_path = optarg; break;
+        case O_TOL:
+            if (pb_cli_double("check", "--tolerance", optarg, &o.tolerance))
+                return PB_EXIT_USAGE;
+            if (o.tolerance < 0 || o.tolerance > PB_CHECK_TOLERANCE_MAX)
+                return pb_cli_error("check", "--tolerance must be from 0 to %g, got '%s'",
+                                    PB_CHECK_TOLERANCE_MAX, optarg);
+            break;
+        case O_MTOL:
+            if (pb_check_options_metric(&o, optarg, err, sizeof err))
+                return pb_cli_error("check", "%s", err);
+            break;
+        case O_FLOOR:
+            if (pb_cli_double("check", "--floor", optarg, &o.floor))
+                return PB_EXIT_USAGE;
+            if (o.floor < 0 || o.floor > PB_CHECK_FLOOR_MAX)
+                return pb_cli_error("check", "--floor must be from 0 to %g, got '%s'",
+                                    PB_CHECK_FLOOR_MAX, optarg);
+            break;
+        case O_TIMING: o.timing = 1; break;
+        case O_RATIO:
+            if (pb_cli_double("check", "--timing-ratio", optarg, &o.timing_ratio))
+                return PB_EXIT_USAGE;
+            if (o.timing_ratio < 1 || o.timing_ratio > PB_CHECK_TIMING_RATIO_MAX)
+                return pb_cli_error("check", "--timing-ratio must be from 1 to %g, got '%s'",
+                                    PB_CHECK_TIMING_RATIO_MAX, optarg);
+            o.timing = 1;
+            break;
+        case O_STRICT: o.strict = 1; break;
+        case O_JUNIT: junit = optarg; break;
+        case O_MD: md = optarg; break;
+        case 'h': check_help(stdout); return PB_EXIT_OK;
+        default:
+            return pb_cli_error("check", c == ':' ? "option %s needs a value" : "unknown option '%s'", argv[optind - 1]);
+        }
+    }
+    if (!base_path || optind != argc - 1)
+        return pb_cli_error("check", "give --baseline FILE and one RUN_DIR (see --help)");
+    char run_path[4200];
+    snprintf(run_path, sizeof run_path, "%s/summary.json", argv[optind]);
+    json_t *base = NULL, *summary = NULL, *run = NULL;
+    pb_check_report r = {0};
+    int rc = PB_EXIT_USAGE;
+    char jtmp[4200] = "", mtmp[4200] = "";
+    const char *jdone = NULL;   /* a report already renamed into place */
+    if (pb_baseline_load(base_path, &base, err, sizeof err) ||
+        pb_summary_load(run_path, &summary, err, sizeof err) ||
+        pb_summary_complete(run_path, summary, err, sizeof err)) {
+        pb_cli_error("check", "%s", err);
+        goto out;
+    }
+    run = pb_baseline_from_summary(summary);
+    if (!run || pb_check_compare(base, run, &o, &r)) {
+        pb_cli_error("check", "out of memory comparing %s with %s", run_path, base_path);
+        goto out;
+    }
+    for (int k = 0; k < r.n_warnings; k++)
+        fprintf(stderr, "propbench check: warning: %s\n", r.warnings[k]);
+    printf("propbench check: %s against %s (tolerance %g%%, floor %g%s%s)\n\n", run_path,
+           base_path, 100 * o.tolerance, o.floor, o.timing ? ", timing" : "",
+           o.strict ? ", strict" : "");
+    check_print_table(stdout, &r);
+    check_print_details(stdout, &r);
+    printf("\n");
+    check_print_totals(stdout, &r, &o);
+    /* both reports under temporary names first, renamed only when both are
+     * written: a failed invocation (exit 2) leaves neither behind */
+    if (junit)
+        snprintf(jtmp, sizeof jtmp, "%s.part.%ld", junit, (long)getpid());
+    if (md)
+        snprintf(mtmp, sizeof mtmp, "%s.part.%ld", md, (long)getpid());
+    if (junit && check_junit(jtmp, &r)) {
+        pb_cli_error("check", "%s: cannot write the JUnit report", junit);
+        goto out;
+    }
+    if (md && check_markdown(mtmp, &r, &o, base_path, run_path)) {
+        pb_cli_error("check", "%s: cannot write the Markdown summary", md);
+        goto out;
+    }
+    if (junit && rename(jtmp, junit)) {
+        pb_cli_error("check", "%s: cannot write the JUnit report: %s", junit, strerror(errno));
+        goto out;
+    }
+    jdone = junit;
+    if (md && rename(mtmp, md)) {
+        pb_cli_error("check", "%s: cannot write the Markdown summary: %s", md, strerror(errno));
+        goto out;
+    }
+    rc = pb_check_failed(&r, &o) ? PB_EXIT_FAIL : PB_EXIT_OK;
+out:
+    if (rc == PB_EXIT_USAGE) {
+        if (*jtmp)
+            unlink(jtmp);
+        if (*mtmp)
+            unlink(mtmp);
+        if (jdone)
+            unlink(jdone);
+    }
+    pb_check_report_free(&r);
+    json_decref(run);
+    json_decref(summary);
+    json_decref(base);
+    return rc;
+}

@@ -1,0 +1,79 @@
+/* case.h - one case (problem, method, step or tolerance, horizon) and what a
+ * run of it yields: per-sample metrics and the case summary. */
+#ifndef PB_CASE_H
+#define PB_CASE_H
+
+#include "integrators/method.h"
+
+#define PB_CASE_ID_MAX 160
+
+typedef struct pb_case_spec {
+    pb_problem problem;             /* copied */
+    const pb_method_type *method;   /* borrowed from the method table */
+    int steps_per_orbit;            /* fixed-step methods (0 when step_s is given) */
+    double step_s;                  /* explicit step in time units (0: from steps_per_orbit) */
+    double tolerance;               /* adaptive methods: rtol = atol = tolerance (scaled) */
+    double orbits;                  /* horizon in periods (problems with a period) */
+    double horizon_s;               /* horizon in time units (used when orbits == 0) */
+    int compensated;
+    int repeats;                    /* timing repeats (0: no timing pass) */
+    double eval_cost_us;            /* user's cost of one force evaluation (0: none) */
+    int linear_samples;             /* extra linear grid points for plots */
+    long max_steps;                 /* 0: automatic budget */
+    const char *cache_dir;          /* reference trajectories (may be NULL) */
+} pb_case_spec;
+
+/* One sample: errors against truth at time t; window maxima are the largest
+ * invariant errors over every step since the previous sample. */
+typedef struct pb_sample {
+    double t, orbits;
+    int on_log_grid;          /* 1: a log-spaced whole-period sample (used by the fits) */
+    double energy_rel, energy_rel_window;
+    double angmom_rel, angmom_rel_window;
+    double ecc_drift;         /* |e_num - e_true| */
+    double apsis_angle;       /* rad, e_num's angle from e_true about h_true,
+                               * unwrapped over the samples (may pass +-pi) */
+    double pos_err, vel_err;  /* |dr|, |dv| in problem units */
+    double radial, along, cross;  /* dr in the true orbit's RIC frame (signed) */
+    double truth_floor;       /* estimated position error of the truth itself */
+} pb_sample;
+
+typedef struct pb_growth {
+    double k, k_err;          /* slope of log(err) on log(t) and its standard error */
+    int npoints;
+    const char *cls;          /* "bounded", "sqrt", "linear", "quadratic", "other" */
+    double from;              /* the fit used samples from this time on (10 periods, or 1
+                               * when fewer than 3 samples lie past 10) */
+} pb_growth;
+
+typedef struct pb_case_result {
+    char id[PB_CASE_ID_MAX];
+    int status;               /* pb_status of the metric pass */
+    const char *status_name;  /* "ok", "diverged", "max_steps", "crashed" */
+    double t_end;             /* time actually reached */
+    double diverged_at;       /* time of failure (status != ok) */
+    double h;                 /* step used (fixed-step) */
+    int nsamples;
+    pb_sample *samples;       /* owned */
+    /* summary */
+    double energy_rel_max, energy_rel_final;
+    int energy_rel_to_parts; /* 1: relative to v0^2/2 + mu/r0, not |E0| (pb_energy_scale) */
+    double angmom_rel_max, angmom_rel_final;
+    double pos_err_max, pos_err_final, vel_err_max, vel_err_final;
+    double radial_final, along_final, cross_final;
+    double ecc_drift_max, apsidal_rate;   /* rad per orbit (NaN if undefined) */
+    int below_floor;          /* position errors below 10x the reference floor */
+    int saturated;            /* position error beyond a tenth of the orbit's size:
+                               * the numbers describe another orbit */
+    const char *status_detail;  /* why the run ended (static text) */
+    double truth_floor_max;
+    pb_growth g_pos, g_along, g_energy, g_angmom;
+    long steps, evals, rejected, startup_steps;
+    long output_cut; /* adaptive steps shortened to land on a sample time */
+    double ns_per_step, ns_per_eval, timing_s;
+    double projected_s;       /* evals x eval_cost_us (0 if no cost given) */
+    char fingerprint[40];
+    double final_r[PB_DIM_MAX], final_v[PB_DIM_MAX];
+} pb_case_result;
+
+#endif

@@ -1,0 +1,521 @@
+/* harness.c - one case: a metric pass and a separate timing pass.
+ * Invariant of the metric pass: the observer sees every accepted step, keeps
+ * running maxima of the invariant errors (global and since the last sample)
+ * and stops the integration when the orbit leaves the region it started in;
+ * metrics against truth are computed only at the planned sample times. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+#include "bench/measure/harness.h"
+#include "bench/measure/force_counter.h"
+#include "bench/measure/fingerprint.h"
+#include "bench/measure/growth.h"
+#include "bench/measure/metrics.h"
+#include "bench/measure/sampler.h"
+#include "problems/summary.h"
+#include "problems/truth.h"
+
+/* An orbit this many times farther out than where it started has escaped:
+ * reported as diverged, with the time. */
+#define HARNESS_ESCAPE_FACTOR 1e3
+/* A relative energy error above this ends the case as diverged. */
+#define HARNESS_ENERGY_DIVERGED 1.0
+/* The timing pass integrates at most this many steps of the case. */
+#define HARNESS_TIMING_STEPS 200000.0
+
+typedef struct harness_watch {
+    const pb_problem *p;
+    double E0, E_scale, H0, r_limit;
+    double e_win, h_win, e_max, h_max;
+    double t_escape;
+    const char *why;          /* which divergence test stopped the run */
+} harness_watch;
+
+static int harness_observe(void *ctx, double t, const double *r, const double *v)
+{
+    harness_watch *w = ctx;
+    const pb_problem *p = w->p;
+    double e = 0;
+    if (p->energy) {
+        e = fabs(p->energy(p, t, r, v) - w->E0) / w->E_scale;
+        if (e > w->e_win) w->e_win = e;
+    }
+    if (p->angmom) {
+        double h = pb_rel_err(p->angmom(p, r, v), w->H0);
+        if (h > w->h_win) w->h_win = h;
+    }
+    /* an energy error of 100% means the orbit is no longer the problem's
+     * (a bound orbit has become unbound, or the reverse) */
+    if (p->energy && !(e <= HARNESS_ENERGY_DIVERGED)) {
+        w->t_escape = t;
+        w->why = "relative energy error passed 100%";
+        return PB_EDIVERGED;
+    }
+    double r2 = 0;
+    for (int i = 0; i < p->dim; i++)
+        r2 += r[i] * r[i];
+    if (!(sqrt(r2) <= w->r_limit)) {
+        w->t_escape = t;
+        w->why = "the orbit escaped to 1000 times its initial size";
+        return PB_EDIVERGED;
+    }
+    return 0;
+}
+
+const char *pb_case_status_name(int status)
+{
+    /* "diverged" covers every way the numbers went wrong (non-finite, escape,
+     * step collapse, no convergence); status_detail says which. A failure of
+     * the set-up or of memory is not a numerical outcome: "crashed". */
+    switch (status) {
+    case PB_OK: return "ok";
+    case PB_EMAXSTEPS: return "max_steps";
+    case PB_EINVAL:
+    case PB_ENOMEM: return "crashed";
+    default: return "diverged";
+    }
+}
+
+double pb_case_horizon(const pb_case_spec *spec)
+{
+    if (spec->orbits > 0 && spec->problem.period > 0)
+        return spec->orbits * spec->problem.period;
+    return spec->horizon_s;
+}
+
+/* Time scale that "steps per orbit" divides: the period, or the horizon. */
+static double harness_scale(const pb_case_spec *spec)
+{
+    return spec->problem.period > 0 ? spec->problem.period : pb_case_horizon(spec);
+}
+
+static double harness_step(const pb_case_spec *spec)
+{
+    if (spec->step_s > 0)
+        return spec->step_s;
+    if (spec->steps_per_orbit > 0)
+        return harness_scale(spec) / spec->steps_per_orbit;
+    return 0;
+}
+
+double pb_case_fixed_steps(const pb_case_spec *spec)
+{
+    double h = harness_step(spec);
+    if (!spec->method || !(spec->method->flags & PB_KIND_FIXED) || !(h > 0))
+        return 0;
+    double n = pb_case_horizon(spec) / h;
+    return spec->max_steps > 0 && spec->max_steps < n ? (double)spec->max_steps : n;
+}
+
+int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
+{
+    const pb_method_type *m = spec->method;
+    const pb_problem *p = &spec->problem;
+    if (!m) {
+        snprintf(err, errlen, "no method given");
+        return -1;
+    }
+    if ((m->flags & PB_FORM_SECOND) && p->velocity_dependent) {
+        snprintf(err, errlen, "method '%s' needs a velocity-independent force, but "
+                 "problem '%s' depends on velocity", m->name, p->name);
+        return -1;
+    }
+    double hz = pb_case_horizon(spec);
+    if (!(hz > 0) || !isfinite(hz)) {
+        snprintf(err, errlen, "horizon must be positive (problem '%s' %s)", p->name,
+                 p->period > 0 ? "takes --orbits" : "has no period: give --horizon-s");
+        return -1;
+    }
+    if (m->flags & PB_KIND_FIXED) {
+        double h = harness_step(spec);
+        if (!(h > 0) || !isfinite(h)) {
+            snprintf(err, errlen, "fixed-step method '%s' needs a positive --steps-per-orbit "
+                     "or --step", m->name);
+            return -1;
+        }
+        if (h > hz * (1 + 1e-9)) {
+            snprintf(err, errlen, "the step %.6g is longer than the horizon %.6g", h, hz);
+            return -1;
+        }
+        if (hz / h > 1e11) {
+            snprintf(err, errlen, "%.3g steps are too many for one case", hz / h);
+            return -1;
+        }
+    } else if (!(spec->tolerance > 0) || !(spec->tolerance < 1)) {
+        snprintf(err, errlen, "adaptive method '%s' needs --tolerance in (0, 1)", m->name);
+        return -1;
+    }
+    if (spec->compensated && !(m->flags & PB_KIND_COMPENSABLE)) {
+        snprintf(err, errlen, "method '%s' has no compensated-summation variant", m->name);
+        return -1;
+    }
+    return 0;
+}
+
+static void harness_tag(double x, char *out, size_t n)
+{
+    /* the shortest %g that reads back as x: ids stay short and file-name
+     * safe ("1e-08") yet two different values never share one */
+    for (int prec = 6; prec <= 17; prec++) {
+        snprintf(out, n, "%.*g", prec, x);
+        if (strtod(out, NULL) == x)
+            return;
+    }
+}
+
+void pb_case_id(const pb_case_spec *spec, char *out, size_t outlen)
+{
+    char tag[48];
+    if (spec->method && !(spec->method->flags & PB_KIND_FIXED)) {
+        harness_tag(spec->tolerance, tag, sizeof tag);
+        snprintf(out, outlen, "%s__%s__tol%s", spec->problem.name,
+                 spec->method ? spec->method->name : "none", tag);
+    } else if (spec->step_s > 0) {
+        harness_tag(spec->step_s, tag, sizeof tag);
+        snprintf(out, outlen, "%s__%s__h%s", spec->problem.name,
+                 spec->method ? spec->method->name : "none", tag);
+    } else {
+        snprintf(out, outlen, "%s__%s__n%d", spec->problem.name,
+                 spec->method ? spec->method->name : "none", spec->steps_per_orbit);
+    }
+    if (spec->compensated) {
+        size_t l = strlen(out);
+        snprintf(out + l, outlen - l, "__comp");
+    }
+    if (spec->orbits > 0 && spec->problem.period > 0) {
+        harness_tag(spec->orbits, tag, sizeof tag);
+        size_t l = strlen(out);
+        snprintf(out + l, outlen - l, "__o%s", tag);
+    } else {
+        harness_tag(spec->horizon_s, tag, sizeof tag);
+        size_t l = strlen(out);
+        snprintf(out + l, outlen - l, "__s%s", tag);
+    }
+}
+
+static void harness_config(const pb_case_spec *spec, double horizon, pb_method_config *cfg)
+{
+    memset(cfg, 0, sizeof *cfg);
+    cfg->time_scale = harness_scale(spec);
+    cfg->compensated = spec->compensated;
+    if (spec->method->flags & PB_KIND_FIXED) {
+        cfg->h = harness_step(spec);
+        cfg->max_steps = spec->max_steps > 0 ? spec->max_steps
+                                              : (long)ceil(horizon / cfg->h) + 16;
+    } else {
+        /* rtol = atol = tolerance: the weighted norm is then relative for the
+         * O(1)-and-larger state components of both unit systems */
+        cfg->rtol = spec->tolerance;
+        cfg->atol = spec->tolerance;
+        /* the horizon bounds it too: a near-escape ellipse's period can be
+         * 1e20 times a short horizon, and a floor above the horizon would
+         * end the case before its first step */
+        cfg->min_step = 1e-13 * fmin(cfg->time_scale, horizon);
+        cfg->max_steps = spec->max_steps > 0 ? spec->max_steps : 50000000L;
+    }
+}
+
+static double harness_now(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+static int harness_cmp_double(const void *a, const void *b)
+{
+    double d = *(const double *)a - *(const double *)b;
+    return (d > 0) - (d < 0);
+}
+
+/* Timing pass: the same method and settings, no observer, no metrics; the
+ * median over repeats of the wall time per step. */
+static void harness_time(const pb_case_spec *spec, const pb_method_config *cfg,
+                         double t_end, long steps_done, pb_case_result *res)
+{
+    const pb_problem *p = &spec->problem;
+    const pb_method_type *m = spec->method;
+    double span = t_end - p->t0;
+    if (!(span > 0) || steps_done <= 0 || spec->repeats <= 0)
+        return;
+    double frac = fmin(1.0, HARNESS_TIMING_STEPS / (double)steps_done);
+    double t_stop = p->t0 + frac * span;
+    if (m->flags & PB_KIND_FIXED) {
+        long n = (long)floor(frac * (double)steps_done);
+        if (n < 1)
+            n = 1;
+        t_stop = p->t0 + (double)n * cfg->h;
+    }
+    double *dt = malloc((size_t)spec->repeats * sizeof(double));
+    void *ws = m->alloc(p->dim);
+    if (!dt || !ws)
+        goto done;
+    long steps = 0, evals = 0;
+    int ok = 0;
+    for (int k = 0; k < spec->repeats; k++) {
+        pb_force_counter c;
+        pb_force f;
+        pb_force_counter_init(&c, p, &f);
+        double t0 = harness_now();
+        int s = m->start(ws, &f, cfg, p->t0, p->r0, p->v0);
+        if (!s)
+            s = m->advance(ws, t_stop, NULL, NULL);
+        dt[ok] = harness_now() - t0;
+        if (s)
+            break;
+        pb_method_stats st;
+        m->get_stats(ws, &st);
+        steps = st.steps + st.startup_steps;
+        evals = c.evals;
+        ok++;
+    }
+    if (ok > 0 && steps > 0) {
+        qsort(dt, (size_t)ok, sizeof(double), harness_cmp_double);
+        double med = ok % 2 ? dt[ok / 2] : 0.5 * (dt[ok / 2 - 1] + dt[ok / 2]);
+        res->timing_s = med;
+        res->ns_per_step = 1e9 * med / (double)steps;
+        res->ns_per_eval = evals > 0 ? 1e9 * med / (double)evals : NAN;
+    }
+done:
+    m->free(ws);
+    free(dt);
+}
+
+/* The initial distance |r0| and the osculating semi-major axis of a bound
+ * Keplerian orbit (0 otherwise), from the catalogue's problem facts. */
+static double harness_orbit_size(const pb_problem *p, double *a)
+{
+    double r2 = 0;
+    for (int i = 0; i < p->dim; i++)
+        r2 += p->r0[i] * p->r0[i];
+    pb_problem_facts f;
+    *a = (pb_problem_summary(p, &f) == PB_OK && f.a > 0) ? f.a : 0;
+    return sqrt(r2);
+}
+
+/* Size of the orbit: the larger of |r0| and the semi-major axis. */
+static double harness_length_scale(const pb_problem *p)
+{
+    double a, r = harness_orbit_size(p, &a);
+    return fmax(r, a);
+}
+
+static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
+{
+    int n = res->nsamples;
+    double *t = malloc((size_t)(n > 0 ? n : 1) * sizeof(double));
+    double *y = malloc((size_t)(n > 0 ? n : 1) * sizeof(double));
+    double scale = harness_scale(spec);
+    double t_fit = spec->problem.period > 0 ? 10.0 * scale : 0.0;
+    /* with no sample there is no error to report: NaN (null in JSON), never 0 */
+    double none = n > 0 ? 0 : NAN;
+    res->pos_err_max = res->vel_err_max = res->ecc_drift_max = none;
+    res->energy_rel_final = res->angmom_rel_final = res->pos_err_final = res->vel_err_final = NAN;
+    res->radial_final = res->along_final = res->cross_final = res->apsidal_rate = NAN;
+    res->truth_floor_max = 0;
+    int below = 0;
+    for (int k = 0; k < n; k++) {
+        pb_sample *s = &res->samples[k];
+        res->pos_err_max = fmax(res->pos_err_max, s->pos_err);
+        res->vel_err_max = fmax(res->vel_err_max, s->vel_err);
+        if (isfinite(s->ecc_drift))
+            res->ecc_drift_max = fmax(res->ecc_drift_max, s->ecc_drift);
+        res->truth_floor_max = fmax(res->truth_floor_max, s->truth_floor);
+        if (s->truth_floor > 0 && s->pos_err < 10 * s->truth_floor)
+            below++;
+    }
+    res->below_floor = n > 0 && below == n;
+    res->saturated = n > 0 && res->pos_err_max > 0.1 * harness_length_scale(&spec->problem);
+    if (n > 0) {
+        pb_sample *last = &res->samples[n - 1];
+        res->energy_rel_final = last->energy_rel;
+        res->angmom_rel_final = last->angmom_rel;
+        res->pos_err_final = last->pos_err;
+        res->vel_err_final = last->vel_err;
+        res->radial_final = last->radial;
+        res->along_final = last->along;
+        res->cross_final = last->cross;
+        res->apsidal_rate = last->orbits > 0 ? last->apsis_angle / last->orbits : NAN;
+    }
+    if (!t || !y)
+        goto done;
+    /* fits use the log-spaced samples only, so each decade weighs the same */
+    int m = 0;
+    for (int k = 0; k < n; k++)
+        if (res->samples[k].on_log_grid)
+            t[m++] = res->samples[k].t - spec->problem.t0;
+    /* once a position error reaches a tenth of the orbit's size the phase
+     * error has saturated and a power law fitted through it means nothing */
+    double ceiling = 0.1 * harness_length_scale(&spec->problem);
+#define HARNESS_FIT(field, dest, absval, cap)                                   \
+    do {                                                                        \
+        int j = 0;                                                              \
+        for (int k = 0; k < n; k++)                                             \
+            if (res->samples[k].on_log_grid) {                                  \
+                double x = res->samples[k].field;                               \
+                x = (absval) ? fabs(x) : x;                                     \
+                y[j++] = ((cap) > 0 && x > (cap)) ? NAN : x;                    \
+            }                                                                   \
+        dest = pb_growth_fit(t, y, m, t_fit);                                   \
+        if (dest.npoints < 3 && t_fit > scale)                                  \
+            dest = pb_growth_fit(t, y, m, scale);                               \
+    } while (0)
+    HARNESS_FIT(pos_err, res->g_pos, 0, ceiling);
+    HARNESS_FIT(along, res->g_along, 1, ceiling);
+    HARNESS_FIT(energy_rel_window, res->g_energy, 0, 0.0);
+    HARNESS_FIT(angmom_rel_window, res->g_angmom, 0, 0.0);
+#undef HARNESS_FIT
+done:
+    free(t);
+    free(y);
+}
+
+int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
+{
+    memset(res, 0, sizeof *res);
+    res->status_name = "crashed";
+    const pb_problem *p = &spec->problem;
+    const pb_method_type *m = spec->method;
+    char err[256];
+    if (pb_case_validate(spec, err, sizeof err))
+        return PB_EINVAL;
+    pb_case_id(spec, res->id, sizeof res->id);
+    double horizon = pb_case_horizon(spec);
+    pb_method_config cfg;
+    harness_config(spec, horizon, &cfg);
+    res->h = (m->flags & PB_KIND_FIXED) ? cfg.h : 0;
+
+    pb_sample_plan plan;
+    pb_truth *truth = NULL;
+    void *ws = NULL;
+    int rc = PB_ENOMEM;
+    if (pb_sample_plan_make(p->t0, horizon, harness_scale(spec), res->h,
+                            spec->linear_samples, &plan))
+        return PB_ENOMEM;
+    res->samples = calloc((size_t)plan.n, sizeof(pb_sample));
+    if (!res->samples)
+        goto out;
+    if ((rc = pb_truth_build(p, plan.t, plan.n, spec->cache_dir, &truth)))
+        goto out;
+    rc = PB_ENOMEM;
+    if (!(ws = m->alloc(p->dim)))
+        goto out;
+
+    harness_watch w;
+    memset(&w, 0, sizeof w);
+    w.p = p;
+    w.E0 = p->energy ? p->energy(p, p->t0, p->r0, p->v0) : NAN;
+    w.E_scale = p->energy ? pb_energy_scale(p, w.E0) : NAN;
+    res->energy_rel_to_parts = p->energy && w.E_scale != fabs(w.E0);
+    w.H0 = p->angmom ? p->angmom(p, p->r0, p->v0) : NAN;
+    double a, r0n = harness_orbit_size(p, &a);
+    if (p->force != PB_FORCE_TWO_BODY)
+        a = 0; /* the escape bound uses the apoapsis only where it is fixed */
+    w.r_limit = HARNESS_ESCAPE_FACTOR * fmax(fmax(r0n, 2 * a), 1e-300);
+    /* a hyperbolic orbit recedes by itself: allow for its speed over the horizon */
+    if (p->energy && w.E0 >= 0)
+        w.r_limit += HARNESS_ESCAPE_FACTOR * horizon * sqrt(2 * fabs(w.E0) + 2 * p->mu / r0n);
+
+    pb_force_counter counter;
+    pb_force f;
+    pb_force_counter_init(&counter, p, &f);
+    int s = m->start(ws, &f, &cfg, p->t0, p->r0, p->v0);
+    if (s) {
+        rc = s;
+        goto out;
+    }
+    double r[PB_DIM_MAX] = {0}, v[PB_DIM_MAX] = {0}, t = p->t0;
+    double apsis_raw = 0, apsis_unwrapped = 0;
+    int have_apsis = 0;
+    int k;
+    for (k = 0; k < plan.n; k++) {
+        s = m->advance(ws, plan.t[k], harness_observe, &w);
+        if (s)
+            break;
+        m->get_state(ws, &t, r, v);
+        long double rt[PB_DIM_MAX], vt[PB_DIM_MAX];
+        pb_truth_state(truth, k, rt, vt);
+        pb_sample *smp = &res->samples[k];
+        pb_metrics_sample(p, t, r, v, rt, vt, w.E0, w.E_scale, w.H0, smp);
+        /* the apsidal angle accumulates: unwrap it from sample to sample so a
+         * precession past +-pi keeps its sign and size (samples are close
+         * enough that the angle moves by less than pi between them) */
+        if (isfinite(smp->apsis_angle)) {
+            double raw = smp->apsis_angle;
+            if (have_apsis)
+                smp->apsis_angle = apsis_unwrapped + remainder(raw - apsis_raw, 2 * M_PI);
+            apsis_raw = raw;
+            apsis_unwrapped = smp->apsis_angle;
+            have_apsis = 1;
+        }
+        smp->orbits = p->period > 0 ? (t - p->t0) / p->period : (t - p->t0) / horizon;
+        smp->on_log_grid = plan.on_log_grid[k];
+        smp->truth_floor = pb_truth_floor(truth, k);
+        /* the sample itself belongs to the window it closes */
+        smp->energy_rel_window = fmax(w.e_win, isfinite(smp->energy_rel) ? smp->energy_rel : 0);
+        smp->angmom_rel_window = fmax(w.h_win, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
+        if (!p->energy) smp->energy_rel_window = NAN;
+        if (!p->angmom) smp->angmom_rel_window = NAN;
+        w.e_max = fmax(w.e_max, w.e_win);
+        w.h_max = fmax(w.h_max, w.h_win);
+        w.e_win = w.h_win = 0;
+    }
+    res->nsamples = k;
+    res->status = s;
+    res->status_name = pb_case_status_name(s);
+    m->get_state(ws, &t, r, v);
+    res->t_end = t;
+    if (s) {
+        pb_method_stats st;
+        m->get_stats(ws, &st);
+        /* a step budget ends the case where the last step left it */
+        res->diverged_at = s == PB_EDIVERGED ? w.t_escape
+                         : s == PB_EMAXSTEPS ? t
+                         : counter.saw_nonfinite ? counter.t_nonfinite : st.t_fail;
+        res->status_detail = s == PB_EDIVERGED && w.why ? w.why
+                           : counter.saw_nonfinite ? "the force became non-finite"
+                           : pb_strerror(s);
+    } else {
+        res->status_detail = "ok";
+    }
+    w.e_max = fmax(w.e_max, w.e_win);
+    w.h_max = fmax(w.h_max, w.h_win);
+    res->energy_rel_max = p->energy ? w.e_max : NAN;
+    res->angmom_rel_max = p->angmom ? w.h_max : NAN;
+    memcpy(res->final_r, r, sizeof r);
+    memcpy(res->final_v, v, sizeof v);
+    pb_fingerprint_state(t, r, v, p->dim, res->fingerprint, sizeof res->fingerprint);
+    pb_method_stats st;
+    m->get_stats(ws, &st);
+    res->steps = st.steps;
+    res->rejected = st.rejected;
+    res->output_cut = st.output_cut;
+    res->startup_steps = st.startup_steps;
+    res->evals = counter.evals;
+    res->projected_s = spec->eval_cost_us > 0 ? 1e-6 * spec->eval_cost_us * (double)res->evals : 0;
+    harness_summarise(spec, res);
+    res->ns_per_step = res->ns_per_eval = NAN;
+    harness_time(spec, &cfg, t, st.steps + st.startup_steps, res);
+    rc = PB_OK;
+out:
+    m->free(ws);
+    pb_truth_free(truth);
+    pb_sample_plan_free(&plan);
+    if (rc) {
+        free(res->samples);
+        res->samples = NULL;
+        res->nsamples = 0;
+    }
+    return rc;
+}
+
+void pb_case_result_free(pb_case_result *res)
+{
+    if (!res)
+        return;
+    free(res->samples);
+    res->samples = NULL;
+    res->nsamples = 0;
+}

@@ -1,0 +1,34 @@
+/* harness.h - drive one method on one problem: sample, measure, time. */
+#ifndef PB_HARNESS_H
+#define PB_HARNESS_H
+
+#include "bench/measure/case.h"
+
+/* Check a spec before running it (method and problem compatible, step or
+ * tolerance and horizon sensible). Returns 0 or -1 with a message in err. */
+int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen);
+
+/* The case's identifier, e.g. "kepler-e0.6__rk4__n1000" (file-name safe). */
+void pb_case_id(const pb_case_spec *spec, char *out, size_t outlen);
+
+/* Horizon in time units. */
+double pb_case_horizon(const pb_case_spec *spec);
+
+/* Steps a fixed-step case takes to its horizon, or to its --max-steps if
+ * that comes first (0 for an adaptive method, whose count is known only
+ * after the run). */
+double pb_case_fixed_steps(const pb_case_spec *spec);
+
+/* Run the case: a metric pass (errors at every sample, invariant maxima over
+ * every step) then, if spec->repeats > 0, a separate timing pass with no
+ * metric work. The result's status says how the integration ended; the
+ * return value is 0, or a pb_status when the case could not be set up (bad
+ * spec, no memory, truth failed). Owner: the caller frees with
+ * pb_case_result_free; spec is borrowed. */
+int pb_case_run(const pb_case_spec *spec, pb_case_result *res);
+void pb_case_result_free(pb_case_result *res);
+
+/* "ok", "diverged", "max_steps" or "crashed" for a pb_status of an integration. */
+const char *pb_case_status_name(int status);
+
+#endif

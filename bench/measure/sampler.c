@@ -1,0 +1,94 @@
+/* sampler.c - log-spaced whole-period samples merged with a linear grid.
+ * Invariant: times are strictly increasing and all lie in (t0, t0 + horizon];
+ * with a fixed step they are exact grid points t0 + n*h, so a fixed-step
+ * method reaches each one without a partial step. */
+#include <float.h>
+#include <math.h>
+#include <stdlib.h>
+#include "bench/measure/sampler.h"
+
+typedef struct { double x; int log; } sampler_item; /* x: elapsed time */
+
+static int sampler_cmp(const void *a, const void *b)
+{
+    double d = ((const sampler_item *)a)->x - ((const sampler_item *)b)->x;
+    return (d > 0) - (d < 0);
+}
+
+int pb_sample_plan_make(double t0, double horizon, double scale, double h,
+                        int linear_samples, pb_sample_plan *plan)
+{
+    static const double mant[] = {1, 2, 3, 5, 7};
+    plan->n = 0;
+    plan->t = NULL;
+    plan->on_log_grid = NULL;
+    int cap = 5 * 40 + linear_samples + 2;
+    sampler_item *it = malloc((size_t)cap * sizeof *it);
+    if (!it)
+        return -1;
+    int n = 0;
+    /* elapsed units on which log samples are placed: whole periods, or for
+     * problems without a period, fractions 1e-3 .. 1 of the horizon */
+    double unit = scale, first = 1.0;
+    if (!(scale > 0) || scale >= horizon * 0.999999) {
+        unit = horizon;
+        first = 1e-3;
+    }
+    for (double dec = first; dec * unit <= horizon * (1 + 1e-12) && n < 5 * 40; dec *= 10)
+        for (int j = 0; j < 5; j++) {
+            double k = mant[j] * dec;
+            if (k * unit <= horizon * (1 + 1e-12))
+                it[n++] = (sampler_item){k * unit, 1};
+        }
+    for (int j = 1; j <= linear_samples; j++)
+        it[n++] = (sampler_item){horizon * j / linear_samples, 0};
+    it[n++] = (sampler_item){horizon, 0};
+    /* onto the grid, never past the horizon: the last grid point at or
+     * before each time */
+    if (h > 0)
+        for (int j = 0; j < n; j++) {
+            /* a quotient within rounding of a whole number is that number
+             * (the slack must be relative: 1e7 steps carry 1e-9 of error) */
+            double q = it[j].x / h, nq = nearbyint(q);
+            if (fabs(q - nq) <= 8 * DBL_EPSILON * (fabs(q) + 1))
+                q = nq;
+            it[j].x = floor(q) * h;
+        }
+    qsort(it, (size_t)n, sizeof *it, sampler_cmp);
+    /* merge equal times; a merged time keeps the log flag if either had it */
+    int m = 0;
+    double eps = 1e-12 * horizon;
+    for (int j = 0; j < n; j++) {
+        if (!(it[j].x > eps))
+            continue;
+        if (m > 0 && fabs(it[j].x - it[m - 1].x) <= eps) {
+            it[m - 1].log |= it[j].log;
+            continue;
+        }
+        it[m++] = it[j];
+    }
+    plan->t = malloc((size_t)(m > 0 ? m : 1) * sizeof(double));
+    plan->on_log_grid = malloc((size_t)(m > 0 ? m : 1) * sizeof(int));
+    if (!plan->t || !plan->on_log_grid) {
+        free(it);
+        pb_sample_plan_free(plan);
+        return -1;
+    }
+    for (int j = 0; j < m; j++) {
+        /* with a grid, t0 + n*h is exactly what the method computes */
+        plan->t[j] = h > 0 ? t0 + (double)lround(it[j].x / h) * h : t0 + it[j].x;
+        plan->on_log_grid[j] = it[j].log;
+    }
+    plan->n = m;
+    free(it);
+    return 0;
+}
+
+void pb_sample_plan_free(pb_sample_plan *plan)
+{
+    free(plan->t);
+    free(plan->on_log_grid);
+    plan->t = NULL;
+    plan->on_log_grid = NULL;
+    plan->n = 0;
+}

@@ -1,0 +1,19 @@
+/* gnuplot_runner.h - gnuplot run as an external program (fork/exec, no
+ * shell) on one figure script inside the plots folder. */
+#ifndef PB_REPORT_GNUPLOT_H
+#define PB_REPORT_GNUPLOT_H
+
+#include <stddef.h>
+
+/* Resolve prog (a path, or a name searched in PATH) to an executable file.
+ * 0 and the path in out, or -1 when there is none. */
+int pb_report_gnuplot_find(const char *prog, char *out, size_t len);
+
+/* Run `exe <base>.gp` with plots_dir as working directory, stdout and
+ * stderr into plots_dir/<base>.log; on success rename <base>.png.tmp and
+ * <base>.svg.tmp to their final names. 0, or -1 with the reason in err
+ * (the log's last line when gnuplot reported an error). */
+int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *base, char *err,
+                          size_t errlen);
+
+#endif

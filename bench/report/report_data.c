@@ -1,0 +1,330 @@
+/* report_data.c - summary.json and series CSVs read back for the report
+ * (see report_data.h). JSON through jansson; the fit intercept through GSL. */
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <gsl/gsl_statistics_double.h>
+#include "bench/report/report_data.h"
+#include "bench/store/summary_read.h"
+#include "bench/store/run_dir.h"
+
+static double data_num(const json_t *o, const char *key)
+{
+    const json_t *v = json_object_get(o, key);
+    return json_is_number(v) ? json_number_value(v) : NAN;
+}
+
+static long data_long(const json_t *o, const char *key)
+{
+    const json_t *v = json_object_get(o, key);
+    return json_is_number(v) ? (long)json_number_value(v) : -1;
+}
+
+static const char *data_str(const json_t *o, const char *key, const char *dflt)
+{
+    const char *s = json_string_value(json_object_get(o, key));
+    return s ? s : dflt;
+}
+
+/* Sort key: problem slot, method slot, then coarse to fine. */
+typedef struct { pb_report_case c; int pslot; double fine; int seq; } data_item;
+
+static int data_cmp(const void *a, const void *b)
+{
+    const data_item *x = a, *y = b;
+    if (x->pslot != y->pslot) return x->pslot < y->pslot ? -1 : 1;
+    if (x->c.method_slot != y->c.method_slot) return x->c.method_slot < y->c.method_slot ? -1 : 1;
+    if (x->fine != y->fine) return x->fine < y->fine ? -1 : 1;
+    return x->seq < y->seq ? -1 : x->seq > y->seq;
+}
+
+static int data_case(const json_t *o, pb_report_case *c, char *err, size_t errlen, const char *path, int i)
+{
+    memset(c, 0, sizeof *c);
+    c->id = data_str(o, "id", NULL);
+    c->problem = data_str(o, "problem", NULL);
+    c->method = data_str(o, "method", NULL);
+    if (!json_is_object(o) || !c->id || !c->problem || !c->method) {
+        snprintf(err, errlen, "%s: cases[%d] lacks \"id\", \"problem\" or \"method\"", path, i);
+        return -1;
+    }
+    c->units = data_str(o, "units", "normalized");
+    c->status = data_str(o, "status", "crashed");
+    c->series = data_str(o, "series", NULL);
+    if (c->series && !pb_series_path_ok(c->series)) {
+        snprintf(err, errlen, "%s: cases[%d] (%s): \"series\" is \"%.200s\", not a file below series/",
+                 path, i, c->id, c->series);
+        return -1;
+    }
+    c->order = (int)data_long(o, "method_order");
+    c->from_gsl = json_is_true(json_object_get(o, "from_gsl"));
+    c->steps_per_orbit = data_long(o, "steps_per_orbit");
+    /* a step given in time units carries steps_per_orbit as a real number for
+     * readers of the fixed key; here the step itself names the case */
+    if (json_is_number(json_object_get(o, "step")))
+        c->steps_per_orbit = 0;
+    c->step = data_num(o, "step");
+    c->tolerance = data_num(o, "tolerance");
+    c->fixed = c->steps_per_orbit > 0 || c->step > 0;
+    if (c->steps_per_orbit < 0) c->steps_per_orbit = 0;
+    if (!c->fixed && !(c->tolerance > 0)) {
+        snprintf(err, errlen, "%s: cases[%d] (%s) has no \"steps_per_orbit\", \"step\" or \"tolerance\"",
+                 path, i, c->id);
+        return -1;
+    }
+    c->orbits = data_num(o, "orbits");
+    c->horizon_s = data_num(o, "horizon_s");
+    c->h = data_num(o, "h");
+    const json_t *m = json_object_get(o, "metrics"), *k = json_object_get(o, "cost");
+    c->energy_max = data_num(m, "energy_rel_max");
+    c->angmom_max = data_num(m, "angmom_rel_max");
+    c->pos_max = data_num(m, "pos_err_max");
+    c->k_pos = data_num(m, "growth_exponent_pos");
+    c->growth_pos = data_str(m, "growth_class_pos", NULL);
+    c->growth_energy = data_str(m, "growth_class_energy", NULL);
+    c->evals = data_long(k, "evals");
+    c->steps = data_long(k, "steps");
+    c->ns_per_step = data_num(k, "ns_per_step");
+    if (!(c->h > 0) && c->fixed && c->steps > 0 && c->horizon_s > 0)
+        c->h = c->horizon_s / (double)c->steps;
+    return 0;
+}
+
+/* Index of s in names[0..n-1], appending it when new. */
+static int data_slot(const char **names, int *n, const char *s)
+{
+    for (int i = 0; i < *n; i++)
+        if (!strcmp(names[i], s))
+            return i;
+    names[*n] = s;
+    return (*n)++;
+}
+
+int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen)
+{
+    memset(run, 0, sizeof *run);
+    char path[4200];
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *doc;
+    /* the same checks as check and baseline apply: readable, valid JSON, our
+     * format, and every finished case with all its metrics and counts */
+    if (pb_summary_load(path, &doc, err, errlen))
+        return -1;
+    if (pb_summary_complete(path, doc, err, errlen))
+        goto fail;
+    const json_t *fmt = json_object_get(doc, "format");
+    const json_t *cases = json_object_get(doc, "cases");
+    if (!json_is_integer(fmt) || json_integer_value(fmt) != 1) {
+        snprintf(err, errlen, "%s: \"format\" must be 1 (this propbench reads format 1)", path);
+        goto fail;
+    }
+    if (!json_is_array(cases) || json_array_size(cases) == 0) {
+        snprintf(err, errlen, "%s: \"cases\" must be a non-empty list", path);
+        goto fail;
+    }
+    int n = (int)json_array_size(cases);
+    data_item *items = calloc((size_t)n, sizeof *items);
+    const char **pnames = calloc((size_t)n, sizeof *pnames);
+    int *nm = calloc((size_t)n, sizeof *nm);
+    run->problems = calloc((size_t)n, sizeof *run->problems);
+    run->cases = calloc((size_t)n, sizeof *run->cases);
+    if (!items || !pnames || !nm || !run->problems || !run->cases) {
+        snprintf(err, errlen, "%s: out of memory", path);
+        free(items); free(pnames); free(nm);
+        goto fail;
+    }
+    int np = 0, bad = 0;
+    for (int i = 0; i < n && !bad; i++) {
+        data_item *it = &items[i];
+        if (data_case(json_array_get(cases, (size_t)i), &it->c, err, errlen, path, i)) {
+            bad = 1;
+            break;
+        }
+        it->pslot = data_slot(pnames, &np, it->c.problem);
+        it->c.method_slot = -1;
+        for (int j = 0; j < i && it->c.method_slot < 0; j++)
+            if (items[j].pslot == it->pslot && !strcmp(items[j].c.method, it->c.method))
+                it->c.method_slot = items[j].c.method_slot;
+        if (it->c.method_slot < 0)
+            it->c.method_slot = nm[it->pslot]++;
+        /* finer = smaller step or tolerance, so ascending "fine" is coarse first */
+        it->fine = it->c.fixed ? (it->c.steps_per_orbit > 0 ? (double)it->c.steps_per_orbit : 1.0 / it->c.step)
+                               : -log(it->c.tolerance);
+        it->seq = i;
+    }
+    if (!bad) {
+        qsort(items, (size_t)n, sizeof *items, data_cmp);
+        run->ncases = n;
+        run->nproblems = np;
+        for (int i = 0; i < n; i++) {
+            run->cases[i] = items[i].c;
+            pb_report_problem *p = &run->problems[items[i].pslot];
+            if (p->n == 0) {
+                p->name = items[i].c.problem;
+                p->first = i;
+                p->nmethods = nm[items[i].pslot];
+                int km = !strcmp(items[i].c.units, "km-s");
+                p->len_unit = km ? "km" : "DU";
+                p->time_unit = km ? "s" : "TU";
+            }
+            pb_report_case *c = &run->cases[i];
+            c->variant = (i > p->first && run->cases[i - 1].method_slot == c->method_slot)
+                             ? run->cases[i - 1].variant + 1 : 0;
+            p->n++;
+            if (c->orbits > p->orbits_max) p->orbits_max = c->orbits;
+            if (c->horizon_s > p->horizon_max) p->horizon_max = c->horizon_s;
+        }
+    }
+    free(items); free(pnames); free(nm);
+    if (bad)
+        goto fail;
+    run->doc = doc;
+    return 0;
+fail:
+    free(run->problems);
+    free(run->cases);
+    memset(run, 0, sizeof *run);
+    json_decref(doc);
+    return -1;
+}
+
+void pb_report_free(pb_report_run *run)
+{
+    if (!run)
+        return;
+    free(run->cases);
+    free(run->problems);
+    json_decref(run->doc);
+    memset(run, 0, sizeof *run);
+}
+
+void pb_report_case_setting(const pb_report_case *c, char *buf, size_t len)
+{
+    if (c->fixed && c->steps_per_orbit > 0)
+        snprintf(buf, len, "n=%ld", c->steps_per_orbit);
+    else if (c->fixed)
+        snprintf(buf, len, "h=%.4g %s", c->step, strcmp(c->units, "km-s") ? "TU" : "s");
+    else
+        snprintf(buf, len, "tol=%.0e", c->tolerance);
+}
+
+void pb_report_series_free(pb_report_series *s)
+{
+    if (!s)
+        return;
+    for (int i = 0; i < s->ncols; i++)
+        free(s->names[i]);
+    free(s->names);
+    free(s->v);
+    memset(s, 0, sizeof *s);
+}
+
+int pb_report_series_read(const char *path, pb_report_series *s, char *err, size_t errlen)
+{
+    memset(s, 0, sizeof *s);
+    FILE *f = fopen(path, "r");
+    if (!f) {
+        snprintf(err, errlen, "%s: cannot read: %s", path, strerror(errno));
+        return -1;
+    }
+    char *line = NULL;
+    size_t cap = 0;
+    size_t rows_cap = 0;
+    int lineno = 0, rc = -1;
+    while (getline(&line, &cap, f) > 0) {
+        lineno++;
+        line[strcspn(line, "\r\n")] = 0;
+        if (lineno == 1) {
+            for (char *tok = strtok(line, ","); tok; tok = strtok(NULL, ",")) {
+                char **nn = realloc(s->names, (size_t)(s->ncols + 1) * sizeof *nn);
+                if (!nn) goto out;
+                s->names = nn;
+                tok[strcspn(tok, "[")] = 0;
+                if (!(s->names[s->ncols] = strdup(tok))) goto out;
+                s->ncols++;
+            }
+            if (s->ncols == 0) {
+                snprintf(err, errlen, "%s:1: no header row", path);
+                goto out;
+            }
+            continue;
+        }
+        if (!*line)
+            continue;
+        if ((size_t)s->nrows + 1 > rows_cap) {
+            rows_cap = rows_cap ? 2 * rows_cap : 64;
+            double *nv = realloc(s->v, rows_cap * (size_t)s->ncols * sizeof *nv);
+            if (!nv) goto out;
+            s->v = nv;
+        }
+        double *row = s->v + (size_t)s->nrows * (size_t)s->ncols;
+        char *p = line;
+        for (int j = 0; j < s->ncols; j++) {
+            char *end;
+            /* an empty field is a quantity undefined at that sample (e.g. the
+             * apsidal angle of a circular orbit): NaN, which plots skip */
+            if (*p == ',' || (*p == 0 && j + 1 == s->ncols)) {
+                row[j] = NAN;
+                end = p;
+            } else {
+                row[j] = strtod(p, &end);
+                if (end == p) {
+                    snprintf(err, errlen, "%s:%d: column %d (%s) is not a number", path, lineno, j + 1,
+                             s->names[j]);
+                    goto out;
+                }
+            }
+            if (j + 1 < s->ncols ? *end != ',' : *end != 0) {
+                snprintf(err, errlen, "%s:%d: column %d (%s) is not a number", path, lineno, j + 1,
+                         s->names[j]);
+                goto out;
+            }
+            p = end + 1;
+        }
+        s->nrows++;
+    }
+    if (lineno == 0)
+        snprintf(err, errlen, "%s: empty file", path);
+    else
+        rc = 0;
+out:
+    if (rc && !err[0])
+        snprintf(err, errlen, "%s: out of memory", path);
+    free(line);
+    fclose(f);
+    if (rc)
+        pb_report_series_free(s);
+    return rc;
+}
+
+int pb_report_series_col(const pb_report_series *s, const char *name)
+{
+    for (int i = 0; i < s->ncols; i++)
+        if (!strcmp(s->names[i], name))
+            return i;
+    return -1;
+}
+
+int pb_report_fit_intercept(const double *x, const double *err, const int *use, int n,
+                            double x_min, double k, double *b)
+{
+    if (!isfinite(k) || n <= 0)
+        return 0;
+    double *r = malloc((size_t)n * sizeof *r);
+    if (!r)
+        return 0;
+    int m = 0;
+    for (int pass = 0; pass < 2 && m < 2; pass++) {
+        m = 0;
+        for (int i = 0; i < n; i++)
+            if (use[i] && err[i] > 0 && x[i] > 0 && (pass || x[i] >= x_min) && isfinite(err[i]))
+                r[m++] = log(err[i]) - k * log(x[i]);
+    }
+    /* the least-squares intercept for a fixed slope is the mean residual */
+    if (m >= 2)
+        *b = gsl_stats_mean(r, 1, (size_t)m);
+    free(r);
+    return m;
+}

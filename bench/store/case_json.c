@@ -1,0 +1,217 @@
+/* case_json.c - case objects and the summary document (see case_json.h). */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+#include <sys/utsname.h>
+#include <unistd.h>
+#include "bench/store/case_json.h"
+#include "bench/measure/harness.h"
+
+#ifndef PB_BUILD_FLAGS
+#define PB_BUILD_FLAGS "unknown"
+#endif
+
+json_t *pb_json_real(double x)
+{
+    return isfinite(x) ? json_real(x) : json_null();
+}
+
+static const char *case_kind(unsigned flags)
+{
+    if (flags & PB_KIND_MULTISTEP) return "multistep";
+    if (flags & PB_KIND_SYMPLECTIC) return "symplectic";
+    if (flags & PB_KIND_ADAPTIVE) return "adaptive";
+    return "fixed";
+}
+
+static double case_norm(const double *x, int dim)
+{
+    double s = 0;
+    for (int i = 0; i < dim; i++)
+        s += x[i] * x[i];
+    return sqrt(s);
+}
+
+/* The orbit's own length and speed (|r0|, |v0|), the unit of the gate's
+ * round-off floor for positions and velocities. A start at rest takes the
+ * circular speed at |r0| instead, so the speed unit is never 0. */
+static json_t *case_scales(const pb_problem *p)
+{
+    double len = case_norm(p->r0, p->dim), speed = case_norm(p->v0, p->dim);
+    if (!(speed > 0) && len > 0)
+        speed = sqrt(p->mu / len);
+    json_t *o = json_object();
+    json_object_set_new(o, "length", pb_json_real(len));
+    json_object_set_new(o, "speed", pb_json_real(speed));
+    return o;
+}
+
+static void case_settings(json_t *o, const pb_case_spec *spec)
+{
+    char id[PB_CASE_ID_MAX];
+    pb_case_id(spec, id, sizeof id);
+    const pb_method_type *m = spec->method;
+    json_object_set_new(o, "id", json_string(id));
+    json_object_set_new(o, "problem", json_string(spec->problem.name));
+    json_object_set_new(o, "units", json_string(spec->problem.units == PB_UNITS_KM_S ? "km-s" : "normalized"));
+    json_object_set_new(o, "method", json_string(m->name));
+    json_object_set_new(o, "method_order", json_integer(m->order));
+    json_object_set_new(o, "method_kind", json_string(case_kind(m->flags)));
+    json_object_set_new(o, "from_gsl", json_boolean(m->flags & PB_FROM_GSL));
+    if (m->flags & PB_KIND_FIXED) {
+        if (spec->step_s > 0) {
+            json_object_set_new(o, "step", json_real(spec->step_s));
+            /* the fixed key, as a real number, where a period gives it meaning */
+            if (spec->problem.period > 0)
+                json_object_set_new(o, "steps_per_orbit", json_real(spec->problem.period / spec->step_s));
+        } else
+            json_object_set_new(o, "steps_per_orbit", json_integer(spec->steps_per_orbit));
+    } else {
+        json_object_set_new(o, "tolerance", json_real(spec->tolerance));
+    }
+    if (spec->orbits > 0 && spec->problem.period > 0)
+        json_object_set_new(o, "orbits", json_real(spec->orbits));
+    json_object_set_new(o, "horizon_s", json_real(pb_case_horizon(spec)));
+    json_object_set_new(o, "compensated", json_boolean(spec->compensated));
+    json_object_set_new(o, "scales", case_scales(&spec->problem));
+}
+
+json_t *pb_case_crashed_json(const pb_case_spec *spec, const char *why)
+{
+    json_t *o = json_object();
+    case_settings(o, spec);
+    json_object_set_new(o, "status", json_string("crashed"));
+    json_object_set_new(o, "status_detail", json_string(why));
+    return o;
+}
+
+static void case_growth(json_t *mt, const char *name, const pb_growth *g, double period)
+{
+    char key[64];
+    snprintf(key, sizeof key, "growth_exponent_%s", name);
+    json_object_set_new(mt, key, pb_json_real(g->k));
+    snprintf(key, sizeof key, "growth_exponent_%s_err", name);
+    json_object_set_new(mt, key, pb_json_real(g->k_err));
+    snprintf(key, sizeof key, "growth_class_%s", name);
+    json_object_set_new(mt, key, json_string(g->cls ? g->cls : "other"));
+    snprintf(key, sizeof key, "growth_fit_from_orbits_%s", name);
+    json_object_set_new(mt, key, pb_json_real(period > 0 ? g->from / period : NAN));
+}
+
+json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
+{
+    json_t *o = json_object();
+    case_settings(o, spec);
+    json_object_set_new(o, "status", json_string(res->status_name));
+    json_object_set_new(o, "status_detail",
+                        json_string(res->status_detail ? res->status_detail : pb_strerror(res->status)));
+    if (res->status) {
+        json_object_set_new(o, "diverged_at", pb_json_real(res->diverged_at));
+        if (spec->problem.period > 0)
+            json_object_set_new(o, "diverged_at_orbits",
+                                pb_json_real((res->diverged_at - spec->problem.t0) / spec->problem.period));
+    }
+    json_object_set_new(o, "t_end", pb_json_real(res->t_end));
+    if (res->h > 0)
+        json_object_set_new(o, "h", json_real(res->h));
+
+    json_t *mt = json_object();
+    int km = spec->problem.units == PB_UNITS_KM_S;
+    json_object_set_new(mt, "energy_rel_max", pb_json_real(res->energy_rel_max));
+    if (res->energy_rel_to_parts)
+        json_object_set_new(mt, "energy_rel_to", json_string("v0^2/2 + mu/|r0| (near-parabolic start: |E0| under 1e-6 of it)"));
+    json_object_set_new(mt, "energy_rel_final", pb_json_real(res->energy_rel_final));
+    json_object_set_new(mt, "angmom_rel_max", pb_json_real(res->angmom_rel_max));
+    json_object_set_new(mt, "angmom_rel_final", pb_json_real(res->angmom_rel_final));
+    /* errors below 10x the reference's own error are not numbers we can defend */
+    double pmax = res->below_floor ? NAN : res->pos_err_max;
+    double pfin = res->below_floor ? NAN : res->pos_err_final;
+    json_object_set_new(mt, "pos_err_max", pb_json_real(pmax));
+    json_object_set_new(mt, "pos_err_final", pb_json_real(pfin));
+    if (km) {
+        json_object_set_new(mt, "pos_err_max_m", pb_json_real(1e3 * pmax));
+        json_object_set_new(mt, "pos_err_final_m", pb_json_real(1e3 * pfin));
+    }
+    json_object_set_new(mt, "below_reference_floor", json_boolean(res->below_floor));
+    json_object_set_new(mt, "error_saturated", json_boolean(res->saturated));
+    json_object_set_new(mt, "reference_floor_max", pb_json_real(res->truth_floor_max));
+    json_object_set_new(mt, "vel_err_max", pb_json_real(res->vel_err_max));
+    json_object_set_new(mt, "vel_err_final", pb_json_real(res->vel_err_final));
+    json_object_set_new(mt, "radial_final", pb_json_real(res->radial_final));
+    json_object_set_new(mt, "along_track_final", pb_json_real(res->along_final));
+    json_object_set_new(mt, "cross_track_final", pb_json_real(res->cross_final));
+    json_object_set_new(mt, "ecc_drift_max", pb_json_real(spec->problem.keplerian ? res->ecc_drift_max : NAN));
+    json_object_set_new(mt, "apsidal_rate_rad_per_orbit", pb_json_real(res->apsidal_rate));
+    case_growth(mt, "pos", &res->g_pos, spec->problem.period);
+    case_growth(mt, "along", &res->g_along, spec->problem.period);
+    case_growth(mt, "energy", &res->g_energy, spec->problem.period);
+    case_growth(mt, "angmom", &res->g_angmom, spec->problem.period);
+    json_object_set_new(o, "metrics", mt);
+
+    json_t *c = json_object();
+    json_object_set_new(c, "steps", json_integer(res->steps));
+    json_object_set_new(c, "evals", json_integer(res->evals));
+    json_object_set_new(c, "rejected", json_integer(res->rejected));
+    json_object_set_new(c, "startup_steps", json_integer(res->startup_steps));
+    if (spec->method->flags & PB_KIND_ADAPTIVE)
+        json_object_set_new(c, "output_cut_steps", json_integer(res->output_cut));
+    json_object_set_new(c, "ns_per_step", pb_json_real(res->ns_per_step));
+    json_object_set_new(c, "ns_per_eval", pb_json_real(res->ns_per_eval));
+    if (spec->eval_cost_us > 0) {
+        json_object_set_new(c, "eval_cost_us", json_real(spec->eval_cost_us));
+        json_object_set_new(c, "projected_s", json_real(res->projected_s));
+    }
+    json_object_set_new(o, "cost", c);
+    json_object_set_new(o, "fingerprint", json_string(res->fingerprint));
+    char path[PB_CASE_ID_MAX + 16];
+    snprintf(path, sizeof path, "series/%s.csv", res->id);
+    json_object_set_new(o, "series", json_string(path));
+    return o;
+}
+
+static json_t *summary_machine(void)
+{
+    json_t *m = json_object();
+    struct utsname u;
+    if (uname(&u) == 0) {
+        json_object_set_new(m, "system", json_string(u.sysname));
+        json_object_set_new(m, "release", json_string(u.release));
+        json_object_set_new(m, "arch", json_string(u.machine));
+    }
+    FILE *f = fopen("/proc/cpuinfo", "r");
+    if (f) {
+        char line[512];
+        while (fgets(line, sizeof line, f))
+            if (strncmp(line, "model name", 10) == 0) {
+                char *c = strchr(line, ':');
+                if (c) {
+                    c += 2;
+                    c[strcspn(c, "\n")] = 0;
+                    json_object_set_new(m, "cpu", json_string(c));
+                }
+                break;
+            }
+        fclose(f);
+    }
+    json_object_set_new(m, "cores", json_integer(sysconf(_SC_NPROCESSORS_ONLN)));
+    return m;
+}
+
+json_t *pb_summary_new(json_t *cases)
+{
+    json_t *s = json_object();
+    json_object_set_new(s, "format", json_integer(PB_SUMMARY_FORMAT));
+    json_object_set_new(s, "tool", json_string(PB_TOOL_NAME));
+    json_object_set_new(s, "machine", summary_machine());
+    json_t *b = json_object();
+#ifdef __VERSION__
+    json_object_set_new(b, "compiler", json_string("gcc-compatible " __VERSION__));
+#endif
+    json_object_set_new(b, "flags", json_string(PB_BUILD_FLAGS));
+    json_object_set_new(s, "build", b);
+    json_object_set_new(s, "caution", json_string(
+        "Benchmarks on idealised problems do not validate an operational propagator; "
+        "defer to the mission's own verification and flight-dynamics practice."));
+    json_object_set_new(s, "cases", cases);
+    return s;
+}

@@ -1,0 +1,307 @@
+/* run_dir.c - atomic files and the per-case CSV series. */
+#include <ctype.h>
+#include <errno.h>
+#include <stdarg.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+#include <dirent.h>
+#include "bench/store/run_dir.h"
+#include "bench/report/figure_scripts.h"
+
+int pb_mkdirs(const char *path)
+{
+    char buf[4096];
+    if (strlen(path) >= sizeof buf) {
+        errno = ENAMETOOLONG;
+        return -1;
+    }
+    strcpy(buf, path);
+    for (char *p = buf + 1; *p; p++) {
+        if (*p != '/')
+            continue;
+        *p = 0;
+        if (mkdir(buf, 0777) && errno != EEXIST)
+            return -1;
+        *p = '/';
+    }
+    if (mkdir(buf, 0777) && errno != EEXIST)
+        return -1;
+    /* EEXIST alone could be a file of that name, which no write below
+     * could get through */
+    struct stat st;
+    if (stat(buf, &st))
+        return -1;
+    if (!S_ISDIR(st.st_mode)) {
+        errno = ENOTDIR;
+        return -1;
+    }
+    return 0;
+}
+
+int pb_path_blocked(const char *path)
+{
+    struct stat st;
+    return !stat(path, &st) && !S_ISREG(st.st_mode);
+}
+
+int pb_run_dir_prepare(const char *dir, char *err, size_t errlen)
+{
+    char sdir[4200], sum[4200];
+    snprintf(sdir, sizeof sdir, "%s/series", dir);
+    snprintf(sum, sizeof sum, "%s/summary.json", dir);
+    const char *bad = pb_mkdirs(dir) ? dir : pb_mkdirs(sdir) ? sdir : NULL;
+    if (bad) {
+        snprintf(err, errlen, "cannot create the folder %s: %s", bad, strerror(errno));
+        return -1;
+    }
+    if (pb_path_blocked(sum)) {
+        snprintf(err, errlen, "%s is there and is not a file: the summary could not be written", sum);
+        pb_run_dir_unprepare(dir);
+        return -1;
+    }
+    if (access(dir, W_OK | X_OK) || access(sdir, W_OK | X_OK)) {
+        snprintf(err, errlen, "cannot write in %s: %s", access(dir, W_OK | X_OK) ? dir : sdir,
+                 strerror(errno));
+        pb_run_dir_unprepare(dir);
+        return -1;
+    }
+    return 0;
+}
+
+void pb_run_dir_unprepare(const char *dir)
+{
+    if (!dir)
+        return;
+    char sdir[4200];
+    snprintf(sdir, sizeof sdir, "%s/series", dir);
+    rmdir(sdir);
+    rmdir(dir);
+}
+
+void pb_run_dir_unwrite(const char *dir, const json_t *cases)
+{
+    size_t i;
+    const json_t *c;
+    json_array_foreach(cases, i, c) {
+        const char *sr = json_string_value(json_object_get(c, "series"));
+        char f[8400];
+        snprintf(f, sizeof f, "%s/%s", dir, sr ? sr : "");
+        if (pb_series_path_ok(sr))
+            unlink(f);
+    }
+    pb_run_dir_unprepare(dir);
+}
+
+int pb_write_atomic(const char *path, const char *data, size_t len)
+{
+    char tmp[4200];
+    snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid());
+    FILE *f = fopen(tmp, "wb");
+    if (!f)
+        return -1;
+    size_t w = fwrite(data, 1, len, f);
+    int bad = (w != len) | (fflush(f) != 0) | (fsync(fileno(f)) != 0);
+    bad |= fclose(f) != 0;
+    if (bad || rename(tmp, path)) {
+        unlink(tmp);
+        return -1;
+    }
+    return 0;
+}
+
+int pb_write_atomic_printed(const char *path, int (*body)(FILE *f, const void *ctx),
+                            const void *ctx)
+{
+    char *buf = NULL;
+    size_t n = 0;
+    FILE *f = open_memstream(&buf, &n);
+    if (!f)
+        return -1;
+    int rc = body(f, ctx);
+    if (fclose(f))
+        rc = -1;
+    if (rc == 0 && pb_write_atomic(path, buf, n))
+        rc = -1;
+    free(buf);
+    return rc ? -1 : 0;
+}
+
+int pb_json_write_atomic(const char *path, const json_t *doc)
+{
+    char *s = json_dumps(doc, JSON_INDENT(1) | JSON_PRESERVE_ORDER | JSON_REAL_PRECISION(17));
+    if (!s)
+        return -1;
+    size_t n = strlen(s);
+    char *t = realloc(s, n + 2);
+    if (!t) {
+        free(s);
+        return -1;
+    }
+    t[n] = '\n';
+    t[n + 1] = 0;
+    int rc = pb_write_atomic(path, t, n + 1);
+    free(t);
+    return rc;
+}
+
+/* A growable text buffer for the CSV (a few hundred rows at most). */
+typedef struct { char *s; size_t n, cap; int bad; } series_buf;
+
+static void series_printf(series_buf *b, const char *fmt, ...)
+    __attribute__((format(printf, 2, 3)));
+
+static void series_printf(series_buf *b, const char *fmt, ...)
+{
+    if (b->bad)
+        return;
+    for (;;) {
+        va_list ap;
+        va_start(ap, fmt);
+        int k = vsnprintf(b->s + b->n, b->cap - b->n, fmt, ap);
+        va_end(ap);
+        if (k < 0) {
+            b->bad = 1;
+            return;
+        }
+        if ((size_t)k < b->cap - b->n) {
+            b->n += (size_t)k;
+            return;
+        }
+        size_t nc = 2 * b->cap + (size_t)k + 64;
+        char *ns = realloc(b->s, nc);
+        if (!ns) {
+            b->bad = 1;
+            return;
+        }
+        b->s = ns;
+        b->cap = nc;
+    }
+}
+
+static void series_num(series_buf *b, double x)
+{
+    if (isfinite(x))
+        series_printf(b, ",%.9e", x);
+    else
+        series_printf(b, ",");
+}
+
+int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res)
+{
+    char path[4096];
+    snprintf(path, sizeof path, "%s/series", dir);
+    if (pb_mkdirs(path))
+        return -1;
+    snprintf(path, sizeof path, "%s/series/%s.csv", dir, res->id);
+    const char *L = spec->problem.units == PB_UNITS_KM_S ? "km" : "DU";
+    const char *V = spec->problem.units == PB_UNITS_KM_S ? "km/s" : "DU/TU";
+    const char *T = spec->problem.units == PB_UNITS_KM_S ? "s" : "TU";
+    series_buf b = {malloc(4096), 0, 4096, 0};
+    if (!b.s)
+        return -1;
+    series_printf(&b, "t[%s],orbits[-],log_sample[-],energy_rel[-],energy_rel_window_max[-],"
+                  "angmom_rel[-],angmom_rel_window_max[-],ecc_drift[-],apsis_angle[rad],"
+                  "pos_err[%s],vel_err[%s],radial[%s],along_track[%s],cross_track[%s],"
+                  "truth_floor[%s]\n", T, L, V, L, L, L, L);
+    for (int k = 0; k < res->nsamples; k++) {
+        const pb_sample *s = &res->samples[k];
+        series_printf(&b, "%.17g", s->t);
+        series_num(&b, s->orbits);
+        series_printf(&b, ",%d", s->on_log_grid);
+        series_num(&b, s->energy_rel);
+        series_num(&b, s->energy_rel_window);
+        series_num(&b, s->angmom_rel);
+        series_num(&b, s->angmom_rel_window);
+        series_num(&b, s->ecc_drift);
+        series_num(&b, s->apsis_angle);
+        series_num(&b, s->pos_err);
+        series_num(&b, s->vel_err);
+        series_num(&b, s->radial);
+        series_num(&b, s->along);
+        series_num(&b, s->cross);
+        series_num(&b, s->truth_floor);
+        series_printf(&b, "\n");
+    }
+    int rc = b.bad ? -1 : pb_write_atomic(path, b.s, b.n);
+    free(b.s);
+    return rc;
+}
+
+int pb_series_path_ok(const char *rel)
+{
+    static const char prefix[] = "series/", suffix[] = ".csv";
+    size_t n = rel ? strlen(rel) : 0, lp = sizeof prefix - 1, ls = sizeof suffix - 1;
+    if (n <= lp + ls || strncmp(rel, prefix, lp) || strcmp(rel + n - ls, suffix) || strstr(rel, ".."))
+        return 0;
+    for (const char *c = rel + lp; *c; c++)
+        if (!isalnum((unsigned char)*c) && !strchr("._+-", *c))
+            return 0;
+    return 1;
+}
+
+/* 1 if some case of summary names this series path */
+static int run_dir_names(const json_t *summary, const char *rel)
+{
+    size_t i;
+    const json_t *c;
+    json_array_foreach(json_object_get(summary, "cases"), i, c) {
+        const char *sr = json_string_value(json_object_get(c, "series"));
+        if (sr && !strcmp(sr, rel))
+            return 1;
+    }
+    return 0;
+}
+
+json_t *pb_run_dir_previous(const char *dir)
+{
+    char path[4200];
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *d = json_load_file(path, 0, NULL);
+    const char *tool = d ? json_string_value(json_object_get(d, "tool")) : NULL;
+    if (tool && !strncmp(tool, "propbench", 9) && json_is_array(json_object_get(d, "cases")))
+        return d;
+    json_decref(d);
+    return NULL;
+}
+
+int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary)
+{
+    static const char *const kinds[] = {"png", "svg", "gp", "log", NULL};
+    char path[8400];
+    int removed = 0;
+    if (!old)
+        return 0;
+    size_t i;
+    const json_t *c;
+    json_array_foreach(json_object_get(old, "cases"), i, c) {
+        /* the earlier run's series that the new run does not write again */
+        const char *sr = json_string_value(json_object_get(c, "series"));
+        if (pb_series_path_ok(sr) && !run_dir_names(summary, sr)) {
+            snprintf(path, sizeof path, "%s/%s", dir, sr);
+            if (unlink(path) == 0)
+                removed++;
+        }
+        /* the figures `report` draws for the earlier run's problems */
+        const char *prob = json_string_value(json_object_get(c, "problem"));
+        for (int k = 0; prob && !strchr(prob, '/') && k < PB_FIG_COUNT; k++)
+            for (const char *const *x = kinds; *x; x++) {
+                snprintf(path, sizeof path, "%s/plots/%s-%s.%s", dir, prob, pb_report_fig_kind(k), *x);
+                if (unlink(path) == 0)
+                    removed++;
+            }
+    }
+    static const char *const reports[] = {"report.html", "report.md", "report.png", "plots/style.gp", NULL};
+    for (const char *const *r = reports; *r; r++) {
+        snprintf(path, sizeof path, "%s/%s", dir, *r);
+        if (unlink(path) == 0)
+            removed++;
+    }
+    /* the earlier report's folder, if nothing else is in it now */
+    snprintf(path, sizeof path, "%s/plots", dir);
+    rmdir(path);
+    return removed;
+}

@@ -1,0 +1,69 @@
+/* run_dir.h - the run directory on disk: results/runs/<name>/ with
+ * summary.json, series/<case>.csv, plots/, report.*. Every file is written to
+ * a temporary name and renamed, so an interrupted run never leaves a
+ * half-written file. */
+#ifndef PB_RUN_DIR_H
+#define PB_RUN_DIR_H
+
+#include <stddef.h>
+#include <stdio.h>
+#include <jansson.h>
+#include "bench/measure/case.h"
+
+/* mkdir -p; 0, or -1 with errno (ENOTDIR when path is there but is not a
+ * directory). */
+int pb_mkdirs(const char *path);
+
+/* 1 if something that is not a plain file stands at path (a folder, say),
+ * so no file can be written there; 0 if it is absent or a plain file. */
+int pb_path_blocked(const char *path);
+
+/* Before any case runs: make dir and dir/series, and check that
+ * dir/summary.json is absent or a plain file and that dir can be written,
+ * so a run never computes for minutes and then fails to write, or leaves
+ * series behind a summary it could not write. 0, or -1 with a one-line
+ * reason (naming the path) in err. */
+int pb_run_dir_prepare(const char *dir, char *err, size_t errlen);
+
+/* Undo pb_run_dir_prepare where nothing was written: remove dir/series and
+ * dir if they are empty (a folder that holds anything is left alone). */
+void pb_run_dir_unprepare(const char *dir);
+
+/* Take back a run that could not be finished: remove the series the cases
+ * name (only paths pb_series_path_ok accepts), then the folders if that
+ * leaves them empty, so no series is left without its summary. */
+void pb_run_dir_unwrite(const char *dir, const json_t *cases);
+
+/* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1. */
+int pb_write_atomic(const char *path, const char *data, size_t len);
+
+/* Write what body prints (0 on success) to path atomically, through an
+ * in-memory stream; 0, or -1 when body or the write fails. */
+int pb_write_atomic_printed(const char *path, int (*body)(FILE *f, const void *ctx),
+                            const void *ctx);
+
+/* Dump JSON (indented, keys in insertion order) atomically; 0 or -1. */
+int pb_json_write_atomic(const char *path, const json_t *doc);
+
+/* Write the case's samples as CSV (header names columns with units) to
+ * dir/series/<id>.csv atomically; 0 or -1. */
+int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res);
+
+/* 1 if rel, a case's "series" entry, names a file below the run's series/
+ * folder ("series/<file-safe id>.csv"): the only paths report, merge and
+ * prune will read, copy or remove, so a doctored summary cannot point them
+ * at another file. */
+int pb_series_path_ok(const char *rel);
+
+/* The summary.json already in dir if propbench wrote it (new reference),
+ * else NULL: read before a run writes, so that only an earlier propbench
+ * run is ever cleaned up and a user's own folder given as --out never is. */
+json_t *pb_run_dir_previous(const char *dir);
+
+/* After a new summary.json is written to dir: remove what the earlier run
+ * (old, from pb_run_dir_previous; NULL: nothing) wrote and the new one does
+ * not own: its series that the new summary does not name, its figures and
+ * its report. Returns how many files were removed. */
+int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary);
+
+#endif

@@ -1,0 +1,220 @@
+/* summary_read.c - summary.json read back and checked (see summary_read.h).
+ * A value skipped here would silently drop out of a comparison, so a
+ * finished case must carry every compared key. */
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+#include <sys/stat.h>
+#include "bench/store/summary_read.h"
+#include "bench/store/case_json.h"
+
+const char *const pb_summary_metric_keys[] = {
+    "energy_rel_max", "energy_rel_final", "angmom_rel_max", "angmom_rel_final",
+    "pos_err_max", "pos_err_final", "vel_err_max", "vel_err_final", "ecc_drift_max", NULL};
+const char *const pb_summary_class_keys[] = {"growth_class_energy", "growth_class_pos", NULL};
+const char *const pb_summary_count_keys[] = {"steps", "evals", "rejected", "startup_steps", NULL};
+
+json_t *pb_json_doc_read(const char *path, char *err, size_t errlen)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f) {
+        snprintf(err, errlen, "%s: cannot open: %s", path, strerror(errno));
+        return NULL;
+    }
+    struct stat st;
+    if (!fstat(fileno(f), &st) && S_ISDIR(st.st_mode)) {
+        fclose(f);
+        snprintf(err, errlen, "%s: is a folder, not a JSON file", path);
+        return NULL;
+    }
+    json_error_t e;
+    json_t *d = json_loadf(f, JSON_REJECT_DUPLICATES, &e);
+    fclose(f);
+    if (!d)
+        snprintf(err, errlen, "%s: corrupt or truncated JSON (line %d, column %d): %s", path,
+                 e.line, e.column, e.text);
+    return d;
+}
+
+/* "format" must be our version; a larger one was written by a newer propbench. */
+int pb_json_doc_format_ok(const char *path, const json_t *d, int want, const char *what,
+                          char *err, size_t errlen)
+{
+    json_t *f = json_object_get(d, "format");
+    if (!json_is_integer(f)) {
+        snprintf(err, errlen, "%s: not a %s: no integer key 'format'", path, what);
+        return -1;
+    }
+    json_int_t v = json_integer_value(f);
+    if (v > want) {
+        snprintf(err, errlen, "%s: %s format %lld is newer than this propbench reads (%d); "
+                 "use a newer propbench or regenerate the file", path, what, (long long)v, want);
+        return -1;
+    }
+    if (v != want) {
+        snprintf(err, errlen, "%s: unsupported %s format %lld (this propbench reads %d)", path,
+                 what, (long long)v, want);
+        return -1;
+    }
+    return 0;
+}
+
+const char *pb_summary_numbers_bad(const json_t *m, const json_t *n)
+{
+    for (const char *const *k = pb_summary_metric_keys; *k; k++) {
+        json_t *v = json_object_get(m, *k);
+        if (v && !json_is_number(v) && !json_is_null(v))
+            return "has a metric that is not a number";
+    }
+    for (const char *const *k = pb_summary_count_keys; *k; k++) {
+        json_t *v = json_object_get(n, *k);
+        if (v && !json_is_integer(v))
+            return "has a count that is not an integer";
+    }
+    return NULL;
+}
+
+/* pb_case_to_json writes every metric (null when not finite or not
+ * meaningful), both growth classes, the counts and the fingerprint whatever
+ * the status (ok, diverged, max_steps); a crashed case has only its settings. */
+const char *pb_summary_key_missing(const json_t *m, const json_t *n, const char **group,
+                                   const char *mname, const char *nname)
+{
+    *group = mname;
+    for (const char *const *k = pb_summary_metric_keys; *k; k++)
+        if (!json_object_get(m, *k))
+            return *k;
+    for (const char *const *k = pb_summary_class_keys; *k; k++)
+        if (!json_is_string(json_object_get(m, *k)))
+            return *k;
+    *group = nname;
+    for (const char *const *k = pb_summary_count_keys; *k; k++)
+        if (!json_object_get(n, *k))
+            return *k;
+    return NULL;
+}
+
+const char *pb_summary_case_why(const json_t *c, const json_t *seen)
+{
+    const char *id = json_string_value(json_object_get(c, "id"));
+    if (!json_is_object(c) || !id)
+        return "has no string 'id'";
+    if (!json_is_string(json_object_get(c, "status")))
+        return "has no string 'status'";
+    if (json_object_get(seen, id))
+        return "repeats an id";
+    return NULL;
+}
+
+int pb_summary_scales_ok(const json_t *c, const char *key, char *why, size_t len)
+{
+    const json_t *sc = json_object_get(c, key);
+    if (!json_is_object(sc)) {
+        snprintf(why, len, "key '%s' missing", key);
+        return -1;
+    }
+    static const char *const keys[] = {"length", "speed"};
+    for (int i = 0; i < 2; i++) {
+        const json_t *v = json_object_get(sc, keys[i]);
+        if (!json_is_number(v) || !isfinite(json_number_value(v)) || json_number_value(v) <= 0) {
+            char got[48] = "missing";
+            if (json_is_number(v))
+                snprintf(got, sizeof got, "%g", json_number_value(v));
+            snprintf(why, len, "key '%s.%s' must be a positive finite number, got %s", key,
+                     keys[i], got);
+            return -1;
+        }
+    }
+    return 0;
+}
+
+/* The first compared key a finished summary case lacks, or NULL. */
+static const char *summary_key_missing(const json_t *c, const char **group)
+{
+    const char *key = pb_summary_key_missing(json_object_get(c, "metrics"),
+                                             json_object_get(c, "cost"), group, "metrics", "cost");
+    if (key)
+        return key;
+    *group = NULL;
+    if (!json_is_string(json_object_get(c, "fingerprint")))
+        return "fingerprint";
+    if (!json_object_get(c, "scales"))
+        return "scales";
+    return NULL;
+}
+
+/* Every case an object with a unique string id and a string status, and
+ * numbers where numbers belong; with complete, every finished case with
+ * every compared key. */
+static int summary_cases_ok(const char *path, const json_t *d, int complete, char *err,
+                            size_t errlen)
+{
+    json_t *cs = json_object_get(d, "cases");
+    if (!json_is_array(cs)) {
+        snprintf(err, errlen, "%s: corrupt: no array 'cases'", path);
+        return -1;
+    }
+    json_t *seen = json_object();
+    size_t i;
+    json_t *c;
+    int rc = 0;
+    json_array_foreach(cs, i, c) {
+        const char *id = json_string_value(json_object_get(c, "id"));
+        const char *why = pb_summary_case_why(c, seen);
+        int finished = !why && strcmp(json_string_value(json_object_get(c, "status")), "crashed");
+        if (finished) {
+            json_t *m = json_object_get(c, "metrics"), *n = json_object_get(c, "cost");
+            why = (!json_is_object(m) || !json_is_object(n)) ? "lacks the objects 'metrics' or 'cost'"
+                                                             : pb_summary_numbers_bad(m, n);
+        }
+        if (why) {
+            snprintf(err, errlen, "%s: corrupt: cases[%zu]%s%s%s %s", path, i, id ? " (" : "",
+                     id ? id : "", id ? ")" : "", why);
+            rc = -1;
+            break;
+        }
+        const char *group = NULL, *key = finished && complete ? summary_key_missing(c, &group) : NULL;
+        if (key) {
+            snprintf(err, errlen, "%s: case %s: key '%s' missing%s%s%s (every '%s' case has it)",
+                     path, id, key, group ? " from '" : "", group ? group : "", group ? "'" : "",
+                     json_string_value(json_object_get(c, "status")));
+            rc = -1;
+            break;
+        }
+        char sw[160];
+        if (finished && complete && pb_summary_scales_ok(c, "scales", sw, sizeof sw)) {
+            snprintf(err, errlen, "%s: case %s: %s", path, id, sw);
+            rc = -1;
+            break;
+        }
+        json_object_set_new(seen, id, json_true());
+    }
+    json_decref(seen);
+    return rc;
+}
+
+int pb_summary_complete(const char *path, const json_t *doc, char *err, size_t errlen)
+{
+    return summary_cases_ok(path, doc, 1, err, errlen);
+}
+
+int pb_summary_load(const char *path, json_t **out, char *err, size_t errlen)
+{
+    *out = NULL;
+    json_t *d = pb_json_doc_read(path, err, errlen);
+    if (!d)
+        return -1;
+    if (!json_is_object(d)) {
+        snprintf(err, errlen, "%s: not a run summary (not a JSON object)", path);
+        json_decref(d);
+        return -1;
+    }
+    if (pb_json_doc_format_ok(path, d, PB_SUMMARY_FORMAT, "run summary", err, errlen) ||
+        summary_cases_ok(path, d, 0, err, errlen)) {
+        json_decref(d);
+        return -1;
+    }
+    *out = d;
+    return 0;
+}

@@ -1,0 +1,136 @@
+/* suites.c - the built-in sweep suites.
+ * quick: every method on two problems at two resolutions (CI, < 60 s);
+ * standard: every method on every built-in problem at three resolutions. */
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include "bench/study/suites.h"
+#include "problems/catalogue.h"
+
+int pb_case_list_add(pb_case_list *list, const pb_case_spec *spec)
+{
+    if (list->n == list->cap) {
+        int nc = list->cap ? 2 * list->cap : 64;
+        pb_case_spec *c = realloc(list->cases, (size_t)nc * sizeof *c);
+        if (!c)
+            return -1;
+        list->cases = c;
+        list->cap = nc;
+    }
+    list->cases[list->n++] = *spec;
+    return 0;
+}
+
+void pb_case_list_free(pb_case_list *list)
+{
+    free(list->cases);
+    list->cases = NULL;
+    list->n = list->cap = 0;
+}
+
+/* Add every compatible method on problem p at the given resolutions. */
+static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int *steps, int nsteps,
+                             const double *tols, int ntols, double orbits, int repeats)
+{
+    for (const pb_method_type *const *t = pb_method_table; *t; t++) {
+        const pb_method_type *m = *t;
+        if ((m->flags & PB_FORM_SECOND) && p->velocity_dependent)
+            continue;
+        int fixed = (m->flags & PB_KIND_FIXED) != 0;
+        int nv = fixed ? nsteps : ntols;
+        for (int j = 0; j < nv; j++) {
+            pb_case_spec s;
+            memset(&s, 0, sizeof s);
+            s.problem = *p;
+            s.method = m;
+            if (fixed)
+                s.steps_per_orbit = steps[j];
+            else
+                s.tolerance = tols[j];
+            if (p->period > 0 && (orbits > 0 || p->default_orbits > 0))
+                s.orbits = orbits > 0 ? orbits : p->default_orbits;
+            else
+                s.horizon_s = p->default_horizon_s;
+            s.repeats = repeats;
+            s.linear_samples = 50;
+            s.cache_dir = "results/cache";
+            if (pb_case_list_add(list, &s))
+                return -1;
+        }
+    }
+    return 0;
+}
+
+static int suite_quick(pb_case_list *list)
+{
+    static const int steps_kepler[] = {200, 400}, steps_leo[] = {100, 200};
+    static const double tols[] = {1e-8, 1e-10};
+    pb_problem p;
+    if (pb_problem_lookup("kepler-e0.6", &p) ||
+        suite_add_problem(list, &p, steps_kepler, 2, tols, 2, 100, 1))
+        return -1;
+    if (pb_problem_lookup("leo-near-circular", &p) ||
+        suite_add_problem(list, &p, steps_leo, 2, tols, 2, 16, 1))
+        return -1;
+    return 0;
+}
+
+static int suite_standard(pb_case_list *list)
+{
+    static const double tols[] = {1e-6, 1e-9, 1e-12};
+    for (const pb_problem_entry *e = pb_problem_table; e->name; e++) {
+        pb_problem p;
+        if (e->make(&p))
+            return -1;
+        /* eccentric orbits need more steps per period for fixed-step methods */
+        double ecc = 0;
+        if (p.keplerian && p.period > 0) {
+            double r0 = sqrt(p.r0[0] * p.r0[0] + p.r0[1] * p.r0[1] + p.r0[2] * p.r0[2]);
+            double v2 = p.v0[0] * p.v0[0] + p.v0[1] * p.v0[1] + p.v0[2] * p.v0[2];
+            double a = 1.0 / (2.0 / r0 - v2 / p.mu);
+            ecc = fabs(1.0 - r0 / a); /* exact at periapsis or apoapsis starts */
+        }
+        /* the step must resolve periapsis, where the local time scale is
+         * (1 - e)^1.5 of the period: 50 steps per such time, rounded up to
+         * 1, 2 or 5 times a power of ten */
+        double want = 50.0 * pow(fmax(1.0 - ecc, 1e-3), -1.5);
+        double dec = pow(10.0, floor(log10(want)));
+        int base = (int)(want <= dec ? dec : want <= 2 * dec ? 2 * dec : want <= 5 * dec ? 5 * dec : 10 * dec);
+        if (p.force == PB_FORCE_CR3BP)
+            base = 2000;
+        int steps[3] = {base, 2 * base, 4 * base};
+        double orbits = p.period > 0 ? fmin(p.default_orbits > 0 ? p.default_orbits : 100, 100) : 0;
+        if (suite_add_problem(list, &p, steps, 3, tols, 3, orbits, 3))
+            return -1;
+    }
+    return 0;
+}
+
+typedef struct { const char *name; int (*expand)(pb_case_list *); const char *what; } suite_entry;
+
+static const suite_entry suite_table[] = {
+    {"quick", suite_quick, "every method on kepler-e0.6 (100 orbits) and leo-near-circular (16 orbits), "
+                           "2 resolutions each; for CI, under a minute on 2 cores"},
+    {"standard", suite_standard, "every method on every built-in problem, 3 resolutions, "
+                                 "steps scaled to resolve periapsis, horizon up to 100 orbits; about 30 s with -j 2"},
+    {NULL, NULL, NULL}
+};
+
+int pb_suite_expand(const char *name, pb_case_list *list)
+{
+    for (const suite_entry *s = suite_table; s->name; s++)
+        if (!strcmp(s->name, name))
+            return s->expand(list);
+    return -1;
+}
+
+void pb_suites_print(FILE *f)
+{
+    fprintf(f, "%-10s %s\n", "suite", "contents");
+    for (const suite_entry *s = suite_table; s->name; s++) {
+        pb_case_list l = {0, 0, NULL};
+        int n = s->expand(&l) ? -1 : l.n;
+        pb_case_list_free(&l);
+        fprintf(f, "%-10s %4d cases: %s\n", s->name, n, s->what);
+    }
+}

@@ -1,0 +1,24 @@
+/* suites.h - named sweeps (quick, standard) and grids from the command line,
+ * expanded into a list of case specs in a fixed, deterministic order. */
+#ifndef PB_SUITES_H
+#define PB_SUITES_H
+
+#include <stdio.h>
+#include "bench/measure/case.h"
+
+typedef struct pb_case_list {
+    int n, cap;
+    pb_case_spec *cases;  /* owned */
+} pb_case_list;
+
+/* Expand the named suite into list (appending). -1 if the name is unknown. */
+int pb_suite_expand(const char *name, pb_case_list *list);
+
+/* Append one spec; -1 when out of memory. */
+int pb_case_list_add(pb_case_list *list, const pb_case_spec *spec);
+void pb_case_list_free(pb_case_list *list);
+
+/* The suites and what they hold, for `list suites`. */
+void pb_suites_print(FILE *f);
+
+#endif
