@@ -6,7 +6,7 @@ CC      ?= cc
 PREFIX  ?= /usr/local
 DESTDIR ?=
 PKGS    := gsl jansson inih
-WARN    := -Wall -Wextra -Wshadow -Wmissing-prototypes -Wstrict-prototypes
+WARN    := -Wall -Wextra -Wshadow -Wmissing-prototypes -Wstrict-prototypes -Wdouble-promotion
 CSTD    := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE
 OPT     ?= -O2 -g
 PB_CFLAGS  = $(CSTD) $(OPT) $(WARN) -I. -DPB_BUILD_FLAGS='"$(CSTD) $(OPT) $(WARN)"' $(shell pkg-config --cflags $(PKGS) 2>/dev/null) $(CFLAGS)

@@ -198,7 +198,7 @@ static int mx_nan_accel(const pb_problem *p, double t, const double *r, const do
     double r2 = r[0] * r[0] + r[1] * r[1] + r[2] * r[2];
     double k = -p->mu / (r2 * sqrt(r2));
     for (int i = 0; i < 3; i++)
-        a[i] = t > MX_T_NAN * p->period ? NAN : k * r[i];
+        a[i] = t > MX_T_NAN * p->period ? (double)NAN : k * r[i];
     return PB_OK;
 }
 

@@ -101,7 +101,7 @@ int pbt_nan_after_1_accel(const pb_problem *p, double t, const double *r, const 
     (void)v;
     double rr = sqrt(r[0] * r[0] + r[1] * r[1] + r[2] * r[2]), k = -1.0 / (rr * rr * rr);
     for (int i = 0; i < 3; i++)
-        a[i] = t > 1.0 ? NAN : k * r[i];
+        a[i] = t > 1.0 ? (double)NAN : k * r[i];
     return PB_OK;
 }
 

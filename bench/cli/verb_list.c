@@ -55,7 +55,7 @@ static void list_problems(void)
         list_num(f.a);
         /* an eccentricity at round-off level is a circular orbit */
         list_num(isfinite(f.e) && f.e < 1e-12 ? 0.0 : f.e);
-        list_num(f.period > 0 ? f.period : NAN);
+        list_num(f.period > 0 ? f.period : (double)NAN);
         list_num(f.energy);
         list_num(f.angmom);
         printf(" %-5s %s\n", p.angmom_label ? p.angmom_label : "-", p.description);

@@ -250,7 +250,7 @@ int pb_cli_select(int argc, char **argv)
             else
                 snprintf(setting, sizeof setting, "tol %.3g", s->tolerance);
             const pb_case_result *r = &s->confirmed;
-            double pe = r->below_floor ? NAN : (km ? 1e3 * r->pos_err_max : r->pos_err_max);
+            double pe = r->below_floor ? (double)NAN : (km ? 1e3 * r->pos_err_max : r->pos_err_max);
             char mname[40];
             snprintf(mname, sizeof mname, "%s%s", s->method->name, (s->method->flags & PB_FROM_GSL) ? "*" : "");
             printf("%4d %-15s %-18s %10ld %12.3e %12.3e %10.1f %12.4g\n", ++rank, mname,

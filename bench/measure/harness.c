@@ -276,7 +276,7 @@ static void harness_time(const pb_case_spec *spec, const pb_method_config *cfg,
         double med = ok % 2 ? dt[ok / 2] : 0.5 * (dt[ok / 2 - 1] + dt[ok / 2]);
         res->timing_s = med;
         res->ns_per_step = 1e9 * med / (double)steps;
-        res->ns_per_eval = evals > 0 ? 1e9 * med / (double)evals : NAN;
+        res->ns_per_eval = evals > 0 ? 1e9 * med / (double)evals : (double)NAN;
     }
 done:
     m->free(ws);
@@ -337,7 +337,7 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
         res->radial_final = last->radial;
         res->along_final = last->along;
         res->cross_final = last->cross;
-        res->apsidal_rate = last->orbits > 0 ? last->apsis_angle / last->orbits : NAN;
+        res->apsidal_rate = last->orbits > 0 ? last->apsis_angle / last->orbits : (double)NAN;
     }
     if (!t || !y)
         goto done;
@@ -356,7 +356,7 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
             if (res->samples[k].on_log_grid) {                                  \
                 double x = res->samples[k].field;                               \
                 x = (absval) ? fabs(x) : x;                                     \
-                y[j++] = ((cap) > 0 && x > (cap)) ? NAN : x;                    \
+                y[j++] = ((cap) > 0 && x > (cap)) ? (double)NAN : x;                    \
             }                                                                   \
         dest = pb_growth_fit(t, y, m, t_fit);                                   \
         if (dest.npoints < 3 && t_fit > scale)                                  \
@@ -406,10 +406,10 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     harness_watch w;
     memset(&w, 0, sizeof w);
     w.p = p;
-    w.E0 = p->energy ? p->energy(p, p->t0, p->r0, p->v0) : NAN;
-    w.E_scale = p->energy ? pb_energy_scale(p, w.E0) : NAN;
+    w.E0 = p->energy ? p->energy(p, p->t0, p->r0, p->v0) : (double)NAN;
+    w.E_scale = p->energy ? pb_energy_scale(p, w.E0) : (double)NAN;
     res->energy_rel_to_parts = p->energy && w.E_scale != fabs(w.E0);
-    w.H0 = p->angmom ? p->angmom(p, p->r0, p->v0) : NAN;
+    w.H0 = p->angmom ? p->angmom(p, p->r0, p->v0) : (double)NAN;
     double a, r0n = harness_orbit_size(p, &a);
     if (p->force != PB_FORCE_TWO_BODY)
         a = 0; /* the escape bound uses the apoapsis only where it is fixed */
@@ -482,8 +482,8 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     }
     w.e_max = fmax(w.e_max, w.e_win);
     w.h_max = fmax(w.h_max, w.h_win);
-    res->energy_rel_max = p->energy ? w.e_max : NAN;
-    res->angmom_rel_max = p->angmom ? w.h_max : NAN;
+    res->energy_rel_max = p->energy ? w.e_max : (double)NAN;
+    res->angmom_rel_max = p->angmom ? w.h_max : (double)NAN;
     memcpy(res->final_r, r, sizeof r);
     memcpy(res->final_v, v, sizeof v);
     pb_fingerprint_state(t, r, v, p->dim, res->fingerprint, sizeof res->fingerprint);

@@ -68,8 +68,8 @@ void pb_metrics_sample(const pb_problem *p, double t, const double *r, const dou
         dv[i] = (long double)v[i] - vt[i];
     }
     s->t = t;
-    s->energy_rel = p->energy ? fabs(p->energy(p, t, r, v) - E0) / E_scale : NAN;
-    s->angmom_rel = p->angmom ? pb_rel_err(p->angmom(p, r, v), H0) : NAN;
+    s->energy_rel = p->energy ? fabs(p->energy(p, t, r, v) - E0) / E_scale : (double)NAN;
+    s->angmom_rel = p->angmom ? pb_rel_err(p->angmom(p, r, v), H0) : (double)NAN;
     double d3[3] = {(double)dr[0], (double)dr[1], (double)dr[2]};
     s->pos_err = (double)sqrtl(dr[0] * dr[0] + dr[1] * dr[1] + dr[2] * dr[2]);
     s->vel_err = (double)sqrtl(dv[0] * dv[0] + dv[1] * dv[1] + dv[2] * dv[2]);

@@ -349,7 +349,7 @@ static void bench_gsl_plain_once(bench_job *j, const pb_problem *p, int k)
 
 static double bench_ns(double sec, long n)
 {
-    return n > 0 && isfinite(sec) ? 1e9 * sec / (double)n : NAN;
+    return n > 0 && isfinite(sec) ? 1e9 * sec / (double)n : (double)NAN;
 }
 
 /* ---- 1. every method on the same problem */

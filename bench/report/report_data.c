@@ -13,7 +13,7 @@
 static double data_num(const json_t *o, const char *key)
 {
     const json_t *v = json_object_get(o, key);
-    return json_is_number(v) ? json_number_value(v) : NAN;
+    return json_is_number(v) ? json_number_value(v) : (double)NAN;
 }
 
 static long data_long(const json_t *o, const char *key)

@@ -82,7 +82,7 @@ int *pb_report_table_best(const pb_report_run *run, const pb_report_problem *p)
             case PB_RT_ENERGY: v[i] = c->energy_max; break;
             case PB_RT_POS: v[i] = c->pos_max; break;
             case PB_RT_GROWTH: v[i] = fabs(c->k_pos); break;
-            case PB_RT_EVALS: v[i] = c->evals >= 0 ? (double)c->evals : NAN; break;
+            case PB_RT_EVALS: v[i] = c->evals >= 0 ? (double)c->evals : (double)NAN; break;
             default: v[i] = c->ns_per_step; break;
             }
         }

@@ -95,7 +95,7 @@ static void case_growth(json_t *mt, const char *name, const pb_growth *g, double
     snprintf(key, sizeof key, "growth_class_%s", name);
     json_object_set_new(mt, key, json_string(g->cls ? g->cls : "other"));
     snprintf(key, sizeof key, "growth_fit_from_orbits_%s", name);
-    json_object_set_new(mt, key, pb_json_real(period > 0 ? g->from / period : NAN));
+    json_object_set_new(mt, key, pb_json_real(period > 0 ? g->from / period : (double)NAN));
 }
 
 json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
@@ -124,8 +124,8 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     json_object_set_new(mt, "angmom_rel_max", pb_json_real(res->angmom_rel_max));
     json_object_set_new(mt, "angmom_rel_final", pb_json_real(res->angmom_rel_final));
     /* errors below 10x the reference's own error are not numbers we can defend */
-    double pmax = res->below_floor ? NAN : res->pos_err_max;
-    double pfin = res->below_floor ? NAN : res->pos_err_final;
+    double pmax = res->below_floor ? (double)NAN : res->pos_err_max;
+    double pfin = res->below_floor ? (double)NAN : res->pos_err_final;
     json_object_set_new(mt, "pos_err_max", pb_json_real(pmax));
     json_object_set_new(mt, "pos_err_final", pb_json_real(pfin));
     if (km) {
@@ -140,7 +140,7 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     json_object_set_new(mt, "radial_final", pb_json_real(res->radial_final));
     json_object_set_new(mt, "along_track_final", pb_json_real(res->along_final));
     json_object_set_new(mt, "cross_track_final", pb_json_real(res->cross_final));
-    json_object_set_new(mt, "ecc_drift_max", pb_json_real(spec->problem.keplerian ? res->ecc_drift_max : NAN));
+    json_object_set_new(mt, "ecc_drift_max", pb_json_real(spec->problem.keplerian ? res->ecc_drift_max : (double)NAN));
     json_object_set_new(mt, "apsidal_rate_rad_per_orbit", pb_json_real(res->apsidal_rate));
     case_growth(mt, "pos", &res->g_pos, spec->problem.period);
     case_growth(mt, "along", &res->g_along, spec->problem.period);

@@ -215,7 +215,7 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
                 json_object_set_new(e, "tolerance", json_real(s->tolerance));
             json_object_set_new(e, "evals", json_integer(r->evals));
             json_object_set_new(e, "steps", json_integer(r->steps));
-            json_object_set_new(e, "pos_err_max", pb_json_real(r->below_floor ? NAN : r->pos_err_max));
+            json_object_set_new(e, "pos_err_max", pb_json_real(r->below_floor ? (double)NAN : r->pos_err_max));
             json_object_set_new(e, "energy_rel_max", pb_json_real(r->energy_rel_max));
             json_object_set_new(e, "ns_per_step", pb_json_real(r->ns_per_step));
             json_object_set_new(e, "projected_s", pb_json_real(s->projected_s));
