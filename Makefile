@@ -9,7 +9,7 @@ PKGS    := gsl jansson inih
 WARN    := -Wall -Wextra -Wshadow -Wmissing-prototypes -Wstrict-prototypes -Wdouble-promotion
 CSTD    := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE
 OPT     ?= -O2 -g
-PB_CFLAGS  = $(CSTD) $(OPT) $(WARN) -I. -DPB_BUILD_FLAGS='"$(CSTD) $(OPT) $(WARN)"' $(shell pkg-config --cflags $(PKGS) 2>/dev/null) $(CFLAGS)
+PB_CFLAGS  = $(CSTD) $(OPT) $(WARN) -I. -Iinclude -fPIC -fno-semantic-interposition -DPB_BUILD_FLAGS='"$(CSTD) $(OPT) $(WARN)"' $(shell pkg-config --cflags $(PKGS) 2>/dev/null) $(CFLAGS)
 PB_LDLIBS  = $(shell pkg-config --libs $(PKGS) 2>/dev/null) -lquadmath -lm $(LDLIBS)
 TEST_LIBS  = $(shell pkg-config --libs criterion 2>/dev/null)
 SAN        := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
@@ -18,6 +18,10 @@ SAN        := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize
 # code, except the two programs' mains.
 LIB_SRC  := $(sort $(wildcard problems/*.c integrators/*.c) $(filter-out bench/cli/main.c bench/perf/%,$(wildcard bench/*/*.c)))
 TEST_SRC := $(sort $(wildcard tests/test_*.c))
+
+PUBLIC_H := $(wildcard include/propbench/*.h)
+VERSION  := $(shell sed -n 's/^\#define PB_VERSION "\(.*\)"/\1/p' include/propbench/propbench.h)
+ABI      := $(shell sed -n 's/^\#define PB_METHOD_ABI \([0-9]*\)u/\1/p' include/propbench/method.h)
 
 B  := build
 BA := build/asan
@@ -29,7 +33,7 @@ TEST_OBJ_A := $(TEST_SRC:%.c=$(BA)/%.o)
 BIN   := $(B)/propbench
 BIN_A := $(BA)/propbench
 
-.PHONY: all deps demo test test-plain test-asan bench clean install uninstall
+.PHONY: all deps demo test test-plain test-asan test-install bench clean install uninstall
 all: $(BIN)
 
 deps:
@@ -45,6 +49,10 @@ $(BA)/%.o: %.c Makefile | deps
 
 $(B)/libpropbench.a: $(LIB_OBJ)
 	@rm -f $@; ar rcs $@ $^
+# The same objects (built position-independent) as a shared library, with
+# its dependencies recorded so that users link with -lpropbench alone.
+$(B)/libpropbench.so: $(LIB_OBJ)
+	$(CC) -shared -Wl,-soname,libpropbench.so.$(ABI) -o $@ $^ $(PB_LDLIBS)
 $(BA)/libpropbench.a: $(LIB_OBJ_A)
 	@rm -f $@; ar rcs $@ $^
 
@@ -61,9 +69,10 @@ $(BA)/run_tests: $(TEST_OBJ_A) $(BA)/libpropbench.a
 $(B)/bench_main: $(B)/bench/perf/bench_main.o $(B)/libpropbench.a
 	$(CC) $(PB_CFLAGS) -o $@ $^ $(PB_LDLIBS)
 
-# The suite runs twice: a plain optimised build, then under ASan + UBSan.
+# The suite runs twice: a plain optimised build, then under ASan + UBSan;
+# between them, a program built outside the tree against an installed copy.
 # Tests find the CLI through PB_BIN and write scratch files below PB_TMP.
-test: test-plain test-asan
+test: test-plain test-install test-asan
 
 # Each run's scratch is its own (test-scratch.<pid>), so two runs in one tree
 # never share it; it is removed after a passing run, kept after a failing one.
@@ -83,14 +92,32 @@ demo: $(BIN)
 bench: $(B)/bench_main $(BIN)
 	./$(B)/bench_main
 
-install: $(BIN)
-	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/propbench
+# The program, the public headers (include/propbench/), both libraries and
+# propbench.pc, so that `pkg-config --cflags --libs propbench` builds a
+# user's method or driver against the installed copy.
+LIBDIR ?= $(PREFIX)/lib
+install: $(BIN) $(B)/libpropbench.a $(B)/libpropbench.so
+	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/propbench \
+	    $(DESTDIR)$(PREFIX)/include/propbench $(DESTDIR)$(LIBDIR)/pkgconfig
 	install -m 755 $(BIN) $(DESTDIR)$(PREFIX)/bin/propbench
 	install -m 644 README.md $(DESTDIR)$(PREFIX)/share/propbench/README.md
+	install -m 644 $(PUBLIC_H) $(DESTDIR)$(PREFIX)/include/propbench/
+	install -m 644 $(B)/libpropbench.a $(DESTDIR)$(LIBDIR)/libpropbench.a
+	install -m 755 $(B)/libpropbench.so $(DESTDIR)$(LIBDIR)/libpropbench.so.$(VERSION)
+	ln -sf libpropbench.so.$(VERSION) $(DESTDIR)$(LIBDIR)/libpropbench.so.$(ABI)
+	ln -sf libpropbench.so.$(ABI) $(DESTDIR)$(LIBDIR)/libpropbench.so
+	sed -e 's|@PREFIX@|$(PREFIX)|' -e 's|@LIBDIR@|$(LIBDIR)|' -e 's|@VERSION@|$(VERSION)|' \
+	    -e 's|@REQUIRES@|$(PKGS)|' scripts/propbench.pc.in > $(DESTDIR)$(LIBDIR)/pkgconfig/propbench.pc
 
 uninstall:
-	rm -f $(DESTDIR)$(PREFIX)/bin/propbench
-	rm -rf $(DESTDIR)$(PREFIX)/share/propbench
+	rm -f $(DESTDIR)$(PREFIX)/bin/propbench $(DESTDIR)$(LIBDIR)/libpropbench.*
+	rm -f $(DESTDIR)$(LIBDIR)/pkgconfig/propbench.pc
+	rm -rf $(DESTDIR)$(PREFIX)/share/propbench $(DESTDIR)$(PREFIX)/include/propbench
+
+# An out-of-tree program (tests/install/) built against a staged install with
+# pkg-config alone, then run: the public headers and libraries are enough.
+test-install: $(BIN) $(B)/libpropbench.a $(B)/libpropbench.so
+	sh tests/install/check-install.sh $(CURDIR) $(CURDIR)/$(B)/install-stage.$$$$
 
 clean:
 	rm -rf $(B)

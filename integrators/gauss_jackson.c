@@ -398,6 +398,7 @@ static void gj_get_stats(const void *ws, pb_method_stats *st)
 }
 
 const pb_method_type pb_method_gauss_jackson8 = {
+    PB_METHOD_RECORD_HEAD,
     .name = "gauss-jackson8",
     .description = "Gauss-Jackson 8th order, summed ordinate PEC, 1 evaluation a step",
     .source = "Berry & Healy (2004), J. Astronaut. Sci. 52(3) 331-357",

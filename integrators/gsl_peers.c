@@ -281,6 +281,7 @@ static void *gp_alloc_msadams(int dim) { return gp_alloc(dim, gsl_odeiv2_step_ms
                .get_stats = gp_get_stats, .free = gp_free
 
 const pb_method_type pb_method_gsl_rk4 = {
+    PB_METHOD_RECORD_HEAD,
     .name = "gsl-rk4",
     .description = "GSL's rk4: classical RK4 with step doubling, keeps the two half "
                    "steps, 11 evaluations a step",
@@ -292,6 +293,7 @@ const pb_method_type pb_method_gsl_rk4 = {
 };
 
 const pb_method_type pb_method_gsl_rkf45 = {
+    PB_METHOD_RECORD_HEAD,
     .name = "gsl-rkf45",
     .description = "GSL's rkf45: Runge-Kutta-Fehlberg 4(5), standard control",
     .source = "GSL odeiv2 rkf45; Fehlberg (1969) NASA TR R-315",
@@ -302,6 +304,7 @@ const pb_method_type pb_method_gsl_rkf45 = {
 };
 
 const pb_method_type pb_method_gsl_rkck = {
+    PB_METHOD_RECORD_HEAD,
     .name = "gsl-rkck",
     .description = "GSL's rkck: Cash-Karp 4(5), standard control",
     .source = "GSL odeiv2 rkck; Cash & Karp (1990)",
@@ -312,6 +315,7 @@ const pb_method_type pb_method_gsl_rkck = {
 };
 
 const pb_method_type pb_method_gsl_rk8pd = {
+    PB_METHOD_RECORD_HEAD,
     .name = "gsl-rk8pd",
     .description = "GSL's rk8pd: Prince-Dormand 8(7), standard control",
     .source = "GSL odeiv2 rk8pd; Prince & Dormand (1981)",
@@ -322,6 +326,7 @@ const pb_method_type pb_method_gsl_rk8pd = {
 };
 
 const pb_method_type pb_method_gsl_msadams = {
+    PB_METHOD_RECORD_HEAD,
     .name = "gsl-msadams",
     .description = "GSL's msadams: variable-order (1-12) Adams predictor-corrector, "
                    "standard control",

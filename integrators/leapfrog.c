@@ -218,6 +218,7 @@ static void yoshida_get_stats(const void *ws, pb_method_stats *st)
         return yoshida_start_with(ws, K, W, f, cfg, t0, r0, v0);                \
     }                                                                           \
     const pb_method_type pb_method_##NAME = {                                   \
+        PB_METHOD_RECORD_HEAD,                                                  \
         .name = #NAME,                                                          \
         .description = DESC,                                                    \
         .source = SRC,                                                          \

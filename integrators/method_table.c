@@ -1,5 +1,6 @@
 /* method_table.c - the registry of methods, in display order. Adding a method
  * is one file, one extern line and one table line here. */
+#include <stdio.h>
 #include <string.h>
 #include "method.h"
 
@@ -38,4 +39,48 @@ const pb_method_type *pb_method_find(const char *name)
         if (strcmp((*m)->name, name) == 0)
             return *m;
     return NULL;
+}
+
+int pb_method_check(const pb_method_type *m, char *err, size_t errlen)
+{
+    const char *name = m && m->abi == PB_METHOD_ABI && m->size == sizeof *m && m->name ? m->name
+                                                                                         : "?";
+    const char *why = NULL;
+    char buf[160];
+    if (!m) {
+        why = "no method record";
+    } else if (m->abi != PB_METHOD_ABI) {
+        /* the other fields may sit elsewhere: read nothing more of it */
+        snprintf(buf, sizeof buf, "method record built for interface version %u, this "
+                 "propbench has version %u: rebuild it against these headers", m->abi,
+                 PB_METHOD_ABI);
+        why = buf;
+    } else if (m->size != sizeof *m) {
+        snprintf(buf, sizeof buf, "method record is %u bytes, this propbench's is %zu: "
+                 "rebuild it against these headers", m->size, sizeof *m);
+        why = buf;
+    } else if (!m->name || !m->name[0]) {
+        why = "method record has no name";
+    } else if (m->order < 1 || m->order > 30) {
+        snprintf(buf, sizeof buf, "order %d outside 1..30", m->order);
+        why = buf;
+    } else if (!(m->flags & PB_KIND_FIXED) == !(m->flags & PB_KIND_ADAPTIVE)) {
+        why = "flags must hold exactly one of PB_KIND_FIXED and PB_KIND_ADAPTIVE";
+    } else if (!m->alloc || !m->start || !m->advance || !m->get_state || !m->get_stats ||
+               !m->free) {
+        why = "a function of the record (alloc, start, advance, get_state, get_stats, "
+              "free) is NULL";
+    }
+    if (!why)
+        return 0;
+    if (strcmp(name, "?"))
+        snprintf(err, errlen, "method %s: %s", name, why);
+    else
+        snprintf(err, errlen, "%s", why);
+    return -1;
+}
+
+int pb_method_fits(const pb_method_type *m, const pb_problem *p)
+{
+    return !((m->flags & PB_FORM_SECOND) && p->velocity_dependent);
 }

@@ -171,6 +171,7 @@ static void rk4_get_stats(const void *ws, pb_method_stats *st)
 }
 
 const pb_method_type pb_method_rk4 = {
+    PB_METHOD_RECORD_HEAD,
     .name = "rk4",
     .description = "classical Runge-Kutta, 4 evaluations a step",
     .source = "Kutta (1901); Abramowitz & Stegun 25.5.10",

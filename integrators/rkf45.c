@@ -307,6 +307,7 @@ static void rkf45_get_stats(const void *ws, pb_method_stats *st)
 }
 
 const pb_method_type pb_method_rkf45 = {
+    PB_METHOD_RECORD_HEAD,
     .name = "rkf45",
     .description = "Runge-Kutta-Fehlberg 4(5), PI step control, 6 evaluations a step",
     .source = "Fehlberg (1969) NASA TR R-315; PI control: Gustafsson (1991), "

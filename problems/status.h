@@ -1,22 +1,7 @@
-/* status.h - the one status enum shared by problems, methods and the harness.
- * Failures are results: a method returns one of these, the harness records it
- * as the case's outcome. 0 is success (as in GSL). */
-#ifndef PB_STATUS_H
-#define PB_STATUS_H
+/* status.h - the status codes, as installed for users in propbench/status.h. */
+#ifndef PB_PROBLEMS_STATUS_H
+#define PB_PROBLEMS_STATUS_H
 
-typedef enum pb_status {
-    PB_OK = 0,
-    PB_ENONFINITE,   /* a force or the state became NaN or infinite */
-    PB_EDIVERGED,    /* the orbit left the region where the problem is meaningful */
-    PB_EMAXSTEPS,    /* the step budget ran out before t_out */
-    PB_EMINSTEP,     /* an adaptive step fell below the minimum step */
-    PB_ENOMEM,       /* an allocation failed */
-    PB_EINVAL,       /* bad arguments (programmer or user error) */
-    PB_ENOCONV,      /* an iteration (Kepler, start-up, corrector) did not converge */
-    PB_EFORCE        /* the force function reported a failure of its own */
-} pb_status;
-
-/* Human-readable text for a status; never NULL. */
-const char *pb_strerror(int status);
+#include "propbench/status.h"
 
 #endif

@@ -3,6 +3,7 @@
 #include <string.h>
 #include <gsl/gsl_errno.h>
 #include "bench/cli/cli.h"
+#include "propbench/propbench.h"
 
 typedef struct { const char *name; int (*fn)(int, char **); const char *what; } main_verb;
 
@@ -33,6 +34,10 @@ int main(int argc, char **argv)
     if (argc < 2) {
         main_usage(stderr);
         return PB_EXIT_USAGE;
+    }
+    if (!strcmp(argv[1], "--version") || !strcmp(argv[1], "-V")) {
+        printf("propbench %s\n", pb_version());
+        return PB_EXIT_OK;
     }
     if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
         main_usage(stdout);

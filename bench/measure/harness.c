@@ -109,6 +109,14 @@ double pb_case_fixed_steps(const pb_case_spec *spec)
     return spec->max_steps > 0 && spec->max_steps < n ? (double)spec->max_steps : n;
 }
 
+void pb_case_spec_init(pb_case_spec *spec)
+{
+    memset(spec, 0, sizeof *spec);
+    spec->repeats = 3;
+    spec->linear_samples = 100;
+    spec->cache_dir = PB_CACHE_DIR_DEFAULT;
+}
+
 int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
 {
     const pb_method_type *m = spec->method;
@@ -117,7 +125,10 @@ int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
         snprintf(err, errlen, "no method given");
         return -1;
     }
-    if ((m->flags & PB_FORM_SECOND) && p->velocity_dependent) {
+    /* a record from outside (a user's method) may be built against other headers */
+    if (pb_method_check(m, err, errlen))
+        return -1;
+    if (!pb_method_fits(m, p)) {
         snprintf(err, errlen, "method '%s' needs a velocity-independent force, but "
                  "problem '%s' depends on velocity", m->name, p->name);
         return -1;
@@ -411,8 +422,9 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     res->energy_rel_to_parts = p->energy && w.E_scale != fabs(w.E0);
     w.H0 = p->angmom ? p->angmom(p, p->r0, p->v0) : (double)NAN;
     double a, r0n = harness_orbit_size(p, &a);
-    if (p->force != PB_FORCE_TWO_BODY)
-        a = 0; /* the escape bound uses the apoapsis only where it is fixed */
+    if (!p->exact)
+        a = 0; /* the escape bound uses the apoapsis only where it is fixed: where the
+                * flow is a conic, which is where a closed form exists */
     w.r_limit = HARNESS_ESCAPE_FACTOR * fmax(fmax(r0n, 2 * a), 1e-300);
     /* a hyperbolic orbit recedes by itself: allow for its speed over the horizon */
     if (p->energy && w.E0 >= 0)

@@ -4,6 +4,15 @@
 
 #include "bench/measure/case.h"
 
+/* Where reference trajectories are kept between runs unless told otherwise
+ * (relative to the working folder). */
+#define PB_CACHE_DIR_DEFAULT "results/cache"
+
+/* A spec with every field at its default: no problem or method yet, 3
+ * timing repeats, 100 linear samples, automatic step budget, the reference
+ * cache in PB_CACHE_DIR_DEFAULT. */
+void pb_case_spec_init(pb_case_spec *spec);
+
 /* Check a spec before running it (method and problem compatible, step or
  * tolerance and horizon sensible). Returns 0 or -1 with a message in err. */
 int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen);

@@ -5,9 +5,12 @@
 
 #include <jansson.h>
 #include "bench/measure/case.h"
+#include "propbench/propbench.h"
+
+/* summary.json's "tool": "propbench " PB_VERSION */
+#define PB_TOOL_NAME "propbench " PB_VERSION
 
 #define PB_SUMMARY_FORMAT 1
-#define PB_TOOL_NAME "propbench 0.1"
 
 /* New reference: the case object with the fixed keys of DESIGN.md. */
 json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res);

@@ -1,0 +1,28 @@
+#!/bin/sh
+# check-install.sh ROOT STAGE - install propbench into STAGE (make install
+# DESTDIR=STAGE PREFIX=/usr), build tests/install/consumer.c outside the tree
+# with pkg-config alone, against the shared and then the static library, and
+# run both. The stage is removed after a pass and kept after a failure.
+set -eu
+root=$1
+stage=$2
+rm -rf "$stage"
+make -s -C "$root" install DESTDIR="$stage" PREFIX=/usr >/dev/null
+export PKG_CONFIG_PATH="$stage/usr/lib/pkgconfig" PKG_CONFIG_SYSROOT_DIR="$stage"
+work="$stage/work"
+mkdir -p "$work"
+cp "$root/tests/install/consumer.c" "$work/"
+cd "$work"
+cc=${CC:-cc}
+flags="-std=c11 -Wall -Wextra -Werror $(pkg-config --cflags propbench)"
+echo "check-install: $cc consumer.c $(pkg-config --cflags --libs propbench)"
+# shellcheck disable=SC2046
+$cc $flags consumer.c -o consumer-shared $(pkg-config --libs propbench) -lm
+LD_LIBRARY_PATH="$stage/usr/lib" ./consumer-shared
+# the static archive, with the libraries it needs from --static
+# shellcheck disable=SC2046
+$cc $flags consumer.c -o consumer-static "$stage/usr/lib/libpropbench.a" \
+    $(pkg-config --static --libs propbench | sed 's/-lpropbench//')
+./consumer-static >/dev/null
+echo "check-install: the shared and the static build both passed"
+rm -rf "$stage"
