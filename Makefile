@@ -33,7 +33,7 @@ TEST_OBJ_A := $(TEST_SRC:%.c=$(BA)/%.o)
 BIN   := $(B)/propbench
 BIN_A := $(BA)/propbench
 
-.PHONY: all deps demo test test-plain test-asan test-install bench clean install uninstall
+.PHONY: all deps demo test test-layout test-plain test-asan test-install bench clean install uninstall
 all: $(BIN)
 
 deps:
@@ -72,7 +72,12 @@ $(B)/bench_main: $(B)/bench/perf/bench_main.o $(B)/libpropbench.a
 # The suite runs twice: a plain optimised build, then under ASan + UBSan;
 # between them, a program built outside the tree against an installed copy.
 # Tests find the CLI through PB_BIN and write scratch files below PB_TMP.
-test: test-plain test-install test-asan
+test: test-layout test-plain test-install test-asan
+
+# The layering rules of DEVELOPERS.md: include direction, no cycle, file and
+# function lengths.
+test-layout: | deps
+	python3 scripts/check-layout.py $(CURDIR)
 
 # Each run's scratch is its own (test-scratch.<pid>), so two runs in one tree
 # never share it; it is removed after a passing run, kept after a failing one.

@@ -15,6 +15,8 @@ for p in $pkgs; do
         missing="$missing $p"
     fi
 done
+# the layout check is a Python script; any python3 on the PATH will do
+command -v python3 >/dev/null 2>&1 || missing="$missing python3"
 [ -z "$missing" ] && exit 0
 
 echo "install-deps: missing Debian packages:$missing" >&2
