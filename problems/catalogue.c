@@ -8,7 +8,6 @@
 #include "bodies.h"
 #include "cr3bp.h"
 #include "j2.h"
-#include "summary.h"
 #include "twobody.h"
 
 #define DEG (M_PI / 180.0)
@@ -182,22 +181,4 @@ int pb_problem_lookup(const char *name, pb_problem *out)
         if (strcmp(pb_problem_table[k].name, name) == 0)
             return pb_problem_table[k].make(out);
     return PB_EINVAL;
-}
-
-int pb_problem_summary(const pb_problem *p, pb_problem_facts *f)
-{
-    f->a = f->e = NAN;
-    f->period = p->period;
-    f->energy = p->energy ? p->energy(p, p->t0, p->r0, p->v0) : (double)NAN;
-    f->angmom = p->angmom ? p->angmom(p, p->r0, p->v0) : (double)NAN;
-    f->horizon = p->period > 0 ? p->default_orbits * p->period : p->default_horizon_s;
-    if (p->keplerian && p->dim == 3) {
-        pb_elements el;
-        int s = pb_elements_from_state(p->mu, p->r0, p->v0, &el);
-        if (s)
-            return s;
-        f->a = el.a;
-        f->e = el.e;
-    }
-    return PB_OK;
 }
