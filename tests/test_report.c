@@ -1,7 +1,8 @@
 /* test_report.c - `propbench report`: best-value marks, the growth-law fit,
  * bad summaries, the gnuplot-missing path, figures and tables of a real run,
- * and report.html opened in headless Chromium (rendered SVG paths, table
- * rows, a screenshot saved into the run directory). */
+ * report.html opened in headless Chromium (rendered SVG paths, table rows, a
+ * screenshot saved into the run directory), and the figure file names:
+ * unique per problem, pruned by a rerun, never read as a gnuplot option. */
 #include <criterion/criterion.h>
 #include <jansson.h>
 #include <math.h>
@@ -10,10 +11,12 @@
 #include <string.h>
 #include <sys/stat.h>
 #include <sys/wait.h>
+#include <dirent.h>
 #include <fcntl.h>
 #include <unistd.h>
 #include "test_support.h"
 #include "bench/store/run_dir.h"
+#include "bench/store/figure_names.h"
 #include "bench/report/report_data.h"
 #include "bench/report/figure_scripts.h"
 #include "bench/report/table.h"
@@ -199,9 +202,9 @@ Test(report, gnuplot_missing_still_writes_data_and_scripts)
     cr_assert_eq(rc, 0, "rc %d: %s", rc, err);
     cr_assert(strstr(err, "warning: gnuplot was not found"), "no clear warning: %s", err);
     for (int k = 0; k < PB_FIG_COUNT; k++) {
-        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.gp", dir, pb_report_fig_kind(k));
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.gp", dir, pb_fig_kind(k));
         cr_assert(rpt_size(path) > 200, "missing script %s", path);
-        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.png", dir, pb_report_fig_kind(k));
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.png", dir, pb_fig_kind(k));
         cr_assert(!pbt_exists(path), "%s exists without gnuplot", path);
     }
     snprintf(path, sizeof path, "%s/plots/style.gp", dir);
@@ -225,14 +228,14 @@ Test(report, figures_and_tables_of_a_run)
     cr_assert_eq(rc, 0, "rc %d: %s", rc, err);
     for (int k = 0; k < PB_FIG_COUNT; k++) {
         unsigned char magic[8] = {0};
-        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.png", dir, pb_report_fig_kind(k));
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.png", dir, pb_fig_kind(k));
         FILE *f = fopen(path, "rb");
         cr_assert_not_null(f, "missing %s", path);
         cr_assert_eq(fread(magic, 1, 8, f), 8);
         fclose(f);
         cr_assert(!memcmp(magic, "\x89PNG\r\n\x1a\n", 8), "%s is not a PNG", path);
         cr_assert(rpt_size(path) > 20000, "%s is only %ld bytes", path, rpt_size(path));
-        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.svg", dir, pb_report_fig_kind(k));
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.6-%s.svg", dir, pb_fig_kind(k));
         cr_assert(rpt_size(path) > 5000, "%s missing or tiny", path);
     }
 
@@ -441,4 +444,200 @@ Test(report, browser_renders_figures_and_tables)
     long rs = rpt_size(rp), bs = rpt_size(bp);
     cr_assert(bs > 0, "no blank screenshot");
     cr_assert(rs > 20 * bs && rs > 100000, "report.png %ld bytes vs empty page %ld: nothing rendered?", rs, bs);
+}
+
+/* ---- figure file names (bench/store/figure_names.c) ---- */
+
+/* Two cases named a and b (NULL: only a) of our own invented orbits, a
+ * normalized ellipse of e = 0.1 and 0.3 over 5 periods, into dir/p.ini;
+ * the file's path in ini. */
+static void rpt_write_ini(const char *dir, const char *a, const char *b, char *ini, size_t len)
+{
+    snprintf(ini, len, "%s/p.ini", dir);
+    FILE *f = fopen(ini, "w");
+    cr_assert_not_null(f, "cannot write %s", ini);
+    fprintf(f, "[case %s]\nunits = normalized\na = 1\ne = 0.1\norbits = 5\n", a);
+    if (b)
+        fprintf(f, "\n[case %s]\nunits = normalized\na = 1\ne = 0.3\norbits = 5\n", b);
+    fclose(f);
+}
+
+/* Sweep every case of ini with RK4 at 100 steps per period into run. */
+static void rpt_sweep_ini(const char *ini, const char *run)
+{
+    char out[4096], err[8192];
+    const char *args[] = {"sweep", "--problem-file", ini, "--methods", "rk4", "--steps-per-orbit", "100",
+                          "--repeats", "0", "--quiet", "--out", run, NULL};
+    int rc = pbt_run_cli(args, out, sizeof out, err, sizeof err);
+    cr_assert_eq(rc, 0, "sweep of %s failed (%d): %s", ini, rc, err);
+}
+
+/* Files in run/plots whose names start with prefix and end with suffix
+ * ("" matches any); -1 when there is no plots folder. */
+static int rpt_plots_count(const char *run, const char *prefix, const char *suffix)
+{
+    char path[600];
+    snprintf(path, sizeof path, "%s/plots", run);
+    DIR *d = opendir(path);
+    if (!d)
+        return -1;
+    int n = 0;
+    size_t lp = strlen(prefix), ls = strlen(suffix);
+    for (struct dirent *e; (e = readdir(d));) {
+        size_t l = strlen(e->d_name);
+        if (e->d_name[0] != '.' && l >= lp + ls && !strncmp(e->d_name, prefix, lp) &&
+            !strcmp(e->d_name + l - ls, suffix))
+            n++;
+    }
+    closedir(d);
+    return n;
+}
+
+/* 1 if path is a PNG of more than a few kilobytes (a drawn figure). */
+static int rpt_is_png(const char *path)
+{
+    unsigned char magic[8] = {0};
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return 0;
+    size_t n = fread(magic, 1, 8, f);
+    fclose(f);
+    return n == 8 && !memcmp(magic, "\x89PNG\r\n\x1a\n", 8) && rpt_size(path) > 5000;
+}
+
+/* Two problem-file case names whose folded stems share the 8-digit hash:
+ * found by enumerating 'x' + 20 characters of '+' or '_' (2^20 names, so a
+ * shared 32-bit hash is expected by the birthday bound). */
+static const char rpt_clash_a[] = "x__+++___+_+++_++++__", rpt_clash_b[] = "x____+++++_+++++__+_+";
+
+/* The names themselves: a safe name is kept (so existing reports keep
+ * their file names), any other is folded and marked with '~' and a hash,
+ * and no name can leave plots/ or start with the kind's '-'. */
+Test(report, figure_names_kept_or_folded_with_a_hash)
+{
+    char a[PB_FIG_BASE_MAX], b[PB_FIG_BASE_MAX];
+    pb_fig_base("kepler-e0.6", PB_FIG_ENERGY, a, sizeof a);
+    cr_assert_str_eq(a, "kepler-e0.6-energy");
+    pb_fig_base("x_y", PB_FIG_CONV, a, sizeof a);
+    cr_assert_str_eq(a, "x_y-convergence");
+    pb_fig_base("-V", PB_FIG_RIC, a, sizeof a);
+    cr_assert_str_eq(a, "-V-ric");
+
+    pb_fig_base("x+y", PB_FIG_ENERGY, a, sizeof a);
+    unsigned h = 0;
+    char tail[32] = "";
+    cr_assert_eq(sscanf(a, "x_y~%8x-%31s", &h, tail), 2, "%s", a);
+    cr_assert_eq(strlen(a), strlen("x_y~12345678-energy"), "%s", a);
+    cr_assert_str_eq(tail, "energy");
+    pb_fig_base("x+y", PB_FIG_GROWTH, b, sizeof b);
+    cr_assert_eq(strncmp(a, b, strlen("x_y~12345678-")), 0, "%s vs %s: one stem per problem", a, b);
+
+    static const char *const odd[] = {"../../etc", ".hidden", "a/b", "", "x y'z"};
+    for (size_t k = 0; k < sizeof odd / sizeof odd[0]; k++) {
+        pb_fig_stem(odd[k], a, sizeof a);
+        cr_assert(!strchr(a, '/') && a[0] != '.' && a[0] != '-' && !strchr(a, '\'') && strchr(a, '~'),
+                  "'%s' -> '%s'", odd[k], a);
+    }
+    char longname[400];
+    memset(longname, 'a', sizeof longname - 1);
+    longname[sizeof longname - 1] = 0;
+    pb_fig_base(longname, PB_FIG_CONV, a, sizeof a);
+    longname[200] = 0;
+    pb_fig_base(longname, PB_FIG_CONV, b, sizeof b);
+    cr_assert(strlen(a) < PB_FIG_BASE_MAX - 1 && strcmp(a, b), "cut names must still differ: %s", a);
+
+    pb_fig_stem(rpt_clash_a, a, sizeof a);
+    pb_fig_stem(rpt_clash_b, b, sizeof b);
+    cr_assert_str_eq(a, b, "the test pair no longer collides; find another for clash_refused");
+}
+
+/* A rerun into a folder whose report drew a problem named "x+y" removes
+ * every file that report made for it: 6 figures x (script, log, PNG, SVG),
+ * then the emptied plots/ folder itself. */
+Test(report, rerun_removes_figures_of_a_folded_name)
+{
+    char dir[256], run[400], ini[400], out[4096], err[8192];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    rpt_write_ini(dir, "x+y", NULL, ini, sizeof ini);
+    const char *first[] = {"run", "--problem-file", ini, "--method", "rk4", "--steps-per-orbit", "100",
+                           "--repeats", "0", "--quiet", "--out", run, NULL};
+    cr_assert_eq(pbt_run_cli(first, out, sizeof out, err, sizeof err), 0, "%s", err);
+    cr_assert_eq(rpt_report(run, NULL, err, sizeof err), 0, "%s", err);
+    char stem[PB_FIG_BASE_MAX];
+    pb_fig_stem("x+y", stem, sizeof stem);
+    cr_assert_eq(rpt_plots_count(run, stem, ""), 4 * PB_FIG_COUNT, "figure files of %s", stem);
+    cr_assert_eq(rpt_plots_count(run, "", ""), 4 * PB_FIG_COUNT + 1, "plots/ holds more than x+y's and style.gp");
+
+    const char *again[] = {"run", "--problem", "kepler-e0", "--method", "rk4", "--steps-per-orbit", "100",
+                           "--orbits", "2", "--repeats", "0", "--quiet", "--out", run, NULL};
+    cr_assert_eq(pbt_run_cli(again, out, sizeof out, err, sizeof err), 0, "%s", err);
+    int left = rpt_plots_count(run, "", "");
+    cr_assert_eq(left, -1, "%d files of the earlier report left in %s/plots", left, run);
+}
+
+/* "x+y" and "x_y" fold to the same characters but are two problems: each
+ * gets its own 6 figures, and report.md links each to its own. */
+Test(report, folded_names_get_their_own_figures)
+{
+    char dir[256], run[400], ini[400], err[8192], path[800];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    rpt_write_ini(dir, "x+y", "x_y", ini, sizeof ini);
+    rpt_sweep_ini(ini, run);
+    cr_assert_eq(rpt_report(run, NULL, err, sizeof err), 0, "%s", err);
+    cr_assert_eq(rpt_plots_count(run, "", ".png"), 2 * PB_FIG_COUNT);
+    snprintf(path, sizeof path, "%s/report.md", run);
+    char *md = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(md);
+    static const char *const names[] = {"x+y", "x_y"};
+    for (int p = 0; p < 2; p++)
+        for (int k = 0; k < PB_FIG_COUNT; k++) {
+            char base[PB_FIG_BASE_MAX], link[300];
+            pb_fig_base(names[p], k, base, sizeof base);
+            snprintf(link, sizeof link, "](plots/%s.png)", base);
+            cr_assert_eq(rpt_count(md, link), 1, "report.md links %s %d times", link, rpt_count(md, link));
+            snprintf(path, sizeof path, "%s/plots/%s.png", run, base);
+            cr_assert(rpt_is_png(path), "%s not drawn", path);
+        }
+    free(md);
+}
+
+/* Two problems whose stems still coincide (a shared hash) are refused
+ * before anything is written: exit 2, both names in the message. */
+Test(report, shared_figure_names_are_refused)
+{
+    char dir[256], run[400], ini[400], err[8192], path[800];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    rpt_write_ini(dir, rpt_clash_a, rpt_clash_b, ini, sizeof ini);
+    rpt_sweep_ini(ini, run);
+    cr_assert_eq(rpt_report(run, NULL, err, sizeof err), 2, "%s", err);
+    cr_assert(strstr(err, rpt_clash_a) && strstr(err, rpt_clash_b) && strstr(err, "summary.json"), "%s", err);
+    snprintf(path, sizeof path, "%s/plots", run);
+    cr_assert(!pbt_exists(path), "plots/ written for a refused report");
+    snprintf(path, sizeof path, "%s/report.html", run);
+    cr_assert(!pbt_exists(path), "report.html written for a refused report");
+}
+
+/* A problem named "-V" gives figure scripts "-V-<kind>.gp", which gnuplot
+ * would take for an option (and exit 0 without drawing): every figure of
+ * it is drawn, and no unfinished .tmp is left. */
+Test(report, problem_named_like_an_option_is_drawn)
+{
+    char dir[256], run[400], ini[400], err[8192], path[800];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    rpt_write_ini(dir, "-V", NULL, ini, sizeof ini);
+    rpt_sweep_ini(ini, run);
+    cr_assert_eq(rpt_report(run, NULL, err, sizeof err), 0, "%s", err);
+    for (int k = 0; k < PB_FIG_COUNT; k++) {
+        char base[PB_FIG_BASE_MAX];
+        pb_fig_base("-V", k, base, sizeof base);
+        snprintf(path, sizeof path, "%s/plots/%s.png", run, base);
+        cr_assert(rpt_is_png(path), "%s not drawn", path);
+        snprintf(path, sizeof path, "%s/plots/%s.svg", run, base);
+        cr_assert(rpt_size(path) > 5000, "%s missing or tiny", path);
+    }
+    cr_assert_eq(rpt_plots_count(run, "", ".tmp"), 0);
 }

@@ -134,8 +134,8 @@ int pb_cli_report(int argc, char **argv)
             for (int k = 0; k < PB_FIG_COUNT; k++) {
                 if (!made[pi * PB_FIG_COUNT + k])
                     continue;
-                char base[600];
-                pb_report_fig_base(&run.problems[pi], k, base, sizeof base);
+                char base[PB_FIG_BASE_MAX];
+                pb_fig_base(run.problems[pi].name, k, base, sizeof base);
                 if (pb_report_gnuplot_run(exe, plots, base, err, sizeof err)) {
                     fprintf(stderr, "propbench report: warning: %s\n", err);
                     failed++;

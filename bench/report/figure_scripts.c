@@ -1,6 +1,6 @@
 /* figure_scripts.c - figure scripts for gnuplot (see figure_scripts.h). Each script is
  * self-contained apart from style.gp and the series CSVs, so the figures can
- * be redrawn elsewhere with `gnuplot <base>.gp` inside plots/. */
+ * be redrawn elsewhere with `gnuplot ./<base>.gp` inside plots/. */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -8,8 +8,6 @@
 #include "bench/report/figure_scripts.h"
 #include "bench/store/run_dir.h"
 
-static const char *const gp_kinds[PB_FIG_COUNT] = {"energy", "angmom", "growth", "ric", "work",
-                                                   "convergence"};
 static const char *const gp_captions[PB_FIG_COUNT] = {
     "Relative energy error against time (largest value over each sample window), one line per method and step or tolerance.",
     "Relative angular-momentum error against time (largest value over each sample window).",
@@ -22,23 +20,7 @@ static const char *const gp_captions[PB_FIG_COUNT] = {
 /* Dash pattern per step or tolerance of one method (coarsest first). */
 static const int gp_dash[] = {2, 1, 4, 3, 5};
 
-const char *pb_report_fig_kind(int kind) { return kind >= 0 && kind < PB_FIG_COUNT ? gp_kinds[kind] : "?"; }
 const char *pb_report_fig_caption(int kind) { return kind >= 0 && kind < PB_FIG_COUNT ? gp_captions[kind] : ""; }
-
-void pb_report_fig_base(const pb_report_problem *p, int kind, char *buf, size_t len)
-{
-    size_t j = 0;
-    for (const char *s = p->name; *s && j + 1 < len; s++) {
-        char ch = *s;
-        int safe = (ch >= 'a' && ch <= 'z') || (ch >= 'A' && ch <= 'Z') || (ch >= '0' && ch <= '9') ||
-                   ch == '-' || ch == '.' || ch == '_';
-        buf[j] = safe && !(j == 0 && ch == '.') ? ch : '_';
-        j++;
-    }
-    buf[j] = 0;
-    size_t used = strlen(buf);
-    snprintf(buf + used, len - used, "-%s", pb_report_fig_kind(kind));
-}
 
 /* A gnuplot single-quoted string: only the quote itself needs doubling. */
 static void gp_quote(FILE *f, const char *s)
@@ -223,6 +205,70 @@ static void gp_xtime(FILE *f, const pb_report_problem *p)
         fprintf(f, "set xlabel 'time [%s]'\n", p->time_unit);
 }
 
+/* Work-precision (conv = 0: error against evaluations) or convergence
+ * (conv = 1: error against step, with each order's reference slope), one
+ * curve per method; the points go to pre as data blocks. 1 drawn, 0 no
+ * point to draw, -1 out of memory. */
+static int gp_cost_plot(FILE *f, FILE *pre, int conv, const pb_report_problem *p,
+                        const pb_report_case *cs)
+{
+    int nplot = 0;
+    char *list = NULL;
+    size_t nlist = 0;
+    FILE *fl = open_memstream(&list, &nlist);
+    if (!fl)
+        return -1;
+    for (int m = 0; m < p->nmethods; m++) {
+        int npts = 0, mi = -1;
+        double h0 = INFINITY, e0 = NAN, h1 = 0;
+        fprintf(pre, "$%s%d << EOD\n", conv ? "conv" : "work", m);
+        for (int i = 0; i < p->n; i++) {
+            const pb_report_case *c = &cs[i];
+            if (c->method_slot != m || strcmp(c->status, "ok") || !(c->pos_max > 0))
+                continue;
+            if (conv ? !(c->fixed && c->h > 0) : c->evals <= 0)
+                continue;
+            mi = i;
+            double x = conv ? c->h : (double)c->evals;
+            fprintf(pre, "%.9g,%.9g\n", x, c->pos_max);
+            npts++;
+            if (conv && x < h0) { h0 = x; e0 = c->pos_max; }
+            if (conv && x > h1) h1 = x;
+        }
+        fputs("EOD\n", pre);
+        if (!npts)
+            continue;
+        const pb_report_case *c = &cs[mi];
+        fprintf(fl, "%s$%s%d using 1:2 with linespoints lt %d dt 1 title ", nplot ? ", \\\n     " : "",
+                conv ? "conv" : "work", m, c->method_slot + 1);
+        gp_quote(fl, c->method);
+        if (conv && c->order > 0) {
+            /* anchored at the finest step, where the error is nearest its asymptote */
+            if (!(h1 > h0)) h1 = 4 * h0;
+            fprintf(pre, "$ref%d << EOD\n%.9g,%.9g\n%.9g,%.9g\nEOD\n", m, h0, e0, h1,
+                    e0 * pow(h1 / h0, c->order));
+            fprintf(fl, ", \\\n     $ref%d using 1:2 with lines lt %d dt (7,5) lw 0.9 title 'slope %d'",
+                    m, c->method_slot + 1, c->order);
+        }
+        nplot++;
+    }
+    fclose(fl);
+    if (!nplot) {
+        free(list);
+        return 0;
+    }
+    gp_title(f, p, conv ? "convergence with step" : "work-precision");
+    if (conv)
+        fprintf(f, "set xlabel 'step h [%s]'\n", p->time_unit);
+    else
+        fputs("set xlabel 'force evaluations over the horizon [-]'\n", f);
+    fprintf(f, "set ylabel 'largest position error [%s]'\n", p->len_unit);
+    gp_axes_log(f);
+    fprintf(f, "set key\nplot %s\n", list);
+    free(list);
+    return 1;
+}
+
 /* Body of one figure (everything after the terminal is set); datablocks go to pre. */
 static int gp_body(FILE *f, FILE *pre, int kind, const pb_report_run *run, const pb_report_problem *p,
                    const gp_case *g, const char *prefix)
@@ -273,63 +319,8 @@ static int gp_body(FILE *f, FILE *pre, int kind, const pb_report_run *run, const
         return 1;
     }
     case PB_FIG_WORK:
-    case PB_FIG_CONV: {
-        int conv = kind == PB_FIG_CONV, nplot = 0;
-        char *list = NULL;
-        size_t nlist = 0;
-        FILE *fl = open_memstream(&list, &nlist);
-        if (!fl)
-            return -1;
-        for (int m = 0; m < p->nmethods; m++) {
-            int npts = 0, mi = -1;
-            double h0 = INFINITY, e0 = NAN, h1 = 0;
-            fprintf(pre, "$%s%d << EOD\n", conv ? "conv" : "work", m);
-            for (int i = 0; i < p->n; i++) {
-                const pb_report_case *c = &cs[i];
-                if (c->method_slot != m || strcmp(c->status, "ok") || !(c->pos_max > 0))
-                    continue;
-                if (conv ? !(c->fixed && c->h > 0) : c->evals <= 0)
-                    continue;
-                mi = i;
-                double x = conv ? c->h : (double)c->evals;
-                fprintf(pre, "%.9g,%.9g\n", x, c->pos_max);
-                npts++;
-                if (conv && x < h0) { h0 = x; e0 = c->pos_max; }
-                if (conv && x > h1) h1 = x;
-            }
-            fputs("EOD\n", pre);
-            if (!npts)
-                continue;
-            const pb_report_case *c = &cs[mi];
-            fprintf(fl, "%s$%s%d using 1:2 with linespoints lt %d dt 1 title ", nplot ? ", \\\n     " : "",
-                    conv ? "conv" : "work", m, c->method_slot + 1);
-            gp_quote(fl, c->method);
-            if (conv && c->order > 0) {
-                /* anchored at the finest step, where the error is nearest its asymptote */
-                if (!(h1 > h0)) h1 = 4 * h0;
-                fprintf(pre, "$ref%d << EOD\n%.9g,%.9g\n%.9g,%.9g\nEOD\n", m, h0, e0, h1,
-                        e0 * pow(h1 / h0, c->order));
-                fprintf(fl, ", \\\n     $ref%d using 1:2 with lines lt %d dt (7,5) lw 0.9 title 'slope %d'",
-                        m, c->method_slot + 1, c->order);
-            }
-            nplot++;
-        }
-        fclose(fl);
-        if (!nplot) {
-            free(list);
-            return 0;
-        }
-        gp_title(f, p, conv ? "convergence with step" : "work-precision");
-        if (conv)
-            fprintf(f, "set xlabel 'step h [%s]'\n", p->time_unit);
-        else
-            fputs("set xlabel 'force evaluations over the horizon [-]'\n", f);
-        fprintf(f, "set ylabel 'largest position error [%s]'\n", p->len_unit);
-        gp_axes_log(f);
-        fprintf(f, "set key\nplot %s\n", list);
-        free(list);
-        return 1;
-    }
+    case PB_FIG_CONV:
+        return gp_cost_plot(f, pre, kind == PB_FIG_CONV, p, cs);
     default:
         return 0;
     }
@@ -348,14 +339,14 @@ static int gp_write_figure(const pb_report_run *run, const pb_report_problem *p,
     int rc = 0;
     *made = 0;
     if (drew > 0) {
-        char base[600], path[5000];
-        pb_report_fig_base(p, kind, base, sizeof base);
+        char base[PB_FIG_BASE_MAX], path[5000];
+        pb_fig_base(p->name, kind, base, sizeof base);
         int tall = kind == PB_FIG_RIC;
         FILE *fa = open_memstream(&all, &nall);
         if (!fa) {
             rc = -1;
         } else {
-            fprintf(fa, "# %s.gp - propbench report figure; run `gnuplot %s.gp` in this folder.\n", base, base);
+            fprintf(fa, "# %s.gp - propbench report figure; run `gnuplot ./%s.gp` in this folder.\n", base, base);
             fputs("# Writes <name>.png.tmp and <name>.svg.tmp; propbench renames them when gnuplot succeeds.\n", fa);
             fputs("load 'style.gp'\n", fa);
             fputs(pre ? pre : "", fa);

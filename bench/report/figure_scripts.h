@@ -1,25 +1,20 @@
 /* figure_scripts.h - gnuplot scripts for the report's figures, written next to
- * the data: plots/style.gp (the look) and one plots/<problem>-<kind>.gp per
- * figure, each drawing <base>.png and <base>.svg (as .tmp, renamed by the
+ * the data: plots/style.gp (the look) and one plots/<base>.gp per figure
+ * (pb_fig_base), each drawing <base>.png and <base>.svg (as .tmp, renamed by the
  * runner) from the series CSVs and data blocks taken from summary.json. */
 #ifndef PB_REPORT_GP_H
 #define PB_REPORT_GP_H
 
 #include <stddef.h>
 #include "bench/report/report_data.h"
-
-enum { PB_FIG_ENERGY, PB_FIG_ANGMOM, PB_FIG_GROWTH, PB_FIG_RIC, PB_FIG_WORK, PB_FIG_CONV,
-       PB_FIG_COUNT };
+#include "bench/store/figure_names.h"
 
 /* The look, as shipped in scripts/plot-style.gp (figure_style.c). */
 extern const char pb_report_style_gp[];
 
-/* "energy", "angmom", ... and a one-line caption for the HTML/Markdown. */
-const char *pb_report_fig_kind(int kind);
+/* A one-line caption for the HTML/Markdown (kinds and file names are
+ * bench/store/figure_names.h's). */
 const char *pb_report_fig_caption(int kind);
-
-/* File base "<problem>-<kind>" with the problem name made file-safe. */
-void pb_report_fig_base(const pb_report_problem *p, int kind, char *buf, size_t len);
 
 /* Write plots_dir/style.gp and the figure scripts of every problem of run.
  * run_dir is where summary.json and series/ are (read here for the fits);

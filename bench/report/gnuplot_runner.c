@@ -62,7 +62,10 @@ int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *ba
                           size_t errlen)
 {
     char script[700], log[5000];
-    snprintf(script, sizeof script, "%s.gp", base);
+    /* "./" first: gnuplot reads any argument starting with '-' as an
+     * option (a problem named "-V" gives "-V-energy.gp"), and a path never
+     * starts with one */
+    snprintf(script, sizeof script, "./%s.gp", base);
     snprintf(log, sizeof log, "%s/%s.log", plots_dir, base);
     fflush(NULL);
     pid_t pid = fork();

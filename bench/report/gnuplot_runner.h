@@ -9,8 +9,9 @@
  * 0 and the path in out, or -1 when there is none. */
 int pb_report_gnuplot_find(const char *prog, char *out, size_t len);
 
-/* Run `exe <base>.gp` with plots_dir as working directory, stdout and
- * stderr into plots_dir/<base>.log; on success rename <base>.png.tmp and
+/* Run `exe ./<base>.gp` (a path, so no base is taken for an option) with
+ * plots_dir as working directory, stdout and stderr into
+ * plots_dir/<base>.log; on success rename <base>.png.tmp and
  * <base>.svg.tmp to their final names. 0, or -1 with the reason in err
  * (the log's last line when gnuplot reported an error). */
 int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *base, char *err,

@@ -166,7 +166,7 @@ static int html_body(FILE *f, const pb_report_view *v)
     if (v->why_not_drawn) {
         fputs("<p class=\"missing\">Figures were not drawn: ", f);
         html_text(f, v->why_not_drawn);
-        fputs(". The data and gnuplot scripts are in plots/; run <code>gnuplot NAME.gp</code> there.</p>\n", f);
+        fputs(". The data and gnuplot scripts are in plots/; run <code>gnuplot ./NAME.gp</code> there.</p>\n", f);
     }
     html_settings(f, v);
     for (int pi = 0; pi < run->nproblems; pi++) {
@@ -187,11 +187,11 @@ static int html_body(FILE *f, const pb_report_view *v)
         for (int k = 0; k < PB_FIG_COUNT; k++) {
             if (!v->made[pi * PB_FIG_COUNT + k])
                 continue;
-            char base[600], path[5000], pfx[32];
-            pb_report_fig_base(p, k, base, sizeof base);
+            char base[PB_FIG_BASE_MAX], path[5000], pfx[32];
+            pb_fig_base(p->name, k, base, sizeof base);
             snprintf(path, sizeof path, "%s/plots/%s.svg", v->out_dir, base);
             snprintf(pfx, sizeof pfx, "f%d-%d", pi, k);
-            fprintf(f, "<figure class=\"fig-%s\">\n", pb_report_fig_kind(k));
+            fprintf(f, "<figure class=\"fig-%s\">\n", pb_fig_kind(k));
             size_t n = 0;
             char *svg = v->drawn[pi * PB_FIG_COUNT + k] ? html_slurp(path, &n) : NULL;
             if (svg) {

@@ -86,12 +86,12 @@ static int md_body(FILE *f, const pb_report_view *v)
         for (int k = 0; k < PB_FIG_COUNT; k++) {
             if (!v->made[pi * PB_FIG_COUNT + k])
                 continue;
-            char base[600];
-            pb_report_fig_base(p, k, base, sizeof base);
+            char base[PB_FIG_BASE_MAX];
+            pb_fig_base(p->name, k, base, sizeof base);
             if (v->drawn[pi * PB_FIG_COUNT + k])
-                fprintf(f, "![%s](plots/%s.png)\n\n", pb_report_fig_kind(k), base);
+                fprintf(f, "![%s](plots/%s.png)\n\n", pb_fig_kind(k), base);
             else
-                fprintf(f, "(%s: not drawn; script plots/%s.gp)\n\n", pb_report_fig_kind(k), base);
+                fprintf(f, "(%s: not drawn; script plots/%s.gp)\n\n", pb_fig_kind(k), base);
             fprintf(f, "*%s*\n\n", pb_report_fig_caption(k));
         }
     }

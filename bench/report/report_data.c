@@ -9,6 +9,7 @@
 #include "bench/report/report_data.h"
 #include "bench/store/summary_read.h"
 #include "bench/store/run_dir.h"
+#include "bench/store/figure_names.h"
 
 static double data_num(const json_t *o, const char *key)
 {
@@ -102,6 +103,57 @@ static int data_slot(const char **names, int *n, const char *s)
     return (*n)++;
 }
 
+/* Sort the n read cases into run, grouped by their np problems (nm[p]
+ * methods each), and number each method's variants coarse to fine. */
+static void data_group(pb_report_run *run, data_item *items, int n, int np, const int *nm)
+{
+    qsort(items, (size_t)n, sizeof *items, data_cmp);
+    run->ncases = n;
+    run->nproblems = np;
+    for (int i = 0; i < n; i++) {
+        run->cases[i] = items[i].c;
+        pb_report_problem *p = &run->problems[items[i].pslot];
+        if (p->n == 0) {
+            p->name = items[i].c.problem;
+            p->first = i;
+            p->nmethods = nm[items[i].pslot];
+            int km = !strcmp(items[i].c.units, "km-s");
+            p->len_unit = km ? "km" : "DU";
+            p->time_unit = km ? "s" : "TU";
+        }
+        pb_report_case *c = &run->cases[i];
+        c->variant = (i > p->first && run->cases[i - 1].method_slot == c->method_slot)
+                         ? run->cases[i - 1].variant + 1 : 0;
+        p->n++;
+        if (c->orbits > p->orbits_max) p->orbits_max = c->orbits;
+        if (c->horizon_s > p->horizon_max) p->horizon_max = c->horizon_s;
+    }
+}
+
+/* Two problems whose figures would be the same files are refused before
+ * anything is written: the second would draw over the first's figures and
+ * both sections of the report would show one problem. pb_fig_stem leaves
+ * only a hash collision (or a doctored summary) to get here, so the message
+ * names both for a rename. 0, or -1 with the message in err. */
+static int data_stems_distinct(const pb_report_run *run, const char *path, char *err, size_t errlen)
+{
+    for (int i = 0; i < run->nproblems; i++) {
+        char a[PB_FIG_BASE_MAX];
+        pb_fig_stem(run->problems[i].name, a, sizeof a);
+        for (int j = i + 1; j < run->nproblems; j++) {
+            char b[PB_FIG_BASE_MAX];
+            pb_fig_stem(run->problems[j].name, b, sizeof b);
+            if (!strcmp(a, b)) {
+                snprintf(err, errlen, "%s: problems '%.200s' and '%.200s' would share the figure files "
+                         "plots/%s-*; rename one of them", path, run->problems[i].name,
+                         run->problems[j].name, a);
+                return -1;
+            }
+        }
+    }
+    return 0;
+}
+
 int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen)
 {
     memset(run, 0, sizeof *run);
@@ -155,27 +207,8 @@ int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen
         it->seq = i;
     }
     if (!bad) {
-        qsort(items, (size_t)n, sizeof *items, data_cmp);
-        run->ncases = n;
-        run->nproblems = np;
-        for (int i = 0; i < n; i++) {
-            run->cases[i] = items[i].c;
-            pb_report_problem *p = &run->problems[items[i].pslot];
-            if (p->n == 0) {
-                p->name = items[i].c.problem;
-                p->first = i;
-                p->nmethods = nm[items[i].pslot];
-                int km = !strcmp(items[i].c.units, "km-s");
-                p->len_unit = km ? "km" : "DU";
-                p->time_unit = km ? "s" : "TU";
-            }
-            pb_report_case *c = &run->cases[i];
-            c->variant = (i > p->first && run->cases[i - 1].method_slot == c->method_slot)
-                             ? run->cases[i - 1].variant + 1 : 0;
-            p->n++;
-            if (c->orbits > p->orbits_max) p->orbits_max = c->orbits;
-            if (c->horizon_s > p->horizon_max) p->horizon_max = c->horizon_s;
-        }
+        data_group(run, items, n, np, nm);
+        bad = data_stems_distinct(run, path, err, errlen);
     }
     free(items); free(pnames); free(nm);
     if (bad)

@@ -38,7 +38,8 @@ typedef struct pb_report_run {
 } pb_report_run;
 
 /* Read dir/summary.json. 0 on success; -1 with a message naming the file
- * and what is wrong in err. On failure run holds nothing to free. */
+ * and what is wrong in err (also when two problems would get the same
+ * figure files, pb_fig_stem). On failure run holds nothing to free. */
 int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen);
 void pb_report_free(pb_report_run *run);
 

@@ -1,4 +1,5 @@
-/* run_dir.c - atomic files and the per-case CSV series. */
+/* run_dir.c - atomic files, the per-case CSV series, and the clean-up of an
+ * earlier run in the same folder. */
 #include <ctype.h>
 #include <errno.h>
 #include <stdarg.h>
@@ -10,7 +11,7 @@
 #include <unistd.h>
 #include <dirent.h>
 #include "bench/store/run_dir.h"
-#include "bench/report/figure_scripts.h"
+#include "bench/store/figure_names.h"
 
 int pb_mkdirs(const char *path)
 {
@@ -270,7 +271,6 @@ json_t *pb_run_dir_previous(const char *dir)
 
 int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary)
 {
-    static const char *const kinds[] = {"png", "svg", "gp", "log", NULL};
     char path[8400];
     int removed = 0;
     if (!old)
@@ -285,14 +285,19 @@ int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary)
             if (unlink(path) == 0)
                 removed++;
         }
-        /* the figures `report` draws for the earlier run's problems */
+        /* the figures `report` draws for the earlier run's problems, named
+         * as the report names them (a base is one file-safe component, so
+         * no problem name can reach outside plots/) */
         const char *prob = json_string_value(json_object_get(c, "problem"));
-        for (int k = 0; prob && !strchr(prob, '/') && k < PB_FIG_COUNT; k++)
-            for (const char *const *x = kinds; *x; x++) {
-                snprintf(path, sizeof path, "%s/plots/%s-%s.%s", dir, prob, pb_report_fig_kind(k), *x);
+        for (int k = 0; prob && k < PB_FIG_COUNT; k++) {
+            char base[PB_FIG_BASE_MAX];
+            pb_fig_base(prob, k, base, sizeof base);
+            for (const char *const *x = pb_fig_exts; *x; x++) {
+                snprintf(path, sizeof path, "%s/plots/%s.%s", dir, base, *x);
                 if (unlink(path) == 0)
                     removed++;
             }
+        }
     }
     static const char *const reports[] = {"report.html", "report.md", "report.png", "plots/style.gp", NULL};
     for (const char *const *r = reports; *r; r++) {

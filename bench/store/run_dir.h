@@ -62,8 +62,8 @@ json_t *pb_run_dir_previous(const char *dir);
 
 /* After a new summary.json is written to dir: remove what the earlier run
  * (old, from pb_run_dir_previous; NULL: nothing) wrote and the new one does
- * not own: its series that the new summary does not name, its figures and
- * its report. Returns how many files were removed. */
+ * not own: its series that the new summary does not name, its figures (by
+ * pb_fig_base, the names the report gave them) and its report. Returns how many files were removed. */
 int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary);
 
 #endif
