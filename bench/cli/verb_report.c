@@ -24,7 +24,7 @@ static void report_help(FILE *f)
 "growth with its fitted law, radial/along-track/cross-track error,\n"
 "work-precision (error against evaluations) and convergence (error against\n"
 "step, with reference slopes). Scripts and data go to DIR/plots/ first, so\n"
-"the figures can be redrawn elsewhere with `gnuplot NAME.gp` in that folder.\n"
+"the figures can be redrawn elsewhere with `gnuplot ./NAME.gp` in that folder.\n"
 "  --out DIR       where report.* and plots/ go (default RUN_DIR)\n"
 "  --gnuplot PROG  gnuplot program (default $PB_GNUPLOT or gnuplot in PATH)\n"
 "  --no-plots      write scripts, tables and report without running gnuplot\n"
@@ -126,7 +126,7 @@ int pb_cli_report(int argc, char **argv)
         snprintf(whybuf, sizeof whybuf, "gnuplot was not found (looked for '%s')", prog);
         why = whybuf;
         fprintf(stderr, "propbench report: warning: %s; figures not drawn. The data and gnuplot scripts "
-                "are in %s: install gnuplot (Debian: gnuplot-nox) and run `gnuplot NAME.gp` there, "
+                "are in %s: install gnuplot (Debian: gnuplot-nox) and run `gnuplot ./NAME.gp` there, "
                 "or run propbench report again.\n", why, plots);
     } else {
         int failed = 0;
