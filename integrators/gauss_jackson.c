@@ -6,8 +6,8 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "method.h"
-#include "gauss_jackson_coeffs.h"
+#include "integrators/fixed_step.h"
+#include "integrators/gauss_jackson_coeffs.h"
 
 /* Invariant of the summed accumulators: after every accepted step n,
  *   S_n, s_n are the second and first sums with
@@ -34,8 +34,7 @@ typedef struct gj_ws {
     int dim;
     pb_force f;
     pb_method_config cfg;
-    double t0;
-    long step;                  /* grid index of the current state */
+    pb_fixed_grid grid;         /* t0, h, the index of the current state */
     int started;
     double *r, *v;              /* current state */
     double *s, *S;              /* sums at the newest point */
@@ -108,14 +107,13 @@ static int gj_start(void *ws, const pb_force *f, const pb_method_config *cfg,
         return PB_EINVAL;
     w->f = *f;
     w->cfg = *cfg;
-    w->t0 = t0;
-    w->step = 0;
     w->started = 0;
     size_t sz = (size_t)w->dim * sizeof(double);
     memcpy(w->r, r0, sz);
     memcpy(w->v, v0, sz);
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
+    pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->r, w->v, &w->st);
     return PB_OK;
 }
 
@@ -213,7 +211,7 @@ static void gj_back_sums(gj_ws *w, const double *fb)
 
 static double gj_time(const gj_ws *w, long n)
 {
-    return w->t0 + (double)n * w->cfg.h;
+    return pb_fixed_grid_time(&w->grid, n);
 }
 
 /* Back points t0-4h .. t0+4h: seed by GBS, then correct with the
@@ -292,14 +290,13 @@ static void gj_correct(gj_ws *w, const double *fn, double *rc, double *vc)
     }
 }
 
-/* One step n -> n+1: predict, evaluate, correct (iterated if asked). On
- * failure the workspace still holds step n. */
-static int gj_step(gj_ws *w)
+/* One step n -> n+1, ending at t1: predict, evaluate, correct (iterated if
+ * asked). On failure the workspace still holds step n. */
+static int gj_step(gj_ws *w, double t1)
 {
     int d = w->dim, s, i;
     double h = w->cfg.h, h2 = h * h;
     const double *fnow = w->fw + 8 * d;
-    double t1 = gj_time(w, w->step + 1);
     for (i = 0; i < d; i++) {
         double sa = 0, sb = 0;
         for (int k = 0; k < GJ_NB; k++) {
@@ -351,43 +348,38 @@ static int gj_step(gj_ws *w)
     return PB_OK;
 }
 
+/* pb_fixed_step_fn: the start-up before the first step of a run (it fails
+ * at t0, the state kept), then steps 1..4 from the start-up's back points and
+ * after them one PEC step each. */
+static int gj_fixed_step(void *ctx, long n, double t, double t1)
+{
+    gj_ws *w = ctx;
+    int d = w->dim, s;
+    (void)t;
+    if (!w->started) {
+        if ((s = gj_startup(w)))
+            return s;
+        w->started = 1;
+    }
+    if (n < 4) {
+        /* the start-up already produced t0+h .. t0+4h */
+        memcpy(w->r, w->rb + (5 + n) * d, (size_t)d * sizeof(double));
+        memcpy(w->v, w->vb + (5 + n) * d, (size_t)d * sizeof(double));
+        return PB_OK;
+    }
+    return gj_step(w, t1);
+}
+
 static int gj_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
 {
     gj_ws *w = ws;
-    int d = w->dim, s;
-    long target = pb_grid_index(w->t0, w->cfg.h, t_out);
-    if (target < w->step)
-        return PB_EINVAL;
-    if (w->step < target && !w->started) {
-        if ((s = gj_startup(w))) {
-            w->st.t_fail = w->t0;
-            return s;
-        }
-        w->started = 1;
-    }
-    while (w->step < target) {
-        if (w->cfg.max_steps > 0 && w->st.steps >= w->cfg.max_steps)
-            return PB_EMAXSTEPS;
-        if (w->step < 4) {
-            /* the start-up already produced t0+h .. t0+4h */
-            memcpy(w->r, w->rb + (5 + w->step) * d, (size_t)d * sizeof(double));
-            memcpy(w->v, w->vb + (5 + w->step) * d, (size_t)d * sizeof(double));
-        } else if ((s = gj_step(w))) {
-            w->st.t_fail = gj_time(w, w->step);
-            return s;
-        }
-        w->step++;
-        w->st.steps++;
-        if (obs && (s = obs(octx, gj_time(w, w->step), w->r, w->v)))
-            return s;
-    }
-    return PB_OK;
+    return pb_fixed_grid_advance(&w->grid, t_out, gj_fixed_step, w, obs, octx);
 }
 
 static void gj_get_state(const void *ws, double *t, double *r, double *v)
 {
     const gj_ws *w = ws;
-    *t = gj_time(w, w->step);
+    *t = gj_time(w, w->grid.n);
     memcpy(r, w->r, (size_t)w->dim * sizeof(double));
     memcpy(v, w->v, (size_t)w->dim * sizeof(double));
 }

@@ -8,7 +8,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "method.h"
+#include "integrators/fixed_step.h"
 
 /* Pitfalls of wrapping GSL, and how this file handles them:
  * - GSL's rk4 estimates its error by step doubling: one full step plus two
@@ -42,8 +42,8 @@ typedef struct gp_ws {
     gsl_odeiv2_system sys;     /* params points back at this workspace */
     gsl_odeiv2_driver *drv;    /* adaptive peers */
     gsl_odeiv2_step *step;     /* gsl-rk4 */
-    double t0, t, h, hmin;
-    long grid;                 /* gsl-rk4: grid index of the current state */
+    double t, h, hmin;         /* t: time of the current state, on every path */
+    pb_fixed_grid grid;        /* gsl-rk4: t0, h, the index of the current state */
     int fstatus;               /* pb_status of the last failed force call */
     double *y, *ygood, *yerr;
     pb_method_stats st;
@@ -125,8 +125,7 @@ static int gp_start(void *ws, const pb_force *f, const pb_method_config *cfg, do
         return PB_EINVAL;
     w->f = *f;
     w->cfg = *cfg;
-    w->t0 = w->t = t0;
-    w->grid = 0;
+    w->t = t0;
     w->fstatus = PB_OK;
     memcpy(w->y, r0, (size_t)w->dim * sizeof(double));
     memcpy(w->y + w->dim, v0, (size_t)w->dim * sizeof(double));
@@ -139,6 +138,7 @@ static int gp_start(void *ws, const pb_force *f, const pb_method_config *cfg, do
             return PB_EINVAL;
         w->h = cfg->h;
         gsl_odeiv2_step_reset(w->step);
+        pb_fixed_grid_init(&w->grid, t0, w->h, cfg->max_steps, w->y, w->y + w->dim, &w->st);
         return PB_OK;
     }
     if (!(cfg->atol >= 0) || !(cfg->rtol >= 0) || !(cfg->atol > 0 || cfg->rtol > 0) ||
@@ -188,29 +188,22 @@ static int gp_check_finite(const gp_ws *w)
     return 1;
 }
 
-static int gp_advance_fixed(gp_ws *w, double t_out, pb_step_observer obs, void *octx)
+/* pb_fixed_step_fn for gsl-rk4: one gsl_odeiv2_step_apply; a failure
+ * restores the last good state from ygood (gp_fail). */
+static int gp_fixed_step(void *ctx, long n, double t, double t1)
 {
-    long target = pb_grid_index(w->t0, w->h, t_out);
-    if (target < w->grid)
-        return PB_EINVAL;
-    while (w->grid < target) {
-        if (w->cfg.max_steps > 0 && w->st.steps >= w->cfg.max_steps)
-            return PB_EMAXSTEPS;
-        w->t = w->t0 + (double)w->grid * w->h;
-        int s = gsl_odeiv2_step_apply(w->step, w->t, w->h, w->y, w->yerr, NULL, NULL, &w->sys);
-        if (s != GSL_SUCCESS)
-            return gp_fail(w, s);
-        if (!gp_check_finite(w)) {
-            w->fstatus = PB_ENONFINITE;
-            return gp_fail(w, GSL_EBADFUNC);
-        }
-        memcpy(w->ygood, w->y, (size_t)w->n * sizeof(double));
-        w->grid++;
-        w->t = w->t0 + (double)w->grid * w->h;
-        w->st.steps++;
-        if (obs && (s = obs(octx, w->t, w->y, w->y + w->dim)))
-            return s;
+    gp_ws *w = ctx;
+    (void)n;
+    w->t = t; /* the state's time, and t_fail if gp_fail restores it */
+    int s = gsl_odeiv2_step_apply(w->step, t, w->h, w->y, w->yerr, NULL, NULL, &w->sys);
+    if (s != GSL_SUCCESS)
+        return gp_fail(w, s);
+    if (!gp_check_finite(w)) {
+        w->fstatus = PB_ENONFINITE;
+        return gp_fail(w, GSL_EBADFUNC);
     }
+    memcpy(w->ygood, w->y, (size_t)w->n * sizeof(double));
+    w->t = t1;
     return PB_OK;
 }
 
@@ -254,7 +247,7 @@ static int gp_advance_adaptive(gp_ws *w, double t_out, pb_step_observer obs, voi
 static int gp_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
 {
     gp_ws *w = ws;
-    return w->fixed ? gp_advance_fixed(w, t_out, obs, octx)
+    return w->fixed ? pb_fixed_grid_advance(&w->grid, t_out, gp_fixed_step, w, obs, octx)
                     : gp_advance_adaptive(w, t_out, obs, octx);
 }
 

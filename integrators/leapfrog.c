@@ -7,7 +7,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "method.h"
+#include "integrators/fixed_step.h"
 
 #define YOSHIDA_STAGES_MAX 15 /* order 8: 2*7+1 substeps */
 
@@ -24,8 +24,7 @@ typedef struct yoshida_ws {
     yoshida_scheme sch;       /* built in start from the w table */
     double kick[YOSHIDA_STAGES_MAX + 1]; /* merged kick fractions b_0..b_s */
     double tfrac[YOSHIDA_STAGES_MAX];    /* time fraction reached by drift j */
-    double t0;
-    long step;                /* grid index: time is t0 + step*h, never a summed clock */
+    pb_fixed_grid grid;       /* t0, h, the index of the current state */
     double *r, *v, *a, *cr, *cv;        /* state, a(r), Kahan compensations */
     double *rn, *vn, *an, *crn, *cvn;   /* the step in progress */
     int have_a;
@@ -103,8 +102,6 @@ static int yoshida_start_with(void *ws, int k, const double *wk, const pb_force 
         acc += sch->c[j];
         w->tfrac[j] = acc;
     }
-    w->t0 = t0;
-    w->step = 0;
     size_t sz = (size_t)w->dim * sizeof(double);
     memcpy(w->r, r0, sz);
     memcpy(w->v, v0, sz);
@@ -113,6 +110,7 @@ static int yoshida_start_with(void *ws, int k, const double *wk, const pb_force 
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
     w->have_a = 0;
+    pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->r, w->v, &w->st);
     return PB_OK;
 }
 
@@ -158,49 +156,39 @@ static int yoshida_step(yoshida_ws *w, double t, double t1, double h)
     return PB_OK;
 }
 
+/* pb_fixed_step_fn: a(r) at the first step of a run (each step's last force
+ * is the next one's first), then one composed step, committed only whole. */
+static int yoshida_fixed_step(void *ctx, long n, double t, double t1)
+{
+    yoshida_ws *w = ctx;
+    int s;
+    (void)n;
+    if (!w->have_a) {
+        if ((s = w->f.accel(w->f.ctx, t, w->r, w->v, w->a)))
+            return s;
+        w->have_a = 1;
+    }
+    if ((s = yoshida_step(w, t, t1, w->grid.h)))
+        return s;
+    size_t sz = (size_t)w->dim * sizeof(double);
+    memcpy(w->r, w->rn, sz);
+    memcpy(w->v, w->vn, sz);
+    memcpy(w->a, w->an, sz);
+    memcpy(w->cr, w->crn, sz);
+    memcpy(w->cv, w->cvn, sz);
+    return PB_OK;
+}
+
 static int yoshida_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
 {
     yoshida_ws *w = ws;
-    int s;
-    double h = w->cfg.h;
-    long target = pb_grid_index(w->t0, h, t_out);
-    if (target < w->step)
-        return PB_EINVAL;
-    if (w->step < target && !w->have_a) {
-        double t = w->t0 + (double)w->step * h;
-        if ((s = w->f.accel(w->f.ctx, t, w->r, w->v, w->a))) {
-            w->st.t_fail = t;
-            return s;
-        }
-        w->have_a = 1;
-    }
-    size_t sz = (size_t)w->dim * sizeof(double);
-    while (w->step < target) {
-        if (w->cfg.max_steps > 0 && w->st.steps >= w->cfg.max_steps)
-            return PB_EMAXSTEPS;
-        double t = w->t0 + (double)w->step * h;
-        double t1 = w->t0 + (double)(w->step + 1) * h;
-        if ((s = yoshida_step(w, t, t1, h))) {
-            w->st.t_fail = t;
-            return s;
-        }
-        memcpy(w->r, w->rn, sz);
-        memcpy(w->v, w->vn, sz);
-        memcpy(w->a, w->an, sz);
-        memcpy(w->cr, w->crn, sz);
-        memcpy(w->cv, w->cvn, sz);
-        w->step++;
-        w->st.steps++;
-        if (obs && (s = obs(octx, t1, w->r, w->v)))
-            return s;
-    }
-    return PB_OK;
+    return pb_fixed_grid_advance(&w->grid, t_out, yoshida_fixed_step, w, obs, octx);
 }
 
 static void yoshida_get_state(const void *ws, double *t, double *r, double *v)
 {
     const yoshida_ws *w = ws;
-    *t = w->t0 + (double)w->step * w->cfg.h;
+    *t = pb_fixed_grid_time(&w->grid, w->grid.n);
     memcpy(r, w->r, (size_t)w->dim * sizeof(double));
     memcpy(v, w->v, (size_t)w->dim * sizeof(double));
 }

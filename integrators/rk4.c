@@ -1,18 +1,17 @@
 /* rk4.c - the classical fourth-order Runge-Kutta method, first-order form
  * y = (r, v). Source: Kutta (1901); tableau as in Abramowitz & Stegun 25.5.10.
- * Optional compensated (Kahan) summation of the state update. Time is t0 + n*h
- * from the integer step count, never a summed clock. */
+ * Optional compensated (Kahan) summation of the state update. Stepped on the
+ * grid t0 + n*h by the shared fixed-step loop (fixed_step.h). */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "method.h"
+#include "integrators/fixed_step.h"
 
 typedef struct rk4_ws {
     int dim, n;               /* n = 2*dim state values */
     pb_force f;
     pb_method_config cfg;
-    double t0;
-    long step;                /* grid index of the current state */
+    pb_fixed_grid grid;       /* t0, h, the index of the current state */
     double *y, *comp;         /* state (r, v) and its Kahan compensation */
     pb_method_stats st;
 } rk4_ws;
@@ -52,13 +51,12 @@ static int rk4_start(void *ws, const pb_force *f, const pb_method_config *cfg,
         return PB_EINVAL;
     w->f = *f;
     w->cfg = *cfg;
-    w->t0 = t0;
-    w->step = 0;
     memcpy(w->y, r0, (size_t)w->dim * sizeof(double));
     memcpy(w->y + w->dim, v0, (size_t)w->dim * sizeof(double));
     memset(w->comp, 0, (size_t)w->n * sizeof(double));
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
+    pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->y, w->y + w->dim, &w->st);
     return PB_OK;
 }
 
@@ -128,39 +126,26 @@ static inline int rk4_step_d(rk4_ws *w, double t, double h, const int d)
     return PB_OK;
 }
 
-static int rk4_step(rk4_ws *w, double t, double h)
+/* pb_fixed_step_fn: rk4_step_d commits only a good step */
+static int rk4_fixed_step(void *ctx, long n, double t, double t1)
 {
+    rk4_ws *w = ctx;
+    (void)n;
+    (void)t1;
+    double h = w->grid.h;
     return w->dim == 3 ? rk4_step_d(w, t, h, 3) : rk4_step_d(w, t, h, w->dim);
 }
 
 static int rk4_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
 {
     rk4_ws *w = ws;
-    double h = w->cfg.h;
-    long target = pb_grid_index(w->t0, h, t_out);
-    if (target < w->step)
-        return PB_EINVAL;
-    while (w->step < target) {
-        if (w->cfg.max_steps > 0 && w->st.steps >= w->cfg.max_steps)
-            return PB_EMAXSTEPS;
-        double t = w->t0 + (double)w->step * h;
-        int s = rk4_step(w, t, h);
-        if (s) {
-            w->st.t_fail = t;
-            return s;
-        }
-        w->step++;
-        w->st.steps++;
-        if (obs && (s = obs(octx, w->t0 + (double)w->step * h, w->y, w->y + w->dim)))
-            return s;
-    }
-    return PB_OK;
+    return pb_fixed_grid_advance(&w->grid, t_out, rk4_fixed_step, w, obs, octx);
 }
 
 static void rk4_get_state(const void *ws, double *t, double *r, double *v)
 {
     const rk4_ws *w = ws;
-    *t = w->t0 + (double)w->step * w->cfg.h;
+    *t = pb_fixed_grid_time(&w->grid, w->grid.n);
     memcpy(r, w->y, (size_t)w->dim * sizeof(double));
     memcpy(v, w->y + w->dim, (size_t)w->dim * sizeof(double));
 }

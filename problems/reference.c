@@ -3,15 +3,15 @@
  * rule with step numbers 2, 4, ..., 20 extrapolated in h^2 (order 20), step
  * control from the last two tableau entries, all in __float128; the force
  * models are re-evaluated here in __float128, never the problem's double accel. */
-#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/stat.h>
 #include <unistd.h>
 #include <quadmath.h>
-#include "reference.h"
+#include "problems/reference.h"
+#include "problems/files.h"
+#include "problems/hash.h"
 
 typedef __float128 ref_real;
 
@@ -180,35 +180,25 @@ int pb_reference_propagate(const pb_problem *p, const double *times, int n,
     return PB_OK;
 }
 
-static uint64_t ref_hash(uint64_t h, const void *data, size_t len)
-{
-    const unsigned char *b = data;
-    for (size_t i = 0; i < len; i++) {
-        h ^= b[i];
-        h *= 1099511628211ULL;
-    }
-    return h;
-}
-
 uint64_t pb_reference_key(const pb_problem *p, const double *times, int n)
 {
-    uint64_t h = 14695981039346656037ULL;
+    uint64_t h = PB_FNV1A64_INIT;
     int force = (int)p->force;
     /* as doubles: a long double's padding bytes are indeterminate */
     double tols[2] = {(double)REF_TOL_COARSE, (double)REF_TOL_FINE};
-    h = ref_hash(h, REF_VERSION, sizeof REF_VERSION);
-    h = ref_hash(h, tols, sizeof tols);
-    h = ref_hash(h, &force, sizeof force);
-    h = ref_hash(h, &p->dim, sizeof p->dim);
-    h = ref_hash(h, &p->mu, sizeof p->mu);
-    h = ref_hash(h, &p->body_radius, sizeof p->body_radius);
-    h = ref_hash(h, &p->j2, sizeof p->j2);
-    h = ref_hash(h, &p->t0, sizeof p->t0);
-    h = ref_hash(h, p->r0, sizeof p->r0);
-    h = ref_hash(h, p->v0, sizeof p->v0);
-    h = ref_hash(h, &n, sizeof n);
+    h = pb_fnv1a64(h, REF_VERSION, sizeof REF_VERSION);
+    h = pb_fnv1a64(h, tols, sizeof tols);
+    h = pb_fnv1a64(h, &force, sizeof force);
+    h = pb_fnv1a64(h, &p->dim, sizeof p->dim);
+    h = pb_fnv1a64(h, &p->mu, sizeof p->mu);
+    h = pb_fnv1a64(h, &p->body_radius, sizeof p->body_radius);
+    h = pb_fnv1a64(h, &p->j2, sizeof p->j2);
+    h = pb_fnv1a64(h, &p->t0, sizeof p->t0);
+    h = pb_fnv1a64(h, p->r0, sizeof p->r0);
+    h = pb_fnv1a64(h, p->v0, sizeof p->v0);
+    h = pb_fnv1a64(h, &n, sizeof n);
     if (n > 0)
-        h = ref_hash(h, times, (size_t)n * sizeof *times);
+        h = pb_fnv1a64(h, times, (size_t)n * sizeof *times);
     return h;
 }
 
@@ -239,31 +229,13 @@ static int ref_cache_read(const char *path, uint64_t key, int n, long double *r,
     return ok;
 }
 
-static int ref_mkdirs(const char *dir)
-{
-    char buf[4096];
-    if (snprintf(buf, sizeof buf, "%s", dir) >= (int)sizeof buf)
-        return -1;
-    for (char *s = buf + 1; *s; s++) {
-        if (*s != '/')
-            continue;
-        *s = '\0';
-        if (mkdir(buf, 0777) && errno != EEXIST)
-            return -1;
-        *s = '/';
-    }
-    if (mkdir(buf, 0777) && errno != EEXIST)
-        return -1;
-    return 0;
-}
-
 /* Temp file + rename so an interrupted run never leaves a half-written entry.
  * A failed write only loses the cache entry, never the result. */
 static void ref_cache_write(const char *dir, const char *path, uint64_t key, int n,
                             const long double *r, const long double *v,
                             const double *floor)
 {
-    if (ref_mkdirs(dir))
+    if (pb_mkdir_p(dir))
         return;
     char tmp[4200];
     snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid());

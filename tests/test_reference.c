@@ -1,8 +1,10 @@
 /* test_reference.c - the reference integrator (GBS extrapolation in
  * __float128): agreement with the exact two-body flow, its own error estimate
- * for J2 LEO, the cache key and the on-disk cache, and truth.c's hook. */
+ * for J2 LEO, the cache key (and its FNV-1a, problems/hash.c) and the on-disk
+ * cache (and its folder, problems/files.c), and truth.c's hook. */
 #include <criterion/criterion.h>
 #include <dirent.h>
+#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -10,6 +12,8 @@
 #include <time.h>
 #include <unistd.h>
 #include "problems/catalogue.h"
+#include "problems/files.h"
+#include "problems/hash.h"
 #include "problems/reference.h"
 #include "problems/truth.h"
 #include "test_support.h"
@@ -203,4 +207,61 @@ Test(reference, rejects_bad_input)
     double fl[2];
     cr_assert_eq(pb_reference_build(&p, t, 2, NULL, r, v, fl), PB_EINVAL);
     cr_assert_eq(pb_reference_propagate(&p, t, 1, 0.0L, r, v, NULL), PB_EINVAL);
+}
+
+Test(reference, fnv1a64_test_vectors)
+{
+    /* Source: the FNV-1a 64-bit test vectors of Fowler, Noll and Vo's
+     * reference page (from memory; recomputed here by a separate Python
+     * implementation): "" -> cbf29ce484222325 (the offset basis),
+     * "a" -> af63dc4c8601ec8c, "foobar" -> 85944171f73967e8. */
+    cr_assert_eq(pb_fnv1a64(PB_FNV1A64_INIT, "", 0), UINT64_C(0xcbf29ce484222325));
+    cr_assert_eq(pb_fnv1a64(PB_FNV1A64_INIT, "a", 1), UINT64_C(0xaf63dc4c8601ec8c));
+    cr_assert_eq(pb_fnv1a64(PB_FNV1A64_INIT, "foobar", 6), UINT64_C(0x85944171f73967e8));
+    /* chained calls hash the concatenation, as the cache key relies on */
+    cr_assert_eq(pb_fnv1a64(pb_fnv1a64(PB_FNV1A64_INIT, "foo", 3), "bar", 3),
+                 UINT64_C(0x85944171f73967e8));
+}
+
+Test(reference, cache_folder_made_or_refused)
+{
+    char base[256], deep[400], file[400], below[450];
+    pbt_tmpdir(base, sizeof base);
+    cr_assert(base[0]);
+    snprintf(deep, sizeof deep, "%s/a/b/c/", base);   /* a trailing slash too */
+    cr_assert_eq(pb_mkdir_p(deep), 0);
+    cr_assert_eq(pb_mkdir_p(deep), 0);                /* already there */
+    snprintf(file, sizeof file, "%s/a/file", base);
+    FILE *f = fopen(file, "w");
+    cr_assert_not_null(f);
+    fclose(f);
+    errno = 0;
+    cr_assert_eq(pb_mkdir_p(file), -1);               /* a file stands there */
+    cr_assert_eq(errno, ENOTDIR);
+    snprintf(below, sizeof below, "%s/x", file);
+    cr_assert_eq(pb_mkdir_p(below), -1);
+    errno = 0;
+    cr_assert_eq(pb_mkdir_p(""), -1);
+    cr_assert_eq(errno, ENOENT);
+    static char huge[5000];
+    memset(huge, 'x', sizeof huge - 1);
+    errno = 0;
+    cr_assert_eq(pb_mkdir_p(huge), -1);
+    cr_assert_eq(errno, ENAMETOOLONG);
+    /* a cache folder that cannot be made loses the cache entry, never the result */
+    pb_problem p;
+    cr_assert_eq(pb_problem_lookup("arenstorf", &p), PB_OK);
+    double t[2], fl[2];
+    long double r[6], v[6];
+    reft_times(t, 2, 0.01 * p.period);
+    cr_assert_eq(pb_reference_build(&p, t, 2, below, r, v, fl), PB_OK);
+    cr_assert(isfinite((double)r[0]) && fl[1] > 0);
+    remove(file);
+    snprintf(deep, sizeof deep, "%s/a/b/c", base);
+    rmdir(deep);
+    snprintf(deep, sizeof deep, "%s/a/b", base);
+    rmdir(deep);
+    snprintf(deep, sizeof deep, "%s/a", base);
+    rmdir(deep);
+    rmdir(base);
 }

@@ -1,18 +1,7 @@
-/* fingerprint.c - FNV-1a (Fowler, Noll, Vo; common practice) over state bits. */
+/* fingerprint.c - FNV-1a (problems/hash.c) over a final state's bits. */
 #include <inttypes.h>
 #include <stdio.h>
-#include <string.h>
 #include "bench/measure/fingerprint.h"
-
-uint64_t pb_fnv1a64(uint64_t h, const void *p, size_t n)
-{
-    const unsigned char *b = p;
-    for (size_t i = 0; i < n; i++) {
-        h ^= b[i];
-        h *= UINT64_C(0x100000001b3);
-    }
-    return h;
-}
 
 void pb_fingerprint_state(double t, const double *r, const double *v, int dim,
                           char *out, size_t outlen)

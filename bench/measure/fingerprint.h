@@ -4,11 +4,7 @@
 #define PB_FINGERPRINT_H
 
 #include <stddef.h>
-#include <stdint.h>
-
-/* 64-bit FNV-1a: fold n bytes at p into h; start from PB_FNV1A64_INIT. */
-#define PB_FNV1A64_INIT UINT64_C(0xcbf29ce484222325)
-uint64_t pb_fnv1a64(uint64_t h, const void *p, size_t n);
+#include "problems/hash.h" /* pb_fnv1a64, PB_FNV1A64_INIT */
 
 /* 64-bit FNV-1a of the bytes of t, r[dim], v[dim] (IEEE-754 doubles, little
  * endian on every supported machine), written as "fnv1a64:<16 hex digits>"

@@ -45,14 +45,6 @@ double pb_angle_about(const double *e0, const double *e1, const double *n)
     return atan2(dot3(c, n) / nn, dot3(e0, e1));
 }
 
-/* Eccentricity (Laplace-Runge-Lenz) vector ((v^2 - mu/r) r - (r.v) v) / mu */
-static void metrics_eccvec(double mu, const double *r, const double *v, double *e)
-{
-    double rn = norm3(r), v2 = dot3(v, v), rv = dot3(r, v);
-    for (int i = 0; i < 3; i++)
-        e[i] = ((v2 - mu / rn) * r[i] - rv * v[i]) / mu;
-}
-
 void pb_metrics_sample(const pb_problem *p, double t, const double *r, const double *v,
                        const long double *rt, const long double *vt,
                        double E0, double E_scale, double H0, pb_sample *s)
@@ -82,8 +74,8 @@ void pb_metrics_sample(const pb_problem *p, double t, const double *r, const dou
     s->apsis_angle = NAN;
     if (p->keplerian) {
         double en[3], et[3], h[3];
-        metrics_eccvec(p->mu, r3, v3, en);
-        metrics_eccvec(p->mu, rt3, vt3, et);
+        pb_twobody_eccvec(p->mu, r3, v3, en);
+        pb_twobody_eccvec(p->mu, rt3, vt3, et);
         double de[3] = {en[0] - et[0], en[1] - et[1], en[2] - et[2]};
         s->ecc_drift = norm3(de);
         cross3(rt3, vt3, h);
