@@ -4,7 +4,7 @@
 #include <sys/stat.h>
 #include "problems/files.h"
 
-int pb_mkdir_p(const char *path)
+int pb_mkdirs(const char *path)
 {
     char buf[4096];
     if (!path[0]) {

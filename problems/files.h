@@ -7,6 +7,6 @@
 /* mkdir -p: make path and every missing parent (mode 0777 less the umask).
  * 0, or -1 with errno: ENAMETOOLONG past 4095 bytes, ENOTDIR when path
  * exists but is not a directory, or mkdir's own. */
-int pb_mkdir_p(const char *path);
+int pb_mkdirs(const char *path);
 
 #endif

@@ -235,7 +235,7 @@ static void ref_cache_write(const char *dir, const char *path, uint64_t key, int
                             const long double *r, const long double *v,
                             const double *floor)
 {
-    if (pb_mkdir_p(dir))
+    if (pb_mkdirs(dir))
         return;
     char tmp[4200];
     snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid());

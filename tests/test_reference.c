@@ -229,24 +229,24 @@ Test(reference, cache_folder_made_or_refused)
     pbt_tmpdir(base, sizeof base);
     cr_assert(base[0]);
     snprintf(deep, sizeof deep, "%s/a/b/c/", base);   /* a trailing slash too */
-    cr_assert_eq(pb_mkdir_p(deep), 0);
-    cr_assert_eq(pb_mkdir_p(deep), 0);                /* already there */
+    cr_assert_eq(pb_mkdirs(deep), 0);
+    cr_assert_eq(pb_mkdirs(deep), 0);                /* already there */
     snprintf(file, sizeof file, "%s/a/file", base);
     FILE *f = fopen(file, "w");
     cr_assert_not_null(f);
     fclose(f);
     errno = 0;
-    cr_assert_eq(pb_mkdir_p(file), -1);               /* a file stands there */
+    cr_assert_eq(pb_mkdirs(file), -1);               /* a file stands there */
     cr_assert_eq(errno, ENOTDIR);
     snprintf(below, sizeof below, "%s/x", file);
-    cr_assert_eq(pb_mkdir_p(below), -1);
+    cr_assert_eq(pb_mkdirs(below), -1);
     errno = 0;
-    cr_assert_eq(pb_mkdir_p(""), -1);
+    cr_assert_eq(pb_mkdirs(""), -1);
     cr_assert_eq(errno, ENOENT);
     static char huge[5000];
     memset(huge, 'x', sizeof huge - 1);
     errno = 0;
-    cr_assert_eq(pb_mkdir_p(huge), -1);
+    cr_assert_eq(pb_mkdirs(huge), -1);
     cr_assert_eq(errno, ENAMETOOLONG);
     /* a cache folder that cannot be made loses the cache entry, never the result */
     pb_problem p;

@@ -5,7 +5,7 @@
 #include <stdio.h>
 #include <string.h>
 #include "bench/store/figure_names.h"
-#include "bench/measure/fingerprint.h"
+#include "problems/hash.h"
 
 /* Longest problem part kept; with the hash and the longest kind the base
  * still fits PB_FIG_BASE_MAX. */

@@ -13,36 +13,6 @@
 #include "bench/store/run_dir.h"
 #include "bench/store/figure_names.h"
 
-int pb_mkdirs(const char *path)
-{
-    char buf[4096];
-    if (strlen(path) >= sizeof buf) {
-        errno = ENAMETOOLONG;
-        return -1;
-    }
-    strcpy(buf, path);
-    for (char *p = buf + 1; *p; p++) {
-        if (*p != '/')
-            continue;
-        *p = 0;
-        if (mkdir(buf, 0777) && errno != EEXIST)
-            return -1;
-        *p = '/';
-    }
-    if (mkdir(buf, 0777) && errno != EEXIST)
-        return -1;
-    /* EEXIST alone could be a file of that name, which no write below
-     * could get through */
-    struct stat st;
-    if (stat(buf, &st))
-        return -1;
-    if (!S_ISDIR(st.st_mode)) {
-        errno = ENOTDIR;
-        return -1;
-    }
-    return 0;
-}
-
 int pb_path_blocked(const char *path)
 {
     struct stat st;

@@ -9,10 +9,7 @@
 #include <stdio.h>
 #include <jansson.h>
 #include "bench/measure/case.h"
-
-/* mkdir -p; 0, or -1 with errno (ENOTDIR when path is there but is not a
- * directory). */
-int pb_mkdirs(const char *path);
+#include "problems/files.h"  /* pb_mkdirs */
 
 /* 1 if something that is not a plain file stands at path (a folder, say),
  * so no file can be written there; 0 if it is absent or a plain file. */
