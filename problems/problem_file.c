@@ -1,6 +1,7 @@
 /* problem_file.c - reads user problem files (INI through inih, one case per
- * "[case NAME]" section) into problems, validating every key. Lines are
- * counted by our own reader so every message names file, line and key. */
+ * "[case NAME]" section) into problems, validating every key; the checks of
+ * a finished case are in problem_file_case.c. Lines are counted by our own
+ * reader so every message names file, line and key. */
 #include <ctype.h>
 #include <errno.h>
 #include <math.h>
@@ -11,11 +12,8 @@
 #include <sys/stat.h>
 #include <ini.h>
 #include "problem_file.h"
+#include "problem_file_case.h"
 #include "bodies.h"
-#include "j2.h"
-#include "twobody.h"
-
-#define DEG (M_PI / 180.0)
 
 /* inih keeps at most MAX_SECTION - 1 = 49 characters between the brackets
  * (MAX_SECTION is 50 in inih's ini.c and not exported) and cuts the rest
@@ -23,47 +21,14 @@
 #define PF_SECTION_MAX 49
 #define PF_CASE_NAME_MAX (PF_SECTION_MAX - 5)
 
-/* Ranges that keep every derived quantity (period, speeds, a^3/mu) far from
- * overflow and refuse typing errors with a message naming the key instead of
- * a failure deep in the run (our limits, common practice where no source):
- * mu: 1e-20 .. 1e20 (in km^3/s^2, G times 0.15 kg to 7.5e8 Suns); radius:
- * 1e-6 .. 1e10 (the largest stars are ~1e9 km); sizes |a| and |r|: 1e-6 ..
- * 1e12 times the reference length (the radius if known, else 1 unit); the
- * speed at most 1e3 times the local escape speed; |e - 1| >= 1e-6 for
- * elements (closer is a near-parabola that a and e describe badly); the
- * horizon 1e-3 .. 1e8 orbits, or that many times the time scale. */
-#define PF_MU_MIN 1e-20
-#define PF_MU_MAX 1e20
-#define PF_RADIUS_MIN 1e-6
-#define PF_RADIUS_MAX 1e10
-#define PF_SIZE_MIN 1e-6
-#define PF_SIZE_MAX 1e12
-#define PF_ESCAPE_MAX 1e3
-#define PF_PARABOLIC_GAP 1e-6
-#define PF_HORIZON_MIN 1e-3
-#define PF_HORIZON_MAX 1e8
-
-/* largest |angle| in degrees still reduced modulo 360 to better than 1e-7 deg */
-#define PF_ANGLE_MAX 1e9
-
-enum {
-    K_UNITS, K_MU, K_BODY, K_FORCE, K_A, K_E, K_I, K_RAAN, K_ARGP, K_NU, K_R, K_V,
-    K_ORBITS, K_HORIZON, K_RADIUS, K_J2, K_DESC, K_COUNT
+/* In the order the "unknown key" message lists them (problem_file_case.h). */
+const char *const pb_problem_file_keys[K_COUNT + 1] = {
+    [K_UNITS] = "units", [K_MU] = "mu", [K_BODY] = "body", [K_FORCE] = "force",
+    [K_A] = "a", [K_E] = "e", [K_I] = "i_deg", [K_RAAN] = "raan_deg", [K_ARGP] = "argp_deg",
+    [K_NU] = "nu_deg", [K_R] = "r", [K_V] = "v", [K_ORBITS] = "orbits",
+    [K_HORIZON] = "horizon_s", [K_RADIUS] = "radius", [K_J2] = "j2", [K_DESC] = "description",
+    [K_COUNT] = NULL
 };
-
-static const char *const pf_keys[K_COUNT] = {
-    "units", "mu", "body", "force", "a", "e", "i_deg", "raan_deg", "argp_deg", "nu_deg",
-    "r", "v", "orbits", "horizon_s", "radius", "j2", "description"
-};
-
-typedef struct pf_case {
-    char name[PB_NAME_MAX];
-    int line;                 /* line of the section header */
-    int kline[K_COUNT];       /* line of each key given (0: absent) */
-    double num[K_COUNT];
-    double vec[2][3];         /* r, v */
-    char str[K_COUNT][160];   /* units, body, force, description */
-} pf_case;
 
 typedef struct pf_ctx {
     const char *path;
@@ -84,6 +49,8 @@ typedef struct pf_ctx {
     char hdr_text[80];        /* its text between the brackets, for messages */
 } pf_ctx;
 
+static void pf_fail(pf_ctx *c, int line, const char *key, const char *fmt, ...)
+    __attribute__((format(printf, 4, 5)));
 static void pf_fail(pf_ctx *c, int line, const char *key, const char *fmt, ...)
 {
     if (c->failed)
@@ -255,6 +222,19 @@ static int pf_known_section(pf_ctx *c, const char *section, char *name)
     return 0;
 }
 
+/* The keys of the table as "units, mu, ...", for the unknown-key message. */
+static void pf_known_keys(char *buf, size_t len)
+{
+    size_t n = 0;
+    buf[0] = '\0';
+    for (int k = 0; k < K_COUNT && n < len; k++) {
+        int w = snprintf(buf + n, len - n, "%s%s", k ? ", " : "", pb_problem_file_keys[k]);
+        if (w < 0)
+            break;
+        n += (size_t)w;
+    }
+}
+
 static int pf_finish(pf_ctx *c);
 
 static int pf_handler(void *user, const char *section, const char *key, const char *val)
@@ -278,11 +258,12 @@ static int pf_handler(void *user, const char *section, const char *key, const ch
     }
     pf_case *cs = &c->cur;
     int k = 0;
-    while (k < K_COUNT && strcmp(pf_keys[k], key) != 0)
+    while (k < K_COUNT && strcmp(pb_problem_file_keys[k], key) != 0)
         k++;
     if (k == K_COUNT) {
-        pf_fail(c, c->line, key, "unknown key (known: units, mu, body, force, a, e, i_deg, "
-                "raan_deg, argp_deg, nu_deg, r, v, orbits, horizon_s, radius, j2, description)");
+        char known[512];
+        pf_known_keys(known, sizeof known);
+        pf_fail(c, c->line, key, "unknown key (known: %s)", known);
         return 1;
     }
     if (cs->kline[k]) {
@@ -318,202 +299,15 @@ static int pf_handler(void *user, const char *section, const char *key, const ch
     return 1;
 }
 
-/* The later of two given keys, for messages about conflicting keys. */
-static int pf_later(const pf_case *cs, int k1, int k2)
-{
-    return cs->kline[k1] > cs->kline[k2] ? k1 : k2;
-}
-
-static int pf_first_element_key(const pf_case *cs)
-{
-    for (int k = K_A; k <= K_NU; k++)
-        if (cs->kline[k])
-            return k;
-    return -1;
-}
-
-/* Validate the finished case and append it to c->out. */
+/* Check the finished case and append it to c->out. */
 static int pf_finish(pf_ctx *c)
 {
-    pf_case *cs = &c->cur;
-    const int *L = cs->kline;
     c->have_cur = 0;
-#define FAIL_K(k, ...) do { pf_fail(c, L[k] ? L[k] : cs->line, pf_keys[k], __VA_ARGS__); return -1; } while (0)
-    const pb_body *body = L[K_BODY] ? pb_body_find(cs->str[K_BODY]) : NULL;
-    pb_units units = PB_UNITS_KM_S;
-    if (L[K_UNITS])
-        units = strcmp(cs->str[K_UNITS], "km-s") == 0 ? PB_UNITS_KM_S : PB_UNITS_NORMALIZED;
-    else if (!body)
-        FAIL_K(K_UNITS, "missing in case '%s' (km-s or normalized)", cs->name);
-    if (body && units != PB_UNITS_KM_S)
-        FAIL_K(K_BODY, "a body needs units = km-s");
-    if (body && L[K_MU])
-        FAIL_K(pf_later(cs, K_MU, K_BODY), "give mu or body, not both");
-    double mu = body ? body->mu : units == PB_UNITS_NORMALIZED ? 1.0 : 0.0;
-    if (L[K_MU])
-        mu = cs->num[K_MU];
-    else if (!body && units == PB_UNITS_KM_S)
-        FAIL_K(K_MU, "missing in case '%s' (give mu or body)", cs->name);
-    if (!(mu > 0))
-        FAIL_K(K_MU, "mu must be > 0 (got %g)", mu);
-    if (!(mu >= PF_MU_MIN && mu <= PF_MU_MAX))
-        FAIL_K(K_MU, "mu must be within [%g, %g] (got %g)", PF_MU_MIN, PF_MU_MAX, mu);
-    double radius = body ? body->radius : 0.0, j2 = body ? body->j2 : 0.0;
-    if (L[K_RADIUS]) {
-        radius = cs->num[K_RADIUS];
-        if (!(radius > 0))
-            FAIL_K(K_RADIUS, "radius must be > 0 (got %g)", radius);
-        if (!(radius >= PF_RADIUS_MIN && radius <= PF_RADIUS_MAX))
-            FAIL_K(K_RADIUS, "radius must be within [%g, %g] (got %g)", PF_RADIUS_MIN,
-                   PF_RADIUS_MAX, radius);
+    if (pb_problem_file_case(&c->cur, c->path, &c->out[c->n], c->err, c->errlen, c->warn)) {
+        c->failed = PB_EINVAL;
+        return -1;
     }
-    if (L[K_J2])
-        j2 = cs->num[K_J2];
-    int with_j2 = L[K_FORCE] && strcmp(cs->str[K_FORCE], "j2") == 0;
-    if (with_j2 && !(radius > 0))
-        FAIL_K(K_RADIUS, "missing in case '%s' (force = j2 needs body or radius and j2)", cs->name);
-    if (with_j2 && !L[K_J2] && !body)
-        FAIL_K(K_J2, "missing in case '%s' (force = j2 needs body or radius and j2)", cs->name);
-
-    /* the reference length for the size checks */
-    double len0 = radius > 0 ? radius : 1.0;
-    const char *len0_what = radius > 0 ? "the body's radius" : "the unit length";
-    int first_el = pf_first_element_key(cs);
-    int has_state = L[K_R] || L[K_V];
-    double r0[3], v0[3], rp = NAN;
-    if (first_el >= 0 && has_state)
-        FAIL_K(L[K_R] ? K_R : K_V, "both classical elements ('%s' at line %d) and a state given",
-               pf_keys[first_el], L[first_el]);
-    if (first_el < 0 && !has_state)
-        FAIL_K(K_A, "missing in case '%s' (give elements a, e, ... or a state r, v)", cs->name);
-    if (has_state) {
-        if (!L[K_R] || !L[K_V])
-            FAIL_K(L[K_R] ? K_V : K_R, "missing in case '%s' (a state needs both r and v)", cs->name);
-        memcpy(r0, cs->vec[0], sizeof r0);
-        memcpy(v0, cs->vec[1], sizeof v0);
-        double rn = hypot(hypot(r0[0], r0[1]), r0[2]);  /* no underflow for tiny r */
-        if (rn > 0 && !(rn >= PF_SIZE_MIN * len0 && rn <= PF_SIZE_MAX * len0))
-            FAIL_K(K_R, "|r| = %g is outside [%g, %g] times %s (%g)", rn, PF_SIZE_MIN,
-                   PF_SIZE_MAX, len0_what, len0);
-        pb_elements el;
-        if (pb_elements_from_state(mu, r0, v0, &el))
-            FAIL_K(K_R, "degenerate state (zero position or angular momentum)");
-        rp = el.p / (1.0 + el.e);
-    } else {
-        if (!L[K_A])
-            FAIL_K(K_A, "missing in case '%s' (elements need a and e)", cs->name);
-        if (!L[K_E])
-            FAIL_K(K_E, "missing in case '%s' (elements need a and e)", cs->name);
-        double a = cs->num[K_A], e = cs->num[K_E];
-        if (e < 0)
-            FAIL_K(K_E, "eccentricity must be >= 0 (got %g)", e);
-        if (e == 1)
-            FAIL_K(K_E, "a parabola (e = 1) cannot be given by a and e; give r and v");
-        /* the margin keeps e = 1 +- 1e-6 as typed (1.000001 - 1 is below 1e-6 in doubles) */
-        if (fabs(e - 1) < PF_PARABOLIC_GAP * (1 - 1e-9))
-            FAIL_K(K_E, "e = %.12g is too close to parabolic for elements (|e - 1| < %g); "
-                   "give a state vector r, v", e, PF_PARABOLIC_GAP);
-        if (e < 1 && a <= 0)
-            FAIL_K(K_A, "semi-major axis must be > 0 for an ellipse (got %g)", a);
-        if (e > 1 && a >= 0)
-            FAIL_K(K_A, "semi-major axis must be < 0 for a hyperbola (got %g)", a);
-        if (!(fabs(a) >= PF_SIZE_MIN * len0 && fabs(a) <= PF_SIZE_MAX * len0))
-            FAIL_K(K_A, "|a| = %g is outside [%g, %g] times %s (%g)", fabs(a), PF_SIZE_MIN,
-                   PF_SIZE_MAX, len0_what, len0);
-        /* Angles (common practice): i_deg must lie in [0, 180] (180 is a
-         * retrograde equatorial orbit); raan_deg, argp_deg and nu_deg may be
-         * any finite value and are taken modulo 360, up to |x| <= 1e9 deg,
-         * beyond which a double holds the fraction of a turn to worse than
-         * 1e-7 deg. There is no mean-anomaly key: the anomaly is true. */
-        if (!(cs->num[K_I] >= 0 && cs->num[K_I] <= 180))
-            FAIL_K(K_I, "inclination must be within [0, 180] deg (got %g)", cs->num[K_I]);
-        for (int k = K_RAAN; k <= K_NU; k++) {
-            if (fabs(cs->num[k]) > PF_ANGLE_MAX)
-                FAIL_K(k, "angle %g deg is too large to take modulo 360 (|value| must be "
-                       "<= %g deg)", cs->num[k], PF_ANGLE_MAX);
-            cs->num[k] = fmod(cs->num[k], 360.0);
-        }
-        double nu = cs->num[K_NU] * DEG;
-        if (e > 1 && 1.0 + e * cos(nu) <= 0)
-            FAIL_K(K_NU, "true anomaly %g deg is beyond the hyperbola's asymptote (%.4f deg)",
-                   cs->num[K_NU], acos(-1.0 / e) / DEG);
-        pb_elements el = {a, e, cs->num[K_I] * DEG, cs->num[K_RAAN] * DEG,
-                          cs->num[K_ARGP] * DEG, nu, a * (1.0 - e * e)};
-        if (pb_state_from_elements(mu, &el, r0, v0))
-            FAIL_K(K_A, "elements do not define an orbit");
-        rp = a * (1.0 - e);
-    }
-    {
-        /* (v / v_esc)^2 = v^2 |r| / (2 mu), vis-viva (REFERENCES.md) */
-        double rr = sqrt(r0[0] * r0[0] + r0[1] * r0[1] + r0[2] * r0[2]);
-        double vv = v0[0] * v0[0] + v0[1] * v0[1] + v0[2] * v0[2];
-        double ratio = sqrt(vv * rr / (2.0 * mu));
-        if (!(ratio <= PF_ESCAPE_MAX))
-            FAIL_K(has_state ? K_V : K_E, "the speed %g is %.3g times the escape speed at |r| = %g "
-                   "(at most %g)", sqrt(vv), ratio, rr, PF_ESCAPE_MAX);
-    }
-
-    pb_problem *p = &c->out[c->n];
-    const char *desc = L[K_DESC] ? cs->str[K_DESC] : "user problem";
-    if (with_j2) {
-        pb_problem_init_j2(p, cs->name, desc, mu, radius, j2, r0, v0);
-        p->units = units;
-    } else {
-        pb_problem_init_twobody(p, cs->name, desc, units, mu, r0, v0);
-        p->body_radius = radius;
-    }
-    if (L[K_ORBITS] && L[K_HORIZON])
-        FAIL_K(pf_later(cs, K_ORBITS, K_HORIZON), "give orbits or horizon_s, not both");
-    if (L[K_ORBITS]) {
-        if (!(p->period > 0))
-            FAIL_K(K_ORBITS, "the orbit is open (no period); give horizon_s instead");
-        if (!(cs->num[K_ORBITS] > 0))
-            FAIL_K(K_ORBITS, "must be > 0 (got %g)", cs->num[K_ORBITS]);
-        if (!(cs->num[K_ORBITS] >= PF_HORIZON_MIN && cs->num[K_ORBITS] <= PF_HORIZON_MAX))
-            FAIL_K(K_ORBITS, "must be within [%g, %g] (got %g)", PF_HORIZON_MIN, PF_HORIZON_MAX,
-                   cs->num[K_ORBITS]);
-        p->default_orbits = cs->num[K_ORBITS];
-        p->default_horizon_s = 0.0;
-    } else if (L[K_HORIZON]) {
-        if (!(cs->num[K_HORIZON] > 0))
-            FAIL_K(K_HORIZON, "must be > 0 (got %g)", cs->num[K_HORIZON]);
-        /* at least a little of the periapsis passage (the period of a circle
-         * at the periapsis distance, which is below the period of any
-         * ellipse: a near-escape ellipse's period is no guide to a short
-         * horizon), at most as many periods as `orbits` allows */
-        double tp = 2.0 * M_PI * sqrt(rp * rp * rp / mu), ts = p->period > 0 ? p->period : tp;
-        double hs = cs->num[K_HORIZON];
-        if (!(hs >= PF_HORIZON_MIN * tp))
-            FAIL_K(K_HORIZON, "must be at least %g times the periapsis time scale %g (got %g)",
-                   PF_HORIZON_MIN, tp, hs);
-        if (!(hs <= PF_HORIZON_MAX * ts))
-            FAIL_K(K_HORIZON, "must be at most %g times the %s %g (got %g)", PF_HORIZON_MAX,
-                   p->period > 0 ? "period" : "periapsis time scale", ts, hs);
-        /* a horizon given in seconds stays in seconds (ids read __s<seconds>) */
-        p->default_horizon_s = cs->num[K_HORIZON];
-        p->default_orbits = 0.0;
-    } else if (!(p->period > 0)) {
-        FAIL_K(K_HORIZON, "missing in case '%s' (an open orbit needs horizon_s)", cs->name);
-    } else {
-        p->default_orbits = 10.0;
-    }
-#undef FAIL_K
-    if (radius > 0 && rp < radius && c->warn) {
-        char msg[512];
-        const char *lu = units == PB_UNITS_KM_S ? " km" : "";
-        snprintf(msg, sizeof msg, "%s:%d: case '%s': periapsis %.3f%s is below the body's "
-                 "surface (radius %.3f%s)", c->path, cs->line, cs->name, rp, lu, radius, lu);
-        c->warn(msg);
-    }
-    /* J2 is about 1e-3 for the Earth and of that order for planets (common
-     * practice); anything outside (0, 0.1) is most likely a typing error */
-    if (with_j2 && !(j2 > 0 && j2 < 0.1) && c->warn) {
-        char msg[512];
-        snprintf(msg, sizeof msg, "%s:%d: case '%s': j2 = %g is outside (0, 0.1); is it "
-                 "unnormalized?", c->path, L[K_J2] ? L[K_J2] : cs->line, cs->name, j2);
-        c->warn(msg);
-    }
-    c->case_lines[c->n] = cs->line;
+    c->case_lines[c->n] = c->cur.line;
     c->n++;
     return 0;
 }

@@ -632,3 +632,80 @@ Test(cli, long_fixed_step_run_is_announced)
     cr_assert_stderr_eq_str("propbench run: warning: 1e+10 steps of fixed-step integration: at 50 to 500 ns "
                             "a step that is 8.33 to 83.3 minutes of one core; --max-steps N ends a case early\n");
 }
+
+/* The fingerprint of the first case of dir/summary.json into fp. */
+static void cli_first_fingerprint(const char *dir, char *fp, size_t len)
+{
+    char path[400];
+    snprintf(path, sizeof path, "%s/summary.json", dir);
+    json_t *doc = json_load_file(path, 0, NULL);
+    cr_assert_not_null(doc, "no %s", path);
+    const char *s = json_string_value(json_object_get(json_array_get(json_object_get(doc, "cases"), 0),
+                                                      "fingerprint"));
+    cr_assert_not_null(s);
+    snprintf(fp, len, "%s", s);
+    json_decref(doc);
+}
+
+/* One case-spec default for every verb, each verb keeping its numbers. An
+ * adaptive method shortens steps to land on the linear sample times, so its
+ * final-state fingerprint shows how many samples a case took: run's default
+ * is --samples 100; a sweep's case is run's with --samples 50; select's
+ * printed run command (run's defaults) reproduces its answer exactly. */
+Test(cli, case_spec_default_kept_by_each_verb)
+{
+    cr_assert_eq(cli((const char *[]){"run", "--help", NULL}), 0);
+    cr_assert(strstr(out_buf, "(default 3; 0: no timing)"), "%s", out_buf);
+    cr_assert(strstr(out_buf, "linear samples for plots (default 100)"), "%s", out_buf);
+
+    char dir[256], d[5][300], fp[4][64], sel[300];
+    pbt_tmpdir(dir, sizeof dir);
+    for (int i = 0; i < 5; i++)
+        snprintf(d[i], sizeof d[i], "%s/d%d", dir, i);
+    snprintf(sel, sizeof sel, "%s/sel.json", dir);
+    const char *run[] = {"run", "--problem", "kepler-e0.5", "--method", "rkf45", "--tolerance", "1e-8",
+                         "--orbits", "10", "--repeats", "0", "--quiet", "--out", d[0], NULL, NULL, NULL};
+    cr_assert_eq(cli(run), 0, "%s", err_buf);
+    run[13] = d[1];
+    run[14] = "--samples";
+    run[15] = "100";
+    cr_assert_eq(cli(run), 0, "%s", err_buf);
+    run[13] = d[2];
+    run[15] = "50";
+    cr_assert_eq(cli(run), 0, "%s", err_buf);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0.5", "--methods", "rkf45", "--tolerances",
+                                     "1e-8", "--orbits", "10", "--repeats", "0", "--quiet", "--out", d[3], NULL}),
+                 0, "%s", err_buf);
+    for (int i = 0; i < 4; i++)
+        cli_first_fingerprint(d[i], fp[i], sizeof fp[i]);
+    cr_assert_str_eq(fp[0], fp[1], "run's default is not --samples 100");
+    cr_assert_str_neq(fp[1], fp[2], "the sample count no longer shows in the fingerprint");
+    cr_assert_str_eq(fp[3], fp[2], "a sweep's case is not run's with --samples 50");
+
+    cr_assert_eq(cli((const char *[]){"select", "--problem", "kepler-e0.5", "--orbits", "10", "--max-pos-err", "1e-4",
+                                     "--methods", "rkf45", "--out", sel, "--quiet", NULL}), 0, "%s", err_buf);
+    json_t *doc = json_load_file(sel, 0, NULL);
+    cr_assert_not_null(doc);
+    json_t *first = json_array_get(json_object_get(doc, "ranking"), 0);
+    char command[768], want[64];
+    snprintf(command, sizeof command, "%s", json_string_value(json_object_get(first, "run_command")));
+    snprintf(want, sizeof want, "%s", json_string_value(json_object_get(first, "fingerprint")));
+    json_decref(doc);
+    const char *a[32];
+    int n = 0;
+    char *save = NULL;
+    strtok_r(command, " ", &save); /* "propbench" */
+    for (char *t = strtok_r(NULL, " ", &save); t && n < 24; t = strtok_r(NULL, " ", &save))
+        a[n++] = t;
+    const char *tail[] = {"--repeats", "0", "--quiet", "--out", d[4], NULL};
+    for (int i = 0; tail[i]; i++)
+        a[n++] = tail[i];
+    a[n] = NULL;
+    cr_assert_eq(cli(a), 0, "%s", err_buf);
+    char got[64];
+    cli_first_fingerprint(d[4], got, sizeof got);
+    cr_assert_str_eq(got, want, "select's run command does not reproduce its answer");
+    char cmd[600];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+    cr_assert_eq(system(cmd), 0);
+}

@@ -8,6 +8,7 @@
 #include <string.h>
 #include <unistd.h>
 #include "problems/problem_file.h"
+#include "problems/problem_file_case.h"
 #include "problems/twobody.h"
 #include "test_support.h"
 
@@ -481,4 +482,44 @@ Test(problem_file, near_escape_ellipse_short_horizon)
     free(c);
     pft_expect_error(NORM "r = 1,0,0\nv = 0,1.41421,0\nhorizon_s = 1e-4\n", 5, "horizon_s",
                      "at least 0.001 times the periapsis time scale 6.28319");
+}
+
+/* The "unknown key" message lists exactly the keys of the reader's table,
+ * and the reader accepts each of them: walking the table, not a copy of it,
+ * makes this fail when a key is added and the message would miss it. */
+Test(problem_file, unknown_key_message_lists_every_accepted_key)
+{
+    FILE *f = fopen(pft_path, "w");
+    cr_assert_not_null(f);
+    fputs("[case demo]\nunits = normalized\nno_such_key = 1\n", f);
+    fclose(f);
+    pb_problem *c = NULL;
+    int n = 0;
+    char err[4096]; /* room to see the message whole, however long the table grows */
+    cr_assert_eq(pb_problem_file_read(pft_path, &c, &n, err, sizeof err, pft_warn), PB_EINVAL);
+    const char *open = strstr(err, "unknown key (known: ");
+    cr_assert_not_null(open, "%s", err);
+    open += strlen("unknown key (known: ");
+    const char *close = strchr(open, ')');
+    cr_assert_not_null(close, "the key list is cut short: %s", err);
+    char list[4096], padded[4200];
+    snprintf(list, sizeof list, "%.*s", (int)(close - open), open);
+    /* ", a, e," finds each key as a whole item, not inside another ("a" in "raan_deg") */
+    snprintf(padded, sizeof padded, ", %s,", list);
+    int listed = 0;
+    char *save = NULL;
+    for (char *tok = strtok_r(list, ",", &save); tok; tok = strtok_r(NULL, ",", &save))
+        listed++;
+    int nkeys = 0;
+    for (const char *const *k = pb_problem_file_keys; *k; k++, nkeys++) {
+        char word[100];
+        snprintf(word, sizeof word, ", %s,", *k);
+        cr_assert_not_null(strstr(padded, word), "key '%s' missing from '%s'", *k, err);
+        char text[200];
+        snprintf(text, sizeof text, "[case demo]\n%s = 1\n", *k);
+        pft_read(text, NULL, NULL);
+        cr_assert_null(strstr(pft_err, "unknown key"), "the reader refuses its own key '%s': %s", *k, pft_err);
+    }
+    cr_assert_gt(nkeys, 0);
+    cr_assert_eq(listed, nkeys, "the message lists %d keys, the table holds %d: %s", listed, nkeys, err);
 }

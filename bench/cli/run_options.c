@@ -4,6 +4,7 @@
 #include "bench/cli/run_options.h"
 #include "bench/cli/cli.h"
 #include "bench/cli/problem_source.h"
+#include "bench/study/suites.h"
 
 enum { OPT_PROBLEM = 256, OPT_FILE, OPT_CASE, OPT_METHOD, OPT_SPO, OPT_STEP, OPT_TOL,
        OPT_ORBITS, OPT_HORIZON, OPT_OUT, OPT_COMP, OPT_REPEATS, OPT_COST, OPT_SAMPLES,
@@ -32,6 +33,8 @@ static const struct option run_long_options[] = {
 
 void pb_run_options_help(FILE *f)
 {
+    pb_case_spec d;
+    pb_case_spec_default(&d); /* the defaults shown are the ones used */
     fprintf(f,
 "case options:\n"
 "  --problem NAME          a built-in problem (propbench list problems)\n"
@@ -44,23 +47,80 @@ void pb_run_options_help(FILE *f)
 "  --orbits N              horizon in periods (default: the problem's)\n"
 "  --horizon-s S           horizon in time units (problems without a period)\n"
 "  --compensated           compensated summation of the state update\n"
-"  --repeats N             timing repeats, median reported (default 3; 0: no timing)\n"
+"  --repeats N             timing repeats, median reported (default %d; 0: no timing)\n"
 "  --eval-cost-us X        your cost of one force evaluation, for projected cost\n"
-"  --samples N             linear samples for plots (default 100)\n"
+"  --samples N             linear samples for plots (default %d)\n"
 "  --max-steps N           step budget (default: automatic)\n"
 "  --out DIR               run directory\n"
-"  --quiet                 print nothing but errors\n");
+"  --quiet                 print nothing but errors\n", d.repeats, d.linear_samples);
+}
+
+/* The options that take a number: parse a into o, checked against its
+ * range. Returns -1 to go on, or the exit status of the error it printed. */
+static int run_options_number(const char *verb, int c, const char *a, pb_run_options *o)
+{
+    switch (c) {
+    case OPT_SPO:
+        if (pb_cli_long(verb, "--steps-per-orbit", a, &o->steps_per_orbit)) return PB_EXIT_USAGE;
+        if (o->steps_per_orbit <= 0 || o->steps_per_orbit > 100000000L)
+            return pb_cli_error(verb, "--steps-per-orbit must be in 1..1e8, got '%s'", a);
+        o->have_steps = 1;
+        break;
+    case OPT_STEP:
+        if (pb_cli_double(verb, "--step", a, &o->step)) return PB_EXIT_USAGE;
+        if (!(o->step > 0)) return pb_cli_error(verb, "--step must be positive, got '%s'", a);
+        o->have_step = 1;
+        break;
+    case OPT_TOL:
+        if (pb_cli_double(verb, "--tolerance", a, &o->tolerance)) return PB_EXIT_USAGE;
+        if (!(o->tolerance > 0 && o->tolerance < 1))
+            return pb_cli_error(verb, "--tolerance must be in (0, 1), got '%s'", a);
+        o->have_tol = 1;
+        break;
+    case OPT_ORBITS:
+        if (pb_cli_double(verb, "--orbits", a, &o->orbits)) return PB_EXIT_USAGE;
+        if (!(o->orbits > 0) || o->orbits > PB_CLI_ORBITS_MAX)
+            return pb_cli_error(verb, "--orbits must be in (0, %g], got '%s'", PB_CLI_ORBITS_MAX, a);
+        o->have_orbits = 1;
+        break;
+    case OPT_HORIZON:
+        if (pb_cli_double(verb, "--horizon-s", a, &o->horizon_s)) return PB_EXIT_USAGE;
+        if (!(o->horizon_s > 0)) return pb_cli_error(verb, "--horizon-s must be positive, got '%s'", a);
+        o->have_horizon = 1;
+        break;
+    case OPT_REPEATS:
+        if (pb_cli_long(verb, "--repeats", a, &o->repeats)) return PB_EXIT_USAGE;
+        if (o->repeats < 0 || o->repeats > 1000)
+            return pb_cli_error(verb, "--repeats must be in 0..1000, got '%s'", a);
+        break;
+    case OPT_COST:
+        if (pb_cli_double(verb, "--eval-cost-us", a, &o->eval_cost_us)) return PB_EXIT_USAGE;
+        if (!(o->eval_cost_us >= 0)) return pb_cli_error(verb, "--eval-cost-us must be >= 0, got '%s'", a);
+        break;
+    case OPT_SAMPLES:
+        if (pb_cli_long(verb, "--samples", a, &o->samples)) return PB_EXIT_USAGE;
+        if (o->samples < 0 || o->samples > 100000)
+            return pb_cli_error(verb, "--samples must be in 0..100000, got '%s'", a);
+        break;
+    case OPT_MAXSTEPS:
+        if (pb_cli_long(verb, "--max-steps", a, &o->max_steps)) return PB_EXIT_USAGE;
+        if (o->max_steps <= 0) return pb_cli_error(verb, "--max-steps must be positive, got '%s'", a);
+        break;
+    }
+    return -1;
 }
 
 int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options *o,
                          void (*help)(FILE *))
 {
+    pb_case_spec d;
+    pb_case_spec_default(&d);
     memset(o, 0, sizeof *o);
-    o->repeats = 3;
-    o->samples = 100;
+    o->repeats = d.repeats;
+    o->samples = d.linear_samples;
     optind = 1;
     opterr = 0;
-    int c;
+    int c, rc;
     while ((c = getopt_long(argc, argv, ":", run_long_options, NULL)) != -1) {
         const char *a = optarg;
         switch (c) {
@@ -71,51 +131,10 @@ int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options
         case OPT_OUT: o->out = a; break;
         case OPT_COMP: o->compensated = 1; break;
         case OPT_QUIET: o->quiet = 1; break;
-        case OPT_SPO:
-            if (pb_cli_long(verb, "--steps-per-orbit", a, &o->steps_per_orbit)) return PB_EXIT_USAGE;
-            if (o->steps_per_orbit <= 0 || o->steps_per_orbit > 100000000L)
-                return pb_cli_error(verb, "--steps-per-orbit must be in 1..1e8, got '%s'", a);
-            o->have_steps = 1;
-            break;
-        case OPT_STEP:
-            if (pb_cli_double(verb, "--step", a, &o->step)) return PB_EXIT_USAGE;
-            if (!(o->step > 0)) return pb_cli_error(verb, "--step must be positive, got '%s'", a);
-            o->have_step = 1;
-            break;
-        case OPT_TOL:
-            if (pb_cli_double(verb, "--tolerance", a, &o->tolerance)) return PB_EXIT_USAGE;
-            if (!(o->tolerance > 0 && o->tolerance < 1))
-                return pb_cli_error(verb, "--tolerance must be in (0, 1), got '%s'", a);
-            o->have_tol = 1;
-            break;
-        case OPT_ORBITS:
-            if (pb_cli_double(verb, "--orbits", a, &o->orbits)) return PB_EXIT_USAGE;
-            if (!(o->orbits > 0) || o->orbits > PB_CLI_ORBITS_MAX)
-                return pb_cli_error(verb, "--orbits must be in (0, %g], got '%s'", PB_CLI_ORBITS_MAX, a);
-            o->have_orbits = 1;
-            break;
-        case OPT_HORIZON:
-            if (pb_cli_double(verb, "--horizon-s", a, &o->horizon_s)) return PB_EXIT_USAGE;
-            if (!(o->horizon_s > 0)) return pb_cli_error(verb, "--horizon-s must be positive, got '%s'", a);
-            o->have_horizon = 1;
-            break;
-        case OPT_REPEATS:
-            if (pb_cli_long(verb, "--repeats", a, &o->repeats)) return PB_EXIT_USAGE;
-            if (o->repeats < 0 || o->repeats > 1000)
-                return pb_cli_error(verb, "--repeats must be in 0..1000, got '%s'", a);
-            break;
-        case OPT_COST:
-            if (pb_cli_double(verb, "--eval-cost-us", a, &o->eval_cost_us)) return PB_EXIT_USAGE;
-            if (!(o->eval_cost_us >= 0)) return pb_cli_error(verb, "--eval-cost-us must be >= 0, got '%s'", a);
-            break;
-        case OPT_SAMPLES:
-            if (pb_cli_long(verb, "--samples", a, &o->samples)) return PB_EXIT_USAGE;
-            if (o->samples < 0 || o->samples > 100000)
-                return pb_cli_error(verb, "--samples must be in 0..100000, got '%s'", a);
-            break;
-        case OPT_MAXSTEPS:
-            if (pb_cli_long(verb, "--max-steps", a, &o->max_steps)) return PB_EXIT_USAGE;
-            if (o->max_steps <= 0) return pb_cli_error(verb, "--max-steps must be positive, got '%s'", a);
+        case OPT_SPO: case OPT_STEP: case OPT_TOL: case OPT_ORBITS: case OPT_HORIZON:
+        case OPT_REPEATS: case OPT_COST: case OPT_SAMPLES: case OPT_MAXSTEPS:
+            if ((rc = run_options_number(verb, c, a, o)) >= 0)
+                return rc;
             break;
         case OPT_HELP:
             help(stdout);
@@ -131,9 +150,9 @@ int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options
     return -1;
 }
 
-int pb_run_options_spec(const char *verb, const pb_run_options *o, pb_case_spec *spec)
+/* The problem (named or from a file) and the method; -1 after a message. */
+static int run_options_problem_method(const char *verb, const pb_run_options *o, pb_case_spec *spec)
 {
-    memset(spec, 0, sizeof *spec);
     if (!o->problem == !o->problem_file) {
         pb_cli_error(verb, "give exactly one of --problem NAME or --problem-file FILE");
         return -1;
@@ -154,6 +173,13 @@ int pb_run_options_spec(const char *verb, const pb_run_options *o, pb_case_spec 
     }
     if (!(spec->method = pb_cli_method(verb, o->method)))
         return -1;
+    return 0;
+}
+
+/* The step or tolerance must suit the kind of method, and the horizon the
+ * problem; -1 after a message. */
+static int run_options_check_setting(const char *verb, const pb_run_options *o, const pb_case_spec *spec)
+{
     const pb_problem *p = &spec->problem;
     int fixed = (spec->method->flags & PB_KIND_FIXED) != 0;
     if (fixed && o->have_tol) {
@@ -184,6 +210,15 @@ int pb_run_options_spec(const char *verb, const pb_run_options *o, pb_case_spec 
         pb_cli_error(verb, "problem '%s' has no period: give --horizon-s instead of --orbits", p->name);
         return -1;
     }
+    return 0;
+}
+
+int pb_run_options_spec(const char *verb, const pb_run_options *o, pb_case_spec *spec)
+{
+    pb_case_spec_default(spec);
+    if (run_options_problem_method(verb, o, spec) || run_options_check_setting(verb, o, spec))
+        return -1;
+    const pb_problem *p = &spec->problem;
     spec->steps_per_orbit = (int)o->steps_per_orbit;
     spec->step_s = o->have_step ? o->step : 0;
     spec->tolerance = o->tolerance;
@@ -201,6 +236,5 @@ int pb_run_options_spec(const char *verb, const pb_run_options *o, pb_case_spec 
     spec->eval_cost_us = o->eval_cost_us;
     spec->linear_samples = (int)o->samples;
     spec->max_steps = o->max_steps;
-    spec->cache_dir = "results/cache";
     return 0;
 }

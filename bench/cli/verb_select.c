@@ -14,6 +14,7 @@
 #include "bench/study/select.h"
 #include "bench/study/progress.h"
 #include "bench/cli/problem_source.h"
+#include "bench/study/suites.h"
 
 static void select_help(FILE *f)
 {
@@ -48,7 +49,17 @@ static int select_cmp(const void *a, const void *b)
     return (x->confirmed.evals > y->confirmed.evals) - (x->confirmed.evals < y->confirmed.evals);
 }
 
-int pb_cli_select(int argc, char **argv)
+/* What the command line asks for; numbers left 0 were not given. */
+typedef struct select_options {
+    const char *problem, *file, *case_name, *out;
+    char *methods;
+    double orbits, horizon, pos, pos_m, en, cost;
+    int quiet;
+} select_options;
+
+/* Parse argv into o. Returns -1 to go on, or an exit status to return at
+ * once (0 after --help, 2 after an error, which it has printed). */
+static int select_parse(int argc, char **argv, select_options *o)
 {
     static const struct option opts[] = {
         {"problem", required_argument, 0, SE_PROBLEM}, {"problem-file", required_argument, 0, SE_FILE},
@@ -58,28 +69,27 @@ int pb_cli_select(int argc, char **argv)
         {"methods", required_argument, 0, SE_METHODS}, {"eval-cost-us", required_argument, 0, SE_COST},
         {"out", required_argument, 0, SE_OUT}, {"quiet", no_argument, 0, SE_QUIET},
         {"help", no_argument, 0, SE_HELP}, {0, 0, 0, 0}};
-    const char *problem = NULL, *file = NULL, *case_name = NULL, *out = NULL;
-    char *methods = NULL;
-    double orbits = 0, horizon = 0, pos = 0, pos_m = 0, en = 0, cost = 1;
-    int quiet = 0, c;
+    memset(o, 0, sizeof *o);
+    o->cost = 1;
     optind = 1;
     opterr = 0;
+    int c;
     while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
         double *dst = NULL;
         const char *name = NULL;
         switch (c) {
-        case SE_PROBLEM: problem = optarg; break;
-        case SE_FILE: file = optarg; break;
-        case SE_CASE: case_name = optarg; break;
-        case SE_METHODS: methods = optarg; break;
-        case SE_OUT: out = optarg; break;
-        case SE_QUIET: quiet = 1; break;
-        case SE_ORBITS: dst = &orbits; name = "--orbits"; break;
-        case SE_HORIZON: dst = &horizon; name = "--horizon-s"; break;
-        case SE_POS: dst = &pos; name = "--max-pos-err"; break;
-        case SE_POSM: dst = &pos_m; name = "--max-pos-err-m"; break;
-        case SE_EN: dst = &en; name = "--max-energy-err"; break;
-        case SE_COST: dst = &cost; name = "--eval-cost-us"; break;
+        case SE_PROBLEM: o->problem = optarg; break;
+        case SE_FILE: o->file = optarg; break;
+        case SE_CASE: o->case_name = optarg; break;
+        case SE_METHODS: o->methods = optarg; break;
+        case SE_OUT: o->out = optarg; break;
+        case SE_QUIET: o->quiet = 1; break;
+        case SE_ORBITS: dst = &o->orbits; name = "--orbits"; break;
+        case SE_HORIZON: dst = &o->horizon; name = "--horizon-s"; break;
+        case SE_POS: dst = &o->pos; name = "--max-pos-err"; break;
+        case SE_POSM: dst = &o->pos_m; name = "--max-pos-err-m"; break;
+        case SE_EN: dst = &o->en; name = "--max-energy-err"; break;
+        case SE_COST: dst = &o->cost; name = "--eval-cost-us"; break;
         case SE_HELP: select_help(stdout); return PB_EXIT_OK;
         case ':': return pb_cli_error("select", "option %s needs a value", argv[optind - 1]);
         default: return pb_cli_error("select", "unknown option '%s' (see propbench select --help)", argv[optind - 1]);
@@ -87,7 +97,8 @@ int pb_cli_select(int argc, char **argv)
         if (dst) {
             if (pb_cli_double("select", name, optarg, dst))
                 return PB_EXIT_USAGE;
-            if (!(*dst > 0) && dst != &cost)
+            /* a cost may be 0 (no force-model cost in the projection); nothing else may */
+            if (!(*dst > 0) && dst != &o->cost)
                 return pb_cli_error("select", "%s must be positive, got '%s'", name, optarg);
             if (!(*dst >= 0))
                 return pb_cli_error("select", "%s must be >= 0, got '%s'", name, optarg);
@@ -95,63 +106,88 @@ int pb_cli_select(int argc, char **argv)
     }
     if (optind < argc)
         return pb_cli_error("select", "unexpected argument '%s'", argv[optind]);
-    pb_case_spec base;
-    memset(&base, 0, sizeof base);
-    if (!problem == !file)
-        return pb_cli_error("select", "give exactly one of --problem NAME or --problem-file FILE");
-    if (problem ? pb_cli_problem("select", problem, &base.problem)
-                : pb_problem_source_file("select", file, case_name, &base.problem))
-        return PB_EXIT_USAGE;
-    const pb_problem *p = &base.problem;
-    if (!orbits == !horizon)
-        return pb_cli_error("select", "give exactly one of --orbits N or --horizon-s S");
-    if (orbits > PB_CLI_ORBITS_MAX)
-        return pb_cli_error("select", "--orbits must be in (0, %g], got '%.6g'", PB_CLI_ORBITS_MAX, orbits);
-    if (orbits > 0 && !(p->period > 0))
-        return pb_cli_error("select", "problem '%s' has no period: give --horizon-s", p->name);
-    if (pos > 0 && pos_m > 0)
-        return pb_cli_error("select", "give --max-pos-err or --max-pos-err-m, not both");
-    if (pos_m > 0 && p->units != PB_UNITS_KM_S)
-        return pb_cli_error("select", "--max-pos-err-m needs a problem in km (problem '%s' is normalized)", p->name);
-    pb_requirement req = {pos > 0 ? pos : pos_m * 1e-3, en};
-    if (!(req.max_pos_err > 0) && !(req.max_energy_rel > 0))
-        return pb_cli_error("select", "give a requirement: --max-pos-err, --max-pos-err-m or --max-energy-err");
-    if (req.max_energy_rel > 0 && !p->energy)
-        return pb_cli_error("select", "problem '%s' has no energy integral", p->name);
-    base.orbits = orbits;
-    base.horizon_s = horizon;
-    base.eval_cost_us = cost;
-    base.repeats = 3;
-    base.linear_samples = 100; /* as `run` samples by default, so a run reproduces the answer */
-    base.cache_dir = "results/cache";
-    {
-        /* the coarsest step the search tries (4 a period) must make a case
-         * run can take at all; past that the horizon is not a question */
-        pb_case_spec probe = base;
-        probe.method = pb_method_find("rk4");
-        probe.steps_per_orbit = 4;
-        char why[512];
-        if (probe.method && pb_case_validate(&probe, why, sizeof why))
-            return pb_cli_error("select", "%s %.6g: %s", orbits > 0 ? "--orbits" : "--horizon-s",
-                                orbits > 0 ? orbits : horizon, why);
-        double coarsest = pb_case_fixed_steps(&probe);
-        if (coarsest > PB_SELECT_MAX_STEPS)
-            return pb_cli_error("select", "%s %.6g: even the search's coarsest step (4 a period) needs "
-                                "%.3g steps, past its budget of %.3g a case; shorten the horizon",
-                                orbits > 0 ? "--orbits" : "--horizon-s", orbits > 0 ? orbits : horizon,
-                                coarsest, PB_SELECT_MAX_STEPS);
-    }
+    return -1;
+}
 
-    const pb_method_type *list[64];
+/* The horizon option as given, for messages and the reproducing command. */
+static const char *select_horizon_option(const select_options *o)
+{
+    return o->orbits > 0 ? "--orbits" : "--horizon-s";
+}
+
+static double select_horizon_value(const select_options *o)
+{
+    return o->orbits > 0 ? o->orbits : o->horizon;
+}
+
+/* The problem, horizon and requirement into base and req, each checked
+ * against the others; 0, or the exit status of the error it printed. */
+static int select_setup(const select_options *o, pb_case_spec *base, pb_requirement *req)
+{
+    pb_case_spec_default(base);
+    if (!o->problem == !o->file)
+        return pb_cli_error("select", "give exactly one of --problem NAME or --problem-file FILE");
+    if (o->problem ? pb_cli_problem("select", o->problem, &base->problem)
+                   : pb_problem_source_file("select", o->file, o->case_name, &base->problem))
+        return PB_EXIT_USAGE;
+    const pb_problem *p = &base->problem;
+    if (!o->orbits == !o->horizon)
+        return pb_cli_error("select", "give exactly one of --orbits N or --horizon-s S");
+    if (o->orbits > PB_CLI_ORBITS_MAX)
+        return pb_cli_error("select", "--orbits must be in (0, %g], got '%.6g'", PB_CLI_ORBITS_MAX, o->orbits);
+    if (o->orbits > 0 && !(p->period > 0))
+        return pb_cli_error("select", "problem '%s' has no period: give --horizon-s", p->name);
+    if (o->pos > 0 && o->pos_m > 0)
+        return pb_cli_error("select", "give --max-pos-err or --max-pos-err-m, not both");
+    if (o->pos_m > 0 && p->units != PB_UNITS_KM_S)
+        return pb_cli_error("select", "--max-pos-err-m needs a problem in km (problem '%s' is normalized)", p->name);
+    req->max_pos_err = o->pos > 0 ? o->pos : o->pos_m * 1e-3;
+    req->max_energy_rel = o->en;
+    if (!(req->max_pos_err > 0) && !(req->max_energy_rel > 0))
+        return pb_cli_error("select", "give a requirement: --max-pos-err, --max-pos-err-m or --max-energy-err");
+    if (req->max_energy_rel > 0 && !p->energy)
+        return pb_cli_error("select", "problem '%s' has no energy integral", p->name);
+    base->orbits = o->orbits;
+    base->horizon_s = o->horizon;
+    base->eval_cost_us = o->cost;
+    /* linear samples stay at the default `run` takes, so the printed run
+     * command reproduces the answer */
+    return 0;
+}
+
+/* The coarsest step the search tries (4 a period) must make a case run can
+ * take at all; past that the horizon is not a question. 0, or the exit
+ * status of the error it printed. */
+static int select_check_horizon(const select_options *o, const pb_case_spec *base)
+{
+    pb_case_spec probe = *base;
+    probe.method = pb_method_find("rk4");
+    probe.steps_per_orbit = 4;
+    char why[512];
+    if (probe.method && pb_case_validate(&probe, why, sizeof why))
+        return pb_cli_error("select", "%s %.6g: %s", select_horizon_option(o), select_horizon_value(o), why);
+    double coarsest = pb_case_fixed_steps(&probe);
+    if (coarsest > PB_SELECT_MAX_STEPS)
+        return pb_cli_error("select", "%s %.6g: even the search's coarsest step (4 a period) needs "
+                            "%.3g steps, past its budget of %.3g a case; shorten the horizon",
+                            select_horizon_option(o), select_horizon_value(o), coarsest,
+                            PB_SELECT_MAX_STEPS);
+    return 0;
+}
+
+/* The methods to search into list (at most 64): those named, or every one
+ * that can run the problem. Returns how many, or -1 after a message. */
+static int select_methods(const select_options *o, const pb_problem *p, const pb_method_type **list)
+{
     int n = 0;
-    if (methods) {
+    if (o->methods) {
         char *names[64];
-        n = pb_cli_split("select", "--methods", methods, names, 64);
+        n = pb_cli_split("select", "--methods", o->methods, names, 64);
         if (n < 0)
-            return PB_EXIT_USAGE;
+            return -1;
         for (int i = 0; i < n; i++)
             if (!(list[i] = pb_cli_method("select", names[i])))
-                return PB_EXIT_USAGE;
+                return -1;
     } else {
         for (const pb_method_type *const *t = pb_method_table; *t && n < 64; t++)
             list[n++] = *t;
@@ -163,124 +199,156 @@ int pb_cli_select(int argc, char **argv)
             continue;
         }
         /* a method asked for by name that cannot run here is bad input */
-        if (methods)
-            return pb_cli_error("select", "method '%s' needs a velocity-independent force, but "
-                                "problem '%s' depends on velocity", list[i]->name, p->name);
-    }
-    char path[4096];
-    if (out)
-        snprintf(path, sizeof path, "%s", out);
-    else
-        snprintf(path, sizeof path, "results/runs/select-%s.json", p->name);
-    /* make sure the answer can be written before spending the search on it */
-    {
-        char dir[4096];
-        snprintf(dir, sizeof dir, "%s", path);
-        char *slash = strrchr(dir, '/');
-        if (slash) {
-            *slash = 0;
-            if (dir[0] && pb_mkdirs(dir))
-                return pb_cli_error("select", "cannot create %s: %s", dir, strerror(errno));
+        if (o->methods) {
+            pb_cli_error("select", "method '%s' needs a velocity-independent force, but "
+                         "problem '%s' depends on velocity", list[i]->name, p->name);
+            return -1;
         }
-        char probe[4200];
-        snprintf(probe, sizeof probe, "%s.probe.%ld", path, (long)getpid());
-        FILE *f = fopen(probe, "w");
-        if (!f)
-            return pb_cli_error("select", "cannot write %s: %s", path, strerror(errno));
-        fclose(f);
-        unlink(probe);
     }
+    return m;
+}
 
-    pb_selection *sel = calloc((size_t)(m > 0 ? m : 1), sizeof *sel);
-    if (!sel)
-        return pb_cli_error("select", "out of memory");
-    pb_progress prog;
-    pb_progress_start(&prog, pb_cli_progress_wanted(quiet), m, "methods");
-    for (int i = 0; i < m; i++) {
-        pb_progress_update(&prog, i, list[i]->name);
-        if (pb_select_method(&base, list[i], &req, &sel[i]) < 0)
-            snprintf(sel[i].note, sizeof sel[i].note, "the case could not be run");
+/* Where the selection goes, made sure to be writable before the search is
+ * spent on it; 0, or the exit status of the error it printed. */
+static int select_out_path(const select_options *o, const pb_problem *p, char *path, size_t len)
+{
+    if (o->out)
+        snprintf(path, len, "%s", o->out);
+    else
+        snprintf(path, len, "results/runs/select-%s.json", p->name);
+    char dir[4096];
+    snprintf(dir, sizeof dir, "%s", path);
+    char *slash = strrchr(dir, '/');
+    if (slash) {
+        *slash = 0;
+        if (dir[0] && pb_mkdirs(dir))
+            return pb_cli_error("select", "cannot create %s: %s", dir, strerror(errno));
     }
-    pb_progress_end(&prog);
+    char probe[4200];
+    snprintf(probe, sizeof probe, "%s.probe.%ld", path, (long)getpid());
+    FILE *f = fopen(probe, "w");
+    if (!f)
+        return pb_cli_error("select", "cannot write %s: %s", path, strerror(errno));
+    fclose(f);
+    unlink(probe);
+    return 0;
+}
+
+/* The `propbench run` that reproduces each answer found. */
+static void select_commands(const select_options *o, const pb_problem *p, pb_selection *sel, int m)
+{
     for (int i = 0; i < m; i++) {
         pb_selection *s = &sel[i];
         if (!s->found)
             continue;
         char src[600], set[64], hz[64];
-        if (problem)
-            snprintf(src, sizeof src, "--problem %s", problem);
+        if (o->problem)
+            snprintf(src, sizeof src, "--problem %s", o->problem);
         else
-            snprintf(src, sizeof src, "--problem-file %.400s --case %s", file, p->name);
+            snprintf(src, sizeof src, "--problem-file %.400s --case %s", o->file, p->name);
         if (s->method->flags & PB_KIND_FIXED)
             snprintf(set, sizeof set, "--steps-per-orbit %d", s->steps_per_orbit);
         else
             snprintf(set, sizeof set, "--tolerance %.3g", s->tolerance);
-        if (orbits > 0)
-            snprintf(hz, sizeof hz, "--orbits %.17g", orbits);
-        else
-            snprintf(hz, sizeof hz, "--horizon-s %.17g", horizon);
+        snprintf(hz, sizeof hz, "%s %.17g", select_horizon_option(o), select_horizon_value(o));
         snprintf(s->command, sizeof s->command, "propbench run %s --method %s %s %s",
                  src, s->method->name, set, hz);
     }
+}
+
+/* The ranking table: one row a method, found ones ranked first. */
+static void select_print_rows(const pb_selection *sel, int m, int km)
+{
+    printf("%4s %-15s %-18s %10s %12s %12s %10s %12s\n", "rank", "method", "setting", "evals",
+           km ? "pos err [m]" : "pos err", "energy err", "ns/step", "projected s");
+    int rank = 0;
+    for (int i = 0; i < m; i++) {
+        const pb_selection *s = &sel[i];
+        char setting[40];
+        if (!s->found) {
+            printf("   - %-15s %s\n", s->method->name, s->note[0] ? s->note : "requirement not met");
+            continue;
+        }
+        if (s->method->flags & PB_KIND_FIXED)
+            snprintf(setting, sizeof setting, "%d steps/orbit", s->steps_per_orbit);
+        else
+            snprintf(setting, sizeof setting, "tol %.3g", s->tolerance);
+        const pb_case_result *r = &s->confirmed;
+        double pe = r->below_floor ? (double)NAN : (km ? 1e3 * r->pos_err_max : r->pos_err_max);
+        char mname[40];
+        snprintf(mname, sizeof mname, "%s%s", s->method->name, (s->method->flags & PB_FROM_GSL) ? "*" : "");
+        printf("%4d %-15s %-18s %10ld %12.3e %12.3e %10.1f %12.4g\n", ++rank, mname,
+               setting, r->evals, pe, r->energy_rel_max, r->ns_per_step, s->projected_s);
+    }
+}
+
+/* The notes under the table: GSL marks, output-grid cost, the verdict. */
+static void select_print_notes(const pb_selection *sel, int m, int found)
+{
+    int gsl_shown = 0;
+    for (int i = 0; i < m; i++)
+        gsl_shown |= sel[i].found && (sel[i].method->flags & PB_FROM_GSL);
+    if (gsl_shown)
+        printf("(* GSL's stepper)\n");
+    long cut_lo = -1, cut_hi = 0;
+    for (int i = 0; i < m; i++)
+        if (sel[i].found && (sel[i].method->flags & PB_KIND_ADAPTIVE)) {
+            long nc = sel[i].confirmed.output_cut;
+            cut_lo = cut_lo < 0 || nc < cut_lo ? nc : cut_lo;
+            cut_hi = nc > cut_hi ? nc : cut_hi;
+        }
+    if (cut_hi > 0)
+        printf("adaptive rows include %ld to %ld steps shortened to land on the sample times\n"
+               "(the output grid's cost; a propagator with dense output would not pay it)\n",
+               cut_lo, cut_hi);
+    if (!found)
+        printf("NO METHOD meets the requirement over this horizon.\n");
+    else
+        printf("cheapest by evaluations: %s; reproduce it with\n  %s\n"
+               "Benchmarks on idealised problems do not validate an operational propagator;\n"
+               "confirm with the mission's own verification.\n",
+               sel[0].method->name, sel[0].command);
+}
+
+static void select_print(const select_options *o, const pb_problem *p, const pb_requirement *req,
+                         const pb_selection *sel, int m, int found)
+{
+    int km = p->units == PB_UNITS_KM_S;
+    printf("selection for %s over %.6g %s", p->name, select_horizon_value(o),
+           o->orbits > 0 ? "orbits" : km ? "s" : "TU");
+    if (req->max_pos_err > 0)
+        printf(", position error <= %.3g %s", km ? 1e3 * req->max_pos_err : req->max_pos_err, km ? "m" : "DU");
+    if (req->max_energy_rel > 0)
+        printf(", energy error <= %.3g", req->max_energy_rel);
+    printf(", evaluation cost %.3g us\n", o->cost);
+    select_print_rows(sel, m, km);
+    select_print_notes(sel, m, found);
+}
+
+/* Search every method, rank, print and write the selection; the exit
+ * status: 0 when a method meets the requirement, 1 when none does. */
+static int select_run(const select_options *o, const pb_case_spec *base, const pb_requirement *req,
+                      const pb_method_type *const *list, int m, const char *path)
+{
+    pb_selection *sel = calloc((size_t)(m > 0 ? m : 1), sizeof *sel);
+    if (!sel)
+        return pb_cli_error("select", "out of memory");
+    pb_progress prog;
+    pb_progress_start(&prog, pb_cli_progress_wanted(o->quiet), m, "methods");
+    for (int i = 0; i < m; i++) {
+        pb_progress_update(&prog, i, list[i]->name);
+        if (pb_select_method(base, list[i], req, &sel[i]) < 0)
+            snprintf(sel[i].note, sizeof sel[i].note, "the case could not be run");
+    }
+    pb_progress_end(&prog);
+    select_commands(o, &base->problem, sel, m);
     qsort(sel, (size_t)m, sizeof *sel, select_cmp);
     int found = 0;
     for (int i = 0; i < m; i++)
         found += sel[i].found;
-    int km = p->units == PB_UNITS_KM_S;
-    if (!quiet) {
-        printf("selection for %s over %.6g %s", p->name, orbits > 0 ? orbits : horizon,
-               orbits > 0 ? "orbits" : km ? "s" : "TU");
-        if (req.max_pos_err > 0)
-            printf(", position error <= %.3g %s", km ? 1e3 * req.max_pos_err : req.max_pos_err, km ? "m" : "DU");
-        if (req.max_energy_rel > 0)
-            printf(", energy error <= %.3g", req.max_energy_rel);
-        printf(", evaluation cost %.3g us\n", cost);
-        printf("%4s %-15s %-18s %10s %12s %12s %10s %12s\n", "rank", "method", "setting", "evals",
-               km ? "pos err [m]" : "pos err", "energy err", "ns/step", "projected s");
-        int rank = 0;
-        for (int i = 0; i < m; i++) {
-            pb_selection *s = &sel[i];
-            char setting[40];
-            if (!s->found) {
-                printf("   - %-15s %s\n", s->method->name, s->note[0] ? s->note : "requirement not met");
-                continue;
-            }
-            if (s->method->flags & PB_KIND_FIXED)
-                snprintf(setting, sizeof setting, "%d steps/orbit", s->steps_per_orbit);
-            else
-                snprintf(setting, sizeof setting, "tol %.3g", s->tolerance);
-            const pb_case_result *r = &s->confirmed;
-            double pe = r->below_floor ? (double)NAN : (km ? 1e3 * r->pos_err_max : r->pos_err_max);
-            char mname[40];
-            snprintf(mname, sizeof mname, "%s%s", s->method->name, (s->method->flags & PB_FROM_GSL) ? "*" : "");
-            printf("%4d %-15s %-18s %10ld %12.3e %12.3e %10.1f %12.4g\n", ++rank, mname,
-                   setting, r->evals, pe, r->energy_rel_max, r->ns_per_step, s->projected_s);
-        }
-        int gsl_shown = 0;
-        for (int i = 0; i < m; i++)
-            gsl_shown |= sel[i].found && (sel[i].method->flags & PB_FROM_GSL);
-        if (gsl_shown)
-            printf("(* GSL's stepper)\n");
-        long cut_lo = -1, cut_hi = 0;
-        for (int i = 0; i < m; i++)
-            if (sel[i].found && (sel[i].method->flags & PB_KIND_ADAPTIVE)) {
-                long nc = sel[i].confirmed.output_cut;
-                cut_lo = cut_lo < 0 || nc < cut_lo ? nc : cut_lo;
-                cut_hi = nc > cut_hi ? nc : cut_hi;
-            }
-        if (cut_hi > 0)
-            printf("adaptive rows include %ld to %ld steps shortened to land on the sample times\n"
-                   "(the output grid's cost; a propagator with dense output would not pay it)\n",
-                   cut_lo, cut_hi);
-        if (!found)
-            printf("NO METHOD meets the requirement over this horizon.\n");
-        else
-            printf("cheapest by evaluations: %s; reproduce it with\n  %s\n"
-                   "Benchmarks on idealised problems do not validate an operational propagator;\n"
-                   "confirm with the mission's own verification.\n",
-                   sel[0].method->name, sel[0].command);
-    }
-    json_t *doc = pb_selection_json(&base, &req, sel, m);
+    if (!o->quiet)
+        select_print(o, &base->problem, req, sel, m, found);
+    json_t *doc = pb_selection_json(base, req, sel, m);
     int w = pb_json_write_atomic(path, doc);
     json_decref(doc);
     for (int i = 0; i < m; i++)
@@ -288,7 +356,27 @@ int pb_cli_select(int argc, char **argv)
     free(sel);
     if (w)
         return pb_cli_error("select", "cannot write %s", path);
-    if (!quiet)
+    if (!o->quiet)
         printf("wrote %s\n", path);
     return found ? PB_EXIT_OK : PB_EXIT_FAIL;
+}
+
+int pb_cli_select(int argc, char **argv)
+{
+    select_options o;
+    int rc = select_parse(argc, argv, &o);
+    if (rc >= 0)
+        return rc;
+    pb_case_spec base;
+    pb_requirement req;
+    if ((rc = select_setup(&o, &base, &req)) || (rc = select_check_horizon(&o, &base)))
+        return rc;
+    const pb_method_type *list[64];
+    int m = select_methods(&o, &base.problem, list);
+    if (m < 0)
+        return PB_EXIT_USAGE;
+    char path[4096];
+    if ((rc = select_out_path(&o, &base.problem, path, sizeof path)))
+        return rc;
+    return select_run(&o, &base, &req, list, m, path);
 }

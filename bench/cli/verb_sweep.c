@@ -34,7 +34,18 @@ static void sweep_help(FILE *f)
 enum { SW_SUITE = 300, SW_PROBLEMS, SW_METHODS, SW_STEPS, SW_TOLS, SW_ORBITS, SW_OUT,
        SW_SHARD, SW_REPEATS, SW_COST, SW_REPORT, SW_QUIET, SW_HELP, SW_COMP, SW_FILE, SW_CASE };
 
-int pb_cli_sweep(int argc, char **argv)
+/* What the command line asks for; a suite, or the lists of a grid. */
+typedef struct sweep_options {
+    const char *suite, *out, *pfile, *pcase;
+    char *problems, *methods, *steps, *tols;
+    double orbits, cost;      /* 0: not given */
+    long jobs, repeats;       /* repeats -1: not given */
+    int shard_k, shard_n, quiet, report, comp;
+} sweep_options;
+
+/* Parse argv into o. Returns -1 to go on, or an exit status to return at
+ * once (0 after --help, 2 after an error, which it has printed). */
+static int sweep_parse(int argc, char **argv, sweep_options *o)
 {
     static const struct option opts[] = {
         {"suite", required_argument, 0, SW_SUITE}, {"problems", required_argument, 0, SW_PROBLEMS},
@@ -46,50 +57,47 @@ int pb_cli_sweep(int argc, char **argv)
         {"compensated", no_argument, 0, SW_COMP},
         {"problem-file", required_argument, 0, SW_FILE}, {"case", required_argument, 0, SW_CASE},
         {"quiet", no_argument, 0, SW_QUIET}, {"help", no_argument, 0, SW_HELP}, {0, 0, 0, 0}};
-    const char *suite = NULL, *out = NULL, *pfile = NULL, *pcase = NULL;
-    pb_problem *fcases = NULL;
-    int nf = 0;
-    char *problems = NULL, *methods = NULL, *steps = NULL, *tols = NULL;
-    double orbits = 0, cost = 0;
-    long jobs = 1, repeats = -1;
-    int shard_k = 1, shard_n = 1, quiet = 0, report = 0, comp = 0;
+    memset(o, 0, sizeof *o);
+    o->jobs = 1;
+    o->repeats = -1;
+    o->shard_k = o->shard_n = 1;
     optind = 1;
     opterr = 0;
     int c;
     while ((c = getopt_long(argc, argv, ":j:", opts, NULL)) != -1) {
         switch (c) {
-        case SW_SUITE: suite = optarg; break;
-        case SW_FILE: pfile = optarg; break;
-        case SW_CASE: pcase = optarg; break;
-        case SW_PROBLEMS: problems = optarg; break;
-        case SW_METHODS: methods = optarg; break;
-        case SW_STEPS: steps = optarg; break;
-        case SW_TOLS: tols = optarg; break;
-        case SW_OUT: out = optarg; break;
-        case SW_QUIET: quiet = 1; break;
-        case SW_REPORT: report = 1; break;
-        case SW_COMP: comp = 1; break;
+        case SW_SUITE: o->suite = optarg; break;
+        case SW_FILE: o->pfile = optarg; break;
+        case SW_CASE: o->pcase = optarg; break;
+        case SW_PROBLEMS: o->problems = optarg; break;
+        case SW_METHODS: o->methods = optarg; break;
+        case SW_STEPS: o->steps = optarg; break;
+        case SW_TOLS: o->tols = optarg; break;
+        case SW_OUT: o->out = optarg; break;
+        case SW_QUIET: o->quiet = 1; break;
+        case SW_REPORT: o->report = 1; break;
+        case SW_COMP: o->comp = 1; break;
         case SW_ORBITS:
-            if (pb_cli_double("sweep", "--orbits", optarg, &orbits)) return PB_EXIT_USAGE;
-            if (!(orbits > 0) || orbits > PB_CLI_ORBITS_MAX)
+            if (pb_cli_double("sweep", "--orbits", optarg, &o->orbits)) return PB_EXIT_USAGE;
+            if (!(o->orbits > 0) || o->orbits > PB_CLI_ORBITS_MAX)
                 return pb_cli_error("sweep", "--orbits must be in (0, %g], got '%s'", PB_CLI_ORBITS_MAX, optarg);
             break;
         case SW_COST:
-            if (pb_cli_double("sweep", "--eval-cost-us", optarg, &cost)) return PB_EXIT_USAGE;
-            if (!(cost >= 0)) return pb_cli_error("sweep", "--eval-cost-us must be >= 0, got '%s'", optarg);
+            if (pb_cli_double("sweep", "--eval-cost-us", optarg, &o->cost)) return PB_EXIT_USAGE;
+            if (!(o->cost >= 0)) return pb_cli_error("sweep", "--eval-cost-us must be >= 0, got '%s'", optarg);
             break;
         case 'j':
-            if (pb_cli_long("sweep", "-j", optarg, &jobs)) return PB_EXIT_USAGE;
-            if (jobs < 1 || jobs > 256) return pb_cli_error("sweep", "-j must be in 1..256, got '%s'", optarg);
+            if (pb_cli_long("sweep", "-j", optarg, &o->jobs)) return PB_EXIT_USAGE;
+            if (o->jobs < 1 || o->jobs > 256) return pb_cli_error("sweep", "-j must be in 1..256, got '%s'", optarg);
             break;
         case SW_REPEATS:
-            if (pb_cli_long("sweep", "--repeats", optarg, &repeats)) return PB_EXIT_USAGE;
-            if (repeats < 0 || repeats > 1000) return pb_cli_error("sweep", "--repeats must be in 0..1000");
+            if (pb_cli_long("sweep", "--repeats", optarg, &o->repeats)) return PB_EXIT_USAGE;
+            if (o->repeats < 0 || o->repeats > 1000) return pb_cli_error("sweep", "--repeats must be in 0..1000");
             break;
         case SW_SHARD: {
             char tail;
-            if (sscanf(optarg, "%d/%d%c", &shard_k, &shard_n, &tail) != 2 || shard_n < 1 ||
-                shard_k < 1 || shard_k > shard_n)
+            if (sscanf(optarg, "%d/%d%c", &o->shard_k, &o->shard_n, &tail) != 2 || o->shard_n < 1 ||
+                o->shard_k < 1 || o->shard_k > o->shard_n)
                 return pb_cli_error("sweep", "--shard expects K/N with 1 <= K <= N, got '%s'", optarg);
             break;
         }
@@ -100,153 +108,215 @@ int pb_cli_sweep(int argc, char **argv)
     }
     if (optind < argc)
         return pb_cli_error("sweep", "unexpected argument '%s'", argv[optind]);
-    if (!suite == !(problems || pfile || methods))
+    if (!o->suite == !(o->problems || o->pfile || o->methods))
         return pb_cli_error("sweep", "give --suite NAME, or a grid with --problems (and/or "
                             "--problem-file) and --methods");
-    if (pcase && !pfile)
+    if (o->pcase && !o->pfile)
         return pb_cli_error("sweep", "--case goes with --problem-file");
+    return -1;
+}
 
-    pb_case_list list = {0, 0, NULL};
-    int rc = PB_EXIT_USAGE;
-    if (suite) {
-        if (pb_suite_expand(suite, &list)) {
-            pb_cli_error("sweep", "unknown suite '%s' (see propbench list suites)", suite);
-            goto out;
-        }
-    } else {
-        if (!(problems || pfile) || !methods) {
-            pb_cli_error("sweep", "a grid needs --problems or --problem-file, and --methods");
-            goto out;
-        }
-        if (pfile && pb_problem_source_cases("sweep", pfile, pcase, &fcases, &nf))
-            goto out;
-        char *pn[64], *mn[64], *sn[64], *tn[64];
-        int np = problems ? pb_cli_split("sweep", "--problems", problems, pn, 64) : 0;
-        int nm = pb_cli_split("sweep", "--methods", methods, mn, 64);
-        int ns = steps ? pb_cli_split("sweep", "--steps-per-orbit", steps, sn, 64) : 0;
-        int nt = tols ? pb_cli_split("sweep", "--tolerances", tols, tn, 64) : 0;
-        if (np < 0 || nm < 0 || ns < 0 || nt < 0)
-            goto out;
-        long sv[64];
-        double tv[64];
-        for (int i = 0; i < ns; i++)
-            if (pb_cli_long("sweep", "--steps-per-orbit", sn[i], &sv[i]))
-                goto out;
-            else if (sv[i] < 1 || sv[i] > 100000000L) {
-                pb_cli_error("sweep", "--steps-per-orbit values must be whole numbers in 1..1e8 (got '%s')", sn[i]);
-                goto out;
-            }
-        for (int i = 0; i < nt; i++)
-            if (pb_cli_double("sweep", "--tolerances", tn[i], &tv[i]))
-                goto out;
-            else if (!(tv[i] > 0 && tv[i] < 1)) {
-                pb_cli_error("sweep", "--tolerances values must be in (0, 1) (got '%s')", tn[i]);
-                goto out;
-            }
-        for (int i = 0; i < np + nf; i++) {
-            pb_problem p;
-            if (i >= np)
-                p = fcases[i - np]; /* the problem file's cases after the named ones */
-            else if (pb_cli_problem("sweep", pn[i], &p))
-                goto out;
-            if (orbits > 0 && !(p.period > 0)) {
-                pb_cli_error("sweep", "--orbits: problem '%s' has no period; its horizon is a time "
-                             "(%.6g %s, from its definition), so leave --orbits out for it",
-                             p.name, p.default_horizon_s, p.units == PB_UNITS_KM_S ? "s" : "TU");
-                goto out;
-            }
-            for (int j = 0; j < nm; j++) {
-                const pb_method_type *m = pb_cli_method("sweep", mn[j]);
-                if (!m)
-                    goto out;
-                int fixed = (m->flags & PB_KIND_FIXED) != 0;
-                int nv = fixed ? ns : nt;
-                if (nv == 0) {
-                    pb_cli_error("sweep", "method '%s' needs %s", m->name,
-                                 fixed ? "--steps-per-orbit values" : "--tolerances values");
-                    goto out;
-                }
-                for (int k = 0; k < nv; k++) {
-                    pb_case_spec s;
-                    memset(&s, 0, sizeof s);
-                    s.problem = p;
-                    s.method = m;
-                    s.steps_per_orbit = fixed ? (int)sv[k] : 0;
-                    s.tolerance = fixed ? 0 : tv[k];
-                    if (p.period > 0 && (orbits > 0 || p.default_orbits > 0))
-                        s.orbits = orbits > 0 ? orbits : p.default_orbits;
-                    else
-                        s.horizon_s = p.default_horizon_s;
-                    s.repeats = 3;
-                    s.linear_samples = 50;
-                    s.compensated = comp && (m->flags & PB_KIND_COMPENSABLE);
-                    s.cache_dir = "results/cache";
-                    char err[512];
-                    if (pb_case_validate(&s, err, sizeof err)) {
-                        char id[PB_CASE_ID_MAX];
-                        pb_case_id(&s, id, sizeof id);
-                        pb_cli_error("sweep", "case %s (--steps-per-orbit/--tolerances x --orbits): %s", id, err);
-                        goto out;
-                    }
-                    if (pb_case_list_add(&list, &s)) {
-                        pb_cli_error("sweep", "out of memory");
-                        goto out;
-                    }
-                }
-            }
+/* A grid's lists, split and read: names stay in the option strings. */
+typedef struct sweep_grid {
+    char *pn[64], *mn[64];
+    int np, nm, ns, nt;
+    long sv[64];
+    double tv[64];
+} sweep_grid;
+
+/* Split the grid's lists and read the step and tolerance values; -1 after
+ * a message. */
+static int sweep_grid_lists(const sweep_options *o, sweep_grid *g)
+{
+    char *sn[64], *tn[64];
+    /* every list is split before any is judged, so each bad one is named */
+    g->np = o->problems ? pb_cli_split("sweep", "--problems", o->problems, g->pn, 64) : 0;
+    g->nm = pb_cli_split("sweep", "--methods", o->methods, g->mn, 64);
+    g->ns = o->steps ? pb_cli_split("sweep", "--steps-per-orbit", o->steps, sn, 64) : 0;
+    g->nt = o->tols ? pb_cli_split("sweep", "--tolerances", o->tols, tn, 64) : 0;
+    if (g->np < 0 || g->nm < 0 || g->ns < 0 || g->nt < 0)
+        return -1;
+    for (int i = 0; i < g->ns; i++) {
+        if (pb_cli_long("sweep", "--steps-per-orbit", sn[i], &g->sv[i]))
+            return -1;
+        if (g->sv[i] < 1 || g->sv[i] > 100000000L) {
+            pb_cli_error("sweep", "--steps-per-orbit values must be whole numbers in 1..1e8 (got '%s')", sn[i]);
+            return -1;
         }
     }
-    for (int i = 0; i < list.n; i++) {
+    for (int i = 0; i < g->nt; i++) {
+        if (pb_cli_double("sweep", "--tolerances", tn[i], &g->tv[i]))
+            return -1;
+        if (!(g->tv[i] > 0 && g->tv[i] < 1)) {
+            pb_cli_error("sweep", "--tolerances values must be in (0, 1) (got '%s')", tn[i]);
+            return -1;
+        }
+    }
+    return 0;
+}
+
+/* One case of the grid, checked; -1 after a message. */
+static int sweep_grid_case(const sweep_options *o, const pb_problem *p, const pb_method_type *m,
+                           int fixed, long steps, double tol, pb_case_list *list)
+{
+    pb_case_spec s;
+    pb_case_spec_default(&s);
+    s.problem = *p;
+    s.method = m;
+    s.steps_per_orbit = fixed ? (int)steps : 0;
+    s.tolerance = fixed ? 0 : tol;
+    if (p->period > 0 && (o->orbits > 0 || p->default_orbits > 0))
+        s.orbits = o->orbits > 0 ? o->orbits : p->default_orbits;
+    else
+        s.horizon_s = p->default_horizon_s;
+    s.linear_samples = PB_SWEEP_LINEAR_SAMPLES;
+    s.compensated = o->comp && (m->flags & PB_KIND_COMPENSABLE);
+    char err[512];
+    if (pb_case_validate(&s, err, sizeof err)) {
+        char id[PB_CASE_ID_MAX];
+        pb_case_id(&s, id, sizeof id);
+        pb_cli_error("sweep", "case %s (--steps-per-orbit/--tolerances x --orbits): %s", id, err);
+        return -1;
+    }
+    if (pb_case_list_add(list, &s)) {
+        pb_cli_error("sweep", "out of memory");
+        return -1;
+    }
+    return 0;
+}
+
+/* Every method of the grid on problem p, at its steps or tolerances; -1
+ * after a message. */
+static int sweep_grid_problem(const sweep_options *o, const sweep_grid *g, const pb_problem *p,
+                              pb_case_list *list)
+{
+    if (o->orbits > 0 && !(p->period > 0)) {
+        pb_cli_error("sweep", "--orbits: problem '%s' has no period; its horizon is a time "
+                     "(%.6g %s, from its definition), so leave --orbits out for it",
+                     p->name, p->default_horizon_s, p->units == PB_UNITS_KM_S ? "s" : "TU");
+        return -1;
+    }
+    for (int j = 0; j < g->nm; j++) {
+        const pb_method_type *m = pb_cli_method("sweep", g->mn[j]);
+        if (!m)
+            return -1;
+        int fixed = (m->flags & PB_KIND_FIXED) != 0;
+        int nv = fixed ? g->ns : g->nt;
+        if (nv == 0) {
+            pb_cli_error("sweep", "method '%s' needs %s", m->name,
+                         fixed ? "--steps-per-orbit values" : "--tolerances values");
+            return -1;
+        }
+        for (int k = 0; k < nv; k++)
+            if (sweep_grid_case(o, p, m, fixed, fixed ? g->sv[k] : 0, fixed ? 0 : g->tv[k], list))
+                return -1;
+    }
+    return 0;
+}
+
+/* The grid's cases into list: the named problems, then the problem file's
+ * cases, each with every method; -1 after a message. */
+static int sweep_grid_expand(const sweep_options *o, pb_case_list *list)
+{
+    if (!(o->problems || o->pfile) || !o->methods) {
+        pb_cli_error("sweep", "a grid needs --problems or --problem-file, and --methods");
+        return -1;
+    }
+    pb_problem *fcases = NULL;
+    int nf = 0;
+    if (o->pfile && pb_problem_source_cases("sweep", o->pfile, o->pcase, &fcases, &nf))
+        return -1;
+    sweep_grid g;
+    int rc = sweep_grid_lists(o, &g);
+    for (int i = 0; !rc && i < g.np + nf; i++) {
+        pb_problem p;
+        if (i >= g.np)
+            p = fcases[i - g.np];
+        else if (pb_cli_problem("sweep", g.pn[i], &p))
+            rc = -1;
+        if (!rc)
+            rc = sweep_grid_problem(o, &g, &p, list);
+    }
+    free(fcases);
+    return rc;
+}
+
+/* What the command line says over the cases of a suite or grid. */
+static void sweep_apply_options(const sweep_options *o, pb_case_list *list)
+{
+    for (int i = 0; i < list->n; i++) {
+        pb_case_spec *s = &list->cases[i];
         /* --compensated applies to every method that has the variant */
-        if (comp && (list.cases[i].method->flags & PB_KIND_COMPENSABLE))
-            list.cases[i].compensated = 1;
-        if (repeats >= 0)
-            list.cases[i].repeats = (int)repeats;
-        if (cost > 0)
-            list.cases[i].eval_cost_us = cost;
-        if (suite && orbits > 0 && list.cases[i].problem.period > 0)
-            list.cases[i].orbits = orbits;
+        if (o->comp && (s->method->flags & PB_KIND_COMPENSABLE))
+            s->compensated = 1;
+        if (o->repeats >= 0)
+            s->repeats = (int)o->repeats;
+        if (o->cost > 0)
+            s->eval_cost_us = o->cost;
+        if (o->suite && o->orbits > 0 && s->problem.period > 0)
+            s->orbits = o->orbits;
     }
-    /* two cases with one id would share a series file and a baseline row */
-    for (int i = 0; i < list.n; i++) {
+}
+
+/* Two cases with one id would share a series file and a baseline row; -1
+ * after a message. */
+static int sweep_check_unique(const pb_case_list *list)
+{
+    for (int i = 0; i < list->n; i++) {
         char a[PB_CASE_ID_MAX], b[PB_CASE_ID_MAX];
-        pb_case_id(&list.cases[i], a, sizeof a);
+        pb_case_id(&list->cases[i], a, sizeof a);
         for (int j = 0; j < i; j++) {
-            pb_case_id(&list.cases[j], b, sizeof b);
+            pb_case_id(&list->cases[j], b, sizeof b);
             if (!strcmp(a, b)) {
                 pb_cli_error("sweep", "the grid holds case %s twice (repeated or equal values)", a);
-                goto out;
+                return -1;
             }
         }
     }
-    char dir[4096];
-    snprintf(dir, sizeof dir, "%s", out ? out : suite ? suite : "grid");
-    if (!out)
-        snprintf(dir, sizeof dir, "results/runs/%s", suite ? suite : "grid");
+    return 0;
+}
+
+/* The cases of the sweep: the suite's or the grid's, with the command
+ * line's settings applied, no id twice; -1 after a message. */
+static int sweep_cases(const sweep_options *o, pb_case_list *list)
+{
+    if (o->suite) {
+        if (pb_suite_expand(o->suite, list)) {
+            pb_cli_error("sweep", "unknown suite '%s' (see propbench list suites)", o->suite);
+            return -1;
+        }
+    } else if (sweep_grid_expand(o, list)) {
+        return -1;
+    }
+    sweep_apply_options(o, list);
+    return sweep_check_unique(list);
+}
+
+/* Run the cases into dir and print the summary; the exit status (128 +
+ * the signal after an interruption, as a shell reports it). */
+static int sweep_execute(const sweep_options *o, const pb_case_list *list, const char *dir)
+{
     double fixed_steps = 0;
-    for (int i = 0; i < list.n; i++)
-        if (shard_n <= 1 || i % shard_n == shard_k - 1)
-            fixed_steps += pb_case_fixed_steps(&list.cases[i]);
+    for (int i = 0; i < list->n; i++)
+        if (o->shard_n <= 1 || i % o->shard_n == o->shard_k - 1)
+            fixed_steps += pb_case_fixed_steps(&list->cases[i]);
     pb_cli_warn_long("sweep", fixed_steps);
     /* the output folder is checked before the banner, so a refusal is one line */
     char why[4400];
-    if (pb_run_dir_prepare(dir, why, sizeof why)) {
-        pb_cli_error("sweep", "%s", why);
-        goto out;
-    }
-    pb_sweep_options so = {(int)jobs, shard_k, shard_n, pb_cli_progress_wanted(quiet), suite ? suite : "grid", quiet};
-    if (!quiet)
+    if (pb_run_dir_prepare(dir, why, sizeof why))
+        return pb_cli_error("sweep", "%s", why);
+    pb_sweep_options so = {(int)o->jobs, o->shard_k, o->shard_n, pb_cli_progress_wanted(o->quiet),
+                           o->suite ? o->suite : "grid", o->quiet};
+    if (!o->quiet)
         fprintf(stderr, "propbench sweep: %d cases%s into %s with %ld worker%s\n",
-                shard_n > 1 ? (list.n + shard_n - shard_k) / shard_n : list.n,
-                shard_n > 1 ? " (this shard)" : "", dir, jobs, jobs > 1 ? "s" : "");
-    int sr = pb_sweep_run(&list, dir, &so);
-    if (sr == -2) {
-        rc = 128 + pb_sweep_stop_signal(); /* as a shell reports the signal */
-        goto out;
-    }
+                o->shard_n > 1 ? (list->n + o->shard_n - o->shard_k) / o->shard_n : list->n,
+                o->shard_n > 1 ? " (this shard)" : "", dir, o->jobs, o->jobs > 1 ? "s" : "");
+    int sr = pb_sweep_run(list, dir, &so);
+    if (sr == -2)
+        return 128 + pb_sweep_stop_signal();
     if (sr)
-        goto out;
-    if (!quiet) {
+        return PB_EXIT_USAGE;
+    if (!o->quiet) {
         char path[4200];
         snprintf(path, sizeof path, "%s/summary.json", dir);
         json_t *doc = json_load_file(path, 0, NULL);
@@ -255,13 +325,30 @@ int pb_cli_sweep(int argc, char **argv)
         json_decref(doc);
         printf("wrote %s/summary.json\n", dir);
     }
-    rc = PB_EXIT_OK;
-    if (report) {
-        char *rargv[] = {"report", dir, quiet ? "--quiet" : NULL, NULL};
-        rc = pb_cli_report(quiet ? 3 : 2, rargv);
+    return PB_EXIT_OK;
+}
+
+int pb_cli_sweep(int argc, char **argv)
+{
+    sweep_options o;
+    int rc = sweep_parse(argc, argv, &o);
+    if (rc >= 0)
+        return rc;
+    pb_case_list list = {0, 0, NULL};
+    if (sweep_cases(&o, &list)) {
+        pb_case_list_free(&list);
+        return PB_EXIT_USAGE;
     }
-out:
-    free(fcases);
+    char dir[4096];
+    if (o.out)
+        snprintf(dir, sizeof dir, "%s", o.out);
+    else
+        snprintf(dir, sizeof dir, "results/runs/%s", o.suite ? o.suite : "grid");
+    rc = sweep_execute(&o, &list, dir);
     pb_case_list_free(&list);
+    if (rc == PB_EXIT_OK && o.report) {
+        char *rargv[] = {"report", dir, o.quiet ? "--quiet" : NULL, NULL};
+        rc = pb_cli_report(o.quiet ? 3 : 2, rargv);
+    }
     return rc;
 }

@@ -6,6 +6,7 @@
 #include <stdio.h>
 #include <string.h>
 #include "bench/study/select.h"
+#include "bench/study/suites.h"
 #include "bench/store/case_json.h"
 #include "bench/measure/harness.h"
 
@@ -61,7 +62,14 @@ static int select_try(const pb_case_spec *base, const pb_method_type *m, const s
 {
     pb_case_spec s = *base;
     s.method = m;
-    s.repeats = keep ? (base->repeats > 0 ? base->repeats : 3) : 0;
+    s.repeats = 0; /* the search's trial runs need errors, not timings */
+    if (keep) {
+        /* the answer's projected cost needs its ns per step, so it is timed
+         * even when base asked for no timing pass */
+        pb_case_spec d;
+        pb_case_spec_default(&d);
+        s.repeats = base->repeats > 0 ? base->repeats : d.repeats;
+    }
     if (ax->fixed)
         s.steps_per_orbit = (int)x;
     else

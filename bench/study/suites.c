@@ -1,4 +1,5 @@
-/* suites.c - the built-in sweep suites.
+/* suites.c - the built-in sweep suites, and the default every case spec
+ * starts from.
  * quick: every method on two problems at two resolutions (CI, < 60 s);
  * standard: every method on every built-in problem at three resolutions. */
 #include <math.h>
@@ -6,6 +7,14 @@
 #include <string.h>
 #include "bench/study/suites.h"
 #include "problems/catalogue.h"
+
+void pb_case_spec_default(pb_case_spec *spec)
+{
+    memset(spec, 0, sizeof *spec);
+    spec->repeats = 3;
+    spec->linear_samples = 100;
+    spec->cache_dir = "results/cache";
+}
 
 int pb_case_list_add(pb_case_list *list, const pb_case_spec *spec)
 {
@@ -40,7 +49,7 @@ static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int 
         int nv = fixed ? nsteps : ntols;
         for (int j = 0; j < nv; j++) {
             pb_case_spec s;
-            memset(&s, 0, sizeof s);
+            pb_case_spec_default(&s);
             s.problem = *p;
             s.method = m;
             if (fixed)
@@ -52,8 +61,7 @@ static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int 
             else
                 s.horizon_s = p->default_horizon_s;
             s.repeats = repeats;
-            s.linear_samples = 50;
-            s.cache_dir = "results/cache";
+            s.linear_samples = PB_SWEEP_LINEAR_SAMPLES;
             if (pb_case_list_add(list, &s))
                 return -1;
         }
