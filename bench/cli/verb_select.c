@@ -194,7 +194,7 @@ static int select_methods(const select_options *o, const pb_problem *p, const pb
     }
     int m = 0;
     for (int i = 0; i < n; i++) {
-        if (!((list[i]->flags & PB_FORM_SECOND) && p->velocity_dependent)) {
+        if (pb_method_fits(list[i], p)) {
             list[m++] = list[i];
             continue;
         }

@@ -35,7 +35,7 @@ int pb_drive_case(const pb_drive_request *rq, pb_drive_outcome *out, char *err, 
 {
     memset(out, 0, sizeof *out);
     pb_case_spec spec;
-    pb_case_spec_init(&spec);
+    pb_case_spec_default(&spec);
     if (!rq->problem || pb_problem_lookup(rq->problem, &spec.problem) != PB_OK) {
         snprintf(err, errlen, "unknown problem '%s'", rq->problem ? rq->problem : "(none)");
         return -1;

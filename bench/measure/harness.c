@@ -109,7 +109,7 @@ double pb_case_fixed_steps(const pb_case_spec *spec)
     return spec->max_steps > 0 && spec->max_steps < n ? (double)spec->max_steps : n;
 }
 
-void pb_case_spec_init(pb_case_spec *spec)
+void pb_case_spec_default(pb_case_spec *spec)
 {
     memset(spec, 0, sizeof *spec);
     spec->repeats = 3;

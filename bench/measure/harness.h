@@ -8,10 +8,12 @@
  * (relative to the working folder). */
 #define PB_CACHE_DIR_DEFAULT "results/cache"
 
-/* A spec with every field at its default: no problem or method yet, 3
- * timing repeats, 100 linear samples, automatic step budget, the reference
- * cache in PB_CACHE_DIR_DEFAULT. */
-void pb_case_spec_init(pb_case_spec *spec);
+/* The settings every case starts from, for run, select, sweep, the suites
+ * and the public driver alike: 3 timing repeats (the median of three ignores
+ * one outlier), 100 linear samples, automatic step budget, reference
+ * trajectories cached in PB_CACHE_DIR_DEFAULT; the rest (problem, method,
+ * step or tolerance, horizon, cost) is zero for the caller to fill. */
+void pb_case_spec_default(pb_case_spec *spec);
 
 /* Check a spec before running it (method and problem compatible, step or
  * tolerance and horizon sensible). Returns 0 or -1 with a message in err. */

@@ -8,14 +8,6 @@
 #include "bench/study/suites.h"
 #include "problems/catalogue.h"
 
-void pb_case_spec_default(pb_case_spec *spec)
-{
-    memset(spec, 0, sizeof *spec);
-    spec->repeats = 3;
-    spec->linear_samples = 100;
-    spec->cache_dir = "results/cache";
-}
-
 int pb_case_list_add(pb_case_list *list, const pb_case_spec *spec)
 {
     if (list->n == list->cap) {
@@ -43,7 +35,7 @@ static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int 
 {
     for (const pb_method_type *const *t = pb_method_table; *t; t++) {
         const pb_method_type *m = *t;
-        if ((m->flags & PB_FORM_SECOND) && p->velocity_dependent)
+        if (!pb_method_fits(m, p))
             continue;
         int fixed = (m->flags & PB_KIND_FIXED) != 0;
         int nv = fixed ? nsteps : ntols;
@@ -104,7 +96,9 @@ static int suite_standard(pb_case_list *list)
         double want = 50.0 * pow(fmax(1.0 - ecc, 1e-3), -1.5);
         double dec = pow(10.0, floor(log10(want)));
         int base = (int)(want <= dec ? dec : want <= 2 * dec ? 2 * dec : want <= 5 * dec ? 5 * dec : 10 * dec);
-        if (p.force == PB_FORCE_CR3BP)
+        /* without a Kepler orbit there is no periapsis scale to size the step
+         * by (the CR3BP's close passes by the small body): a fine fixed step */
+        if (!p.keplerian && p.period > 0)
             base = 2000;
         int steps[3] = {base, 2 * base, 4 * base};
         double orbits = p.period > 0 ? fmin(p.default_orbits > 0 ? p.default_orbits : 100, 100) : 0;

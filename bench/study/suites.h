@@ -5,6 +5,7 @@
 
 #include <stdio.h>
 #include "bench/measure/case.h"
+#include "bench/measure/harness.h"  /* pb_case_spec_default */
 
 typedef struct pb_case_list {
     int n, cap;
@@ -13,14 +14,6 @@ typedef struct pb_case_list {
 
 /* Expand the named suite into list (appending). -1 if the name is unknown. */
 int pb_suite_expand(const char *name, pb_case_list *list);
-
-/* The settings every case starts from, for run, select, sweep and the
- * suites alike: 3 timing repeats (the median of three ignores one outlier),
- * 100 linear samples, reference trajectories cached in results/cache; the
- * rest (problem, method, step or tolerance, horizon, cost) is zero for the
- * caller to fill. It lives here, below cli/, so suites can use it too; its
- * natural home is beside pb_case_spec in bench/measure/case.h. */
-void pb_case_spec_default(pb_case_spec *spec);
 
 /* Sweeps and suites keep 50 linear samples a case instead of 100. The sample
  * times are part of a case's results (an adaptive method shortens steps to
