@@ -383,6 +383,127 @@ done:
     free(y);
 }
 
+/* The invariants' starting values and the escape bound of the watch. */
+static void harness_watch_init(harness_watch *w, const pb_problem *p, double horizon,
+                               pb_case_result *res)
+{
+    memset(w, 0, sizeof *w);
+    w->p = p;
+    w->E0 = p->energy ? p->energy(p, p->t0, p->r0, p->v0) : (double)NAN;
+    w->E_scale = p->energy ? pb_energy_scale(p, w->E0) : (double)NAN;
+    res->energy_rel_to_parts = p->energy && w->E_scale != fabs(w->E0);
+    w->H0 = p->angmom ? p->angmom(p, p->r0, p->v0) : (double)NAN;
+    double a, r0n = harness_orbit_size(p, &a);
+    if (!p->exact)
+        a = 0; /* the escape bound uses the apoapsis only where it is fixed: where the
+                * flow is a conic, which is where a closed form exists */
+    w->r_limit = HARNESS_ESCAPE_FACTOR * fmax(fmax(r0n, 2 * a), 1e-300);
+    /* a hyperbolic orbit recedes by itself: allow for its speed over the horizon */
+    if (p->energy && w->E0 >= 0)
+        w->r_limit += HARNESS_ESCAPE_FACTOR * horizon * sqrt(2 * fabs(w->E0) + 2 * p->mu / r0n);
+}
+
+/* The apsidal angle accumulates: unwrap it from sample to sample so a
+ * precession past +-pi keeps its sign and size (samples are close enough
+ * that the angle moves by less than pi between them). */
+typedef struct harness_apsis {
+    double raw, unwrapped;
+    int have;
+} harness_apsis;
+
+static void harness_unwrap(harness_apsis *ap, pb_sample *smp)
+{
+    if (!isfinite(smp->apsis_angle))
+        return;
+    double raw = smp->apsis_angle;
+    if (ap->have)
+        smp->apsis_angle = ap->unwrapped + remainder(raw - ap->raw, 2 * M_PI);
+    ap->raw = raw;
+    ap->unwrapped = smp->apsis_angle;
+    ap->have = 1;
+}
+
+/* Close the invariant window at sample smp: the sample itself belongs to
+ * the window it closes. */
+static void harness_close_window(harness_watch *w, const pb_problem *p, pb_sample *smp)
+{
+    smp->energy_rel_window = fmax(w->e_win, isfinite(smp->energy_rel) ? smp->energy_rel : 0);
+    smp->angmom_rel_window = fmax(w->h_win, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
+    if (!p->energy) smp->energy_rel_window = NAN;
+    if (!p->angmom) smp->angmom_rel_window = NAN;
+    w->e_max = fmax(w->e_max, w->e_win);
+    w->h_max = fmax(w->h_max, w->h_win);
+    w->e_win = w->h_win = 0;
+}
+
+/* The metric pass: advance to every sample time and measure there. Returns
+ * the integration's status; res->nsamples is how many samples were reached. */
+static int harness_metric_pass(const pb_case_spec *spec, const pb_sample_plan *plan,
+                               const pb_truth *truth, void *ws, harness_watch *w,
+                               double horizon, pb_case_result *res)
+{
+    const pb_problem *p = &spec->problem;
+    const pb_method_type *m = spec->method;
+    double r[PB_DIM_MAX] = {0}, v[PB_DIM_MAX] = {0}, t = p->t0;
+    harness_apsis ap = {0, 0, 0};
+    int s = PB_OK, k;
+    for (k = 0; k < plan->n; k++) {
+        s = m->advance(ws, plan->t[k], harness_observe, w);
+        if (s)
+            break;
+        m->get_state(ws, &t, r, v);
+        long double rt[PB_DIM_MAX], vt[PB_DIM_MAX];
+        pb_truth_state(truth, k, rt, vt);
+        pb_sample *smp = &res->samples[k];
+        pb_metrics_sample(p, t, r, v, rt, vt, w->E0, w->E_scale, w->H0, smp);
+        harness_unwrap(&ap, smp);
+        smp->orbits = p->period > 0 ? (t - p->t0) / p->period : (t - p->t0) / horizon;
+        smp->on_log_grid = plan->on_log_grid[k];
+        smp->truth_floor = pb_truth_floor(truth, k);
+        harness_close_window(w, p, smp);
+    }
+    res->nsamples = k;
+    return s;
+}
+
+/* How the integration ended (status s), the invariant maxima, the final
+ * state and its fingerprint, and the counts. */
+static void harness_ending(const pb_case_spec *spec, void *ws, const harness_watch *w,
+                           const pb_force_counter *counter, int s, pb_case_result *res)
+{
+    const pb_problem *p = &spec->problem;
+    const pb_method_type *m = spec->method;
+    double r[PB_DIM_MAX] = {0}, v[PB_DIM_MAX] = {0}, t;
+    res->status = s;
+    res->status_name = pb_case_status_name(s);
+    m->get_state(ws, &t, r, v);
+    res->t_end = t;
+    pb_method_stats st;
+    m->get_stats(ws, &st);
+    if (s) {
+        /* a step budget ends the case where the last step left it */
+        res->diverged_at = s == PB_EDIVERGED ? w->t_escape
+                         : s == PB_EMAXSTEPS ? t
+                         : counter->saw_nonfinite ? counter->t_nonfinite : st.t_fail;
+        res->status_detail = s == PB_EDIVERGED && w->why ? w->why
+                           : counter->saw_nonfinite ? "the force became non-finite"
+                           : pb_strerror(s);
+    } else {
+        res->status_detail = "ok";
+    }
+    res->energy_rel_max = p->energy ? fmax(w->e_max, w->e_win) : (double)NAN;
+    res->angmom_rel_max = p->angmom ? fmax(w->h_max, w->h_win) : (double)NAN;
+    memcpy(res->final_r, r, sizeof r);
+    memcpy(res->final_v, v, sizeof v);
+    pb_fingerprint_state(t, r, v, p->dim, res->fingerprint, sizeof res->fingerprint);
+    res->steps = st.steps;
+    res->rejected = st.rejected;
+    res->output_cut = st.output_cut;
+    res->startup_steps = st.startup_steps;
+    res->evals = counter->evals;
+    res->projected_s = spec->eval_cost_us > 0 ? 1e-6 * spec->eval_cost_us * (double)res->evals : 0;
+}
+
 int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
 {
     memset(res, 0, sizeof *res);
@@ -413,103 +534,18 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     rc = PB_ENOMEM;
     if (!(ws = m->alloc(p->dim)))
         goto out;
-
     harness_watch w;
-    memset(&w, 0, sizeof w);
-    w.p = p;
-    w.E0 = p->energy ? p->energy(p, p->t0, p->r0, p->v0) : (double)NAN;
-    w.E_scale = p->energy ? pb_energy_scale(p, w.E0) : (double)NAN;
-    res->energy_rel_to_parts = p->energy && w.E_scale != fabs(w.E0);
-    w.H0 = p->angmom ? p->angmom(p, p->r0, p->v0) : (double)NAN;
-    double a, r0n = harness_orbit_size(p, &a);
-    if (!p->exact)
-        a = 0; /* the escape bound uses the apoapsis only where it is fixed: where the
-                * flow is a conic, which is where a closed form exists */
-    w.r_limit = HARNESS_ESCAPE_FACTOR * fmax(fmax(r0n, 2 * a), 1e-300);
-    /* a hyperbolic orbit recedes by itself: allow for its speed over the horizon */
-    if (p->energy && w.E0 >= 0)
-        w.r_limit += HARNESS_ESCAPE_FACTOR * horizon * sqrt(2 * fabs(w.E0) + 2 * p->mu / r0n);
-
+    harness_watch_init(&w, p, horizon, res);
     pb_force_counter counter;
     pb_force f;
     pb_force_counter_init(&counter, p, &f);
-    int s = m->start(ws, &f, &cfg, p->t0, p->r0, p->v0);
-    if (s) {
-        rc = s;
+    if ((rc = m->start(ws, &f, &cfg, p->t0, p->r0, p->v0)))
         goto out;
-    }
-    double r[PB_DIM_MAX] = {0}, v[PB_DIM_MAX] = {0}, t = p->t0;
-    double apsis_raw = 0, apsis_unwrapped = 0;
-    int have_apsis = 0;
-    int k;
-    for (k = 0; k < plan.n; k++) {
-        s = m->advance(ws, plan.t[k], harness_observe, &w);
-        if (s)
-            break;
-        m->get_state(ws, &t, r, v);
-        long double rt[PB_DIM_MAX], vt[PB_DIM_MAX];
-        pb_truth_state(truth, k, rt, vt);
-        pb_sample *smp = &res->samples[k];
-        pb_metrics_sample(p, t, r, v, rt, vt, w.E0, w.E_scale, w.H0, smp);
-        /* the apsidal angle accumulates: unwrap it from sample to sample so a
-         * precession past +-pi keeps its sign and size (samples are close
-         * enough that the angle moves by less than pi between them) */
-        if (isfinite(smp->apsis_angle)) {
-            double raw = smp->apsis_angle;
-            if (have_apsis)
-                smp->apsis_angle = apsis_unwrapped + remainder(raw - apsis_raw, 2 * M_PI);
-            apsis_raw = raw;
-            apsis_unwrapped = smp->apsis_angle;
-            have_apsis = 1;
-        }
-        smp->orbits = p->period > 0 ? (t - p->t0) / p->period : (t - p->t0) / horizon;
-        smp->on_log_grid = plan.on_log_grid[k];
-        smp->truth_floor = pb_truth_floor(truth, k);
-        /* the sample itself belongs to the window it closes */
-        smp->energy_rel_window = fmax(w.e_win, isfinite(smp->energy_rel) ? smp->energy_rel : 0);
-        smp->angmom_rel_window = fmax(w.h_win, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
-        if (!p->energy) smp->energy_rel_window = NAN;
-        if (!p->angmom) smp->angmom_rel_window = NAN;
-        w.e_max = fmax(w.e_max, w.e_win);
-        w.h_max = fmax(w.h_max, w.h_win);
-        w.e_win = w.h_win = 0;
-    }
-    res->nsamples = k;
-    res->status = s;
-    res->status_name = pb_case_status_name(s);
-    m->get_state(ws, &t, r, v);
-    res->t_end = t;
-    if (s) {
-        pb_method_stats st;
-        m->get_stats(ws, &st);
-        /* a step budget ends the case where the last step left it */
-        res->diverged_at = s == PB_EDIVERGED ? w.t_escape
-                         : s == PB_EMAXSTEPS ? t
-                         : counter.saw_nonfinite ? counter.t_nonfinite : st.t_fail;
-        res->status_detail = s == PB_EDIVERGED && w.why ? w.why
-                           : counter.saw_nonfinite ? "the force became non-finite"
-                           : pb_strerror(s);
-    } else {
-        res->status_detail = "ok";
-    }
-    w.e_max = fmax(w.e_max, w.e_win);
-    w.h_max = fmax(w.h_max, w.h_win);
-    res->energy_rel_max = p->energy ? w.e_max : (double)NAN;
-    res->angmom_rel_max = p->angmom ? w.h_max : (double)NAN;
-    memcpy(res->final_r, r, sizeof r);
-    memcpy(res->final_v, v, sizeof v);
-    pb_fingerprint_state(t, r, v, p->dim, res->fingerprint, sizeof res->fingerprint);
-    pb_method_stats st;
-    m->get_stats(ws, &st);
-    res->steps = st.steps;
-    res->rejected = st.rejected;
-    res->output_cut = st.output_cut;
-    res->startup_steps = st.startup_steps;
-    res->evals = counter.evals;
-    res->projected_s = spec->eval_cost_us > 0 ? 1e-6 * spec->eval_cost_us * (double)res->evals : 0;
+    int s = harness_metric_pass(spec, &plan, truth, ws, &w, horizon, res);
+    harness_ending(spec, ws, &w, &counter, s, res);
     harness_summarise(spec, res);
     res->ns_per_step = res->ns_per_eval = NAN;
-    harness_time(spec, &cfg, t, st.steps + st.startup_steps, res);
+    harness_time(spec, &cfg, res->t_end, res->steps + res->startup_steps, res);
     rc = PB_OK;
 out:
     m->free(ws);
