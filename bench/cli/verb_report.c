@@ -11,7 +11,8 @@
 #include "bench/report/report_data.h"
 #include "bench/report/gnuplot_runner.h"
 #include "bench/report/figure_scripts.h"
-#include "bench/report/table.h"
+#include "bench/report/html.h"
+#include "bench/report/markdown.h"
 #include "bench/store/run_dir.h"
 
 static void report_help(FILE *f)
@@ -48,24 +49,31 @@ static const char *report_title(const pb_report_run *run, const char *dir, char 
     return buf;
 }
 
-int pb_cli_report(int argc, char **argv)
+typedef struct report_opts {
+    const char *dir, *out, *prog;
+    int quiet, noplots;
+} report_opts;
+
+/* Options into o; -1 (help printed, o->dir NULL) or PB_EXIT_USAGE on a bad
+ * command line, 0 to go on. */
+static int report_parse(int argc, char **argv, report_opts *o)
 {
     static const struct option opts[] = {
         {"out", required_argument, 0, RP_OUT}, {"gnuplot", required_argument, 0, RP_GNUPLOT},
         {"no-plots", no_argument, 0, RP_NOPLOTS}, {"quiet", no_argument, 0, RP_QUIET},
         {"help", no_argument, 0, RP_HELP}, {0, 0, 0, 0}};
-    const char *out = NULL, *prog = getenv("PB_GNUPLOT");
-    int quiet = 0, noplots = 0;
+    memset(o, 0, sizeof *o);
+    o->prog = getenv("PB_GNUPLOT");
     optind = 1;
     opterr = 0;
     int c;
     while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
         switch (c) {
-        case RP_OUT: out = optarg; break;
-        case RP_GNUPLOT: prog = optarg; break;
-        case RP_NOPLOTS: noplots = 1; break;
-        case RP_QUIET: quiet = 1; break;
-        case RP_HELP: report_help(stdout); return PB_EXIT_OK;
+        case RP_OUT: o->out = optarg; break;
+        case RP_GNUPLOT: o->prog = optarg; break;
+        case RP_NOPLOTS: o->noplots = 1; break;
+        case RP_QUIET: o->quiet = 1; break;
+        case RP_HELP: report_help(stdout); return -1;
         case ':': return pb_cli_error("report", "option %s needs a value", argv[optind - 1]);
         default: return pb_cli_error("report", "unknown option '%s' (see propbench report --help)", argv[optind - 1]);
         }
@@ -74,96 +82,130 @@ int pb_cli_report(int argc, char **argv)
         return pb_cli_error("report", "give the run directory (see propbench report --help)");
     if (optind + 1 < argc)
         return pb_cli_error("report", "unexpected argument '%s'", argv[optind + 1]);
-    const char *dir = argv[optind];
-    if (!out)
-        out = dir;
-    if (!prog || !*prog)
-        prog = "gnuplot";
+    o->dir = argv[optind];
+    if (!o->out)
+        o->out = o->dir;
+    if (!o->prog || !*o->prog)
+        o->prog = "gnuplot";
+    return 0;
+}
 
-    pb_report_run run;
-    char err[1024] = "";
-    if (pb_report_load(dir, &run, err, sizeof err))
-        return pb_cli_error("report", "%s", err);
-
-    int rc = PB_EXIT_USAGE;
-    unsigned char *made = calloc((size_t)run.nproblems * PB_FIG_COUNT, 1);
-    unsigned char *drawn = calloc((size_t)run.nproblems * PB_FIG_COUNT, 1);
-    char plots[PATH_MAX + 16], rdir[PATH_MAX], odir[PATH_MAX], prefix[PATH_MAX + 2], title[512];
-    if (!made || !drawn) {
-        pb_cli_error("report", "out of memory");
-        goto done;
-    }
+/* Check that the report's own files can be written, make plots/ and write
+ * the figure scripts (made[] says which). 0, or PB_EXIT_USAGE after the
+ * message. */
+static int report_prepare(const report_opts *o, const pb_report_run *run, char *plots,
+                          size_t plots_len, unsigned char *made)
+{
     /* the report's own files must be writable before any script is */
     static const char *const outputs[] = {"report.html", "report.md"};
     for (int i = 0; i < 2; i++) {
         char f[PATH_MAX + 16];
-        snprintf(f, sizeof f, "%s/%s", out, outputs[i]);
-        if (pb_path_blocked(f)) {
-            pb_cli_error("report", "%s is there and is not a file: the report could not be written", f);
-            goto done;
-        }
+        snprintf(f, sizeof f, "%s/%s", o->out, outputs[i]);
+        if (pb_path_blocked(f))
+            return pb_cli_error("report", "%s is there and is not a file: the report could not be written", f);
     }
-    snprintf(plots, sizeof plots, "%s/plots", out);
-    if (pb_mkdirs(plots) || !realpath(dir, rdir) || !realpath(out, odir)) {
-        pb_cli_error("report", "%s: cannot create the plots folder", plots);
-        goto done;
-    }
+    char rdir[PATH_MAX], odir[PATH_MAX], prefix[PATH_MAX + 2], err[1024];
+    snprintf(plots, plots_len, "%s/plots", o->out);
+    if (pb_mkdirs(plots) || !realpath(o->dir, rdir) || !realpath(o->out, odir))
+        return pb_cli_error("report", "%s: cannot create the plots folder", plots);
     /* scripts reach the data relative to plots/ when the report sits in the run */
     if (!strcmp(rdir, odir))
         snprintf(prefix, sizeof prefix, "../");
     else
         snprintf(prefix, sizeof prefix, "%s/", rdir);
-    if (pb_report_gp_write(&run, dir, plots, prefix, made, err, sizeof err)) {
-        pb_cli_error("report", "%s", err);
-        goto done;
+    if (pb_report_gp_write(run, o->dir, plots, prefix, made, err, sizeof err))
+        return pb_cli_error("report", "%s", err);
+    return 0;
+}
+
+/* Run gnuplot on every script written (drawn[] says which succeeded). The
+ * reason nothing or not everything was drawn goes to why (NULL: all drawn);
+ * returns PB_EXIT_FAIL when gnuplot failed on a figure, else 0. */
+static int report_draw(const report_opts *o, const pb_report_run *run, const char *plots,
+                       const unsigned char *made, unsigned char *drawn, const char **why,
+                       char *whybuf, size_t whylen)
+{
+    char exe[PATH_MAX], err[1024];
+    *why = NULL;
+    if (o->noplots) {
+        *why = "--no-plots was given";
+        return 0;
     }
-    rc = PB_EXIT_OK;
-    const char *why = NULL;
-    char exe[PATH_MAX], whybuf[PATH_MAX + 64];
-    if (noplots) {
-        why = "--no-plots was given";
-    } else if (pb_report_gnuplot_find(prog, exe, sizeof exe)) {
-        snprintf(whybuf, sizeof whybuf, "gnuplot was not found (looked for '%s')", prog);
-        why = whybuf;
+    if (pb_report_gnuplot_find(o->prog, exe, sizeof exe)) {
+        snprintf(whybuf, whylen, "gnuplot was not found (looked for '%s')", o->prog);
+        *why = whybuf;
         fprintf(stderr, "propbench report: warning: %s; figures not drawn. The data and gnuplot scripts "
                 "are in %s: install gnuplot (Debian: gnuplot-nox) and run `gnuplot ./NAME.gp` there, "
-                "or run propbench report again.\n", why, plots);
-    } else {
-        int failed = 0;
-        for (int pi = 0; pi < run.nproblems; pi++)
-            for (int k = 0; k < PB_FIG_COUNT; k++) {
-                if (!made[pi * PB_FIG_COUNT + k])
-                    continue;
-                char base[PB_FIG_BASE_MAX];
-                pb_fig_base(run.problems[pi].name, k, base, sizeof base);
-                if (pb_report_gnuplot_run(exe, plots, base, err, sizeof err)) {
-                    fprintf(stderr, "propbench report: warning: %s\n", err);
-                    failed++;
-                } else {
-                    drawn[pi * PB_FIG_COUNT + k] = 1;
-                }
-            }
-        if (failed) {
-            snprintf(whybuf, sizeof whybuf, "gnuplot failed on %d figure%s", failed, failed == 1 ? "" : "s");
-            why = whybuf;
-            rc = PB_EXIT_FAIL;
-        }
+                "or run propbench report again.\n", *why, plots);
+        return 0;
     }
-    pb_report_view v = {&run, out, report_title(&run, dir, title, sizeof title), made, drawn, why};
-    int html_bad = pb_report_html_write(&v, err, sizeof err);
-    if (html_bad || pb_report_md_write(&v, err, sizeof err)) {
+    int failed = 0;
+    for (int pi = 0; pi < run->nproblems; pi++)
+        for (int k = 0; k < PB_FIG_COUNT; k++) {
+            if (!made[pi * PB_FIG_COUNT + k])
+                continue;
+            char base[PB_FIG_BASE_MAX];
+            pb_fig_base(run->problems[pi].name, k, base, sizeof base);
+            if (pb_report_gnuplot_run(exe, plots, base, err, sizeof err)) {
+                fprintf(stderr, "propbench report: warning: %s\n", err);
+                failed++;
+            } else {
+                drawn[pi * PB_FIG_COUNT + k] = 1;
+            }
+        }
+    if (!failed)
+        return 0;
+    snprintf(whybuf, whylen, "gnuplot failed on %d figure%s", failed, failed == 1 ? "" : "s");
+    *why = whybuf;
+    return PB_EXIT_FAIL;
+}
+
+/* report.html and report.md, both or neither. 0, or PB_EXIT_USAGE. */
+static int report_write(const report_opts *o, const pb_report_view *v)
+{
+    char err[1024];
+    int html_bad = pb_report_html_write(v, err, sizeof err);
+    if (html_bad || pb_report_md_write(v, err, sizeof err)) {
         if (!html_bad) {
             /* the new report.html without its report.md is a half-written report */
             char html[PATH_MAX + 16];
-            snprintf(html, sizeof html, "%s/report.html", out);
+            snprintf(html, sizeof html, "%s/report.html", o->out);
             unlink(html);
         }
-        pb_cli_error("report", "%s", err);
-        rc = PB_EXIT_USAGE;
+        return pb_cli_error("report", "%s", err);
+    }
+    return 0;
+}
+
+int pb_cli_report(int argc, char **argv)
+{
+    report_opts o;
+    int rc = report_parse(argc, argv, &o);
+    if (rc)
+        return rc < 0 ? PB_EXIT_OK : rc;
+    pb_report_run run;
+    char err[1024] = "";
+    if (pb_report_load(o.dir, &run, err, sizeof err))
+        return pb_cli_error("report", "%s", err);
+
+    rc = PB_EXIT_USAGE;
+    unsigned char *made = calloc((size_t)run.nproblems * PB_FIG_COUNT, 1);
+    unsigned char *drawn = calloc((size_t)run.nproblems * PB_FIG_COUNT, 1);
+    char plots[PATH_MAX + 16], title[512], whybuf[PATH_MAX + 64];
+    const char *why = NULL;
+    if (!made || !drawn) {
+        pb_cli_error("report", "out of memory");
         goto done;
     }
-    if (!quiet)
-        printf("wrote %s/report.html\n", out);
+    if (report_prepare(&o, &run, plots, sizeof plots, made))
+        goto done;
+    int drew = report_draw(&o, &run, plots, made, drawn, &why, whybuf, sizeof whybuf);
+    pb_report_view v = {&run, o.out, report_title(&run, o.dir, title, sizeof title), made, drawn, why};
+    if (report_write(&o, &v))
+        goto done;
+    rc = drew;
+    if (!o.quiet)
+        printf("wrote %s/report.html\n", o.out);
 done:
     free(made);
     free(drawn);

@@ -6,6 +6,7 @@
 #include <string.h>
 #include "bench/report/figure_scripts.h"
 #include "bench/report/table.h"
+#include "bench/report/html.h"
 #include "bench/store/run_dir.h"
 
 static void html_text(FILE *f, const char *s)

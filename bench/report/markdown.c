@@ -5,6 +5,7 @@
 #include <string.h>
 #include "bench/report/figure_scripts.h"
 #include "bench/report/table.h"
+#include "bench/report/markdown.h"
 #include "bench/store/run_dir.h"
 
 /* Markdown table cells: pipes and line breaks would end the cell. */

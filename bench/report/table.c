@@ -1,5 +1,5 @@
 /* table.c - summary-table cells and best-value marks (see
- * report_table.h). "Best" is the plain minimum of each cost-like column. */
+ * table.h). "Best" is the plain minimum of each cost-like column. */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>

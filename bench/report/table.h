@@ -28,20 +28,4 @@ void pb_report_table_cells(const pb_report_case *c, char cells[PB_RT_NCOLS][PB_R
  * out of memory. */
 int *pb_report_table_best(const pb_report_run *run, const pb_report_problem *p);
 
-/* What the HTML and Markdown writers need besides the run: where the
- * report goes, and which figures have a script (made) and were drawn. */
-typedef struct pb_report_view {
-    const pb_report_run *run;
-    const char *out_dir;            /* report.html, report.md, plots/ */
-    const char *title;              /* the run's name */
-    const unsigned char *made;      /* [problem * PB_FIG_COUNT + kind] */
-    const unsigned char *drawn;
-    const char *why_not_drawn;      /* NULL, or e.g. "gnuplot was not found" */
-} pb_report_view;
-
-/* Write out_dir/report.html (self-contained: inline SVG, no script, no
- * network) and out_dir/report.md atomically. 0, or -1 with err. */
-int pb_report_html_write(const pb_report_view *v, char *err, size_t errlen);
-int pb_report_md_write(const pb_report_view *v, char *err, size_t errlen);
-
 #endif
