@@ -66,8 +66,11 @@ $(B)/run_tests: $(TEST_OBJ) $(B)/libpropbench.a
 $(BA)/run_tests: $(TEST_OBJ_A) $(BA)/libpropbench.a
 	$(CC) $(PB_CFLAGS) $(SAN) -o $@ $^ $(TEST_LIBS) $(PB_LDLIBS)
 
-$(B)/bench_main: $(B)/bench/perf/bench_main.o $(B)/libpropbench.a
+# `make bench` is every file in bench/perf/ (one section of the report each).
+PERF_OBJ := $(patsubst %.c,$(B)/%.o,$(sort $(wildcard bench/perf/*.c)))
+$(B)/bench_main: $(PERF_OBJ) $(B)/libpropbench.a
 	$(CC) $(PB_CFLAGS) -o $@ $^ $(PB_LDLIBS)
+-include $(PERF_OBJ:.o=.d)
 
 # The suite runs twice: a plain optimised build, then under ASan + UBSan;
 # between them, a program built outside the tree against an installed copy.

@@ -50,17 +50,29 @@ static void print_invariant(const char *label, double mx, double fin)
     printf("   (relative)\n");
 }
 
-void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
+/* The unit names of a problem's length, time and speed. */
+typedef struct print_units {
+    int km;
+    const char *L, *T, *V;
+} print_units;
+
+static print_units print_units_of(const pb_problem *p)
+{
+    int km = p->units == PB_UNITS_KM_S;
+    print_units u = {km, km ? "km" : "DU", km ? "s" : "TU", km ? "km/s" : "DU/TU"};
+    return u;
+}
+
+/* What was run: problem, method, its setting, horizon, and how it ended. */
+static void print_setup(const pb_case_spec *spec, const pb_case_result *res, const print_units *u)
 {
     const pb_problem *p = &spec->problem;
-    int km = p->units == PB_UNITS_KM_S;
-    const char *L = km ? "km" : "DU", *T = km ? "s" : "TU", *V = km ? "km/s" : "DU/TU";
     printf("case %s\n", res->id);
-    printf("  %-22s %s (%s units)\n", "problem", p->name, km ? "km-s" : "normalized");
+    printf("  %-22s %s (%s units)\n", "problem", p->name, u->km ? "km-s" : "normalized");
     printf("  %-22s %s%s, order %d\n", "method", spec->method->name,
            (spec->method->flags & PB_FROM_GSL) ? " (GSL's)" : "", spec->method->order);
     if (spec->method->flags & PB_KIND_FIXED) {
-        printf("  %-22s h = %.6g %s", "step", res->h, T);
+        printf("  %-22s h = %.6g %s", "step", res->h, u->T);
         if (p->period > 0)
             printf(" (%.6g steps per orbit)", p->period / res->h);
         printf("%s\n", spec->compensated ? ", compensated" : "");
@@ -69,11 +81,11 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
     }
     double hz = pb_case_horizon(spec);
     if (p->period > 0)
-        printf("  %-22s %.6g %s (%.4g orbits)\n", "horizon", hz, T, hz / p->period);
+        printf("  %-22s %.6g %s (%.4g orbits)\n", "horizon", hz, u->T, hz / p->period);
     else
-        printf("  %-22s %.6g %s\n", "horizon", hz, T);
+        printf("  %-22s %.6g %s\n", "horizon", hz, u->T);
     if (res->status)
-        printf("  %-22s %s at t = %.9g %s: %s\n", "status", res->status_name, res->diverged_at, T,
+        printf("  %-22s %s at t = %.9g %s: %s\n", "status", res->status_name, res->diverged_at, u->T,
                res->status_detail ? res->status_detail : pb_strerror(res->status));
     else
         printf("  %-22s ok\n", "status");
@@ -81,6 +93,12 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
         printf("  %-22s the position error exceeds a tenth of the orbit's size: this run\n"
                "  %-22s follows another orbit, and its growth law and drifts mean little\n",
                "WARNING", "");
+}
+
+/* Invariant drifts and the errors against the truth. */
+static void print_accuracy(const pb_case_spec *spec, const pb_case_result *res, const print_units *u)
+{
+    const pb_problem *p = &spec->problem;
     if (p->energy)
         print_invariant(p->energy_label ? p->energy_label : "energy", res->energy_rel_max,
                         res->energy_rel_final);
@@ -90,9 +108,9 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
     if (p->angmom)
         print_invariant(p->angmom_label ? p->angmom_label : "angular momentum", res->angmom_rel_max,
                         res->angmom_rel_final);
-    print_err("position error, max", res->pos_err_max, L, res->below_floor);
-    print_err("position error, final", res->pos_err_final, L, res->below_floor);
-    if (km && !res->below_floor && isfinite(res->pos_err_max)) {
+    print_err("position error, max", res->pos_err_max, u->L, res->below_floor);
+    print_err("position error, final", res->pos_err_final, u->L, res->below_floor);
+    if (u->km && !res->below_floor && isfinite(res->pos_err_max)) {
         printf("  %-22s ", "  in metres");
         print_num("%.3f", 1e3 * res->pos_err_final, "m");
         printf(" (max ");
@@ -104,9 +122,9 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
     printf("  along ");
     print_num("%+.3e", res->along_final, NULL);
     printf("  cross ");
-    print_num("%+.3e", res->cross_final, L);
+    print_num("%+.3e", res->cross_final, u->L);
     printf("\n");
-    print_err("velocity error, final", res->vel_err_final, V, 0);
+    print_err("velocity error, final", res->vel_err_final, u->V, 0);
     if (p->keplerian) {
         print_err("ecc-vector drift, max", res->ecc_drift_max, "", 0);
         if (isfinite(res->apsidal_rate)) {
@@ -114,6 +132,12 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
             printf("  %-22s %+.3e rad/orbit\n", "apsidal drift (error)", res->apsidal_rate);
         }
     }
+}
+
+/* Growth laws, then what the run cost and its fingerprint. */
+static void print_cost(const pb_case_spec *spec, const pb_case_result *res)
+{
+    const pb_problem *p = &spec->problem;
     print_growth("growth: position", &res->g_pos, p->period);
     print_growth("growth: along-track", &res->g_along, p->period);
     if (p->energy)
@@ -131,4 +155,12 @@ void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
     if (res->projected_s > 0)
         printf("  %-22s %.3g s at %.3g us per evaluation\n", "projected cost", res->projected_s, spec->eval_cost_us);
     printf("  %-22s %s\n", "fingerprint", res->fingerprint);
+}
+
+void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res)
+{
+    print_units u = print_units_of(&spec->problem);
+    print_setup(spec, res, &u);
+    print_accuracy(spec, res, &u);
+    print_cost(spec, res);
 }

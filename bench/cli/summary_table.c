@@ -16,58 +16,61 @@ static void tab_sci(FILE *f, double x)
         fprintf(f, " %10.3e", x);
 }
 
-void pb_summary_print(const json_t *doc, FILE *f)
+/* The setting column: steps per orbit, tolerance, or step. */
+static void tab_setting(const json_t *c, char *out, size_t outlen)
 {
-    const json_t *cases = json_object_get(doc, "cases");
-    fprintf(f, "%-18s %-15s %-12s %-9s %10s %10s %-4s %-10s %-10s %10s %8s\n", "problem", "method",
-            "setting", "status", "energy max", "pos max", "unit", "pos growth", "E growth", "evals",
-            "ns/step");
+    const json_t *spo = json_object_get(c, "steps_per_orbit"), *tol = json_object_get(c, "tolerance");
+    if (json_is_integer(spo))
+        snprintf(out, outlen, "n=%lld", (long long)json_integer_value(spo));
+    else if (json_is_number(tol))
+        snprintf(out, outlen, "tol=%.0e", json_number_value(tol));
+    else
+        snprintf(out, outlen, "h=%.3g", tab_num(c, "step"));
+}
+
+/* One case's line. */
+static void tab_row(const json_t *c, FILE *f)
+{
+    const json_t *m = json_object_get(c, "metrics"), *k = json_object_get(c, "cost");
+    char setting[32];
+    tab_setting(c, setting, sizeof setting);
+    const char *st = json_string_value(json_object_get(c, "status"));
+    if (st && !strcmp(st, "ok") && json_is_true(json_object_get(m, "error_saturated")))
+        st = "ok(sat)";
+    const char *method = json_string_value(json_object_get(c, "method"));
+    int gsl = json_is_true(json_object_get(c, "from_gsl"));
+    char mname[40];
+    snprintf(mname, sizeof mname, "%s%s", method ? method : "?", gsl ? "*" : "");
+    fprintf(f, "%-18s %-15s %-12s %-9s", json_string_value(json_object_get(c, "problem")),
+            mname, setting, st ? st : "?");
+    if (m) {
+        tab_sci(f, tab_num(m, "energy_rel_max"));
+        tab_sci(f, tab_num(m, "pos_err_max"));
+        const char *u = json_string_value(json_object_get(c, "units"));
+        fprintf(f, " %-4s", u && !strcmp(u, "km-s") ? "km" : "DU");
+        const char *gp = json_string_value(json_object_get(m, "growth_class_pos"));
+        const char *ge = json_string_value(json_object_get(m, "growth_class_energy"));
+        fprintf(f, " %-10s %-10s", gp ? gp : "-", ge ? ge : "-");
+    } else {
+        fprintf(f, " %10s %10s %-4s %-10s %-10s", "-", "-", "", "-", "-");
+    }
+    if (k) {
+        fprintf(f, " %10lld", (long long)json_integer_value(json_object_get(k, "evals")));
+        double ns = tab_num(k, "ns_per_step");
+        if (ns < 0)
+            fprintf(f, " %8s", "-");
+        else
+            fprintf(f, " %8.1f", ns);
+    }
+    fputc('\n', f);
+}
+
+/* A note when adaptive cases' cost is mostly the output grid's. */
+static void tab_grid_note(const json_t *cases, FILE *f)
+{
+    int gridded = 0;
     size_t i;
     const json_t *c;
-    json_array_foreach(cases, i, c) {
-        const json_t *m = json_object_get(c, "metrics"), *k = json_object_get(c, "cost");
-        char setting[32];
-        const json_t *spo = json_object_get(c, "steps_per_orbit"), *tol = json_object_get(c, "tolerance");
-        if (json_is_integer(spo))
-            snprintf(setting, sizeof setting, "n=%lld", (long long)json_integer_value(spo));
-        else if (json_is_number(tol))
-            snprintf(setting, sizeof setting, "tol=%.0e", json_number_value(tol));
-        else
-            snprintf(setting, sizeof setting, "h=%.3g", tab_num(c, "step"));
-        const char *st = json_string_value(json_object_get(c, "status"));
-        if (st && !strcmp(st, "ok") && json_is_true(json_object_get(json_object_get(c, "metrics"), "error_saturated")))
-            st = "ok(sat)";
-        const char *method = json_string_value(json_object_get(c, "method"));
-        int gsl = json_is_true(json_object_get(c, "from_gsl"));
-        char mname[40];
-        snprintf(mname, sizeof mname, "%s%s", method ? method : "?", gsl ? "*" : "");
-        fprintf(f, "%-18s %-15s %-12s %-9s", json_string_value(json_object_get(c, "problem")),
-                mname, setting, st ? st : "?");
-        if (m) {
-            tab_sci(f, tab_num(m, "energy_rel_max"));
-            tab_sci(f, tab_num(m, "pos_err_max"));
-            const char *u = json_string_value(json_object_get(c, "units"));
-            fprintf(f, " %-4s", u && !strcmp(u, "km-s") ? "km" : "DU");
-            const char *gp = json_string_value(json_object_get(m, "growth_class_pos"));
-            const char *ge = json_string_value(json_object_get(m, "growth_class_energy"));
-            fprintf(f, " %-10s %-10s", gp ? gp : "-", ge ? ge : "-");
-        } else {
-            fprintf(f, " %10s %10s %-4s %-10s %-10s", "-", "-", "", "-", "-");
-        }
-        if (k) {
-            fprintf(f, " %10lld", (long long)json_integer_value(json_object_get(k, "evals")));
-            double ns = tab_num(k, "ns_per_step");
-            if (ns < 0)
-                fprintf(f, " %8s", "-");
-            else
-                fprintf(f, " %8.1f", ns);
-        }
-        fputc('\n', f);
-    }
-    fprintf(f, "(* GSL's stepper; energy max is relative; growth = class of the fitted power law;\n"
-               " ok(sat): finished, but the position error passed a tenth of the orbit's size)\n");
-    /* adaptive cases whose cost is mostly the output grid's */
-    int gridded = 0;
     json_array_foreach(cases, i, c) {
         const json_t *k = json_object_get(c, "cost");
         const json_t *cut = json_object_get(k, "output_cut_steps");
@@ -79,7 +82,13 @@ void pb_summary_print(const json_t *doc, FILE *f)
         fprintf(f, "  note: in %d adaptive case%s over 10%% of the steps were shortened to land on sample\n"
                    "  times; that cost is the output grid's (see output_cut_steps; a longer horizon dilutes it)\n",
                 gridded, gridded > 1 ? "s" : "");
-    /* how each unfinished case ended, with the time */
+}
+
+/* How each unfinished case ended, with the time. */
+static void tab_unfinished(const json_t *cases, FILE *f)
+{
+    size_t i;
+    const json_t *c;
     json_array_foreach(cases, i, c) {
         const char *st = json_string_value(json_object_get(c, "status"));
         if (!st || !strcmp(st, "ok"))
@@ -96,4 +105,20 @@ void pb_summary_print(const json_t *doc, FILE *f)
         const char *d = json_string_value(json_object_get(c, "status_detail"));
         fprintf(f, "%s%s\n", d ? ": " : "", d ? d : "");
     }
+}
+
+void pb_summary_print(const json_t *doc, FILE *f)
+{
+    const json_t *cases = json_object_get(doc, "cases");
+    fprintf(f, "%-18s %-15s %-12s %-9s %10s %10s %-4s %-10s %-10s %10s %8s\n", "problem", "method",
+            "setting", "status", "energy max", "pos max", "unit", "pos growth", "E growth", "evals",
+            "ns/step");
+    size_t i;
+    const json_t *c;
+    json_array_foreach(cases, i, c)
+        tab_row(c, f);
+    fprintf(f, "(* GSL's stepper; energy max is relative; growth = class of the fitted power law;\n"
+               " ok(sat): finished, but the position error passed a tenth of the orbit's size)\n");
+    tab_grid_note(cases, f);
+    tab_unfinished(cases, f);
 }

@@ -42,25 +42,29 @@ int pb_cli_baseline(int argc, char **argv)
         return pb_cli_error("baseline", "give one RUN_DIR and --out FILE (see --help)");
     char path[4200], err[1024];
     snprintf(path, sizeof path, "%s/summary.json", argv[optind]);
-    json_t *summary;
-    if (pb_summary_load(path, &summary, err, sizeof err))
-        return pb_cli_error("baseline", "%s", err);
-    if (pb_summary_complete(path, summary, err, sizeof err)) {
-        json_decref(summary);
-        return pb_cli_error("baseline", "%s", err);
+    json_t *summary = NULL;
+    int rc = PB_EXIT_USAGE;
+    if (pb_summary_load(path, &summary, err, sizeof err) ||
+        pb_summary_complete(path, summary, err, sizeof err)) {
+        pb_cli_error("baseline", "%s", err);
+        goto out;
     }
     if (json_array_size(json_object_get(summary, "cases")) == 0) {
         /* `check` refuses such a baseline, so do not write one */
-        json_decref(summary);
-        return pb_cli_error("baseline", "%s has no cases: nothing to compare", path);
+        pb_cli_error("baseline", "%s has no cases: nothing to compare", path);
+        goto out;
     }
     json_t *b = pb_baseline_from_summary(summary);
     size_t n = json_array_size(json_object_get(b, "cases"));
     int bad = pb_json_write_atomic(out, b);
     json_decref(b);
-    json_decref(summary);
-    if (bad)
-        return pb_cli_error("baseline", "%s: cannot write", out);
+    if (bad) {
+        pb_cli_error("baseline", "%s: cannot write", out);
+        goto out;
+    }
     printf("wrote %s: %zu cases from %s\n", out, n, path);
-    return PB_EXIT_OK;
+    rc = PB_EXIT_OK;
+out:
+    json_decref(summary);
+    return rc;
 }

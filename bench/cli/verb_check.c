@@ -227,7 +227,27 @@ static int check_markdown(const char *path, const pb_check_report *r, const pb_c
     return rc;
 }
 
-int pb_cli_check(int argc, char **argv)
+/* What the command line asked for. */
+typedef struct check_args {
+    pb_check_options o;
+    const char *base_path, *junit, *md, *run_dir;
+} check_args;
+
+/* check_parse's answer when the comparison should go ahead. */
+enum { CHECK_GO = -1 };
+
+/* A number option that must lie in [lo, hi]; 0, or PB_EXIT_USAGE (message printed). */
+static int check_ranged(const char *opt, const char *arg, double lo, double hi, double *x)
+{
+    if (pb_cli_double("check", opt, arg, x))
+        return PB_EXIT_USAGE;
+    if (*x < lo || *x > hi)
+        return pb_cli_error("check", "%s must be from %g to %g, got '%s'", opt, lo, hi, arg);
+    return 0;
+}
+
+/* CHECK_GO with *a filled in, or the exit status (--help, bad options). */
+static int check_parse(int argc, char **argv, check_args *a)
 {
     enum { O_BASE = 256, O_TOL, O_MTOL, O_FLOOR, O_TIMING, O_RATIO, O_STRICT, O_JUNIT, O_MD };
     static const struct option opts[] = {
@@ -236,116 +256,159 @@ int pb_cli_check(int argc, char **argv)
         {"timing", no_argument, 0, O_TIMING}, {"timing-ratio", required_argument, 0, O_RATIO},
         {"strict", no_argument, 0, O_STRICT}, {"junit", required_argument, 0, O_JUNIT},
         {"markdown", required_argument, 0, O_MD}, {"help", no_argument, 0, 'h'}, {0, 0, 0, 0}};
-    pb_check_options o;
-    pb_check_options_default(&o);
-    const char *base_path = NULL, *junit = NULL, *md = NULL;
+    memset(a, 0, sizeof *a);
+    pb_check_options_default(&a->o);
     char err[1024];
     optind = 1;
     opterr = 0;
     int c;
     while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
         switch (c) {
-        case O_BASE: base_path = optarg; break;
+        case O_BASE: a->base_path = optarg; break;
         case O_TOL:
-            if (pb_cli_double("check", "--tolerance", optarg, &o.tolerance))
+            if (check_ranged("--tolerance", optarg, 0, PB_CHECK_TOLERANCE_MAX, &a->o.tolerance))
                 return PB_EXIT_USAGE;
-            if (o.tolerance < 0 || o.tolerance > PB_CHECK_TOLERANCE_MAX)
-                return pb_cli_error("check", "--tolerance must be from 0 to %g, got '%s'",
-                                    PB_CHECK_TOLERANCE_MAX, optarg);
             break;
         case O_MTOL:
-            if (pb_check_options_metric(&o, optarg, err, sizeof err))
+            if (pb_check_options_metric(&a->o, optarg, err, sizeof err))
                 return pb_cli_error("check", "%s", err);
             break;
         case O_FLOOR:
-            if (pb_cli_double("check", "--floor", optarg, &o.floor))
+            if (check_ranged("--floor", optarg, 0, PB_CHECK_FLOOR_MAX, &a->o.floor))
                 return PB_EXIT_USAGE;
-            if (o.floor < 0 || o.floor > PB_CHECK_FLOOR_MAX)
-                return pb_cli_error("check", "--floor must be from 0 to %g, got '%s'",
-                                    PB_CHECK_FLOOR_MAX, optarg);
             break;
-        case O_TIMING: o.timing = 1; break;
+        case O_TIMING: a->o.timing = 1; break;
         case O_RATIO:
-            if (pb_cli_double("check", "--timing-ratio", optarg, &o.timing_ratio))
+            if (check_ranged("--timing-ratio", optarg, 1, PB_CHECK_TIMING_RATIO_MAX,
+                             &a->o.timing_ratio))
                 return PB_EXIT_USAGE;
-            if (o.timing_ratio < 1 || o.timing_ratio > PB_CHECK_TIMING_RATIO_MAX)
-                return pb_cli_error("check", "--timing-ratio must be from 1 to %g, got '%s'",
-                                    PB_CHECK_TIMING_RATIO_MAX, optarg);
-            o.timing = 1;
+            a->o.timing = 1;
             break;
-        case O_STRICT: o.strict = 1; break;
-        case O_JUNIT: junit = optarg; break;
-        case O_MD: md = optarg; break;
+        case O_STRICT: a->o.strict = 1; break;
+        case O_JUNIT: a->junit = optarg; break;
+        case O_MD: a->md = optarg; break;
         case 'h': check_help(stdout); return PB_EXIT_OK;
         default:
             return pb_cli_error("check", c == ':' ? "option %s needs a value" : "unknown option '%s'", argv[optind - 1]);
         }
     }
-    if (!base_path || optind != argc - 1)
+    if (!a->base_path || optind != argc - 1)
         return pb_cli_error("check", "give --baseline FILE and one RUN_DIR (see --help)");
-    char run_path[4200];
-    snprintf(run_path, sizeof run_path, "%s/summary.json", argv[optind]);
-    json_t *base = NULL, *summary = NULL, *run = NULL;
-    pb_check_report r = {0};
-    int rc = PB_EXIT_USAGE;
-    char jtmp[4200] = "", mtmp[4200] = "";
-    const char *jdone = NULL;   /* a report already renamed into place */
-    if (pb_baseline_load(base_path, &base, err, sizeof err) ||
-        pb_summary_load(run_path, &summary, err, sizeof err) ||
-        pb_summary_complete(run_path, summary, err, sizeof err)) {
+    a->run_dir = argv[optind];
+    return CHECK_GO;
+}
+
+/* What the comparison reads and makes; all owned, freed by check_inputs_free. */
+typedef struct check_inputs {
+    json_t *base, *summary, *run;
+    pb_check_report r;
+} check_inputs;
+
+/* Load both files and compare them; 0, or -1 with the message printed. */
+static int check_load(const check_args *a, const char *run_path, check_inputs *in)
+{
+    char err[1024];
+    if (pb_baseline_load(a->base_path, &in->base, err, sizeof err) ||
+        pb_summary_load(run_path, &in->summary, err, sizeof err) ||
+        pb_summary_complete(run_path, in->summary, err, sizeof err)) {
         pb_cli_error("check", "%s", err);
-        goto out;
+        return -1;
     }
-    run = pb_baseline_from_summary(summary);
-    if (!run || pb_check_compare(base, run, &o, &r)) {
-        pb_cli_error("check", "out of memory comparing %s with %s", run_path, base_path);
-        goto out;
+    in->run = pb_baseline_from_summary(in->summary);
+    if (!in->run || pb_check_compare(in->base, in->run, &a->o, &in->r)) {
+        pb_cli_error("check", "out of memory comparing %s with %s", run_path, a->base_path);
+        return -1;
     }
-    for (int k = 0; k < r.n_warnings; k++)
-        fprintf(stderr, "propbench check: warning: %s\n", r.warnings[k]);
+    return 0;
+}
+
+static void check_inputs_free(check_inputs *in)
+{
+    pb_check_report_free(&in->r);
+    json_decref(in->run);
+    json_decref(in->summary);
+    json_decref(in->base);
+}
+
+static void check_print(const check_args *a, const char *run_path, const pb_check_report *r)
+{
+    for (int k = 0; k < r->n_warnings; k++)
+        fprintf(stderr, "propbench check: warning: %s\n", r->warnings[k]);
     printf("propbench check: %s against %s (tolerance %g%%, floor %g%s%s)\n\n", run_path,
-           base_path, 100 * o.tolerance, o.floor, o.timing ? ", timing" : "",
-           o.strict ? ", strict" : "");
-    check_print_table(stdout, &r);
-    check_print_details(stdout, &r);
+           a->base_path, 100 * a->o.tolerance, a->o.floor, a->o.timing ? ", timing" : "",
+           a->o.strict ? ", strict" : "");
+    check_print_table(stdout, r);
+    check_print_details(stdout, r);
     printf("\n");
-    check_print_totals(stdout, &r, &o);
-    /* both reports under temporary names first, renamed only when both are
-     * written: a failed invocation (exit 2) leaves neither behind */
-    if (junit)
-        snprintf(jtmp, sizeof jtmp, "%s.part.%ld", junit, (long)getpid());
-    if (md)
-        snprintf(mtmp, sizeof mtmp, "%s.part.%ld", md, (long)getpid());
-    if (junit && check_junit(jtmp, &r)) {
-        pb_cli_error("check", "%s: cannot write the JUnit report", junit);
-        goto out;
+    check_print_totals(stdout, r, &a->o);
+}
+
+/* The report files in flight, so that a failure can take them back. */
+typedef struct check_files {
+    char jtmp[4200], mtmp[4200];
+    const char *jdone;   /* a report already renamed into place */
+} check_files;
+
+/* Both reports go under temporary names first and are renamed only when
+ * both are written: a failed invocation (exit 2) leaves neither behind.
+ * 0, or -1 with the message printed. */
+static int check_write_reports(const check_args *a, const char *run_path, const pb_check_report *r,
+                               check_files *fl)
+{
+    if (a->junit)
+        snprintf(fl->jtmp, sizeof fl->jtmp, "%s.part.%ld", a->junit, (long)getpid());
+    if (a->md)
+        snprintf(fl->mtmp, sizeof fl->mtmp, "%s.part.%ld", a->md, (long)getpid());
+    if (a->junit && check_junit(fl->jtmp, r)) {
+        pb_cli_error("check", "%s: cannot write the JUnit report", a->junit);
+        return -1;
     }
-    if (md && check_markdown(mtmp, &r, &o, base_path, run_path)) {
-        pb_cli_error("check", "%s: cannot write the Markdown summary", md);
-        goto out;
+    if (a->md && check_markdown(fl->mtmp, r, &a->o, a->base_path, run_path)) {
+        pb_cli_error("check", "%s: cannot write the Markdown summary", a->md);
+        return -1;
     }
-    if (junit && rename(jtmp, junit)) {
-        pb_cli_error("check", "%s: cannot write the JUnit report: %s", junit, strerror(errno));
-        goto out;
+    if (a->junit && rename(fl->jtmp, a->junit)) {
+        pb_cli_error("check", "%s: cannot write the JUnit report: %s", a->junit, strerror(errno));
+        return -1;
     }
-    jdone = junit;
-    if (md && rename(mtmp, md)) {
-        pb_cli_error("check", "%s: cannot write the Markdown summary: %s", md, strerror(errno));
-        goto out;
+    fl->jdone = a->junit;
+    if (a->md && rename(fl->mtmp, a->md)) {
+        pb_cli_error("check", "%s: cannot write the Markdown summary: %s", a->md, strerror(errno));
+        return -1;
     }
-    rc = pb_check_failed(&r, &o) ? PB_EXIT_FAIL : PB_EXIT_OK;
+    return 0;
+}
+
+static void check_files_discard(const check_files *fl)
+{
+    if (*fl->jtmp)
+        unlink(fl->jtmp);
+    if (*fl->mtmp)
+        unlink(fl->mtmp);
+    if (fl->jdone)
+        unlink(fl->jdone);
+}
+
+int pb_cli_check(int argc, char **argv)
+{
+    check_args a;
+    int rc = check_parse(argc, argv, &a);
+    if (rc != CHECK_GO)
+        return rc;
+    char run_path[4200];
+    snprintf(run_path, sizeof run_path, "%s/summary.json", a.run_dir);
+    check_inputs in = {0};
+    check_files fl = {"", "", NULL};
+    rc = PB_EXIT_USAGE;
+    if (check_load(&a, run_path, &in))
+        goto out;
+    check_print(&a, run_path, &in.r);
+    if (check_write_reports(&a, run_path, &in.r, &fl))
+        goto out;
+    rc = pb_check_failed(&in.r, &a.o) ? PB_EXIT_FAIL : PB_EXIT_OK;
 out:
-    if (rc == PB_EXIT_USAGE) {
-        if (*jtmp)
-            unlink(jtmp);
-        if (*mtmp)
-            unlink(mtmp);
-        if (jdone)
-            unlink(jdone);
-    }
-    pb_check_report_free(&r);
-    json_decref(run);
-    json_decref(summary);
-    json_decref(base);
+    if (rc == PB_EXIT_USAGE)
+        check_files_discard(&fl);
+    check_inputs_free(&in);
     return rc;
 }

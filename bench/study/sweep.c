@@ -48,7 +48,7 @@ static void sweep_maybe_crash(const char *id)
         abort();
 }
 
-/* The worker starts with SIGINT and SIGTERM blocked (see pb_sweep_run) and
+/* The worker starts with SIGINT and SIGTERM blocked (see sweep_spawn) and
  * takes the default actions before unblocking them, so a stop the parent
  * sends in the first instant of the worker's life still ends it. */
 static void sweep_child(const pb_case_spec *spec, int index, const char *work, const sigset_t *unblocked)
@@ -166,94 +166,157 @@ static void sweep_clean(const char *work)
     sweep_rmdir_flat(work);
 }
 
-int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt)
+/* What the steps of one pb_sweep_run share: the dispositions and mask to
+ * put back, the work directory, and which worker runs which case. */
+typedef struct sweep_state {
+    const pb_case_list *list;
+    const char *dir;
+    const pb_sweep_options *opt;
+    struct sigaction old_int, old_term, old_chld;
+    sigset_t stops;      /* blocked in the loop, taken only in sigsuspend */
+    sigset_t unblocked;  /* the caller's mask, restored after the loop and in workers */
+    sigset_t waiting;    /* the caller's mask with the stops let through */
+    json_t *previous;    /* the run directory's summary before this sweep */
+    char work[4200];
+    int *mine, nmine;    /* this shard's case indices */
+    /* by case index: 1 finished; 0 unknown; -N killed by signal N; 100+K exit status K */
+    int *exited_ok;
+    pid_t *pids;         /* by worker slot; 0 when the slot is free */
+    int *slot_case;      /* by worker slot: the case index it runs */
+    int next, running, done;
+} sweep_state;
+
+/* The handlers go in before the work directory exists: whoever sees it may
+ * interrupt at once, and must get the orderly 128+signal exit. */
+static void sweep_signals_install(sweep_state *s)
 {
-    /* The handlers go in before the work directory exists: whoever sees it
-     * may interrupt at once, and must get the orderly 128+signal exit. */
     sweep_stop = 0;
-    struct sigaction sa, old_int, old_term;
+    struct sigaction sa, on_chld;
     memset(&sa, 0, sizeof sa);
     sa.sa_handler = sweep_on_signal;
     sigemptyset(&sa.sa_mask);
-    struct sigaction old_chld, on_chld;
     memset(&on_chld, 0, sizeof on_chld);
     on_chld.sa_handler = sweep_on_child; /* only to wake sigsuspend */
     sigemptyset(&on_chld.sa_mask);
-    sigaction(SIGINT, &sa, &old_int);
-    sigaction(SIGTERM, &sa, &old_term);
-    sigaction(SIGCHLD, &on_chld, &old_chld);
-    sigset_t stops, unblocked, waiting;
-    sigemptyset(&stops);
-    sigaddset(&stops, SIGINT);
-    sigaddset(&stops, SIGTERM);
-    sigaddset(&stops, SIGCHLD);
-    sigprocmask(SIG_SETMASK, NULL, &unblocked);
-    waiting = unblocked;
-    sigdelset(&waiting, SIGINT);
-    sigdelset(&waiting, SIGTERM);
-    sigdelset(&waiting, SIGCHLD);
-    json_t *previous = pb_run_dir_previous(dir); /* before this sweep writes anything */
-    char work[4200];
-    snprintf(work, sizeof work, "%s/.work.%ld", dir, (long)getpid());
-    int *mine = NULL, *exited_ok = NULL, *slot_case = NULL;
-    pid_t *pids = NULL;
-    int rc = -1;
+    sigaction(SIGINT, &sa, &s->old_int);
+    sigaction(SIGTERM, &sa, &s->old_term);
+    sigaction(SIGCHLD, &on_chld, &s->old_chld);
+    sigemptyset(&s->stops);
+    sigaddset(&s->stops, SIGINT);
+    sigaddset(&s->stops, SIGTERM);
+    sigaddset(&s->stops, SIGCHLD);
+    sigprocmask(SIG_SETMASK, NULL, &s->unblocked);
+    s->waiting = s->unblocked;
+    sigdelset(&s->waiting, SIGINT);
+    sigdelset(&s->waiting, SIGTERM);
+    sigdelset(&s->waiting, SIGCHLD);
+}
+
+static void sweep_signals_restore(const sweep_state *s)
+{
+    sigaction(SIGINT, &s->old_int, NULL);
+    sigaction(SIGTERM, &s->old_term, NULL);
+    sigaction(SIGCHLD, &s->old_chld, NULL);
+}
+
+/* The run directory prepared, the work directory made, the tables
+ * allocated and this shard's cases chosen; -1 (message printed) if not. */
+static int sweep_prepare(sweep_state *s)
+{
+    const pb_sweep_options *opt = s->opt;
     char why[4400];
-    if (pb_run_dir_prepare(dir, why, sizeof why)) {
+    if (pb_run_dir_prepare(s->dir, why, sizeof why)) {
         fprintf(stderr, "propbench sweep: error: %s\n", why);
-        goto restore;
+        return -1;
     }
-    if (pb_mkdirs(work)) {
-        fprintf(stderr, "propbench sweep: error: cannot create the folder %s: %s\n", work, strerror(errno));
-        goto restore;
+    if (pb_mkdirs(s->work)) {
+        fprintf(stderr, "propbench sweep: error: cannot create the folder %s: %s\n", s->work,
+                strerror(errno));
+        return -1;
     }
-    size_t cap = (size_t)(list->n > 0 ? list->n : 1);
-    mine = malloc(cap * sizeof(int));
-    exited_ok = calloc(cap, sizeof(int));
-    pids = calloc((size_t)(opt->jobs > 0 ? opt->jobs : 1), sizeof(pid_t));
-    slot_case = calloc((size_t)(opt->jobs > 0 ? opt->jobs : 1), sizeof(int));
-    if (!mine || !exited_ok || !pids || !slot_case) {
-        sweep_clean(work);
-        goto restore;
+    size_t cap = (size_t)(s->list->n > 0 ? s->list->n : 1);
+    size_t slots = (size_t)(opt->jobs > 0 ? opt->jobs : 1);
+    s->mine = malloc(cap * sizeof(int));
+    s->exited_ok = calloc(cap, sizeof(int));
+    s->pids = calloc(slots, sizeof(pid_t));
+    s->slot_case = calloc(slots, sizeof(int));
+    if (!s->mine || !s->exited_ok || !s->pids || !s->slot_case) {
+        sweep_clean(s->work);
+        return -1;
     }
-    int nmine = 0;
-    for (int i = 0; i < list->n; i++)
+    s->nmine = 0;
+    for (int i = 0; i < s->list->n; i++)
         if (opt->shard_n <= 1 || i % opt->shard_n == opt->shard_k - 1)
-            mine[nmine++] = i;
+            s->mine[s->nmine++] = i;
+    return 0;
+}
+
+/* Fork workers until every slot is busy or every case is given out. The
+ * stops are blocked here, so a worker is born with them blocked and takes
+ * its default actions before it lets them in (sweep_child). */
+static void sweep_spawn(sweep_state *s)
+{
+    while (s->running < s->opt->jobs && s->next < s->nmine && !sweep_stop) {
+        int ci = s->mine[s->next];
+        pid_t pid = fork();
+        if (pid == 0)
+            sweep_child(&s->list->cases[ci], ci, s->work, &s->unblocked);
+        if (pid < 0) {
+            /* no process to be had: run nothing more, record the rest as crashed */
+            s->next = s->nmine;
+            break;
+        }
+        for (int j = 0; j < s->opt->jobs; j++)
+            if (!s->pids[j]) {
+                s->pids[j] = pid;
+                s->slot_case[j] = ci;
+                break;
+            }
+        s->running++;
+        s->next++;
+    }
+}
+
+/* A wait status in the code of sweep_state.exited_ok. */
+static int sweep_exit_code(int st)
+{
+    if (WIFEXITED(st))
+        return WEXITSTATUS(st) == 0 ? 1 : 100 + WEXITSTATUS(st);
+    return WIFSIGNALED(st) ? -WTERMSIG(st) : 0;
+}
+
+/* Free the slot of worker w and note how it ended. */
+static void sweep_record(sweep_state *s, pid_t w, int st)
+{
+    for (int j = 0; j < s->opt->jobs; j++)
+        if (s->pids[j] == w) {
+            s->pids[j] = 0;
+            s->exited_ok[s->slot_case[j]] = sweep_exit_code(st);
+        }
+    s->running--;
+    s->done++;
+}
+
+/* Run the cases until all are done or a stop arrives. */
+static void sweep_loop(sweep_state *s)
+{
     fflush(NULL);
     pb_progress prog;
-    pb_progress_start(&prog, opt->progress, nmine, "cases");
-    int next = 0, running = 0, done = 0;
+    pb_progress_start(&prog, s->opt->progress, s->nmine, "cases");
+    s->next = s->running = s->done = 0;
     /* Stops stay blocked in the loop and are taken only inside sigsuspend,
      * with SIGCHLD: a stop that comes between the check and the wait would
      * otherwise sit unseen until some worker ended. */
-    sigprocmask(SIG_BLOCK, &stops, NULL);
-    while (done < nmine && !sweep_stop) {
-        while (running < opt->jobs && next < nmine && !sweep_stop) {
-            pid_t pid = fork();
-            if (pid == 0)
-                sweep_child(&list->cases[mine[next]], mine[next], work, &unblocked);
-            if (pid < 0) {
-                /* no process to be had: run nothing more, record the rest as crashed */
-                next = nmine;
-                break;
-            }
-            for (int j = 0; j < opt->jobs; j++)
-                if (!pids[j]) {
-                    pids[j] = pid;
-                    slot_case[j] = mine[next];
-                    break;
-                }
-            running++;
-            next++;
-        }
-        if (running == 0)
+    sigprocmask(SIG_BLOCK, &s->stops, NULL);
+    while (s->done < s->nmine && !sweep_stop) {
+        sweep_spawn(s);
+        if (s->running == 0)
             break;
         int st;
         pid_t w = waitpid(-1, &st, WNOHANG);
         if (w == 0) {
             if (!sweep_stop)
-                sigsuspend(&waiting);
+                sigsuspend(&s->waiting);
             continue;
         }
         if (w < 0) {
@@ -261,71 +324,88 @@ int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_optio
                 continue;
             break;
         }
-        for (int j = 0; j < opt->jobs; j++)
-            if (pids[j] == w) {
-                pids[j] = 0;
-                /* 1: finished; 0: unknown; -N: killed by signal N; 100+K: exit status K */
-                exited_ok[slot_case[j]] = WIFEXITED(st) ? (WEXITSTATUS(st) == 0 ? 1 : 100 + WEXITSTATUS(st))
-                                        : WIFSIGNALED(st) ? -WTERMSIG(st) : 0;
-            }
-        running--;
-        done++;
-        pb_progress_update(&prog, done, NULL);
+        sweep_record(s, w, st);
+        pb_progress_update(&prog, s->done, NULL);
     }
-    sigprocmask(SIG_SETMASK, &unblocked, NULL);
+    sigprocmask(SIG_SETMASK, &s->unblocked, NULL);
     pb_progress_end(&prog);
-    if (sweep_stop) {
-        /* interrupted: stop the workers, leave the run directory as it was */
-        for (int j = 0; j < opt->jobs; j++)
-            if (pids[j] > 0)
-                kill(pids[j], SIGTERM);
-        while (wait(NULL) > 0 || errno == EINTR)
-            ;
-        sweep_clean(work);
-        pb_run_dir_unprepare(dir);
-        fprintf(stderr, "propbench sweep: interrupted; %s was left as it was\n", dir);
-        rc = -2;
-        goto restore;
-    }
+}
 
+/* Interrupted: stop the workers, leave the run directory as it was. */
+static int sweep_abandon(sweep_state *s)
+{
+    for (int j = 0; j < s->opt->jobs; j++)
+        if (s->pids[j] > 0)
+            kill(s->pids[j], SIGTERM);
+    while (wait(NULL) > 0 || errno == EINTR)
+        ;
+    sweep_clean(s->work);
+    pb_run_dir_unprepare(s->dir);
+    fprintf(stderr, "propbench sweep: interrupted; %s was left as it was\n", s->dir);
+    return -2;
+}
+
+/* Every worker done: gather the cases in order, write the summary, and
+ * remove what an earlier run left that this one did not rewrite. */
+static int sweep_finish(sweep_state *s)
+{
+    const pb_sweep_options *opt = s->opt;
     json_t *cases = json_array();
-    for (int k = 0; k < nmine; k++)
-        json_array_append_new(cases, sweep_collect(work, mine[k], &list->cases[mine[k]],
-                                                   exited_ok[mine[k]], dir));
-    sweep_clean(work);
+    for (int k = 0; k < s->nmine; k++) {
+        int ci = s->mine[k];
+        json_array_append_new(cases, sweep_collect(s->work, ci, &s->list->cases[ci],
+                                                   s->exited_ok[ci], s->dir));
+    }
+    sweep_clean(s->work);
     json_t *doc = pb_summary_new(cases);
     char ident[64];
-    pb_sweep_identity(list, ident, sizeof ident);
+    pb_sweep_identity(s->list, ident, sizeof ident);
     json_object_set_new(doc, "sweep", json_string(opt->label ? opt->label : "grid"));
     json_object_set_new(doc, "sweep_id", json_string(ident));
-    json_object_set_new(doc, "total_cases", json_integer(list->n));
+    json_object_set_new(doc, "total_cases", json_integer(s->list->n));
     if (opt->shard_n > 1) {
         char sh[32];
         snprintf(sh, sizeof sh, "%d/%d", opt->shard_k, opt->shard_n);
         json_object_set_new(doc, "shard", json_string(sh));
     }
     char path[4300];
-    snprintf(path, sizeof path, "%s/summary.json", dir);
-    rc = pb_json_write_atomic(path, doc) ? -1 : 0;
+    snprintf(path, sizeof path, "%s/summary.json", s->dir);
+    int rc = pb_json_write_atomic(path, doc) ? -1 : 0;
     if (rc)
-        pb_run_dir_unwrite(dir, cases);
-    if (rc == 0 && previous) {
-        int pruned = pb_run_dir_prune(dir, previous, doc);
+        pb_run_dir_unwrite(s->dir, cases);
+    if (rc == 0 && s->previous) {
+        int pruned = pb_run_dir_prune(s->dir, s->previous, doc);
         if (pruned && !opt->quiet)
-            fprintf(stderr, "propbench sweep: removed %d files an earlier run left in %s\n", pruned, dir);
+            fprintf(stderr, "propbench sweep: removed %d files an earlier run left in %s\n", pruned,
+                    s->dir);
     }
     json_decref(doc);
     if (rc)
         fprintf(stderr, "propbench sweep: error: cannot write %s\n", path);
-restore:
-    sigaction(SIGINT, &old_int, NULL);
-    sigaction(SIGTERM, &old_term, NULL);
-    sigaction(SIGCHLD, &old_chld, NULL);
-    json_decref(previous);
-    free(mine);
-    free(exited_ok);
-    free(pids);
-    free(slot_case);
+    return rc;
+}
+
+int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt)
+{
+    sweep_state s;
+    memset(&s, 0, sizeof s);
+    s.list = list;
+    s.dir = dir;
+    s.opt = opt;
+    sweep_signals_install(&s);
+    s.previous = pb_run_dir_previous(dir); /* before this sweep writes anything */
+    snprintf(s.work, sizeof s.work, "%s/.work.%ld", dir, (long)getpid());
+    int rc = -1;
+    if (sweep_prepare(&s) == 0) {
+        sweep_loop(&s);
+        rc = sweep_stop ? sweep_abandon(&s) : sweep_finish(&s);
+    }
+    sweep_signals_restore(&s);
+    json_decref(s.previous);
+    free(s.mine);
+    free(s.exited_ok);
+    free(s.pids);
+    free(s.slot_case);
     return rc;
 }
 
