@@ -9,6 +9,7 @@
 #include <spawn.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <math.h>
 #include <string.h>
 #include <sys/stat.h>
 #include <sys/wait.h>
@@ -627,4 +628,44 @@ Test(check, same_case_twice_gives_identical_fingerprints)
     cr_assert_eq(pbc_spawn(&ctx, sweep), 0, "%s", ctx.err);
     cr_assert_eq(pbc_check(&ctx, again, "--strict", NULL, NULL), 0, "%s", ctx.out);
     cr_assert(strstr(ctx.out, "0 fingerprint changes (strict)"), "%s", ctx.out);
+}
+
+static void edit_no_scales(json_t *cs) { json_object_del(pbc_case(cs, "rk4"), "scales"); }
+
+/* The gate's floor for positions and velocities scales with the case's own
+ * orbit, whatever its name: a problem-file case (not in the catalogue) of a
+ * circular 6778 km orbit gets |r0| = a = 6778 km and |v0| = sqrt(mu/a)
+ * (two-body law, REFERENCES.md; mu from the body table, 398600.4418), where
+ * a lookup by name in the catalogue used to give it 1.0. */
+Test(check, problem_file_case_keeps_its_own_scale)
+{
+    char ini[200], run[200], base[200];
+    snprintf(ini, sizeof ini, "%s/team.ini", ctx.dir);
+    snprintf(run, sizeof run, "%s/team-run", ctx.dir);
+    snprintf(base, sizeof base, "%s/team-base.json", ctx.dir);
+    const char *text = "[case team-orbit]\nunits = km-s\nbody = earth\nforce = two-body\n"
+                       "a = 6778\ne = 0\ni_deg = 51.6\nraan_deg = 0\nargp_deg = 0\nnu_deg = 0\n";
+    pbc_write(ini, text, strlen(text));
+    char *rn[] = {(char *)pbc_bin(), "run", "--problem-file", ini, "--method", "rk4",
+                  "--steps-per-orbit", "100", "--orbits", "2", "--repeats", "0", "--quiet",
+                  "--out", run, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, rn), 0, "%s", ctx.err);
+    char *bl[] = {(char *)pbc_bin(), "baseline", run, "--out", base, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, bl), 0, "%s", ctx.err);
+    json_t *b = json_load_file(base, 0, NULL);
+    cr_assert_not_null(b);
+    json_t *sc = json_object_get(json_array_get(json_object_get(b, "cases"), 0), "scale");
+    double len = json_number_value(json_object_get(sc, "length"));
+    double speed = json_number_value(json_object_get(sc, "speed"));
+    json_decref(b);
+    cr_assert(fabs(len - 6778.0) < 1e-9 * 6778.0, "length scale %.12g", len);
+    cr_assert(fabs(speed - sqrt(398600.4418 / 6778.0)) < 1e-12 * speed, "speed scale %.15g", speed);
+
+    /* a summary whose case lacks its scales is refused, not given 1.0 */
+    const char *d = pbc_doctor(&ctx, "noscales", edit_no_scales);
+    char summary[200];
+    snprintf(summary, sizeof summary, "%s/summary.json", d);
+    char *bs[] = {(char *)pbc_bin(), "baseline", (char *)d, "--out", base, NULL};
+    cr_assert_eq(pbc_spawn(&ctx, bs), 2, "%s%s", ctx.out, ctx.err);
+    cr_assert(pbc_line_has(ctx.err, summary, "key 'scales' missing", "rk4"), "%s", ctx.err);
 }
