@@ -17,21 +17,21 @@ const char *const pb_baseline_settings[] = {"problem", "method", "steps_per_orbi
 
 /* Why a baseline case is bad (settings, metrics, counts, fingerprint, a
  * finished case's compared keys, its scale); 0, or -1 with the message. */
-static int baseline_case_ok(const char *path, size_t i, const json_t *c, const json_t *seen,
+static int baseline_case_ok(const char *path, size_t i, const json_t *c, void *unused,
                             char *err, size_t errlen)
 {
+    (void)unused;
     const char *id = json_string_value(json_object_get(c, "id"));
-    const char *why = pb_summary_case_why(c, seen);
-    if (!why && (!json_is_object(json_object_get(c, "metrics")) ||
-                 !json_is_object(json_object_get(c, "counts")) ||
-                 !json_is_object(json_object_get(c, "settings")) ||
-                 !json_is_string(json_object_get(c, "fingerprint"))))
+    const char *why = NULL;
+    if (!json_is_object(json_object_get(c, "metrics")) ||
+        !json_is_object(json_object_get(c, "counts")) ||
+        !json_is_object(json_object_get(c, "settings")) ||
+        !json_is_string(json_object_get(c, "fingerprint")))
         why = "lacks 'settings', 'metrics', 'counts' or 'fingerprint'";
     if (!why)
         why = pb_summary_numbers_bad(json_object_get(c, "metrics"), json_object_get(c, "counts"));
     if (why) {
-        snprintf(err, errlen, "%s: corrupt: cases[%zu]%s%s%s %s", path, i, id ? " (" : "",
-                 id ? id : "", id ? ")" : "", why);
+        snprintf(err, errlen, "%s: corrupt: cases[%zu] (%s) %s", path, i, id, why);
         return -1;
     }
     const char *group = NULL, *key = NULL;
@@ -51,26 +51,6 @@ static int baseline_case_ok(const char *path, size_t i, const json_t *c, const j
     return 0;
 }
 
-static int baseline_cases_ok(const char *path, const json_t *d, char *err, size_t errlen)
-{
-    json_t *cs = json_object_get(d, "cases");
-    if (!json_is_array(cs)) {
-        snprintf(err, errlen, "%s: corrupt: no array 'cases'", path);
-        return -1;
-    }
-    json_t *seen = json_object();
-    size_t i;
-    json_t *c;
-    int rc = 0;
-    json_array_foreach(cs, i, c) {
-        if ((rc = baseline_case_ok(path, i, c, seen, err, errlen)))
-            break;
-        json_object_set_new(seen, json_string_value(json_object_get(c, "id")), json_true());
-    }
-    json_decref(seen);
-    return rc;
-}
-
 int pb_baseline_load(const char *path, json_t **out, char *err, size_t errlen)
 {
     *out = NULL;
@@ -85,7 +65,7 @@ int pb_baseline_load(const char *path, json_t **out, char *err, size_t errlen)
         return -1;
     }
     if (pb_json_doc_format_ok(path, d, PB_BASELINE_FORMAT, "baseline", err, errlen) ||
-        baseline_cases_ok(path, d, err, errlen)) {
+        pb_doc_cases_check(path, d, baseline_case_ok, NULL, err, errlen)) {
         json_decref(d);
         return -1;
     }

@@ -144,11 +144,8 @@ static const char *summary_key_missing(const json_t *c, const char **group)
     return NULL;
 }
 
-/* Every case an object with a unique string id and a string status, and
- * numbers where numbers belong; with complete, every finished case with
- * every compared key. */
-static int summary_cases_ok(const char *path, const json_t *d, int complete, char *err,
-                            size_t errlen)
+int pb_doc_cases_check(const char *path, const json_t *d, pb_case_check_fn check, void *ctx,
+                       char *err, size_t errlen)
 {
     json_t *cs = json_object_get(d, "cases");
     if (!json_is_array(cs)) {
@@ -160,38 +157,59 @@ static int summary_cases_ok(const char *path, const json_t *d, int complete, cha
     json_t *c;
     int rc = 0;
     json_array_foreach(cs, i, c) {
-        const char *id = json_string_value(json_object_get(c, "id"));
         const char *why = pb_summary_case_why(c, seen);
-        int finished = !why && strcmp(json_string_value(json_object_get(c, "status")), "crashed");
-        if (finished) {
-            json_t *m = json_object_get(c, "metrics"), *n = json_object_get(c, "cost");
-            why = (!json_is_object(m) || !json_is_object(n)) ? "lacks the objects 'metrics' or 'cost'"
-                                                             : pb_summary_numbers_bad(m, n);
-        }
         if (why) {
+            const char *id = json_string_value(json_object_get(c, "id"));
             snprintf(err, errlen, "%s: corrupt: cases[%zu]%s%s%s %s", path, i, id ? " (" : "",
                      id ? id : "", id ? ")" : "", why);
             rc = -1;
             break;
         }
-        const char *group = NULL, *key = finished && complete ? summary_key_missing(c, &group) : NULL;
-        if (key) {
-            snprintf(err, errlen, "%s: case %s: key '%s' missing%s%s%s (every '%s' case has it)",
-                     path, id, key, group ? " from '" : "", group ? group : "", group ? "'" : "",
-                     json_string_value(json_object_get(c, "status")));
-            rc = -1;
+        if ((rc = check(path, i, c, ctx, err, errlen)))
             break;
-        }
-        char sw[160];
-        if (finished && complete && pb_summary_scales_ok(c, "scales", sw, sizeof sw)) {
-            snprintf(err, errlen, "%s: case %s: %s", path, id, sw);
-            rc = -1;
-            break;
-        }
-        json_object_set_new(seen, id, json_true());
+        json_object_set_new(seen, json_string_value(json_object_get(c, "id")), json_true());
     }
     json_decref(seen);
     return rc;
+}
+
+/* A summary case: numbers where numbers belong; with *complete, every
+ * finished case with every compared key. */
+static int summary_case_ok(const char *path, size_t i, const json_t *c, void *complete_p,
+                           char *err, size_t errlen)
+{
+    int complete = *(const int *)complete_p;
+    const char *id = json_string_value(json_object_get(c, "id"));
+    const char *why = NULL;
+    int finished = strcmp(json_string_value(json_object_get(c, "status")), "crashed") != 0;
+    if (finished) {
+        json_t *m = json_object_get(c, "metrics"), *n = json_object_get(c, "cost");
+        why = (!json_is_object(m) || !json_is_object(n)) ? "lacks the objects 'metrics' or 'cost'"
+                                                         : pb_summary_numbers_bad(m, n);
+    }
+    if (why) {
+        snprintf(err, errlen, "%s: corrupt: cases[%zu] (%s) %s", path, i, id, why);
+        return -1;
+    }
+    const char *group = NULL, *key = finished && complete ? summary_key_missing(c, &group) : NULL;
+    if (key) {
+        snprintf(err, errlen, "%s: case %s: key '%s' missing%s%s%s (every '%s' case has it)",
+                 path, id, key, group ? " from '" : "", group ? group : "", group ? "'" : "",
+                 json_string_value(json_object_get(c, "status")));
+        return -1;
+    }
+    char sw[160];
+    if (finished && complete && pb_summary_scales_ok(c, "scales", sw, sizeof sw)) {
+        snprintf(err, errlen, "%s: case %s: %s", path, id, sw);
+        return -1;
+    }
+    return 0;
+}
+
+static int summary_cases_ok(const char *path, const json_t *d, int complete, char *err,
+                            size_t errlen)
+{
+    return pb_doc_cases_check(path, d, summary_case_ok, &complete, err, errlen);
 }
 
 int pb_summary_complete(const char *path, const json_t *doc, char *err, size_t errlen)

@@ -38,6 +38,18 @@ const char *pb_summary_key_missing(const json_t *m, const json_t *n, const char 
  * in seen); NULL if fine. Adds nothing to seen. */
 const char *pb_summary_case_why(const json_t *c, const json_t *seen);
 
+/* One case's own checks, after pb_doc_cases_check has made sure it is an
+ * object with a new string id and a string status. 0, or -1 with the
+ * message (naming path and the case) in err. */
+typedef int (*pb_case_check_fn)(const char *path, size_t i, const json_t *c, void *ctx,
+                                char *err, size_t errlen);
+
+/* Walk d's "cases" array (which must be one): each case must pass
+ * pb_summary_case_why, then check. Stops at the first failure. 0, or -1
+ * with the message in err. Shared by run summaries and baselines. */
+int pb_doc_cases_check(const char *path, const json_t *d, pb_case_check_fn check, void *ctx,
+                       char *err, size_t errlen);
+
 /* Why a case's "scales" (or a baseline's "scale") object is bad: each of
  * "length" and "speed" must be a positive finite number (the gate's floor
  * unit; 0 would remove the floor). 0, or -1 with text naming key in why. */
