@@ -295,7 +295,7 @@ done:
 }
 
 /* The initial distance |r0| and the osculating semi-major axis of a bound
- * Keplerian orbit (0 otherwise), from the catalogue's problem facts. */
+ * Keplerian orbit (0 otherwise), from the problem's own facts (summary.c). */
 static double harness_orbit_size(const pb_problem *p, double *a)
 {
     double r2 = 0;
