@@ -51,93 +51,89 @@ static UV_REAL UV_FN(uv_residual)(UV_REAL x, UV_REAL alpha, UV_REAL r0n, UV_REAL
     return sigma0 * x2 * c2 + (1 - alpha * r0n) * x2 * x * c3 + r0n * x - smu_dt;
 }
 
-/* Contract: the exact two-body state (r, v) at dt after (r0, v0), for any
- * conic. Returns PB_EINVAL for mu <= 0 or r0 = 0, PB_ENOCONV if the
- * universal anomaly cannot be found (a span so long that even the bracket
- * overflows). */
-int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
-              UV_REAL *r, UV_REAL *v)
-{
-    UV_REAL r0n = UV_SQRT(r0[0] * r0[0] + r0[1] * r0[1] + r0[2] * r0[2]);
-    UV_REAL v0s = v0[0] * v0[0] + v0[1] * v0[1] + v0[2] * v0[2];
-    if (!(mu > 0) || !(r0n > 0) || !UV_FINITE(v0s) || !UV_FINITE(dt))
-        return PB_EINVAL;
-    UV_REAL smu = UV_SQRT(mu);
-    UV_REAL sigma0 = (r0[0] * v0[0] + r0[1] * v0[1] + r0[2] * v0[2]) / smu;
-    UV_REAL alpha = 2 / r0n - v0s / mu;   /* 1/a; 0 for a parabola */
+/* The orbit's constants for one flow: mu, sqrt(mu), |r0|, r0 . v0 / sqrt(mu), 1/a. */
+typedef struct {
+    UV_REAL mu, smu, r0n, sigma0, alpha;
+} UV_FN(uv_orbit);
 
-    UV_REAL lo, hi, x;
+/* The starting anomaly x and, on an ellipse, the bracket [lo, hi] that holds
+ * the root (lo = hi = 0 otherwise); dt is reduced modulo the period. */
+static void UV_FN(uv_start)(const UV_FN(uv_orbit) *o, UV_REAL *dt, UV_REAL *x, UV_REAL *lo,
+                            UV_REAL *hi)
+{
+    UV_REAL smu = o->smu, alpha = o->alpha, r0n = o->r0n;
     if (alpha > 0) {
         /* Reduce dt to [-T/2, T/2]: a whole period maps the state to itself,
          * and a small anomaly keeps the Stumpff arguments small. */
         UV_REAL sa = UV_SQRT(alpha);
         UV_REAL T = 2 * UV_PI / (smu * alpha * sa);
-        UV_REAL k = UV_ROUND(dt / T);
+        UV_REAL k = UV_ROUND(*dt / T);
         if (k != 0)
-            dt = UV_FMA(-k, T, dt);
+            *dt = UV_FMA(-k, T, *dt);
         /* x = sqrt(a) dE, and |dM| <= pi gives |dE| <= pi + 2e < 2 pi from
          * any starting anomaly (dM = dE - e (sin E - sin E0)), so the root
          * lies within 2 pi sqrt(a); the residual is monotone in x. */
-        hi = 2 * UV_PI / sa;
-        lo = -hi;
-        x = smu * dt * alpha;
-    } else {
-        x = smu * dt / r0n;
-        lo = hi = 0;
-        if (alpha < 0) {
-            /* Vallado 4th ed. Alg. 8's hyperbolic starter, far closer than
-             * the above on long spans, where Newton on the exponential
-             * residual would creep in steps of about sqrt(-a) */
-            UV_REAL sg = dt > 0 ? 1 : -1, sma = UV_SQRT(-1 / alpha);
-            UV_REAL q = -2 * mu * alpha * dt /
-                        (sigma0 * smu + sg * UV_SQRT(mu / -alpha) * (1 - r0n * alpha));
-            UV_REAL xs = q > 0 ? sg * sma * UV_LOG(q) : 0;
-            if (UV_FINITE(xs) && xs * dt > 0)
-                x = xs;
-        }
+        *hi = 2 * UV_PI / sa;
+        *lo = -*hi;
+        *x = smu * *dt * alpha;
+        return;
     }
-    if (dt == 0) {
-        for (int i = 0; i < 3; i++) {
-            r[i] = r0[i];
-            v[i] = v0[i];
-        }
-        return PB_OK;
+    *x = smu * *dt / r0n;
+    *lo = *hi = 0;
+    if (alpha < 0) {
+        /* Vallado 4th ed. Alg. 8's hyperbolic starter, far closer than
+         * the above on long spans, where Newton on the exponential
+         * residual would creep in steps of about sqrt(-a) */
+        UV_REAL mu = o->mu, sg = *dt > 0 ? 1 : -1, sma = UV_SQRT(-1 / alpha);
+        UV_REAL q = -2 * mu * alpha * *dt /
+                    (o->sigma0 * smu + sg * UV_SQRT(mu / -alpha) * (1 - r0n * alpha));
+        UV_REAL xs = q > 0 ? sg * sma * UV_LOG(q) : 0;
+        if (UV_FINITE(xs) && xs * *dt > 0)
+            *x = xs;
     }
-    UV_REAL smu_dt = smu * dt, dF;
-    if (!(alpha > 0)) {
-        /* Bracket by doubling away from 0 in the direction of dt; F grows at
-         * least like x^3 (parabola) or exponentially (hyperbola). F is
-         * increasing, so where the Stumpff functions overflow F is beyond the
-         * root: a non-finite F ends the bracket as an overshoot would. */
-        UV_REAL step = x;
-        int n = 0;
-        for (;;) {
-            if (!UV_FINITE(step))
-                return PB_ENOCONV;
-            UV_REAL F = UV_FN(uv_residual)(step, alpha, r0n, sigma0, smu_dt, &dF);
-            if (!UV_FINITE(F) || (dt > 0 && F >= 0) || (dt < 0 && F <= 0))
-                break;
-            if (++n > 2000)
-                return PB_ENOCONV;
-            step *= 2;
-        }
-        if (dt > 0) {
-            lo = n ? step / 2 : 0;
-            hi = step;
-        } else {
-            hi = n ? step / 2 : 0;
-            lo = step;
-        }
-        x = (lo + hi) / 2;
-    }
-    if (x <= lo || x >= hi)
-        x = (lo + hi) / 2;
+}
 
-    /* Newton safeguarded by the bracket: a step that leaves [lo, hi] is
-     * replaced by bisection, so convergence never depends on the starter. */
+/* Parabola and hyperbola: bracket the root by doubling away from 0 in the
+ * direction of dt; F grows at least like x^3 (parabola) or exponentially
+ * (hyperbola). F is increasing, so where the Stumpff functions overflow F
+ * is beyond the root: a non-finite F ends the bracket as an overshoot would.
+ * PB_OK with [lo, hi] and x at its middle, or PB_ENOCONV. */
+static int UV_FN(uv_bracket)(const UV_FN(uv_orbit) *o, UV_REAL dt, UV_REAL smu_dt, UV_REAL *x,
+                             UV_REAL *lo, UV_REAL *hi)
+{
+    UV_REAL step = *x, dF;
+    int n = 0;
+    for (;;) {
+        if (!UV_FINITE(step))
+            return PB_ENOCONV;
+        UV_REAL F = UV_FN(uv_residual)(step, o->alpha, o->r0n, o->sigma0, smu_dt, &dF);
+        if (!UV_FINITE(F) || (dt > 0 && F >= 0) || (dt < 0 && F <= 0))
+            break;
+        if (++n > 2000)
+            return PB_ENOCONV;
+        step *= 2;
+    }
+    if (dt > 0) {
+        *lo = n ? step / 2 : 0;
+        *hi = step;
+    } else {
+        *hi = n ? step / 2 : 0;
+        *lo = step;
+    }
+    *x = (*lo + *hi) / 2;
+    return PB_OK;
+}
+
+/* Newton safeguarded by the bracket [lo, hi]: a step that leaves it is
+ * replaced by bisection, so convergence never depends on the starter.
+ * PB_OK with the root in x, or PB_ENOCONV. */
+static int UV_FN(uv_solve)(const UV_FN(uv_orbit) *o, UV_REAL smu_dt, UV_REAL *xp, UV_REAL lo,
+                           UV_REAL hi)
+{
+    UV_REAL x = *xp, dF;
     int it;
     for (it = 0; it < 400; it++) {
-        UV_REAL F = UV_FN(uv_residual)(x, alpha, r0n, sigma0, smu_dt, &dF);
+        UV_REAL F = UV_FN(uv_residual)(x, o->alpha, o->r0n, o->sigma0, smu_dt, &dF);
         if (!UV_FINITE(F)) {
             /* overflow: past the root on the side of x's sign (see above) */
             if (x > 0)
@@ -163,14 +159,20 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
         if (UV_FABS(dx) <= 4 * UV_EPS * UV_FABS(x) || hi - lo <= 4 * UV_EPS * UV_FABS(x))
             break;
     }
-    if (it == 400)
-        return PB_ENOCONV;
+    *xp = x;
+    return it == 400 ? PB_ENOCONV : PB_OK;
+}
 
-    UV_REAL c2, c3, psi = alpha * x * x, x2 = x * x;
+/* The state at anomaly x through the Lagrange coefficients f, g, f', g'. */
+static void UV_FN(uv_state)(const UV_FN(uv_orbit) *o, UV_REAL x, const UV_REAL *r0,
+                            const UV_REAL *v0, UV_REAL *r, UV_REAL *v)
+{
+    UV_REAL smu = o->smu, r0n = o->r0n;
+    UV_REAL c2, c3, psi = o->alpha * x * x, x2 = x * x;
     UV_FN(uv_stumpff)(psi, &c2, &c3);
     UV_REAL f = 1 - x2 * c2 / r0n;
     /* g from x alone (no cancellation against dt): sqrt(mu) g = sigma0 x^2 c2 + r0 x (1 - psi c3) */
-    UV_REAL g = (sigma0 * x2 * c2 + r0n * x * (1 - psi * c3)) / smu;
+    UV_REAL g = (o->sigma0 * x2 * c2 + r0n * x * (1 - psi * c3)) / smu;
     UV_REAL rr[3];
     for (int i = 0; i < 3; i++)
         rr[i] = f * r0[i] + g * v0[i];
@@ -182,6 +184,41 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
         r[i] = rr[i];
         v[i] = vi;
     }
+}
+
+/* Contract: the exact two-body state (r, v) at dt after (r0, v0), for any
+ * conic. Returns PB_EINVAL for mu <= 0 or r0 = 0, PB_ENOCONV if the
+ * universal anomaly cannot be found (a span so long that even the bracket
+ * overflows). */
+int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
+              UV_REAL *r, UV_REAL *v)
+{
+    UV_FN(uv_orbit) o;
+    o.r0n = UV_SQRT(r0[0] * r0[0] + r0[1] * r0[1] + r0[2] * r0[2]);
+    UV_REAL v0s = v0[0] * v0[0] + v0[1] * v0[1] + v0[2] * v0[2];
+    if (!(mu > 0) || !(o.r0n > 0) || !UV_FINITE(v0s) || !UV_FINITE(dt))
+        return PB_EINVAL;
+    o.mu = mu;
+    o.smu = UV_SQRT(mu);
+    o.sigma0 = (r0[0] * v0[0] + r0[1] * v0[1] + r0[2] * v0[2]) / o.smu;
+    o.alpha = 2 / o.r0n - v0s / mu;   /* 1/a; 0 for a parabola */
+    UV_REAL lo, hi, x;
+    UV_FN(uv_start)(&o, &dt, &x, &lo, &hi);
+    if (dt == 0) {
+        for (int i = 0; i < 3; i++) {
+            r[i] = r0[i];
+            v[i] = v0[i];
+        }
+        return PB_OK;
+    }
+    UV_REAL smu_dt = o.smu * dt;
+    if (!(o.alpha > 0) && UV_FN(uv_bracket)(&o, dt, smu_dt, &x, &lo, &hi))
+        return PB_ENOCONV;
+    if (x <= lo || x >= hi)
+        x = (lo + hi) / 2;
+    if (UV_FN(uv_solve)(&o, smu_dt, &x, lo, hi))
+        return PB_ENOCONV;
+    UV_FN(uv_state)(&o, x, r0, v0, r, v);
     return PB_OK;
 }
 
