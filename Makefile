@@ -80,6 +80,7 @@ test: test-layout test-plain test-install test-asan
 # The layering rules of DEVELOPERS.md: include direction, no cycle, file and
 # function lengths.
 test-layout: | deps
+	python3 scripts/check-layout.py --self-test
 	python3 scripts/check-layout.py $(CURDIR)
 
 # Each run's scratch is its own (test-scratch.<pid>), so two runs in one tree

@@ -6,12 +6,14 @@ coefficient tables aside), no function over 80 lines outside the numerical
 kernels listed below. Prints each breach; exit 1 if any."""
 import os, re, sys
 
-ROOT = os.path.abspath(sys.argv[1] if len(sys.argv) > 1 else '.')
+ARGS = [a for a in sys.argv[1:] if not a.startswith('--')]
+ROOT = os.path.abspath(ARGS[0] if ARGS else '.')
 # Top to bottom: a folder may include its own layer and any layer below it.
 LAYERS = ['bench/perf', 'bench/cli', 'bench/study', 'bench/gate', 'bench/report',
           'bench/store', 'bench/measure', 'integrators', 'problems', 'include/propbench']
 # perf is a program of its own beside the CLI: it may use measure and below.
-EXTRA_FORBIDDEN = {'bench/perf': ['bench/cli', 'bench/study', 'bench/gate', 'bench/report']}
+EXTRA_FORBIDDEN = {'bench/perf': ['bench/cli', 'bench/study', 'bench/gate', 'bench/report',
+                                  'bench/store']}
 MAX_FILE_LINES = 600
 MAX_FUNC_LINES = 80
 # Numerical kernels whose length is the scheme itself (one pass of a
@@ -35,7 +37,7 @@ def includes(path):
     out = []
     d = os.path.dirname(path)
     for line in open(os.path.join(ROOT, path), encoding='utf-8'):
-        m = re.match(r'\s*#\s*include\s+"([^"]+)"', line)
+        m = re.match(r'\s*#\s*include\s+["<]([^">]+)[">]', line)
         if not m:
             continue
         inc = m.group(1)
@@ -46,24 +48,30 @@ def includes(path):
     return out
 
 def functions(path):
-    """(name, first line, length) of each top-level function definition."""
+    """(name, first line, length) of each top-level function definition: a
+    line at column 0 with a '(' and no ';' or '=' before it, whose body opens
+    with '{' at the end of that line or of a following one and closes with a
+    '}' at column 0."""
     lines = open(os.path.join(ROOT, path), encoding='utf-8').read().split('\n')
     i = 0
     while i < len(lines):
-        m = re.match(r'^[A-Za-z_][\w \*]*?\b(\w+)\s*\([^;]*$', lines[i])
-        if m and not lines[i].startswith(('typedef', 'struct', 'enum', '#', 'static const', 'const')):
-            j = i
-            while j < len(lines) and not lines[j].startswith('{') and ';' not in lines[j]:
-                j += 1
-            if j < len(lines) and lines[j].startswith('{'):
-                k = j
-                while k < len(lines) and lines[k] != '}':
-                    k += 1
-                yield m.group(1), i + 1, k - i + 1
-                i = k
+        line = lines[i]
+        m = re.match(r'^(?!typedef|struct|enum|union|#|/|\*|\s|\})[^;=(]*?\b(\w+)\s*\(', line)
+        if not m or line.rstrip().endswith(';') or line.rstrip().endswith('\\'):
+            i += 1
+            continue
+        j = i
+        while j < len(lines) and not lines[j].rstrip().endswith('{') and ';' not in lines[j]:
+            j += 1
+        if j < len(lines) and lines[j].rstrip().endswith('{') and ';' not in lines[j]:
+            k = j + 1
+            while k < len(lines) and lines[k] != '}':
+                k += 1
+            yield m.group(1), i + 1, k - i + 1
+            i = k
         i += 1
 
-def main():
+def check():
     bad = []
     files = list(sources())
     for f in files:
@@ -72,7 +80,9 @@ def main():
         n = sum(1 for _ in open(os.path.join(ROOT, f), encoding='utf-8'))
         if n > MAX_FILE_LINES and not f.endswith('_coeffs.h'):
             bad.append(f'{f}: {n} lines (more than {MAX_FILE_LINES})')
-        if f.endswith('.c'):
+        if f.startswith('bench/') and re.match(r'bench/[^/]+/', f) and layer(f) is None:
+            bad.append(f'{f}: in a folder of bench/ that is not a layer (add it to LAYERS in its place)')
+        if not f.endswith('_coeffs.h'):
             for name, at, length in functions(f):
                 if length > MAX_FUNC_LINES and name not in KERNELS:
                     bad.append(f'{f}:{at}: function {name} is {length} lines (more than {MAX_FUNC_LINES})')
@@ -103,6 +113,41 @@ def main():
     for u in sorted(graph):
         if u not in state:
             visit(u)
+    return files, bad
+
+def self_test():
+    """Build a small tree with one breach of each kind and check that every
+    one is reported (a checker that finds nothing would pass any tree)."""
+    import tempfile
+    global ROOT
+    body = '\n'.join('    x++;' for _ in range(90))
+    tree = {
+        'bench/measure/m.c': '#include <bench/store/s.h>\n',           # up a layer
+        'bench/store/s.h': '#include "bench/store/t.h"\n',
+        'bench/store/t.h': '#include "bench/store/s.h"\n',           # cycle s <-> t
+        'bench/util/u.c': '#include "bench/measure/m.h"\n',          # not a layer
+        'bench/top.c': '\n',                                         # directly in bench/
+        'problems/long.c': 'static const char *f(int x) {\n' + body + '\n}\n',
+        'problems/big.h': '\n' * 700,
+    }
+    want = ['includes bench/store/s.h', 'include cycle', 'not a layer', 'directly in bench/',
+            'function f is', 'big.h: 700 lines']
+    with tempfile.TemporaryDirectory() as d:
+        for path, text in tree.items():
+            os.makedirs(os.path.join(d, os.path.dirname(path)), exist_ok=True)
+            open(os.path.join(d, path), 'w').write(text)
+        ROOT = d
+        _, bad = check()
+    missed = [w for w in want if not any(w in b for b in bad)]
+    for w in missed:
+        print(f'check-layout: self-test: a breach was not reported: {w}')
+    print(f'check-layout: self-test: {len(want) - len(missed)} of {len(want)} breaches reported')
+    return 1 if missed else 0
+
+def main():
+    if '--self-test' in sys.argv:
+        return self_test()
+    files, bad = check()
     for b in bad:
         print('check-layout: ' + b)
     print(f'check-layout: {len(files)} files, {len(bad)} breaches')
