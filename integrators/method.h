@@ -14,8 +14,4 @@ extern const pb_method_type *const pb_method_table[];
  * a(r) only, so it cannot take a velocity-dependent force. */
 int pb_method_fits(const pb_method_type *m, const pb_problem *p);
 
-/* Grid index of t_out for a fixed-step method: n with |t0 + n h - t_out| within
- * round-off, or -1 if t_out is not on the grid. Shared by fixed-step methods. */
-long pb_grid_index(double t0, double h, double t_out);
-
 #endif

@@ -35,6 +35,8 @@ const pb_method_type *const pb_method_table[] = {
 
 const pb_method_type *pb_method_find(const char *name)
 {
+    if (!name)
+        return NULL;
     for (const pb_method_type *const *m = pb_method_table; *m; m++)
         if (strcmp((*m)->name, name) == 0)
             return *m;

@@ -34,8 +34,23 @@ static void drive_copy(const pb_case_result *res, pb_drive_outcome *out)
 int pb_drive_case(const pb_drive_request *rq, pb_drive_outcome *out, char *err, size_t errlen)
 {
     memset(out, 0, sizeof *out);
+    if (pb_method_check(rq->method, err, errlen))
+        return -1;
+    /* the request's own field names, not the command line's options */
+    const pb_method_type *m = rq->method;
+    if ((m->flags & PB_KIND_FIXED) && rq->steps_per_orbit <= 0) {
+        snprintf(err, errlen, "method %s is fixed-step: steps_per_orbit must be positive, got %d",
+                 m->name, rq->steps_per_orbit);
+        return -1;
+    }
+    if ((m->flags & PB_KIND_ADAPTIVE) && !(rq->tolerance > 0 && isfinite(rq->tolerance))) {
+        snprintf(err, errlen, "method %s is adaptive: tolerance must be a positive number, got %g",
+                 m->name, rq->tolerance);
+        return -1;
+    }
     pb_case_spec spec;
     pb_case_spec_default(&spec);
+    spec.cache_dir = rq->cache_dir;
     if (!rq->problem || pb_problem_lookup(rq->problem, &spec.problem) != PB_OK) {
         snprintf(err, errlen, "unknown problem '%s'", rq->problem ? rq->problem : "(none)");
         return -1;

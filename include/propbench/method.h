@@ -9,9 +9,15 @@
 #include <stddef.h>
 #include "status.h"
 
-/* The record layout's version. Raised whenever a field of pb_method_type,
- * pb_force, pb_method_config or pb_method_stats changes meaning or place, so
- * that a record built against another version is refused, not misread. */
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* The layout version of every public struct (pb_method_type, pb_force,
+ * pb_method_config, pb_method_stats, and drive.h's request and outcome).
+ * Raised whenever a field changes meaning or place, so that a record built
+ * against another version is refused, not misread; the shared library's
+ * soname (libpropbench.so.N) carries it. */
 #define PB_METHOD_ABI 1u
 
 /* Kind flags (capabilities are fields, never checks of a name). */
@@ -67,7 +73,8 @@ typedef struct pb_method_type {
     int order;
     unsigned flags;
     /* Workspace for a state of spatial dimension dim; NULL on failure.
-     * Owner: the caller, released with free. No allocation after this. */
+     * Owner: the caller, released with the record's own free. No
+     * allocation after this. */
     void *(*alloc)(int dim);
     /* Set the initial state and configuration (copies cfg; borrows f). */
     int (*start)(void *ws, const pb_force *f, const pb_method_config *cfg,
@@ -88,9 +95,19 @@ typedef struct pb_method_type {
  * size it was built with match, it has a name, an order from 1 to 30, exactly
  * one of PB_KIND_FIXED and PB_KIND_ADAPTIVE, and every function. 0, or -1
  * with the reason (naming the method where it has a name) in err. */
-int pb_method_check(const pb_method_type *m, char *err, size_t errlen);
+PB_API int pb_method_check(const pb_method_type *m, char *err, size_t errlen);
 
-/* A built-in method by its name ("rk4", "gauss-jackson8", ...); NULL if unknown. */
-const pb_method_type *pb_method_find(const char *name);
+/* A built-in method by its name ("rk4", "gauss-jackson8", ...); NULL if
+ * unknown or name is NULL. */
+PB_API const pb_method_type *pb_method_find(const char *name);
+
+/* For a fixed-step method's advance: the grid index n of t_out on the grid
+ * t0 + n h (within round-off), or -1 when t_out is not on it (answer
+ * PB_EINVAL then). Time is best kept as t0 + n h, never as a running sum. */
+PB_API long pb_grid_index(double t0, double h, double t_out);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -7,10 +7,18 @@
 #include "method.h"
 #include "drive.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* The version of these headers; pb_version() is the library's own. */
 #define PB_VERSION "0.2.0"
 
 /* The library's version string, e.g. "0.2.0". */
-const char *pb_version(void);
+PB_API const char *pb_version(void);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

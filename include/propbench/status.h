@@ -2,8 +2,19 @@
  * harness (public: installed for users who write a method or drive a case).
  * Failures are results: a method returns one of these, the harness records it
  * as the case's outcome. 0 is success (as in GSL). */
-#ifndef PB_STATUS_H
-#define PB_STATUS_H
+#ifndef PB_PUBLIC_STATUS_H
+#define PB_PUBLIC_STATUS_H
+
+/* The functions libpropbench.so exports; everything else in it is hidden. */
+#if defined(__GNUC__)
+#define PB_API __attribute__((visibility("default")))
+#else
+#define PB_API
+#endif
+
+#ifdef __cplusplus
+extern "C" {
+#endif
 
 typedef enum pb_status {
     PB_OK = 0,
@@ -18,6 +29,10 @@ typedef enum pb_status {
 } pb_status;
 
 /* Human-readable text for a status; never NULL. */
-const char *pb_strerror(int status);
+PB_API const char *pb_strerror(int status);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

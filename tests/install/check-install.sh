@@ -24,5 +24,13 @@ LD_LIBRARY_PATH="$stage/usr/lib" ./consumer-shared
 $cc $flags consumer.c -o consumer-static "$stage/usr/lib/libpropbench.a" \
     $(pkg-config --static --libs propbench | sed 's/-lpropbench//')
 ./consumer-static >/dev/null
+# the headers from C++ too (extern "C"): a program calling the library links
+if command -v c++ >/dev/null 2>&1; then
+    printf '#include <propbench/propbench.h>\n#include <cstring>\nint main() { return std::strcmp(pb_version(), PB_VERSION) != 0 || !pb_method_find("rk4"); }\n' > cxx.cc
+    # shellcheck disable=SC2046
+    c++ -Wall -Wextra -Werror $(pkg-config --cflags propbench) cxx.cc -o cxx $(pkg-config --libs propbench)
+    LD_LIBRARY_PATH="$stage/usr/lib" ./cxx
+    echo "check-install: a C++ program links against the headers and the shared library"
+fi
 echo "check-install: the shared and the static build both passed"
 rm -rf "$stage"

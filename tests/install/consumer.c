@@ -6,6 +6,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <propbench/propbench.h>
 
 /* The explicit midpoint rule (Runge 1895), order 2: Hairer, Norsett &
@@ -53,8 +54,8 @@ static int midpoint_deriv(midpoint_ws *w, double t, const double *y, double *k)
 static int midpoint_advance(void *ws, double t_out, pb_step_observer obs, void *ctx)
 {
     midpoint_ws *w = ws;
-    long target = lround((t_out - w->t0) / w->h);
-    if (fabs(w->t0 + (double)target * w->h - t_out) > 1e-9 * fabs(w->h) * (double)(target + 1))
+    long target = pb_grid_index(w->t0, w->h, t_out);
+    if (target < 0)
         return PB_EINVAL;
     int n2 = 2 * w->dim;
     while (w->n < target) {
@@ -163,6 +164,18 @@ int main(void)
         expect(fabs(p4 - 4) < 0.3, "rk4 converges at order 4 +- 0.3");
     }
 
+    /* a perturbed orbit (J2) is measured against a reference trajectory; with
+     * no cache_dir nothing may be written in the caller's folder */
+    pb_drive_request j2 = {.problem = "leo-j2", .method = &midpoint, .steps_per_orbit = 2000,
+                           .orbits = 1};
+    int j2rc = pb_drive_case(&j2, &o, err, sizeof err);
+    printf("      team-midpoint on leo-j2: %s, pos_err_final %.3e km, evals %ld\n",
+           j2rc ? err : o.status_name, o.pos_err_final, o.evals);
+    struct stat st;
+    expect(j2rc == 0 && o.status == PB_OK && o.evals == 2 * o.steps && o.steps == 2000,
+           "a J2 case runs against its reference trajectory");
+    expect(stat("results", &st) != 0, "nothing was written in the working folder");
+
     /* records built against other headers are refused, not misread */
     pb_method_type other = midpoint;
     other.abi = PB_METHOD_ABI + 1;
@@ -176,6 +189,10 @@ int main(void)
     printf("      %s\n", err);
     expect(rc == -1 && strstr(err, "bytes"), "a record of another size is refused");
     rq.method = &midpoint;
+    rq.steps_per_orbit = 0;
+    rc = pb_drive_case(&rq, &o, err, sizeof err);
+    expect(rc == -1 && strstr(err, "steps_per_orbit"), "a missing step is named by its field");
+    rq.steps_per_orbit = 100;
     rq.problem = "no-such-orbit";
     rc = pb_drive_case(&rq, &o, err, sizeof err);
     expect(rc == -1 && strstr(err, "no-such-orbit"), "an unknown problem is named");
