@@ -33,6 +33,11 @@ static void drive_copy(const pb_case_result *res, pb_drive_outcome *out)
 
 int pb_drive_case(const pb_drive_request *rq, pb_drive_outcome *out, char *err, size_t errlen)
 {
+    if (!rq || !out) {
+        if (err && errlen)
+            snprintf(err, errlen, "pb_drive_case: no request or no outcome given");
+        return -1;
+    }
     memset(out, 0, sizeof *out);
     if (pb_method_check(rq->method, err, errlen))
         return -1;

@@ -37,7 +37,7 @@ typedef struct pb_drive_outcome {
 } pb_drive_outcome;
 
 /* Run the case (metric pass only; no timing; no files written unless
- * rq->cache_dir is given). rq, out and err must not be NULL. 0 with the
+ * rq->cache_dir is given). err must not be NULL. 0 with the
  * outcome filled (an integration that failed is an outcome, not an error),
  * or -1 with the reason in err: unknown problem, a method record that does
  * not pass pb_method_check or does not fit the problem, a bad
