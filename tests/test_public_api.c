@@ -84,4 +84,7 @@ Test(public_api, one_version_string)
     const char *args[] = {"--version", NULL};
     cr_assert_eq(pbt_run_cli(args, out, sizeof out, err, sizeof err), 0);
     cr_assert_str_eq(out, "propbench " PB_VERSION "\n");
+    const char *extra[] = {"--version", "x", NULL};
+    cr_assert_eq(pbt_run_cli(extra, out, sizeof out, err, sizeof err), 2);
+    cr_assert(strstr(err, "takes no argument"), "%s", err);
 }

@@ -24,6 +24,7 @@ static void main_usage(FILE *f)
     fprintf(f, "usage: propbench VERB [options]   (propbench VERB --help)\n\nverbs:\n");
     for (const main_verb *v = main_verbs; v->name; v++)
         fprintf(f, "  %-9s %s\n", v->name, v->what);
+    fprintf(f, "\n  propbench --version   the version (also summary.json's \"tool\")\n");
     fprintf(f, "\nexit status: 0 ok, 1 regression or requirement not met, 2 bad input or usage\n");
 }
 
@@ -36,6 +37,10 @@ int main(int argc, char **argv)
         return PB_EXIT_USAGE;
     }
     if (!strcmp(argv[1], "--version") || !strcmp(argv[1], "-V")) {
+        if (argc > 2) {
+            fprintf(stderr, "propbench: error: --version takes no argument, got '%s'\n", argv[2]);
+            return PB_EXIT_USAGE;
+        }
         printf("propbench %s\n", pb_version());
         return PB_EXIT_OK;
     }
