@@ -420,3 +420,71 @@ Test(harness, near_escape_adaptive_min_step)
     cr_assert_lt(r.pos_err_final, 1e-6);
     pb_case_result_free(&r);
 }
+
+/* The metric grid does not move with the plot grid: the log-spaced whole
+ * periods and PB_METRIC_LINEAR points are the same times whatever
+ * linear_samples asks for. */
+Test(harness, metric_grid_independent_of_plot_samples)
+{
+    double T = 2 * M_PI, h = T / 100;
+    pb_sample_plan a, b;
+    cr_assert_eq(pb_sample_plan_make(0, 108 * T, T, h, 10, &a), 0);
+    cr_assert_eq(pb_sample_plan_make(0, 108 * T, T, h, 1000, &b), 0);
+    double ta[400], tb[400];
+    int na = 0, nb = 0;
+    for (int k = 0; k < a.n; k++)
+        if (a.in_metrics[k])
+            ta[na++] = a.t[k];
+    for (int k = 0; k < b.n; k++)
+        if (b.in_metrics[k])
+            tb[nb++] = b.t[k];
+    cr_assert_eq(na, nb);
+    for (int k = 0; k < na; k++)
+        cr_assert_eq(ta[k], tb[k], "metric time %d: %.17g vs %.17g", k, ta[k], tb[k]);
+    cr_assert_gt(b.n, 1000);
+    cr_assert_geq(na, PB_METRIC_LINEAR);
+    pb_sample_plan_free(&a);
+    pb_sample_plan_free(&b);
+}
+
+/* A fixed-step case's verdict is the same for any number of plot samples:
+ * the integration (fingerprint, counts), every maximum, final value and
+ * growth class and exponent. Every fixed-step method of the table, on an
+ * eccentric orbit and on the near-circular LEO whose leapfrog case used to
+ * class its energy growth differently under sweep (50 samples), run (100)
+ * and --samples 1000. */
+Test(harness, fixed_step_verdict_independent_of_plot_samples, .timeout = 120)
+{
+    static const char *const problems[] = {"kepler-e0.6", "leo-near-circular"};
+    static const int ns[] = {10, 50, 1000};
+    for (const pb_method_type *const *m = pb_method_table; *m; m++) {
+        if (!((*m)->flags & PB_KIND_FIXED))
+            continue;
+        for (int pi = 0; pi < 2; pi++) {
+            pb_case_result r[3];
+            for (int j = 0; j < 3; j++) {
+                pb_case_spec s = spec_fixed(problems[pi], (*m)->name, 100, 16);
+                s.linear_samples = ns[j];
+                cr_assert_eq(pb_case_run(&s, &r[j]), 0);
+            }
+            for (int j = 1; j < 3; j++) {
+                const char *what = (*m)->name;
+                cr_assert_str_eq(r[j].fingerprint, r[0].fingerprint, "%s", what);
+                cr_assert_eq(r[j].steps, r[0].steps, "%s", what);
+                cr_assert_eq(r[j].evals, r[0].evals, "%s", what);
+                cr_assert_eq(r[j].pos_err_max, r[0].pos_err_max, "%s on %s", what, problems[pi]);
+                cr_assert_eq(r[j].vel_err_max, r[0].vel_err_max, "%s", what);
+                cr_assert_eq(r[j].pos_err_final, r[0].pos_err_final, "%s", what);
+                cr_assert_eq(r[j].energy_rel_max, r[0].energy_rel_max, "%s", what);
+                cr_assert_str_eq(r[j].g_energy.cls, r[0].g_energy.cls, "%s on %s", what, problems[pi]);
+                cr_assert_str_eq(r[j].g_pos.cls, r[0].g_pos.cls, "%s", what);
+                cr_assert(r[j].g_pos.k == r[0].g_pos.k || (isnan(r[j].g_pos.k) && isnan(r[0].g_pos.k)),
+                          "%s", what);
+                cr_assert(r[j].g_energy.k == r[0].g_energy.k ||
+                          (isnan(r[j].g_energy.k) && isnan(r[0].g_energy.k)), "%s", what);
+            }
+            for (int j = 0; j < 3; j++)
+                pb_case_result_free(&r[j]);
+        }
+    }
+}

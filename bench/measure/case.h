@@ -28,8 +28,13 @@ typedef struct pb_case_spec {
 typedef struct pb_sample {
     double t, orbits;
     int on_log_grid;          /* 1: a log-spaced whole-period sample (used by the fits) */
+    int in_metrics;           /* 1: on the metric grid (maxima, finals, fits); 0: plot only */
     double energy_rel, energy_rel_window;
     double angmom_rel, angmom_rel_window;
+    double energy_rel_fitwin, angmom_rel_fitwin; /* log-grid samples: largest error over
+                                                  * every step since the previous log-grid
+                                                  * sample (NaN elsewhere): what the growth
+                                                  * fits use, whatever the plot grid */
     double ecc_drift;         /* |e_num - e_true| */
     double apsis_angle;       /* rad, e_num's angle from e_true about h_true,
                                * unwrapped over the samples (may pass +-pi) */
@@ -74,6 +79,16 @@ typedef struct pb_case_result {
     double projected_s;       /* evals x eval_cost_us (0 if no cost given) */
     char fingerprint[40];
     double final_r[PB_DIM_MAX], final_v[PB_DIM_MAX];
+    /* the timing pass (timing.h; thread CPU time): the spread of its repeats'
+     * times, (q75 - q25) / median (NaN when not timed), how many repeats it
+     * made (0: none), the CPU time they took together, and the steps and
+     * force evaluations of one repeat (those of the metric pass unless the
+     * case was cut to the pass's first 200000 steps or, adaptive, the metric
+     * pass shortened steps to land on sample times) */
+    double ns_per_step_spread;
+    int timing_repeats;
+    double timing_cpu_s;
+    long timing_steps, timing_evals;
 } pb_case_result;
 
 #endif

@@ -27,6 +27,7 @@ typedef struct harness_watch {
     const pb_problem *p;
     double E0, E_scale, H0, r_limit;
     double e_win, h_win, e_max, h_max;
+    double e_fit, h_fit;      /* since the last log-grid sample: the fits' windows */
     double t_escape;
     const char *why;          /* which divergence test stopped the run */
 } harness_watch;
@@ -39,10 +40,12 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
     if (p->energy) {
         e = fabs(p->energy(p, t, r, v) - w->E0) / w->E_scale;
         if (e > w->e_win) w->e_win = e;
+        if (e > w->e_fit) w->e_fit = e;
     }
     if (p->angmom) {
         double h = pb_rel_err(p->angmom(p, r, v), w->H0);
         if (h > w->h_win) w->h_win = h;
+        if (h > w->h_fit) w->h_fit = h;
     }
     /* an energy error of 100% means the orbit is no longer the problem's
      * (a bound orbit has become unbound, or the reverse) */
@@ -259,8 +262,13 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
     res->radial_final = res->along_final = res->cross_final = res->apsidal_rate = NAN;
     res->truth_floor_max = 0;
     int below = 0;
+    int nm = 0;
     for (int k = 0; k < n; k++) {
         pb_sample *s = &res->samples[k];
+        /* maxima over the metric grid only: --samples adds plotted points */
+        if (!s->in_metrics)
+            continue;
+        nm++;
         res->pos_err_max = fmax(res->pos_err_max, s->pos_err);
         res->vel_err_max = fmax(res->vel_err_max, s->vel_err);
         if (isfinite(s->ecc_drift))
@@ -269,10 +277,13 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
         if (s->truth_floor > 0 && s->pos_err < 10 * s->truth_floor)
             below++;
     }
-    res->below_floor = n > 0 && below == n;
+    res->below_floor = nm > 0 && below == nm;
     res->saturated = n > 0 && res->pos_err_max > 0.1 * harness_length_scale(&spec->problem);
+    int kl = n - 1;
+    while (kl > 0 && !res->samples[kl].in_metrics)
+        kl--; /* final values at the last metric-grid sample reached */
     if (n > 0) {
-        pb_sample *last = &res->samples[n - 1];
+        pb_sample *last = &res->samples[kl];
         res->energy_rel_final = last->energy_rel;
         res->angmom_rel_final = last->angmom_rel;
         res->pos_err_final = last->pos_err;
@@ -307,8 +318,8 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
     } while (0)
     HARNESS_FIT(pos_err, res->g_pos, 0, ceiling);
     HARNESS_FIT(along, res->g_along, 1, ceiling);
-    HARNESS_FIT(energy_rel_window, res->g_energy, 0, 0.0);
-    HARNESS_FIT(angmom_rel_window, res->g_angmom, 0, 0.0);
+    HARNESS_FIT(energy_rel_fitwin, res->g_energy, 0, 0.0);
+    HARNESS_FIT(angmom_rel_fitwin, res->g_angmom, 0, 0.0);
 #undef HARNESS_FIT
 done:
     free(t);
@@ -366,6 +377,16 @@ static void harness_close_window(harness_watch *w, const pb_problem *p, pb_sampl
     w->e_max = fmax(w->e_max, w->e_win);
     w->h_max = fmax(w->h_max, w->h_win);
     w->e_win = w->h_win = 0;
+    /* the fits' windows run from one log-grid sample to the next over every
+     * step, so extra plot samples cannot change a growth class */
+    smp->energy_rel_fitwin = smp->angmom_rel_fitwin = NAN;
+    if (smp->on_log_grid) {
+        if (p->energy)
+            smp->energy_rel_fitwin = fmax(w->e_fit, isfinite(smp->energy_rel) ? smp->energy_rel : 0);
+        if (p->angmom)
+            smp->angmom_rel_fitwin = fmax(w->h_fit, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
+        w->e_fit = w->h_fit = 0;
+    }
 }
 
 /* The metric pass: advance to every sample time and measure there. Returns
@@ -391,6 +412,7 @@ static int harness_metric_pass(const pb_case_spec *spec, const pb_sample_plan *p
         harness_unwrap(&ap, smp);
         smp->orbits = p->period > 0 ? (t - p->t0) / p->period : (t - p->t0) / horizon;
         smp->on_log_grid = plan->on_log_grid[k];
+        smp->in_metrics = plan->in_metrics[k];
         smp->truth_floor = pb_truth_floor(truth, k);
         harness_close_window(w, p, smp);
     }

@@ -7,7 +7,7 @@
 #include <stdlib.h>
 #include "bench/measure/sampler.h"
 
-typedef struct { double x; int log; } sampler_item; /* x: elapsed time */
+typedef struct { double x; int log, metric; } sampler_item; /* x: elapsed time */
 
 static int sampler_cmp(const void *a, const void *b)
 {
@@ -22,7 +22,8 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
     plan->n = 0;
     plan->t = NULL;
     plan->on_log_grid = NULL;
-    int cap = 5 * 40 + linear_samples + 2;
+    plan->in_metrics = NULL;
+    int cap = 5 * 40 + PB_METRIC_LINEAR + linear_samples + 2;
     sampler_item *it = malloc((size_t)cap * sizeof *it);
     if (!it)
         return -1;
@@ -38,11 +39,13 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
         for (int j = 0; j < 5; j++) {
             double k = mant[j] * dec;
             if (k * unit <= horizon * (1 + 1e-12))
-                it[n++] = (sampler_item){k * unit, 1};
+                it[n++] = (sampler_item){k * unit, 1, 1};
         }
+    for (int j = 1; j <= PB_METRIC_LINEAR; j++)
+        it[n++] = (sampler_item){horizon * j / PB_METRIC_LINEAR, 0, 1};
     for (int j = 1; j <= linear_samples; j++)
-        it[n++] = (sampler_item){horizon * j / linear_samples, 0};
-    it[n++] = (sampler_item){horizon, 0};
+        it[n++] = (sampler_item){horizon * j / linear_samples, 0, 0};
+    it[n++] = (sampler_item){horizon, 0, 1};
     /* onto the grid, never past the horizon: the last grid point at or
      * before each time */
     if (h > 0)
@@ -55,7 +58,7 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
             it[j].x = floor(q) * h;
         }
     qsort(it, (size_t)n, sizeof *it, sampler_cmp);
-    /* merge equal times; a merged time keeps the log flag if either had it */
+    /* merge equal times; a merged time keeps the flags either had */
     int m = 0;
     double eps = 1e-12 * horizon;
     for (int j = 0; j < n; j++) {
@@ -63,13 +66,15 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
             continue;
         if (m > 0 && fabs(it[j].x - it[m - 1].x) <= eps) {
             it[m - 1].log |= it[j].log;
+            it[m - 1].metric |= it[j].metric;
             continue;
         }
         it[m++] = it[j];
     }
     plan->t = malloc((size_t)(m > 0 ? m : 1) * sizeof(double));
     plan->on_log_grid = malloc((size_t)(m > 0 ? m : 1) * sizeof(int));
-    if (!plan->t || !plan->on_log_grid) {
+    plan->in_metrics = malloc((size_t)(m > 0 ? m : 1) * sizeof(int));
+    if (!plan->t || !plan->on_log_grid || !plan->in_metrics) {
         free(it);
         pb_sample_plan_free(plan);
         return -1;
@@ -78,6 +83,7 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
         /* with a grid, t0 + n*h is exactly what the method computes */
         plan->t[j] = h > 0 ? t0 + (double)lround(it[j].x / h) * h : t0 + it[j].x;
         plan->on_log_grid[j] = it[j].log;
+        plan->in_metrics[j] = it[j].metric;
     }
     plan->n = m;
     free(it);
@@ -88,7 +94,9 @@ void pb_sample_plan_free(pb_sample_plan *plan)
 {
     free(plan->t);
     free(plan->on_log_grid);
+    free(plan->in_metrics);
     plan->t = NULL;
     plan->on_log_grid = NULL;
+    plan->in_metrics = NULL;
     plan->n = 0;
 }

@@ -1,13 +1,21 @@
 /* sampler.h - the sample times of a case: log-spaced whole periods (1, 2, 3,
- * 5, 7, 10, 20, ...) that the growth fits use, merged with a linear grid for
- * plots. The count grows with log(horizon), so memory does not grow with it. */
+ * 5, 7, 10, 20, ...) that the growth fits use and a fixed linear grid of
+ * PB_METRIC_LINEAR points, which together are the metric grid, merged with
+ * the linear grid asked for plots. The count grows with log(horizon), so
+ * memory does not grow with it. */
 #ifndef PB_SAMPLER_H
 #define PB_SAMPLER_H
+
+/* The metric grid's linear points: fixed, so that no maximum, final value
+ * or fit depends on how many points a plot asks for (--samples). */
+#define PB_METRIC_LINEAR 100
 
 typedef struct pb_sample_plan {
     int n;
     double *t;          /* absolute times, increasing, last = end of horizon */
     int *on_log_grid;   /* 1 for log-spaced whole-period samples */
+    int *in_metrics;    /* 1 for the metric grid (log grid, the PB_METRIC_LINEAR
+                         * points, the horizon); 0 for points only plotted */
 } pb_sample_plan;
 
 /* Plan samples from t0 over `horizon` time units. scale is the period (or, for

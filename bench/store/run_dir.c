@@ -174,7 +174,7 @@ int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_res
     series_buf b = {malloc(4096), 0, 4096, 0};
     if (!b.s)
         return -1;
-    series_printf(&b, "t[%s],orbits[-],log_sample[-],energy_rel[-],energy_rel_window_max[-],"
+    series_printf(&b, "t[%s],orbits[-],log_sample[-],metric_sample[-],energy_rel[-],energy_rel_window_max[-],"
                   "angmom_rel[-],angmom_rel_window_max[-],ecc_drift[-],apsis_angle[rad],"
                   "pos_err[%s],vel_err[%s],radial[%s],along_track[%s],cross_track[%s],"
                   "truth_floor[%s]\n", T, L, V, L, L, L, L);
@@ -183,6 +183,7 @@ int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_res
         series_printf(&b, "%.17g", s->t);
         series_num(&b, s->orbits);
         series_printf(&b, ",%d", s->on_log_grid);
+        series_printf(&b, ",%d", s->in_metrics);
         series_num(&b, s->energy_rel);
         series_num(&b, s->energy_rel_window);
         series_num(&b, s->angmom_rel);

@@ -15,10 +15,10 @@ typedef struct pb_case_list {
 /* Expand the named suite into list (appending). -1 if the name is unknown. */
 int pb_suite_expand(const char *name, pb_case_list *list);
 
-/* Sweeps and suites keep 50 linear samples a case instead of 100. The sample
- * times are part of a case's results (an adaptive method shortens steps to
- * land on them) and of the sweep identity, so the committed baselines were
- * recorded with 50 and stay bit-identical only with 50. */
+/* Sweeps and suites ask for 50 plot points a case. They lie on the fixed
+ * 100-point metric grid (sampler.h), so a sweep's case adds no sample time
+ * and is run's case to the bit; the number stays part of the sweep identity,
+ * which is why it is not changed to 100. */
 #define PB_SWEEP_LINEAR_SAMPLES 50
 
 /* Append one spec; -1 when out of memory. */
