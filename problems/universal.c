@@ -1,10 +1,12 @@
 /* universal.c - the exact two-body flow by universal variables, in double and
- * in __float128 (quadmath), from one algorithm in universal_impl.h.
+ * in __float128 (quadmath), from one algorithm in universal_impl.h; the quad
+ * Newton solve starts from the double solution (2-3 iterations on an ellipse).
  * Source: Bate, Mueller, White (1971) ch. 4; Vallado 4th ed. Algorithm 8. */
 #include <float.h>
 #include <math.h>
 #include <quadmath.h>
 #include "twobody.h"
+#include "universal.h"
 
 #define UV_REAL double
 #define UV_SUF _d
@@ -47,4 +49,12 @@
 #define UV_ROUND nearbyintq
 #define UV_FMA fmaq
 #define UV_FINITE(x) finiteq(x)
+#define UV_SEED_FROM_DOUBLE
 #include "universal_impl.h"
+
+int pb_universal_propagate_q_counted(__float128 mu, const __float128 *r0, const __float128 *v0,
+                                     __float128 dt, __float128 *r, __float128 *v, int seed,
+                                     int *iters)
+{
+    return uv_propagate_q(mu, r0, v0, dt, r, v, seed, iters);
+}

@@ -126,9 +126,9 @@ static int UV_FN(uv_bracket)(const UV_FN(uv_orbit) *o, UV_REAL dt, UV_REAL smu_d
 
 /* Newton safeguarded by the bracket [lo, hi]: a step that leaves it is
  * replaced by bisection, so convergence never depends on the starter.
- * PB_OK with the root in x, or PB_ENOCONV. */
+ * PB_OK with the root in x, or PB_ENOCONV; *iters: residuals evaluated. */
 static int UV_FN(uv_solve)(const UV_FN(uv_orbit) *o, UV_REAL smu_dt, UV_REAL *xp, UV_REAL lo,
-                           UV_REAL hi)
+                           UV_REAL hi, int *iters)
 {
     UV_REAL x = *xp, dF;
     int it;
@@ -150,6 +150,10 @@ static int UV_FN(uv_solve)(const UV_FN(uv_orbit) *o, UV_REAL smu_dt, UV_REAL *xp
         else
             hi = x;
         UV_REAL xn = x - F / dF;
+        /* a correction below half an ulp of x: x is the root to rounding (the
+         * bracket test below would take xn == hi for a step out of it) */
+        if (xn == x)
+            break;
         /* after 50 Newton steps bisection alone finishes (a bracket of any
          * double width closes in far fewer than the remaining 350) */
         if (!(xn > lo && xn < hi) || it >= 50)
@@ -160,6 +164,7 @@ static int UV_FN(uv_solve)(const UV_FN(uv_orbit) *o, UV_REAL smu_dt, UV_REAL *xp
             break;
     }
     *xp = x;
+    *iters = it < 400 ? it + 1 : it;
     return it == 400 ? PB_ENOCONV : PB_OK;
 }
 
@@ -186,12 +191,60 @@ static void UV_FN(uv_state)(const UV_FN(uv_orbit) *o, UV_REAL x, const UV_REAL *
     }
 }
 
-/* Contract: the exact two-body state (r, v) at dt after (r0, v0), for any
- * conic. Returns PB_EINVAL for mu <= 0 or r0 = 0, PB_ENOCONV if the
- * universal anomaly cannot be found (a span so long that even the bracket
- * overflows). */
-int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
-              UV_REAL *r, UV_REAL *v)
+#ifdef UV_SEED_FROM_DOUBLE
+/* The double-precision anomaly of the same orbit and (already reduced) span,
+ * as the starting point of this precision's Newton solve: the constants
+ * rounded to double, solved by the double instance. PB_OK with *x, or
+ * PB_ENOCONV (double overflow, or a span at the edge of the period that the
+ * double reduction would map to another turn): the caller keeps its starter. */
+static int UV_FN(uv_seed)(const UV_FN(uv_orbit) *o, UV_REAL dt, UV_REAL *x)
+{
+    uv_orbit_d d = {(double)o->mu, (double)o->smu, (double)o->r0n, (double)o->sigma0,
+                    (double)o->alpha};
+    double dtd = (double)dt, dts = dtd, xd;
+    int it;
+    if (uv_anomaly_d(&d, &dtd, &xd, 0, &it) || dtd != dts || !isfinite(xd))
+        return PB_ENOCONV;
+    *x = xd;
+    return PB_OK;
+}
+#endif
+
+/* The universal anomaly x for the span *dt (reduced modulo the period on an
+ * ellipse: *dt is updated; x = 0 when it reduces to 0): the starter (or, with
+ * seed, the double solution where this is not the double instance), the
+ * bracket, the safeguarded Newton solve. A seed outside the bracket is
+ * replaced by the bracket's middle, so the answer never depends on it.
+ * PB_OK, or PB_ENOCONV; *iters: Newton iterations (0 when dt reduces to 0). */
+static int UV_FN(uv_anomaly)(const UV_FN(uv_orbit) *o, UV_REAL *dt, UV_REAL *x, int seed,
+                             int *iters)
+{
+    UV_REAL lo, hi;
+    *iters = 0;
+    UV_FN(uv_start)(o, dt, x, &lo, &hi);
+    if (*dt == 0) {
+        *x = 0;
+        return PB_OK;
+    }
+    UV_REAL smu_dt = o->smu * *dt;
+    if (!(o->alpha > 0) && UV_FN(uv_bracket)(o, *dt, smu_dt, x, &lo, &hi))
+        return PB_ENOCONV;
+#ifdef UV_SEED_FROM_DOUBLE
+    UV_REAL xs;
+    if (seed && UV_FN(uv_seed)(o, *dt, &xs) == PB_OK)
+        *x = xs;
+#else
+    (void)seed;
+#endif
+    if (*x <= lo || *x >= hi)
+        *x = (lo + hi) / 2;
+    return UV_FN(uv_solve)(o, smu_dt, x, lo, hi, iters);
+}
+
+/* The flow with its solver's knobs: seed (see uv_anomaly) and, if iters is
+ * not NULL, the Newton iterations taken. */
+static int UV_FN(uv_propagate)(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
+                               UV_REAL *r, UV_REAL *v, int seed, int *iters)
 {
     UV_FN(uv_orbit) o;
     o.r0n = UV_SQRT(r0[0] * r0[0] + r0[1] * r0[1] + r0[2] * r0[2]);
@@ -202,8 +255,13 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
     o.smu = UV_SQRT(mu);
     o.sigma0 = (r0[0] * v0[0] + r0[1] * v0[1] + r0[2] * v0[2]) / o.smu;
     o.alpha = 2 / o.r0n - v0s / mu;   /* 1/a; 0 for a parabola */
-    UV_REAL lo, hi, x;
-    UV_FN(uv_start)(&o, &dt, &x, &lo, &hi);
+    UV_REAL x;
+    int it;
+    int s = UV_FN(uv_anomaly)(&o, &dt, &x, seed, &it);
+    if (iters)
+        *iters = it;
+    if (s)
+        return s;
     if (dt == 0) {
         for (int i = 0; i < 3; i++) {
             r[i] = r0[i];
@@ -211,15 +269,18 @@ int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
         }
         return PB_OK;
     }
-    UV_REAL smu_dt = o.smu * dt;
-    if (!(o.alpha > 0) && UV_FN(uv_bracket)(&o, dt, smu_dt, &x, &lo, &hi))
-        return PB_ENOCONV;
-    if (x <= lo || x >= hi)
-        x = (lo + hi) / 2;
-    if (UV_FN(uv_solve)(&o, smu_dt, &x, lo, hi))
-        return PB_ENOCONV;
     UV_FN(uv_state)(&o, x, r0, v0, r, v);
     return PB_OK;
+}
+
+/* Contract: the exact two-body state (r, v) at dt after (r0, v0), for any
+ * conic. Returns PB_EINVAL for mu <= 0 or r0 = 0, PB_ENOCONV if the
+ * universal anomaly cannot be found (a span so long that even the bracket
+ * overflows). The __float128 instance starts from the double solution. */
+int UV_PUBLIC(UV_REAL mu, const UV_REAL *r0, const UV_REAL *v0, UV_REAL dt,
+              UV_REAL *r, UV_REAL *v)
+{
+    return UV_FN(uv_propagate)(mu, r0, v0, dt, r, v, 1, NULL);
 }
 
 #undef UV_FN
