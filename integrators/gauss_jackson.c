@@ -8,6 +8,7 @@
 #include <string.h>
 #include "integrators/fixed_step.h"
 #include "integrators/gauss_jackson_coeffs.h"
+#include "propbench/dense.h"
 
 /* Invariant of the summed accumulators: after every accepted step n,
  *   S_n, s_n are the second and first sums with
@@ -46,6 +47,7 @@ typedef struct gj_ws {
     double *rp, *vp, *rc, *vc, *Sn, *sn, *fa;
     double *gdy, *gz0, *gz1, *gdz, *gtab; /* GBS scratch (2*dim each), table [cols][2*dim] */
     pb_method_stats st;
+    pb_dense_span span;         /* the last step's ends with their accelerations */
 } gj_ws;
 
 static void *gj_alloc(int dim)
@@ -113,6 +115,7 @@ static int gj_start(void *ws, const pb_force *f, const pb_method_config *cfg,
     memcpy(w->v, v0, sz);
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
+    pb_dense_start(&w->span, w->dim, t0, r0, v0, NULL);
     pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->r, w->v, &w->st);
     return PB_OK;
 }
@@ -360,14 +363,25 @@ static int gj_fixed_step(void *ctx, long n, double t, double t1)
         if ((s = gj_startup(w)))
             return s;
         w->started = 1;
+        pb_dense_set_a(&w->span, w->fw + 4 * d);
     }
     if (n < 4) {
         /* the start-up already produced t0+h .. t0+4h */
         memcpy(w->r, w->rb + (5 + n) * d, (size_t)d * sizeof(double));
         memcpy(w->v, w->vb + (5 + n) * d, (size_t)d * sizeof(double));
+        pb_dense_push(&w->span, t1, w->r, w->v, w->fw + (5 + n) * d);
         return PB_OK;
     }
-    return gj_step(w, t1);
+    if ((s = gj_step(w, t1)))
+        return s;
+    /* the newest acceleration, evaluated at the predicted position (PEC) */
+    pb_dense_push(&w->span, t1, w->r, w->v, w->fw + 8 * d);
+    return PB_OK;
+}
+
+static int gj_dense(const void *ws, double t, double *r, double *v)
+{
+    return pb_dense_eval(&((const gj_ws *)ws)->span, t, r, v);
 }
 
 static int gj_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
@@ -402,4 +416,6 @@ const pb_method_type pb_method_gauss_jackson8 = {
     .get_state = gj_get_state,
     .get_stats = gj_get_stats,
     .free = gj_free,
+    .dense = gj_dense,
+    .dense_order = 4,   /* quintic Hermite of the step's ends */
 };

@@ -9,6 +9,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "integrators/fixed_step.h"
+#include "propbench/dense.h"
 
 /* Pitfalls of wrapping GSL, and how this file handles them:
  * - GSL's rk4 estimates its error by step doubling: one full step plus two
@@ -46,7 +47,10 @@ typedef struct gp_ws {
     pb_fixed_grid grid;        /* gsl-rk4: t0, h, the index of the current state */
     int fstatus;               /* pb_status of the last failed force call */
     double *y, *ygood, *yerr;
+    double *din, *dout;        /* gsl-rk4: f at the step's start and end */
+    int have_din;
     pb_method_stats st;
+    pb_dense_span span;        /* the last step's ends (with f where GSL has it) */
 } gp_ws;
 
 static int gp_rhs(double t, const double y[], double dydt[], void *params)
@@ -89,11 +93,13 @@ static void *gp_alloc(int dim, const gsl_odeiv2_step_type *type, int fixed)
     w->sys.jacobian = NULL;
     w->sys.dimension = (size_t)w->n;
     w->sys.params = w;
-    w->y = calloc(3 * (size_t)w->n, sizeof(double));
+    w->y = calloc(5 * (size_t)w->n, sizeof(double));
     if (!w->y)
         goto fail;
     w->ygood = w->y + w->n;
     w->yerr = w->ygood + w->n;
+    w->din = w->yerr + w->n;
+    w->dout = w->din + w->n;
     if (fixed) {
         if (!(w->step = gsl_odeiv2_step_alloc(type, (size_t)w->n)))
             goto fail;
@@ -132,6 +138,8 @@ static int gp_start(void *ws, const pb_force *f, const pb_method_config *cfg, do
     memcpy(w->ygood, w->y, (size_t)w->n * sizeof(double));
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
+    w->have_din = 0;
+    pb_dense_start(&w->span, w->dim, t0, r0, v0, NULL);
     double scale = cfg->time_scale > 0 ? cfg->time_scale : 1.0;
     if (w->fixed) {
         if (!(cfg->h > 0))
@@ -195,15 +203,25 @@ static int gp_fixed_step(void *ctx, long n, double t, double t1)
     gp_ws *w = ctx;
     (void)n;
     w->t = t; /* the state's time, and t_fail if gp_fail restores it */
-    int s = gsl_odeiv2_step_apply(w->step, t, w->h, w->y, w->yerr, NULL, NULL, &w->sys);
-    if (s != GSL_SUCCESS)
+    /* f at the start is the last step's f at its end (GSL then skips that
+     * evaluation), and f at the end is asked for: the same 11 evaluations a
+     * step, the same result, and the accelerations the dense output needs */
+    int s = gsl_odeiv2_step_apply(w->step, t, w->h, w->y, w->yerr, w->have_din ? w->din : NULL,
+                                  w->dout, &w->sys);
+    if (s != GSL_SUCCESS) {
+        w->have_din = 0;
         return gp_fail(w, s);
+    }
     if (!gp_check_finite(w)) {
         w->fstatus = PB_ENONFINITE;
+        w->have_din = 0;
         return gp_fail(w, GSL_EBADFUNC);
     }
     memcpy(w->ygood, w->y, (size_t)w->n * sizeof(double));
+    memcpy(w->din, w->dout, (size_t)w->n * sizeof(double));
+    w->have_din = 1;
     w->t = t1;
+    pb_dense_push(&w->span, t1, w->y, w->y + w->dim, w->dout + w->dim);
     return PB_OK;
 }
 
@@ -238,6 +256,9 @@ static int gp_advance_adaptive(gp_ws *w, double t_out, pb_step_observer obs, voi
         w->t = t;
         memcpy(w->ygood, w->y, (size_t)w->n * sizeof(double));
         w->st.steps++;
+        /* GSL's evolve leaves f at the new state in dydt_out (its steppers
+         * all use dydt_in; checked for rkf45, rkck, rk8pd and msadams) */
+        pb_dense_push(&w->span, t, w->y, w->y + w->dim, e->dydt_out + w->dim);
         if (obs && (s = obs(octx, w->t, w->y, w->y + w->dim)))
             return s;
     }
@@ -249,6 +270,11 @@ static int gp_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
     gp_ws *w = ws;
     return w->fixed ? pb_fixed_grid_advance(&w->grid, t_out, gp_fixed_step, w, obs, octx)
                     : gp_advance_adaptive(w, t_out, obs, octx);
+}
+
+static int gp_dense(const void *ws, double t, double *r, double *v)
+{
+    return pb_dense_eval(&((const gp_ws *)ws)->span, t, r, v);
 }
 
 static void gp_get_state(const void *ws, double *t, double *r, double *v)
@@ -270,8 +296,10 @@ static void *gp_alloc_rkck(int dim) { return gp_alloc(dim, gsl_odeiv2_step_rkck,
 static void *gp_alloc_rk8pd(int dim) { return gp_alloc(dim, gsl_odeiv2_step_rk8pd, 0); }
 static void *gp_alloc_msadams(int dim) { return gp_alloc(dim, gsl_odeiv2_step_msadams, 0); }
 
+/* Dense output: the quintic Hermite of each step's ends (GSL has none of its
+ * own); order min(p - 1, 4), as for the leapfrog family (leapfrog.c). */
 #define GP_OPS .start = gp_start, .advance = gp_advance, .get_state = gp_get_state, \
-               .get_stats = gp_get_stats, .free = gp_free
+               .get_stats = gp_get_stats, .free = gp_free, .dense = gp_dense
 
 const pb_method_type pb_method_gsl_rk4 = {
     PB_METHOD_RECORD_HEAD,
@@ -280,6 +308,7 @@ const pb_method_type pb_method_gsl_rk4 = {
                    "steps, 11 evaluations a step",
     .source = "GSL odeiv2 rk4; Abramowitz & Stegun 25.5.10",
     .order = 4,
+    .dense_order = 3,
     .flags = PB_KIND_FIXED | PB_FROM_GSL,
     .alloc = gp_alloc_rk4,
     GP_OPS,
@@ -291,6 +320,7 @@ const pb_method_type pb_method_gsl_rkf45 = {
     .description = "GSL's rkf45: Runge-Kutta-Fehlberg 4(5), standard control",
     .source = "GSL odeiv2 rkf45; Fehlberg (1969) NASA TR R-315",
     .order = 5,
+    .dense_order = 4,
     .flags = PB_KIND_ADAPTIVE | PB_FROM_GSL,
     .alloc = gp_alloc_rkf45,
     GP_OPS,
@@ -302,6 +332,7 @@ const pb_method_type pb_method_gsl_rkck = {
     .description = "GSL's rkck: Cash-Karp 4(5), standard control",
     .source = "GSL odeiv2 rkck; Cash & Karp (1990)",
     .order = 5,
+    .dense_order = 4,
     .flags = PB_KIND_ADAPTIVE | PB_FROM_GSL,
     .alloc = gp_alloc_rkck,
     GP_OPS,
@@ -313,6 +344,7 @@ const pb_method_type pb_method_gsl_rk8pd = {
     .description = "GSL's rk8pd: Prince-Dormand 8(7), standard control",
     .source = "GSL odeiv2 rk8pd; Prince & Dormand (1981)",
     .order = 8,
+    .dense_order = 4,
     .flags = PB_KIND_ADAPTIVE | PB_FROM_GSL,
     .alloc = gp_alloc_rk8pd,
     GP_OPS,
@@ -325,6 +357,7 @@ const pb_method_type pb_method_gsl_msadams = {
                    "standard control",
     .source = "GSL odeiv2 msadams: variable-coefficient Adams, Nordsieck form, P(EC)^m",
     .order = 12,
+    .dense_order = 4,
     .flags = PB_KIND_ADAPTIVE | PB_KIND_MULTISTEP | PB_FROM_GSL,
     .alloc = gp_alloc_msadams,
     GP_OPS,

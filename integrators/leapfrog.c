@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "integrators/fixed_step.h"
+#include "propbench/dense.h"
 
 #define YOSHIDA_STAGES_MAX 15 /* order 8: 2*7+1 substeps */
 
@@ -29,6 +30,7 @@ typedef struct yoshida_ws {
     double *rn, *vn, *an, *crn, *cvn;   /* the step in progress */
     int have_a;
     pb_method_stats st;
+    pb_dense_span span;       /* the last step's ends with a(r): quintic dense output */
 } yoshida_ws;
 
 /* Build the sequence w_k..w_1, w0, w_1..w_k from w[1..k]; w0 = 1 - 2 sum. */
@@ -110,6 +112,7 @@ static int yoshida_start_with(void *ws, int k, const double *wk, const pb_force 
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
     w->have_a = 0;
+    pb_dense_start(&w->span, w->dim, t0, r0, v0, NULL);
     pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->r, w->v, &w->st);
     return PB_OK;
 }
@@ -167,6 +170,7 @@ static int yoshida_fixed_step(void *ctx, long n, double t, double t1)
         if ((s = w->f.accel(w->f.ctx, t, w->r, w->v, w->a)))
             return s;
         w->have_a = 1;
+        pb_dense_set_a(&w->span, w->a);
     }
     if ((s = yoshida_step(w, t, t1, w->grid.h)))
         return s;
@@ -176,7 +180,13 @@ static int yoshida_fixed_step(void *ctx, long n, double t, double t1)
     memcpy(w->a, w->an, sz);
     memcpy(w->cr, w->crn, sz);
     memcpy(w->cv, w->cvn, sz);
+    pb_dense_push(&w->span, t1, w->r, w->v, w->a);
     return PB_OK;
+}
+
+static int yoshida_dense(const void *ws, double t, double *r, double *v)
+{
+    return pb_dense_eval(&((const yoshida_ws *)ws)->span, t, r, v);
 }
 
 static int yoshida_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
@@ -199,6 +209,10 @@ static void yoshida_get_stats(const void *ws, pb_method_stats *st)
 }
 
 /* A composition's start (k pairs of weights w[1..k]) and its type record. */
+/* Dense output is the quintic Hermite interpolant of the step's ends (r, v
+ * and a(r) at both). Its velocity, the interpolant's derivative, carries the
+ * ends' O(h^(p+1)) position errors divided by h: local error O(h^min(p, 5)),
+ * so its order is min(p - 1, 4) (measured in tests/test_dense.c). */
 #define LEAPFROG_COMPOSITION(NAME, K, W, ORDER, DESC, SRC)                       \
     static int NAME##_start(void *ws, const pb_force *f, const pb_method_config *cfg, \
                             double t0, const double *r0, const double *v0)       \
@@ -218,6 +232,8 @@ static void yoshida_get_stats(const void *ws, pb_method_stats *st)
         .get_state = yoshida_get_state,                                         \
         .get_stats = yoshida_get_stats,                                         \
         .free = yoshida_free,                                                   \
+        .dense = yoshida_dense,                                                 \
+        .dense_order = (ORDER) - 1 < 4 ? (ORDER) - 1 : 4,                       \
     }
 
 /* Coefficients: Yoshida (1990), as listed in REFERENCES.md (from memory;

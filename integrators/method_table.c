@@ -69,9 +69,13 @@ int pb_method_check(const pb_method_type *m, char *err, size_t errlen)
     } else if (!(m->flags & PB_KIND_FIXED) == !(m->flags & PB_KIND_ADAPTIVE)) {
         why = "flags must hold exactly one of PB_KIND_FIXED and PB_KIND_ADAPTIVE";
     } else if (!m->alloc || !m->start || !m->advance || !m->get_state || !m->get_stats ||
-               !m->free) {
+               !m->free || !m->dense) {
         why = "a function of the record (alloc, start, advance, get_state, get_stats, "
-              "free) is NULL";
+              "free, dense) is NULL";
+    } else if (m->dense_order < 1 || m->dense_order > m->order) {
+        snprintf(buf, sizeof buf, "dense order %d outside 1..%d (its order)", m->dense_order,
+                 m->order);
+        why = buf;
     }
     if (!why)
         return 0;

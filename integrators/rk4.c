@@ -1,11 +1,15 @@
 /* rk4.c - the classical fourth-order Runge-Kutta method, first-order form
  * y = (r, v). Source: Kutta (1901); tableau as in Abramowitz & Stegun 25.5.10.
  * Optional compensated (Kahan) summation of the state update. Stepped on the
- * grid t0 + n*h by the shared fixed-step loop (fixed_step.h). */
+ * grid t0 + n*h by the shared fixed-step loop (fixed_step.h). Dense output:
+ * the quintic Hermite of each step's ends, the acceleration at the new state
+ * being evaluated as soon as a step is taken (it is the next step's first
+ * stage, so a run costs one evaluation more, not one a step). */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 #include "integrators/fixed_step.h"
+#include "propbench/dense.h"
 
 typedef struct rk4_ws {
     int dim, n;               /* n = 2*dim state values */
@@ -14,6 +18,9 @@ typedef struct rk4_ws {
     pb_fixed_grid grid;       /* t0, h, the index of the current state */
     double *y, *comp;         /* state (r, v) and its Kahan compensation */
     pb_method_stats st;
+    double a[PB_DIM_MAX];     /* the first stage's a at the current state, when have_a */
+    int have_a;
+    pb_dense_span span;       /* the last step's ends with their accelerations */
 } rk4_ws;
 
 static void *rk4_alloc(int dim)
@@ -56,6 +63,8 @@ static int rk4_start(void *ws, const pb_force *f, const pb_method_config *cfg,
     memset(w->comp, 0, (size_t)w->n * sizeof(double));
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
+    w->have_a = 0;
+    pb_dense_start(&w->span, w->dim, t0, r0, v0, NULL);
     pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->y, w->y + w->dim, &w->st);
     return PB_OK;
 }
@@ -65,7 +74,7 @@ static int rk4_start(void *ws, const pb_force *f, const pb_method_config *cfg,
  * stack and nothing is copied; inlined with d = 3 the loops unroll. The
  * arithmetic is the tableau's, term for term, so every variant gives the
  * same bits. A failed step leaves y and comp untouched. */
-static inline int rk4_step_d(rk4_ws *w, double t, double h, const int d)
+static inline int rk4_step_d(rk4_ws *w, double t, double t1, double h, const int d)
 {
     double *r = w->y, *v = w->y + d, *cr = w->comp, *cv = w->comp + d;
     double a1[PB_DIM_MAX], a2[PB_DIM_MAX], a3[PB_DIM_MAX], a4[PB_DIM_MAX];
@@ -74,8 +83,14 @@ static inline int rk4_step_d(rk4_ws *w, double t, double h, const int d)
     double ncr[PB_DIM_MAX], ncv[PB_DIM_MAX];
     int s, i, ok = 1;
     void *ctx = w->f.ctx;
-    if ((s = w->f.accel(ctx, t, r, v, a1)))
-        return s;
+    if (w->have_a) {
+        for (i = 0; i < d; i++)
+            a1[i] = w->a[i];
+    } else {
+        if ((s = w->f.accel(ctx, t, r, v, a1)))
+            return s;
+        pb_dense_set_a(&w->span, a1);
+    }
     for (i = 0; i < d; i++) {
         r2[i] = r[i] + 0.5 * h * v[i];
         v2[i] = v[i] + 0.5 * h * a1[i];
@@ -123,6 +138,10 @@ static inline int rk4_step_d(rk4_ws *w, double t, double h, const int d)
             cr[i] = ncr[i];
             cv[i] = ncv[i];
         }
+    /* the next step's first stage now, for the dense output's end; a failure
+     * here is met again (and reported) by the next step */
+    w->have_a = w->f.accel(ctx, t1, r, v, w->a) == PB_OK;
+    pb_dense_push(&w->span, t1, r, v, w->have_a ? w->a : NULL);
     return PB_OK;
 }
 
@@ -131,9 +150,8 @@ static int rk4_fixed_step(void *ctx, long n, double t, double t1)
 {
     rk4_ws *w = ctx;
     (void)n;
-    (void)t1;
     double h = w->grid.h;
-    return w->dim == 3 ? rk4_step_d(w, t, h, 3) : rk4_step_d(w, t, h, w->dim);
+    return w->dim == 3 ? rk4_step_d(w, t, t1, h, 3) : rk4_step_d(w, t, t1, h, w->dim);
 }
 
 static int rk4_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
@@ -148,6 +166,11 @@ static void rk4_get_state(const void *ws, double *t, double *r, double *v)
     *t = pb_fixed_grid_time(&w->grid, w->grid.n);
     memcpy(r, w->y, (size_t)w->dim * sizeof(double));
     memcpy(v, w->y + w->dim, (size_t)w->dim * sizeof(double));
+}
+
+static int rk4_dense(const void *ws, double t, double *r, double *v)
+{
+    return pb_dense_eval(&((const rk4_ws *)ws)->span, t, r, v);
 }
 
 static void rk4_get_stats(const void *ws, pb_method_stats *st)
@@ -168,4 +191,6 @@ const pb_method_type pb_method_rk4 = {
     .get_state = rk4_get_state,
     .get_stats = rk4_get_stats,
     .free = rk4_free,
+    .dense = rk4_dense,
+    .dense_order = 3,   /* min(p - 1, 4): see leapfrog.c */
 };

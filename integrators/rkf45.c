@@ -2,11 +2,14 @@
  * Tableau: Fehlberg (1969), NASA TR R-315, the RKF4(5) pair. Step control: PI
  * controller (Gustafsson 1991; Hairer & Wanner, Solving ODEs II, Sec. IV.2);
  * starting step: Hairer, Norsett & Wanner, Solving ODEs I, Sec. II.4.
- * Advances with the 5th-order solution (local extrapolation, as GSL's rkf45). */
+ * Advances with the 5th-order solution (local extrapolation, as GSL's rkf45).
+ * Dense output: quintic Hermite of the step's ends, f at the new state being
+ * evaluated as soon as a step is accepted (it is the next step's first stage). */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 #include "method.h"
+#include "propbench/dense.h"
 
 /* Which solution is propagated. Fehlberg's pair was built to advance with the
  * 4th-order weights; we advance with the 5th-order ones (local extrapolation),
@@ -58,6 +61,7 @@ typedef struct rkf45_ws {
     int have_k1;           /* k[0] holds f(t, y) */
     int last_rejected;
     double *y, *ynew, *ytmp, *k[6];
+    pb_dense_span span;
     pb_method_stats st;
 } rkf45_ws;
 
@@ -139,6 +143,7 @@ static int rkf45_start(void *ws, const pb_force *f, const pb_method_config *cfg,
     memcpy(w->y + w->dim, v0, (size_t)w->dim * sizeof(double));
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
+    pb_dense_start(&w->span, w->dim, t0, r0, v0, NULL);
     return PB_OK;
 }
 
@@ -244,6 +249,7 @@ static int rkf45_advance(void *ws, double t_out, pb_step_observer obs, void *oct
                 return s;
             }
             w->have_k1 = 1;
+            pb_dense_set_a(&w->span, w->k[0] + w->dim);
         }
         if (!(w->h > 0) && (s = rkf45_initial_step(w))) {
             w->st.t_fail = w->t;
@@ -278,9 +284,12 @@ static int rkf45_advance(void *ws, double t_out, pb_step_observer obs, void *oct
             }
             w->t = last ? t_out : w->t + h;
             memcpy(w->y, w->ynew, (size_t)w->n * sizeof(double));
-            w->have_k1 = 0;
             w->last_rejected = 0;
             w->st.steps++;
+            /* the next step's first stage, now, for the dense output's end; a
+             * failure here is met again (and reported) by the next step */
+            w->have_k1 = rkf45_deriv(w, w->t, w->y, w->k[0]) == PB_OK;
+            pb_dense_push(&w->span, w->t, w->y, w->y + w->dim, w->have_k1 ? w->k[0] + w->dim : NULL);
             if (obs && (s = obs(octx, w->t, w->y, w->y + w->dim)))
                 return s;
         } else {
@@ -291,6 +300,11 @@ static int rkf45_advance(void *ws, double t_out, pb_step_observer obs, void *oct
         }
     }
     return PB_OK;
+}
+
+static int rkf45_dense(const void *ws, double t, double *r, double *v)
+{
+    return pb_dense_eval(&((const rkf45_ws *)ws)->span, t, r, v);
 }
 
 static void rkf45_get_state(const void *ws, double *t, double *r, double *v)
@@ -320,4 +334,6 @@ const pb_method_type pb_method_rkf45 = {
     .get_state = rkf45_get_state,
     .get_stats = rkf45_get_stats,
     .free = rkf45_free,
+    .dense = rkf45_dense,
+    .dense_order = 4,
 };

@@ -3,6 +3,7 @@
  * running maxima of the invariant errors (global and since the last sample)
  * and stops the integration when the orbit leaves the region it started in;
  * metrics against truth are computed only at the planned sample times. */
+#include <float.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -30,7 +31,19 @@ typedef struct harness_watch {
     double e_fit, h_fit;      /* since the last log-grid sample: the fits' windows */
     double t_escape;
     const char *why;          /* which divergence test stopped the run */
+    /* sampling: after every step, the samples inside it from dense output */
+    const pb_method_type *m;
+    void *ws;
+    const pb_sample_plan *plan;
+    const pb_truth *truth;
+    pb_case_result *res;
+    double horizon;
+    int k;                    /* next sample */
+    double ap_raw, ap_unwrapped;
+    int ap_have;
 } harness_watch;
+
+static int harness_take_samples(harness_watch *w, double t);
 
 static int harness_observe(void *ctx, double t, const double *r, const double *v)
 {
@@ -62,7 +75,7 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
         w->why = "the orbit escaped to 1000 times its initial size";
         return PB_EDIVERGED;
     }
-    return 0;
+    return w->plan ? harness_take_samples(w, t) : 0;
 }
 
 const char *pb_case_status_name(int status)
@@ -349,21 +362,16 @@ static void harness_watch_init(harness_watch *w, const pb_problem *p, double hor
 /* The apsidal angle accumulates: unwrap it from sample to sample so a
  * precession past +-pi keeps its sign and size (samples are close enough
  * that the angle moves by less than pi between them). */
-typedef struct harness_apsis {
-    double raw, unwrapped;
-    int have;
-} harness_apsis;
-
-static void harness_unwrap(harness_apsis *ap, pb_sample *smp)
+static void harness_unwrap(harness_watch *w, pb_sample *smp)
 {
     if (!isfinite(smp->apsis_angle))
         return;
     double raw = smp->apsis_angle;
-    if (ap->have)
-        smp->apsis_angle = ap->unwrapped + remainder(raw - ap->raw, 2 * M_PI);
-    ap->raw = raw;
-    ap->unwrapped = smp->apsis_angle;
-    ap->have = 1;
+    if (w->ap_have)
+        smp->apsis_angle = w->ap_unwrapped + remainder(raw - w->ap_raw, 2 * M_PI);
+    w->ap_raw = raw;
+    w->ap_unwrapped = smp->apsis_angle;
+    w->ap_have = 1;
 }
 
 /* Close the invariant window at sample smp: the sample itself belongs to
@@ -389,34 +397,66 @@ static void harness_close_window(harness_watch *w, const pb_problem *p, pb_sampl
     }
 }
 
-/* The metric pass: advance to every sample time and measure there. Returns
- * the integration's status; res->nsamples is how many samples were reached. */
-static int harness_metric_pass(const pb_case_spec *spec, const pb_sample_plan *plan,
-                               const pb_truth *truth, void *ws, harness_watch *w,
-                               double horizon, pb_case_result *res)
+/* Every sample time up to t (the end of the step just taken), measured on
+ * the method's dense output: sample times never shorten a step, so the
+ * integration is the same whatever the samples. */
+static int harness_take_samples(harness_watch *w, double t)
 {
-    const pb_problem *p = &spec->problem;
-    const pb_method_type *m = spec->method;
-    double r[PB_DIM_MAX] = {0}, v[PB_DIM_MAX] = {0}, t = p->t0;
-    harness_apsis ap = {0, 0, 0};
-    int s = PB_OK, k;
-    for (k = 0; k < plan->n; k++) {
-        s = m->advance(ws, plan->t[k], harness_observe, w);
+    const pb_problem *p = w->p;
+    const pb_sample_plan *plan = w->plan;
+    for (; w->k < plan->n && plan->t[w->k] <= t; w->k++) {
+        int k = w->k;
+        double r[PB_DIM_MAX] = {0}, v[PB_DIM_MAX] = {0}, ts = plan->t[k];
+        int s = w->m->dense(w->ws, ts, r, v);
         if (s)
-            break;
-        m->get_state(ws, &t, r, v);
+            return s;
         long double rt[PB_DIM_MAX], vt[PB_DIM_MAX];
-        pb_truth_state(truth, k, rt, vt);
-        pb_sample *smp = &res->samples[k];
-        pb_metrics_sample(p, t, r, v, rt, vt, w->E0, w->E_scale, w->H0, smp);
-        harness_unwrap(&ap, smp);
-        smp->orbits = p->period > 0 ? (t - p->t0) / p->period : (t - p->t0) / horizon;
+        pb_truth_state(w->truth, k, rt, vt);
+        pb_sample *smp = &w->res->samples[k];
+        pb_metrics_sample(p, ts, r, v, rt, vt, w->E0, w->E_scale, w->H0, smp);
+        harness_unwrap(w, smp);
+        smp->orbits = p->period > 0 ? (ts - p->t0) / p->period : (ts - p->t0) / w->horizon;
         smp->on_log_grid = plan->on_log_grid[k];
         smp->in_metrics = plan->in_metrics[k];
-        smp->truth_floor = pb_truth_floor(truth, k);
+        smp->truth_floor = pb_truth_floor(w->truth, k);
         harness_close_window(w, p, smp);
     }
-    res->nsamples = k;
+    return 0;
+}
+
+/* Where the integration ends: the horizon for an adaptive method (it clamps
+ * its last step); for a fixed-step one the first grid time at or past it,
+ * the horizon itself then being reached by dense output. */
+static double harness_integration_end(const pb_case_spec *spec, double horizon, double h)
+{
+    double t0 = spec->problem.t0;
+    if (!(spec->method->flags & PB_KIND_FIXED) || !(h > 0))
+        return t0 + horizon;
+    /* a quotient within rounding of a whole number is that number */
+    double q = horizon / h, nq = nearbyint(q);
+    double n = fabs(q - nq) <= 8 * DBL_EPSILON * (fabs(q) + 1) ? nq : ceil(q);
+    return t0 + n * h;
+}
+
+/* The metric pass: one advance to the integration's end; the observer
+ * measures every sample on the way. Returns the integration's status;
+ * res->nsamples is how many samples were reached. */
+static int harness_metric_pass(const pb_case_spec *spec, const pb_sample_plan *plan,
+                               const pb_truth *truth, void *ws, harness_watch *w,
+                               double horizon, double t_int_end, pb_case_result *res)
+{
+    w->m = spec->method;
+    w->ws = ws;
+    w->plan = plan;
+    w->truth = truth;
+    w->res = res;
+    w->horizon = horizon;
+    w->k = 0;
+    int s = spec->method->advance(ws, t_int_end, harness_observe, w);
+    res->nsamples = w->k;
+    /* a run that reached its end has measured every sample: never a silent gap */
+    if (s == PB_OK && w->k < plan->n)
+        s = PB_EINVAL;
     return s;
 }
 
@@ -477,12 +517,19 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     pb_truth *truth = NULL;
     void *ws = NULL;
     int rc = PB_ENOMEM;
-    if (pb_sample_plan_make(p->t0, horizon, harness_scale(spec), res->h,
+    /* sample times are exact (t0 + elapsed), off any step grid: the method
+     * reaches them by dense output */
+    if (pb_sample_plan_make(p->t0, horizon, harness_scale(spec), 0,
                             spec->linear_samples, &plan))
         return PB_ENOMEM;
     res->samples = calloc((size_t)plan.n, sizeof(pb_sample));
     if (!res->samples)
         goto out;
+    double t_int_end = harness_integration_end(spec, horizon, res->h);
+    /* t0 + n h may fall an ulp short of t0 + horizon: the horizon is then
+     * that grid time, which the method reaches exactly */
+    for (int k = plan.n - 1; k >= 0 && plan.t[k] > t_int_end; k--)
+        plan.t[k] = t_int_end;
     if ((rc = pb_truth_build(p, plan.t, plan.n, spec->cache_dir, &truth)))
         goto out;
     rc = PB_ENOMEM;
@@ -495,11 +542,15 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     pb_force_counter_init(&counter, p, &f);
     if ((rc = m->start(ws, &f, &cfg, p->t0, p->r0, p->v0)))
         goto out;
-    int s = harness_metric_pass(spec, &plan, truth, ws, &w, horizon, res);
+    int s = harness_metric_pass(spec, &plan, truth, ws, &w, horizon, t_int_end, res);
     harness_ending(spec, ws, &w, &counter, s, res);
+    double t_state = res->t_end;
+    /* reached: the horizon itself (the last sample), or where the run ended */
+    if (s == PB_OK && res->nsamples > 0)
+        res->t_end = plan.t[res->nsamples - 1];
     harness_summarise(spec, res);
     res->ns_per_step = res->ns_per_eval = NAN;
-    pb_case_time(spec, &cfg, res->t_end, res->steps + res->startup_steps, res);
+    pb_case_time(spec, &cfg, t_state, res->steps + res->startup_steps, res);
     rc = PB_OK;
 out:
     m->free(ws);

@@ -18,7 +18,7 @@ extern "C" {
  * Raised whenever a field changes meaning or place, so that a record built
  * against another version is refused, not misread; the shared library's
  * soname (libpropbench.so.N) carries it. */
-#define PB_METHOD_ABI 1u
+#define PB_METHOD_ABI 2u
 
 /* Kind flags (capabilities are fields, never checks of a name). */
 enum {
@@ -86,6 +86,14 @@ typedef struct pb_method_type {
     void (*get_state)(const void *ws, double *t, double *r, double *v);
     void (*get_stats)(const void *ws, pb_method_stats *st);
     void (*free)(void *ws);  /* accepts NULL */
+    /* Dense output (continuous extension): the state at any t within the
+     * last accepted step, between the previous state and the current one,
+     * without a force evaluation and without touching the integration, so
+     * that output times never shorten a step. PB_OK, or PB_EINVAL when t
+     * lies outside that step (or no step was taken). propbench/dense.h has a
+     * Hermite interpolant for methods without one of their own. */
+    int (*dense)(const void *ws, double t, double *r, double *v);
+    int dense_order;         /* the extension's order q: local error O(h^(q+1)) */
 } pb_method_type;
 
 /* The first fields of every record: `{ PB_METHOD_RECORD_HEAD, .name = ... }`. */
@@ -93,7 +101,8 @@ typedef struct pb_method_type {
 
 /* Whether a record can be run by this library: the ABI version and record
  * size it was built with match, it has a name, an order from 1 to 30, exactly
- * one of PB_KIND_FIXED and PB_KIND_ADAPTIVE, and every function. 0, or -1
+ * one of PB_KIND_FIXED and PB_KIND_ADAPTIVE, every function (dense output
+ * included) and a dense order from 1 to its order. 0, or -1
  * with the reason (naming the method where it has a name) in err. */
 PB_API int pb_method_check(const pb_method_type *m, char *err, size_t errlen);
 
