@@ -408,7 +408,10 @@ const pb_method_type pb_method_gauss_jackson8 = {
     .name = "gauss-jackson8",
     .description = "Gauss-Jackson 8th order, summed ordinate PEC, 1 evaluation a step",
     .source = "Berry & Healy (2004), J. Astronaut. Sci. 52(3) 331-357",
-    .order = 8,
+    /* measured, not nominal: differences up to the 8th summed twice are the
+     * Stormer-Cowell series cut after its 10th difference, local error
+     * O(h^13), global O(h^11) (tests/test_gauss_jackson.c: 10.85 on e = 0) */
+    .order = 11,
     .flags = PB_KIND_FIXED | PB_KIND_MULTISTEP | PB_FORM_SECOND,
     .alloc = gj_alloc,
     .start = gj_start,
