@@ -65,25 +65,6 @@ static void tab_row(const json_t *c, FILE *f)
     fputc('\n', f);
 }
 
-/* A note when adaptive cases' cost is mostly the output grid's. */
-static void tab_grid_note(const json_t *cases, FILE *f)
-{
-    int gridded = 0;
-    size_t i;
-    const json_t *c;
-    json_array_foreach(cases, i, c) {
-        const json_t *k = json_object_get(c, "cost");
-        const json_t *cut = json_object_get(k, "output_cut_steps");
-        long long steps = json_integer_value(json_object_get(k, "steps"));
-        if (json_is_integer(cut) && steps > 0 && 10 * json_integer_value(cut) > steps)
-            gridded++;
-    }
-    if (gridded)
-        fprintf(f, "  note: in %d adaptive case%s over 10%% of the steps were shortened to land on sample\n"
-                   "  times; that cost is the output grid's (see output_cut_steps; a longer horizon dilutes it)\n",
-                gridded, gridded > 1 ? "s" : "");
-}
-
 /* How each unfinished case ended, with the time. */
 static void tab_unfinished(const json_t *cases, FILE *f)
 {
@@ -119,6 +100,5 @@ void pb_summary_print(const json_t *doc, FILE *f)
         tab_row(c, f);
     fprintf(f, "(* GSL's stepper; energy max is relative; growth = class of the fitted power law;\n"
                " ok(sat): finished, but the position error passed a tenth of the orbit's size)\n");
-    tab_grid_note(cases, f);
     tab_unfinished(cases, f);
 }

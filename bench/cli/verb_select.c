@@ -282,7 +282,7 @@ static void select_print_rows(const pb_selection *sel, int m, int km)
     }
 }
 
-/* The notes under the table: GSL marks, output-grid cost, the verdict. */
+/* The notes under the table: GSL marks, the verdict. */
 static void select_print_notes(const pb_selection *sel, int m, int found)
 {
     int gsl_shown = 0;
@@ -290,17 +290,6 @@ static void select_print_notes(const pb_selection *sel, int m, int found)
         gsl_shown |= sel[i].found && (sel[i].method->flags & PB_FROM_GSL);
     if (gsl_shown)
         printf("(* GSL's stepper)\n");
-    long cut_lo = -1, cut_hi = 0;
-    for (int i = 0; i < m; i++)
-        if (sel[i].found && (sel[i].method->flags & PB_KIND_ADAPTIVE)) {
-            long nc = sel[i].confirmed.output_cut;
-            cut_lo = cut_lo < 0 || nc < cut_lo ? nc : cut_lo;
-            cut_hi = nc > cut_hi ? nc : cut_hi;
-        }
-    if (cut_hi > 0)
-        printf("adaptive rows include %ld to %ld steps shortened to land on the sample times\n"
-               "(the output grid's cost; a propagator with dense output would not pay it)\n",
-               cut_lo, cut_hi);
     if (!found)
         printf("NO METHOD meets the requirement over this horizon.\n");
     else
