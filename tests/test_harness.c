@@ -493,3 +493,27 @@ Test(harness, verdict_independent_of_plot_samples, .timeout = 120)
         }
     }
 }
+
+/* A fixed-step case reaches the stated horizon itself, not the last grid
+ * point before it: gauss-jackson8 at 48 steps per orbit over one day of
+ * leo-near-circular (86400 s is 15.56 periods, off the grid) ends its
+ * samples at t0 + 86400 s exactly, by dense output from the step that
+ * passes it, as an adaptive method does by clamping its last step. */
+Test(harness, fixed_step_reaches_the_horizon_exactly)
+{
+    static const char *const methods[] = {"gauss-jackson8", "rk4", "rkf45"};
+    for (int i = 0; i < 3; i++) {
+        pb_case_spec s = spec_fixed("leo-near-circular", methods[i], 48, 0);
+        s.horizon_s = 86400;
+        if (!strcmp(methods[i], "rkf45")) {
+            s.steps_per_orbit = 0;
+            s.tolerance = 1e-9;
+        }
+        pb_case_result r;
+        cr_assert_eq(pb_case_run(&s, &r), 0);
+        cr_assert_eq(r.status, PB_OK, "%s", methods[i]);
+        cr_assert_eq(r.t_end, s.problem.t0 + 86400.0, "%s ends at %.17g", methods[i], r.t_end);
+        cr_assert_eq(r.samples[r.nsamples - 1].t, s.problem.t0 + 86400.0);
+        pb_case_result_free(&r);
+    }
+}
