@@ -31,10 +31,12 @@ static const char *list_kind(unsigned fl)
 
 static void list_methods(void)
 {
-    printf("%-15s %5s  %-10s %-6s %-26s %s\n", "method", "order", "kind", "step", "form", "description");
+    printf("%-15s %5s %5s  %-10s %-6s %-26s %s\n", "method", "order", "dense", "kind", "step", "form",
+           "description");
     for (const pb_method_type *const *t = pb_method_table; *t; t++) {
         const pb_method_type *m = *t;
-        printf("%-15s %5d  %-10s %-6s %-26s %s%s\n", m->name, m->order, list_kind(m->flags),
+        printf("%-15s %5d %5d  %-10s %-6s %-26s %s%s\n", m->name, m->order, m->dense_order,
+               list_kind(m->flags),
                (m->flags & PB_KIND_FIXED) ? "fixed" : "adapt",
                (m->flags & PB_FORM_SECOND) ? "2nd order, a(r) only" : "1st order y=(r,v)",
                m->description, (m->flags & PB_KIND_COMPENSABLE) ? " [--compensated]" : "");
