@@ -150,8 +150,11 @@ static void print_cost(const pb_case_spec *spec, const pb_case_result *res)
         printf("  %-22s %ld of the steps were shortened to land on a sample time (cost the\n"
                "  %-22s output grid adds; --samples sets the grid, a longer horizon dilutes it)\n",
                "output grid", res->output_cut, "");
-    if (isfinite(res->ns_per_step))
-        printf("  %-22s %.1f ns/step, %.1f ns/evaluation\n", "timing (median)", res->ns_per_step, res->ns_per_eval);
+    if (isfinite(res->ns_per_step) && res->timing_repeats > 0)
+        printf("  %-22s %.1f ns/step, %.1f ns/evaluation (thread CPU time; %d repeats,\n"
+               "  %-22s spread %.1f%%: interquartile range over median)\n", "timing (median)",
+               res->ns_per_step, res->ns_per_eval, res->timing_repeats, "",
+               100 * res->ns_per_step_spread);
     if (res->projected_s > 0)
         printf("  %-22s %.3g s at %.3g us per evaluation\n", "projected cost", res->projected_s, spec->eval_cost_us);
     printf("  %-22s %s\n", "fingerprint", res->fingerprint);

@@ -83,8 +83,7 @@ typedef struct pb_case_result {
      * times, (q75 - q25) / median (NaN when not timed), how many repeats it
      * made (0: none), the CPU time they took together, and the steps and
      * force evaluations of one repeat (those of the metric pass unless the
-     * case was cut to the pass's first 200000 steps or, adaptive, the metric
-     * pass shortened steps to land on sample times) */
+     * case was cut to the pass's first 200000 steps) */
     double ns_per_step_spread;
     int timing_repeats;
     double timing_cpu_s;

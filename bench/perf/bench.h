@@ -18,12 +18,25 @@
 #define BENCH_OH_ROUNDS 31
 #define BENCH_OVERHEAD_GOAL 10.0  /* percent */
 #define BENCH_MEMORY_GOAL 5.0     /* percent */
+#define BENCH_LOAD_RERUNS 5       /* reruns of the timing pass under load */
+#define BENCH_LOAD_ORBITS 100.0   /* 1e5 steps a repeat (some ms, longer than a time slice) */
+#define BENCH_LOAD_GOAL 10.0      /* percent: (max - min) / median over the reruns */
 
-/* Inline, so that reading the clock costs the same in every part. */
+/* Inline, so that reading the clock costs the same in every part. Wall
+ * time, for what a user waits (the whole bench, a forked child's run). */
 static inline double bench_now(void)
 {
     struct timespec ts;
     clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+/* CPU time of the calling thread, the timing pass's clock (timing.c): every
+ * loop timed in this process uses it, so they compare with the pass. */
+static inline double bench_cpu_now(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_THREAD_CPUTIME_ID, &ts);
     return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
 }
 
@@ -42,7 +55,7 @@ static inline double bench_now(void)
 typedef struct bench_timing {
     int status;
     long steps, evals, rejected;
-    double sec;          /* median wall time of one run */
+    double sec;          /* median thread CPU time of one run */
     double pos_err;      /* at t_end */
     double r[PB_DIM_MAX], v[PB_DIM_MAX];
 } bench_timing;
@@ -84,5 +97,6 @@ void bench_rk4_vs_gsl(const pb_problem *p);
 int bench_overhead(const pb_problem *p, double *timing_pct, double *timing_min_pct,
                    double *direct_pct, double *direct_min_pct);
 int bench_memory(double *diff_pct);
+int bench_load(const pb_problem *p, double *worst_spread_pct);
 
 #endif

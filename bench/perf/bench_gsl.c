@@ -38,7 +38,7 @@ void bench_gsl_plain_once(bench_job *j, const pb_problem *p, int k)
         return;
     }
     double y[6], yerr[6], h = j->cfg.h;
-    double t0 = bench_now();
+    double t0 = bench_cpu_now();
     memcpy(y, p->r0, 3 * sizeof(double));
     memcpy(y + 3, p->v0, 3 * sizeof(double));
     for (long n = 0; n < j->nsteps; n++)
@@ -46,7 +46,7 @@ void bench_gsl_plain_once(bench_job *j, const pb_problem *p, int k)
             j->out.status = PB_EFORCE;
             break;
         }
-    double el = bench_now() - t0;
+    double el = bench_cpu_now() - t0;
     gsl_odeiv2_step_free(st);
     if (k >= 0)
         j->dt[k] = el;

@@ -68,11 +68,11 @@ static void bench_job_once(bench_job *j, const pb_problem *p, int k)
     pb_force_counter c;
     pb_force f;
     pb_force_counter_init(&c, p, &f);
-    double t0 = bench_now();
+    double t0 = bench_cpu_now();
     int s = m->start(j->ws, &f, &j->cfg, p->t0, p->r0, p->v0);
     if (!s)
         s = m->advance(j->ws, j->t_end, NULL, NULL);
-    double el = bench_now() - t0;
+    double el = bench_cpu_now() - t0;
     if (s) {
         j->out.status = s;
         return;

@@ -169,7 +169,7 @@ static int oh_case(const oh_setup *o, pb_case_result *res, double *t4)
     spec0.repeats = 0;
     pb_case_result res0;
     int rcode = pb_case_run(&spec0, &res0);
-    *t4 = bench_now();
+    *t4 = bench_cpu_now();
     if (!rcode) {
         pb_case_result_free(&res0);
         rcode = pb_case_run(&o->spec, res);
@@ -208,24 +208,24 @@ static int oh_round(const oh_setup *o, int k, oh_rounds *w)
     double ri[3], vi[3], rc[3], vc[3], rdir[3], vdir[3], ra[3], va[3];
     double rd[3] = {0}, vd[3] = {0}, td = 0;
     oh_clock c;
-    c.t0 = bench_now();
+    c.t0 = bench_cpu_now();
     bench_inline_rk4(p->mu, o->h, o->nsteps, p->r0, p->v0, ri, vi);
-    c.t0d = bench_now();
+    c.t0d = bench_cpu_now();
     bench_direct_rk4(p, o->h, o->nsteps, rdir, vdir);
-    c.t1 = bench_now();
+    c.t1 = bench_cpu_now();
     pb_force_counter fc;
     pb_force f;
     pb_force_counter_init(&fc, p, &f);
     bench_counter_rk4(&f, o->h, o->nsteps, p->r0, p->v0, rc, vc);
-    c.t2 = bench_now();
+    c.t2 = bench_cpu_now();
     pb_force_counter_init(&fc, p, &f);
     int s = m->start(o->ws, &f, &o->cfg, p->t0, p->r0, p->v0);
     if (!s)
         s = m->advance(o->ws, o->t_end, NULL, NULL);
-    c.t3 = bench_now();
+    c.t3 = bench_cpu_now();
     m->get_state(o->ws, &td, rd, vd);
     bench_inline_rk4_arrays(p->mu, o->h, o->nsteps, p->r0, p->v0, ra, va);
-    c.t3a = bench_now();
+    c.t3a = bench_cpu_now();
     pb_case_result res;
     int rcode = oh_case(o, &res, &c.t4);
     int bad = s ? s : rcode ? rcode : res.status;

@@ -6,6 +6,7 @@
 #include <unistd.h>
 #include "bench/store/case_json.h"
 #include "bench/measure/harness.h"
+#include "bench/measure/timing.h"
 
 #ifndef PB_BUILD_FLAGS
 #define PB_BUILD_FLAGS "unknown"
@@ -157,6 +158,12 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
         json_object_set_new(c, "output_cut_steps", json_integer(res->output_cut));
     json_object_set_new(c, "ns_per_step", pb_json_real(res->ns_per_step));
     json_object_set_new(c, "ns_per_eval", pb_json_real(res->ns_per_eval));
+    /* how far to trust the two above: the timing pass's repeats, their
+     * relative interquartile range, and the clock (null: not timed) */
+    int timed = res->timing_repeats > 0;
+    json_object_set_new(c, "ns_per_step_spread", pb_json_real(timed ? res->ns_per_step_spread : (double)NAN));
+    json_object_set_new(c, "timing_repeats", json_integer(res->timing_repeats));
+    json_object_set_new(c, "timing_clock", timed ? json_string(PB_TIMING_CLOCK) : json_null());
     if (spec->eval_cost_us > 0) {
         json_object_set_new(c, "eval_cost_us", json_real(spec->eval_cost_us));
         json_object_set_new(c, "projected_s", json_real(res->projected_s));
