@@ -9,7 +9,8 @@
 
 static void dense_copy(double *dst, const double *src, int dim)
 {
-    memcpy(dst, src, (size_t)dim * sizeof(double));
+    for (int i = 0; i < dim; i++)
+        dst[i] = src[i];
 }
 
 void pb_dense_start(pb_dense_span *s, int dim, double t, const double *r, const double *v,
@@ -18,6 +19,7 @@ void pb_dense_start(pb_dense_span *s, int dim, double t, const double *r, const 
     memset(s, 0, sizeof *s);
     s->dim = dim < 1 ? 1 : dim > PB_DENSE_DIM_MAX ? PB_DENSE_DIM_MAX : dim;
     s->points = 1;
+    s->end = 1;
     s->t[1] = t;
     dense_copy(s->r[1], r, s->dim);
     dense_copy(s->v[1], v, s->dim);
@@ -29,46 +31,42 @@ void pb_dense_start(pb_dense_span *s, int dim, double t, const double *r, const 
 void pb_dense_push(pb_dense_span *s, double t, const double *r, const double *v,
                    const double *a)
 {
-    int d = s->dim;
-    s->t[0] = s->t[1];
-    dense_copy(s->r[0], s->r[1], d);
-    dense_copy(s->v[0], s->v[1], d);
-    dense_copy(s->a[0], s->a[1], d);
-    s->has_a[0] = s->has_a[1];
-    s->t[1] = t;
-    dense_copy(s->r[1], r, d);
-    dense_copy(s->v[1], v, d);
+    int d = s->dim, e = 1 - s->end;
+    s->t[e] = t;
+    dense_copy(s->r[e], r, d);
+    dense_copy(s->v[e], v, d);
     if (a)
-        dense_copy(s->a[1], a, d);
-    s->has_a[1] = a != NULL;
+        dense_copy(s->a[e], a, d);
+    s->has_a[e] = a != NULL;
+    s->end = e;
     s->points = 2;
 }
 
 void pb_dense_set_a(pb_dense_span *s, const double *a)
 {
-    dense_copy(s->a[1], a, s->dim);
-    s->has_a[1] = 1;
+    dense_copy(s->a[s->end], a, s->dim);
+    s->has_a[s->end] = 1;
 }
 
 int pb_dense_eval(const pb_dense_span *s, double t, double *r, double *v)
 {
-    int d = s->dim, end = -1;
+    int d = s->dim, b = s->end, a0 = 1 - b, at = -1;
     if (s->points < 1)
         return PB_EINVAL;
-    if (t == s->t[1])
-        end = 1;
-    else if (s->points == 2 && t == s->t[0])
-        end = 0;
-    if (end >= 0) {
-        dense_copy(r, s->r[end], d);
-        dense_copy(v, s->v[end], d);
+    if (t == s->t[b])
+        at = b;
+    else if (s->points == 2 && t == s->t[a0])
+        at = a0;
+    if (at >= 0) {
+        dense_copy(r, s->r[at], d);
+        dense_copy(v, s->v[at], d);
         return PB_OK;
     }
-    if (s->points < 2 || !(t > s->t[0] && t < s->t[1]))
+    if (s->points < 2 || !(t > s->t[a0] && t < s->t[b]))
         return PB_EINVAL;
-    double h = s->t[1] - s->t[0], x = (t - s->t[0]) / h;
+    double h = s->t[b] - s->t[a0], x = (t - s->t[a0]) / h;
     double x2 = x * x, x3 = x2 * x, x4 = x3 * x, x5 = x4 * x;
-    if (s->has_a[0] && s->has_a[1]) {
+    if (s->has_a[a0] && s->has_a[b]) {
         /* values H, derivatives D: r0, h v0, h^2 a0, r1, h v1, h^2 a1 */
         double H[6] = {1 - 10 * x3 + 15 * x4 - 6 * x5, x - 6 * x3 + 8 * x4 - 3 * x5,
                        0.5 * (x2 - 3 * x3 + 3 * x4 - x5), 10 * x3 - 15 * x4 + 6 * x5,
@@ -77,8 +75,8 @@ int pb_dense_eval(const pb_dense_span *s, double t, double *r, double *v)
                        0.5 * (2 * x - 9 * x2 + 12 * x3 - 5 * x4), 30 * x2 - 60 * x3 + 30 * x4,
                        -12 * x2 + 28 * x3 - 15 * x4, 0.5 * (3 * x2 - 8 * x3 + 5 * x4)};
         for (int i = 0; i < d; i++) {
-            double c[6] = {s->r[0][i], h * s->v[0][i], h * h * s->a[0][i],
-                           s->r[1][i], h * s->v[1][i], h * h * s->a[1][i]};
+            double c[6] = {s->r[a0][i], h * s->v[a0][i], h * h * s->a[a0][i],
+                           s->r[b][i], h * s->v[b][i], h * h * s->a[b][i]};
             double pr = 0, pv = 0;
             for (int k = 0; k < 6; k++) {
                 pr += H[k] * c[k];
@@ -91,7 +89,7 @@ int pb_dense_eval(const pb_dense_span *s, double t, double *r, double *v)
         double H[4] = {2 * x3 - 3 * x2 + 1, x3 - 2 * x2 + x, -2 * x3 + 3 * x2, x3 - x2};
         double D[4] = {6 * x2 - 6 * x, 3 * x2 - 4 * x + 1, -6 * x2 + 6 * x, 3 * x2 - 2 * x};
         for (int i = 0; i < d; i++) {
-            double c[4] = {s->r[0][i], h * s->v[0][i], s->r[1][i], h * s->v[1][i]};
+            double c[4] = {s->r[a0][i], h * s->v[a0][i], s->r[b][i], h * s->v[b][i]};
             double pr = 0, pv = 0;
             for (int k = 0; k < 4; k++) {
                 pr += H[k] * c[k];

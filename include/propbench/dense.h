@@ -14,9 +14,12 @@ extern "C" {
 
 #define PB_DENSE_DIM_MAX 3
 
-/* The last step's two ends, t[0] <= t[1]. Plain data, no allocation. */
+/* The last step's two ends in two slots: slot `end` holds the newer one, so
+ * a new end overwrites the older slot and nothing is shifted (this runs
+ * after every step). Plain data, no allocation. */
 typedef struct pb_dense_span {
     int dim, points;      /* points recorded so far: 0, 1 (a start), 2 (a step) */
+    int end;              /* slot of the newer end (0 or 1) */
     double t[2];
     double r[2][PB_DENSE_DIM_MAX], v[2][PB_DENSE_DIM_MAX], a[2][PB_DENSE_DIM_MAX];
     int has_a[2];
