@@ -5,7 +5,7 @@
 CC      ?= cc
 PREFIX  ?= /usr/local
 DESTDIR ?=
-PKGS    := gsl jansson inih
+PKGS    := gsl jansson inih nettle
 WARN    := -Wall -Wextra -Wshadow -Wmissing-prototypes -Wstrict-prototypes -Wdouble-promotion
 CSTD    := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE
 OPT     ?= -O2 -g
@@ -34,7 +34,7 @@ BIN   := $(B)/propbench
 BIN_A := $(BA)/propbench
 
 .PHONY: all deps demo test test-layout test-plain test-asan test-install bench clean install uninstall
-all: $(BIN)
+all: $(BIN) $(B)/plugins/ralston3.so
 
 deps:
 	@sh scripts/install-deps.sh
@@ -56,10 +56,17 @@ $(B)/libpropbench.so: $(LIB_OBJ)
 $(BA)/libpropbench.a: $(LIB_OBJ_A)
 	@rm -f $@; ar rcs $@ $^
 
+# The example plug-in (examples/plugins/): a shared object built against the
+# public headers alone, as a user builds one.
+$(B)/plugins/%.so: examples/plugins/%.c $(PUBLIC_H) Makefile | deps
+	@mkdir -p $(dir $@)
+	$(CC) $(CSTD) $(OPT) $(WARN) -Iinclude -shared -fPIC $< -o $@
+
+# -rdynamic: a plug-in calls the public functions (pb_dense_*) of the program
 $(BIN): $(B)/bench/cli/main.o $(B)/libpropbench.a
-	$(CC) $(PB_CFLAGS) -o $@ $^ $(PB_LDLIBS)
+	$(CC) $(PB_CFLAGS) -rdynamic -o $@ $^ $(PB_LDLIBS)
 $(BIN_A): $(BA)/bench/cli/main.o $(BA)/libpropbench.a
-	$(CC) $(PB_CFLAGS) $(SAN) -o $@ $^ $(PB_LDLIBS)
+	$(CC) $(PB_CFLAGS) $(SAN) -rdynamic -o $@ $^ $(PB_LDLIBS)
 
 $(B)/run_tests: $(TEST_OBJ) $(B)/libpropbench.a
 	$(CC) $(PB_CFLAGS) -o $@ $^ $(TEST_LIBS) $(PB_LDLIBS)
@@ -85,12 +92,12 @@ test-layout: | deps
 
 # Each run's scratch is its own (test-scratch.<pid>), so two runs in one tree
 # never share it; it is removed after a passing run, kept after a failing one.
-test-plain: $(B)/run_tests $(BIN)
+test-plain: $(B)/run_tests $(BIN) $(B)/plugins/ralston3.so
 	PB_WITH_BROWSER=1 sh scripts/install-deps.sh
 	d=$(CURDIR)/$(B)/test-scratch.$$$$ && \
 	PB_TMP=$$d PB_BIN=$(CURDIR)/$(BIN) PB_ROOT=$(CURDIR) ./$(B)/run_tests --jobs 2 && rm -rf $$d
 
-test-asan: $(BA)/run_tests $(BIN_A)
+test-asan: $(BA)/run_tests $(BIN_A) $(B)/plugins/ralston3.so
 	d=$(CURDIR)/$(BA)/test-scratch.$$$$ && \
 	PB_TMP=$$d LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
 	PB_SANITIZED=1 PB_BIN=$(CURDIR)/$(BIN_A) PB_ROOT=$(CURDIR) ./$(BA)/run_tests --jobs 2 && rm -rf $$d

@@ -10,6 +10,25 @@
 /* The method table: NULL-terminated, in display order (method_table.c). */
 extern const pb_method_type *const pb_method_table[];
 
+/* Where a plug-in method came from (summary.json's "plugin"). */
+typedef struct pb_method_origin {
+    char path[4096];
+    char version[64];
+    char sha256[65];   /* of the shared object's bytes, lower-case hex */
+} pb_method_origin;
+
+#define PB_METHOD_EXTRA_MAX 64
+
+/* Add a plug-in method after the table: checked with pb_method_check, and
+ * refused when its name is taken (built-in or an earlier plug-in). origin is
+ * borrowed for the life of the program. 0, or -1 with the reason in err. */
+int pb_method_register(const pb_method_type *m, const pb_method_origin *origin, char *err,
+                       size_t errlen);
+/* The i-th method: the table's, then the plug-ins'; NULL past the end. */
+const pb_method_type *pb_method_at(int i);
+/* A plug-in method's origin; NULL for a built-in one. */
+const pb_method_origin *pb_method_origin_of(const pb_method_type *m);
+
 /* 1 when m can integrate p: a second-order-form method (PB_FORM_SECOND) sees
  * a(r) only, so it cannot take a velocity-dependent force. */
 int pb_method_fits(const pb_method_type *m, const pb_problem *p);

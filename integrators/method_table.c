@@ -33,6 +33,12 @@ const pb_method_type *const pb_method_table[] = {
     NULL
 };
 
+/* Plug-in methods, after the table: registered once at start-up (before
+ * any sweep worker is forked), never removed. */
+static const pb_method_type *method_extra[PB_METHOD_EXTRA_MAX];
+static const pb_method_origin *method_extra_origin[PB_METHOD_EXTRA_MAX];
+static int method_nextra;
+
 const pb_method_type *pb_method_find(const char *name)
 {
     if (!name)
@@ -40,7 +46,50 @@ const pb_method_type *pb_method_find(const char *name)
     for (const pb_method_type *const *m = pb_method_table; *m; m++)
         if (strcmp((*m)->name, name) == 0)
             return *m;
+    for (int i = 0; i < method_nextra; i++)
+        if (strcmp(method_extra[i]->name, name) == 0)
+            return method_extra[i];
     return NULL;
+}
+
+const pb_method_type *pb_method_at(int i)
+{
+    int nb = (int)(sizeof pb_method_table / sizeof pb_method_table[0]) - 1;
+    if (i < 0)
+        return NULL;
+    if (i < nb)
+        return pb_method_table[i];
+    return i - nb < method_nextra ? method_extra[i - nb] : NULL;
+}
+
+const pb_method_origin *pb_method_origin_of(const pb_method_type *m)
+{
+    for (int i = 0; m && i < method_nextra; i++)
+        if (method_extra[i] == m)
+            return method_extra_origin[i];
+    return NULL;
+}
+
+int pb_method_register(const pb_method_type *m, const pb_method_origin *origin, char *err,
+                       size_t errlen)
+{
+    if (pb_method_check(m, err, errlen))
+        return -1;
+    const pb_method_type *old = pb_method_find(m->name);
+    if (old) {
+        const pb_method_origin *o = pb_method_origin_of(old);
+        snprintf(err, errlen, "method %s: the name is taken by %s", m->name,
+                 o ? o->path : "a built-in method");
+        return -1;
+    }
+    if (method_nextra == PB_METHOD_EXTRA_MAX) {
+        snprintf(err, errlen, "method %s: more than %d plug-in methods", m->name,
+                 PB_METHOD_EXTRA_MAX);
+        return -1;
+    }
+    method_extra[method_nextra] = m;
+    method_extra_origin[method_nextra++] = origin;
+    return 0;
 }
 
 int pb_method_check(const pb_method_type *m, char *err, size_t errlen)

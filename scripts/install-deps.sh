@@ -4,7 +4,7 @@
 # when everything is present). Set PB_WITH_BROWSER=1 to also get chromium.
 set -u
 
-pkgs="libgsl-dev libcriterion-dev gnuplot-nox libjansson-dev libinih-dev pkg-config parallel libxml2-utils"
+pkgs="libgsl-dev libcriterion-dev gnuplot-nox libjansson-dev libinih-dev nettle-dev pkg-config parallel libxml2-utils"
 if [ "${PB_WITH_BROWSER:-0}" = 1 ]; then
     pkgs="$pkgs chromium"
 fi

@@ -19,6 +19,8 @@ int pb_cli_report(int argc, char **argv);
 int pb_cli_baseline(int argc, char **argv);
 int pb_cli_check(int argc, char **argv);
 int pb_cli_select(int argc, char **argv);
+int pb_cli_score(int argc, char **argv);
+int pb_cli_selftest(int argc, char **argv);
 
 /* Print "propbench VERB: error: ..." to stderr; returns PB_EXIT_USAGE. */
 int pb_cli_error(const char *verb, const char *fmt, ...) __attribute__((format(printf, 2, 3)));

@@ -3,6 +3,7 @@
 #include <string.h>
 #include <gsl/gsl_errno.h>
 #include "bench/cli/cli.h"
+#include "bench/cli/plugins.h"
 #include "propbench/propbench.h"
 
 typedef struct { const char *name; int (*fn)(int, char **); const char *what; } main_verb;
@@ -16,6 +17,8 @@ static const main_verb main_verbs[] = {
     {"baseline", pb_cli_baseline, "keep a run as the reference for later checks"},
     {"check", pb_cli_check, "compare a run with a baseline (exit 1 on regression)"},
     {"select", pb_cli_select, "cheapest method and step meeting a requirement over a horizon"},
+    {"score", pb_cli_score, "measure another program's trajectory (CCSDS OEM) against the truth"},
+    {"selftest", pb_cli_selftest, "certify a method (a plug-in's): accuracy, order, contract"},
     {NULL, NULL, NULL}
 };
 
@@ -53,6 +56,13 @@ int main(int argc, char **argv)
     for (int i = 2; i < argc; i++)
         if (!argv[i][0])
             return pb_cli_error(argv[1], "an empty value after %s", argv[i - 1]);
+    /* plug-in methods (--plugin FILE.so, PB_PLUGINS) for the verbs that take
+     * a method or list them, loaded before the verb parses (and before any
+     * sweep worker is forked, so the workers inherit them) */
+    static const char *const with_plugins[] = {"run", "sweep", "select", "list", "selftest"};
+    for (size_t i = 0; i < sizeof with_plugins / sizeof with_plugins[0]; i++)
+        if (!strcmp(argv[1], with_plugins[i]) && pb_plugins_load_args(argv[1], &argc, argv))
+            return PB_EXIT_USAGE;
     for (const main_verb *v = main_verbs; v->name; v++)
         if (!strcmp(argv[1], v->name))
             return v->fn(argc - 1, argv + 1);

@@ -8,7 +8,7 @@
 
 enum { OPT_PROBLEM = 256, OPT_FILE, OPT_CASE, OPT_METHOD, OPT_SPO, OPT_STEP, OPT_TOL,
        OPT_ORBITS, OPT_HORIZON, OPT_OUT, OPT_COMP, OPT_REPEATS, OPT_COST, OPT_SAMPLES,
-       OPT_MAXSTEPS, OPT_QUIET, OPT_HELP };
+       OPT_MAXSTEPS, OPT_QUIET, OPT_HELP, OPT_EPH_OUT, OPT_TRUTH_OUT, OPT_SERIES_STATES };
 
 static const struct option run_long_options[] = {
     {"problem", required_argument, 0, OPT_PROBLEM},
@@ -27,6 +27,9 @@ static const struct option run_long_options[] = {
     {"samples", required_argument, 0, OPT_SAMPLES},
     {"max-steps", required_argument, 0, OPT_MAXSTEPS},
     {"quiet", no_argument, 0, OPT_QUIET},
+    {"ephemeris-out", required_argument, 0, OPT_EPH_OUT},
+    {"truth-out", required_argument, 0, OPT_TRUTH_OUT},
+    {"series-states", no_argument, 0, OPT_SERIES_STATES},
     {"help", no_argument, 0, OPT_HELP},
     {0, 0, 0, 0}
 };
@@ -52,6 +55,10 @@ void pb_run_options_help(FILE *f)
 "  --samples N             linear samples for plots (default %d)\n"
 "  --max-steps N           step budget (default: automatic)\n"
 "  --out DIR               run directory\n"
+"  --ephemeris-out F.oem   run: the method's states at the sample times as a\n"
+"                          CCSDS OEM (KVN); epoch of t0: 2000-01-01T12:00:00 TT\n"
+"  --truth-out F.oem       run: the truth's states at the same times\n"
+"  --series-states         run: the series CSV also holds both states\n"
 "  --quiet                 print nothing but errors\n", d.repeats, d.linear_samples);
 }
 
@@ -131,6 +138,9 @@ int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options
         case OPT_OUT: o->out = a; break;
         case OPT_COMP: o->compensated = 1; break;
         case OPT_QUIET: o->quiet = 1; break;
+        case OPT_EPH_OUT: o->ephemeris_out = a; break;
+        case OPT_TRUTH_OUT: o->truth_out = a; break;
+        case OPT_SERIES_STATES: o->series_states = 1; break;
         case OPT_SPO: case OPT_STEP: case OPT_TOL: case OPT_ORBITS: case OPT_HORIZON:
         case OPT_REPEATS: case OPT_COST: case OPT_SAMPLES: case OPT_MAXSTEPS:
             if ((rc = run_options_number(verb, c, a, o)) >= 0)

@@ -13,6 +13,8 @@ typedef struct pb_run_options {
     long repeats, samples, max_steps;
     int compensated, quiet;
     int have_steps, have_step, have_tol, have_orbits, have_horizon;
+    const char *ephemeris_out, *truth_out; /* run: OEM files of the states */
+    int series_states;                     /* run: states in the series CSV */
 } pb_run_options;
 
 /* Parse argv. Returns -1 to go on, or an exit status to return at once

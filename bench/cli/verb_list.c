@@ -33,13 +33,17 @@ static void list_methods(void)
 {
     printf("%-15s %5s %5s  %-10s %-6s %-26s %s\n", "method", "order", "dense", "kind", "step", "form",
            "description");
-    for (const pb_method_type *const *t = pb_method_table; *t; t++) {
-        const pb_method_type *m = *t;
-        printf("%-15s %5d %5d  %-10s %-6s %-26s %s%s\n", m->name, m->order, m->dense_order,
+    const pb_method_type *m;
+    for (int i = 0; (m = pb_method_at(i)); i++) {
+        const pb_method_origin *pl = pb_method_origin_of(m);
+        printf("%-15s %5d %5d  %-10s %-6s %-26s %s%s", m->name, m->order, m->dense_order,
                list_kind(m->flags),
                (m->flags & PB_KIND_FIXED) ? "fixed" : "adapt",
                (m->flags & PB_FORM_SECOND) ? "2nd order, a(r) only" : "1st order y=(r,v)",
                m->description, (m->flags & PB_KIND_COMPENSABLE) ? " [--compensated]" : "");
+        if (pl)
+            printf(" [plug-in %s %s]", pl->path, pl->version);
+        printf("\n");
     }
 }
 

@@ -9,6 +9,58 @@
 #include "bench/measure/harness.h"
 #include "bench/store/run_dir.h"
 #include "bench/cli/run_options.h"
+#include "bench/store/oem_write.h"
+#include <unistd.h>
+
+/* An output file's path can be written: not a folder, in a folder that
+ * exists and can be written; -1 after a message naming the option. */
+static int run_check_out(const char *opt, const char *path)
+{
+    char dir[4096];
+    snprintf(dir, sizeof dir, "%s", path);
+    char *slash = strrchr(dir, '/');
+    if (slash)
+        slash == dir ? (void)(slash[1] = 0) : (void)(*slash = 0);
+    else
+        snprintf(dir, sizeof dir, ".");
+    if (path[strlen(path) - 1] == '/' || pb_path_blocked(path)) {
+        pb_cli_error("run", "%s '%s': not a file name", opt, path);
+        return -1;
+    }
+    if (access(dir, W_OK | X_OK)) {
+        pb_cli_error("run", "%s '%s': cannot write in the folder %s", opt, path, dir);
+        return -1;
+    }
+    return 0;
+}
+
+static int run_check_outputs(const pb_run_options *o)
+{
+    if ((o->ephemeris_out && run_check_out("--ephemeris-out", o->ephemeris_out)) ||
+        (o->truth_out && run_check_out("--truth-out", o->truth_out)))
+        return -1;
+    if (o->ephemeris_out && o->truth_out && !strcmp(o->ephemeris_out, o->truth_out)) {
+        pb_cli_error("run", "--ephemeris-out and --truth-out name the same file '%s'", o->truth_out);
+        return -1;
+    }
+    return 0;
+}
+
+/* The OEM files asked for; -1 after a message. */
+static int run_write_oems(const pb_run_options *o, const pb_case_spec *spec, const pb_case_result *res)
+{
+    if (o->ephemeris_out && pb_oem_write(o->ephemeris_out, spec, res, PB_OEM_METHOD)) {
+        pb_cli_error("run", "cannot write --ephemeris-out %s", o->ephemeris_out);
+        return -1;
+    }
+    if (o->truth_out && pb_oem_write(o->truth_out, spec, res, PB_OEM_TRUTH)) {
+        pb_cli_error("run", "cannot write --truth-out %s", o->truth_out);
+        if (o->ephemeris_out)
+            unlink(o->ephemeris_out); /* both or neither */
+        return -1;
+    }
+    return 0;
+}
 
 static void run_help(FILE *f)
 {
@@ -34,6 +86,8 @@ int pb_cli_run(int argc, char **argv)
     char err[512];
     if (pb_case_validate(&spec, err, sizeof err))
         return pb_cli_error("run", "%s", err);
+    if (run_check_outputs(&o))
+        return PB_EXIT_USAGE;
     char id[PB_CASE_ID_MAX];
     pb_case_id(&spec, id, sizeof id);
     char dir[4096];
@@ -60,7 +114,8 @@ int pb_cli_run(int argc, char **argv)
     json_t *doc = pb_summary_new(cases);
     char path[4200];
     snprintf(path, sizeof path, "%s/summary.json", dir);
-    int bad = pb_series_write(dir, &spec, &res);
+    int bad = run_write_oems(&o, &spec, &res) ? 2
+            : pb_series_write_states(dir, &spec, &res, o.series_states) ? 1 : 0;
     if (!bad && pb_json_write_atomic(path, doc)) {
         pb_run_dir_unwrite(dir, cases); /* no series without its summary */
         bad = 1;
@@ -73,7 +128,11 @@ int pb_cli_run(int argc, char **argv)
     if (bad) {
         pb_case_result_free(&res);
         pb_run_dir_unprepare(dir);
-        fprintf(stderr, "propbench run: error: cannot write the run directory %s\n", dir);
+        if (bad == 1) {
+            fprintf(stderr, "propbench run: error: cannot write the run directory %s\n", dir);
+            if (o.ephemeris_out) unlink(o.ephemeris_out);
+            if (o.truth_out) unlink(o.truth_out);
+        }
         return PB_EXIT_USAGE;
     }
     if (!o.quiet)

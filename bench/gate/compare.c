@@ -236,7 +236,8 @@ static int check_counts(pb_check_report *r, const char *id, const json_t *bc, co
         json_t *b = json_object_get(bn, *k), *x = json_object_get(rn, *k);
         if (!b)
             continue;
-        int same = json_is_integer(x) && json_integer_value(x) == json_integer_value(b);
+        int same = (json_is_integer(x) && json_integer_value(x) == json_integer_value(b)) ||
+                   (json_is_null(x) && json_is_null(b)); /* both unknown (score) */
         pb_check_row *w = check_row(r, id, *k, same ? PB_CHECK_SAME : PB_CHECK_REGRESSED);
         if (!w)
             return -1;

@@ -21,6 +21,11 @@ typedef struct pb_case_spec {
     int linear_samples;             /* extra linear grid points for plots */
     long max_steps;                 /* 0: automatic budget */
     const char *cache_dir;          /* reference trajectories (may be NULL) */
+    /* explicit sample times (absolute, increasing, all in the metric grid,
+     * none on the log grid), used instead of the planned grid when set
+     * (borrowed; `score` samples at an ephemeris's own epochs) */
+    const double *sample_times;
+    int nsample_times;
 } pb_case_spec;
 
 /* One sample: errors against truth at time t; window maxima are the largest
@@ -41,6 +46,8 @@ typedef struct pb_sample {
     double pos_err, vel_err;  /* |dr|, |dv| in problem units */
     double radial, along, cross;  /* dr in the true orbit's RIC frame (signed) */
     double truth_floor;       /* estimated position error of the truth itself */
+    double r[PB_DIM_MAX], v[PB_DIM_MAX];    /* the method's state at t (dense output) */
+    double rt[PB_DIM_MAX], vt[PB_DIM_MAX];  /* the truth at t, rounded to double */
 } pb_sample;
 
 typedef struct pb_growth {

@@ -419,6 +419,8 @@ static int harness_take_samples(harness_watch *w, double t)
         smp->on_log_grid = plan->on_log_grid[k];
         smp->in_metrics = plan->in_metrics[k];
         smp->truth_floor = pb_truth_floor(w->truth, k);
+        for (int i = 0; i < PB_DIM_MAX; i++)
+            smp->r[i] = r[i], smp->v[i] = v[i], smp->rt[i] = (double)rt[i], smp->vt[i] = (double)vt[i];
         harness_close_window(w, p, smp);
     }
     return 0;
@@ -498,6 +500,29 @@ static void harness_ending(const pb_case_spec *spec, void *ws, const harness_wat
     res->projected_s = spec->eval_cost_us > 0 ? 1e-6 * spec->eval_cost_us * (double)res->evals : 0;
 }
 
+/* The planned grid, or the caller's times (metric, not log grid); 0 or -1. */
+static int harness_plan(const pb_case_spec *spec, double horizon, pb_sample_plan *plan)
+{
+    int n = spec->nsample_times, n1 = n > 0 ? n : 1;
+    if (!spec->sample_times)
+        return pb_sample_plan_make(spec->problem.t0, horizon, harness_scale(spec), 0,
+                                   spec->linear_samples, plan);
+    memset(plan, 0, sizeof *plan);
+    plan->t = malloc((size_t)n1 * sizeof(double));
+    plan->on_log_grid = calloc((size_t)n1, sizeof(int));
+    plan->in_metrics = malloc((size_t)n1 * sizeof(int));
+    if (!plan->t || !plan->on_log_grid || !plan->in_metrics) {
+        pb_sample_plan_free(plan);
+        return -1;
+    }
+    for (int k = 0; k < n; k++) {
+        plan->t[k] = spec->sample_times[k];
+        plan->in_metrics[k] = 1;
+    }
+    plan->n = n;
+    return 0;
+}
+
 int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
 {
     memset(res, 0, sizeof *res);
@@ -519,8 +544,7 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     int rc = PB_ENOMEM;
     /* sample times are exact (t0 + elapsed), off any step grid: the method
      * reaches them by dense output */
-    if (pb_sample_plan_make(p->t0, horizon, harness_scale(spec), 0,
-                            spec->linear_samples, &plan))
+    if (harness_plan(spec, horizon, &plan))
         return PB_ENOMEM;
     res->samples = calloc((size_t)plan.n, sizeof(pb_sample));
     if (!res->samples)

@@ -7,6 +7,7 @@
 #include "bench/store/case_json.h"
 #include "bench/measure/harness.h"
 #include "bench/measure/timing.h"
+#include "integrators/method.h"
 
 #ifndef PB_BUILD_FLAGS
 #define PB_BUILD_FLAGS "unknown"
@@ -59,6 +60,10 @@ static void case_settings(json_t *o, const pb_case_spec *spec)
     json_object_set_new(o, "method_order", json_integer(m->order));
     json_object_set_new(o, "method_kind", json_string(case_kind(m->flags)));
     json_object_set_new(o, "from_gsl", json_boolean(m->flags & PB_FROM_GSL));
+    const pb_method_origin *pl = pb_method_origin_of(m);
+    if (pl)
+        json_object_set_new(o, "plugin", json_pack("{s:s, s:s, s:s}", "path", pl->path,
+                                                   "version", pl->version, "sha256", pl->sha256));
     if (m->flags & PB_KIND_FIXED) {
         if (spec->step_s > 0) {
             json_object_set_new(o, "step", json_real(spec->step_s));

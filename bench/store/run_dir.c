@@ -163,6 +163,29 @@ static void series_num(series_buf *b, double x)
 
 int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res)
 {
+    return pb_series_write_states(dir, spec, res, 0);
+}
+
+/* The state columns' header (states = 1) and one row's values. */
+static void series_state_head(series_buf *b, const char *L, const char *V)
+{
+    static const char *const q[] = {"r_", "v_", "r_true_", "v_true_"};
+    for (int j = 0; j < 4; j++)
+        for (int i = 0; i < 3; i++)
+            series_printf(b, ",%s%c[%s]", q[j], "xyz"[i], j % 2 ? V : L);
+}
+
+static void series_state_row(series_buf *b, const pb_sample *s)
+{
+    const double *q[] = {s->r, s->v, s->rt, s->vt};
+    for (int j = 0; j < 4; j++)
+        for (int i = 0; i < 3; i++)
+            series_printf(b, ",%.17g", q[j][i]);
+}
+
+int pb_series_write_states(const char *dir, const pb_case_spec *spec, const pb_case_result *res,
+                           int states)
+{
     char path[4096];
     snprintf(path, sizeof path, "%s/series", dir);
     if (pb_mkdirs(path))
@@ -177,7 +200,10 @@ int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_res
     series_printf(&b, "t[%s],orbits[-],log_sample[-],metric_sample[-],energy_rel[-],energy_rel_window_max[-],"
                   "angmom_rel[-],angmom_rel_window_max[-],ecc_drift[-],apsis_angle[rad],"
                   "pos_err[%s],vel_err[%s],radial[%s],along_track[%s],cross_track[%s],"
-                  "truth_floor[%s]\n", T, L, V, L, L, L, L);
+                  "truth_floor[%s]", T, L, V, L, L, L, L);
+    if (states)
+        series_state_head(&b, L, V);
+    series_printf(&b, "\n");
     for (int k = 0; k < res->nsamples; k++) {
         const pb_sample *s = &res->samples[k];
         series_printf(&b, "%.17g", s->t);
@@ -196,6 +222,8 @@ int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_res
         series_num(&b, s->along);
         series_num(&b, s->cross);
         series_num(&b, s->truth_floor);
+        if (states)
+            series_state_row(&b, s);
         series_printf(&b, "\n");
     }
     int rc = b.bad ? -1 : pb_write_atomic(path, b.s, b.n);

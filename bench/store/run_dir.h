@@ -45,6 +45,10 @@ int pb_json_write_atomic(const char *path, const json_t *doc);
 /* Write the case's samples as CSV (header names columns with units) to
  * dir/series/<id>.csv atomically; 0 or -1. */
 int pb_series_write(const char *dir, const pb_case_spec *spec, const pb_case_result *res);
+/* The same; with states = 1 the rows also hold the method's state
+ * (r_x..r_z, v_x..v_z) and the truth's (r_true_x.., v_true_x..). */
+int pb_series_write_states(const char *dir, const pb_case_spec *spec, const pb_case_result *res,
+                           int states);
 
 /* 1 if rel, a case's "series" entry, names a file below the run's series/
  * folder ("series/<file-safe id>.csv"): the only paths report, merge and

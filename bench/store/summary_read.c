@@ -69,7 +69,7 @@ const char *pb_summary_numbers_bad(const json_t *m, const json_t *n)
     }
     for (const char *const *k = pb_summary_count_keys; *k; k++) {
         json_t *v = json_object_get(n, *k);
-        if (v && !json_is_integer(v))
+        if (v && !json_is_integer(v) && !json_is_null(v)) /* null: not known (score) */
             return "has a count that is not an integer";
     }
     return NULL;

@@ -21,6 +21,7 @@
 #include "bench/measure/harness.h"
 #include "bench/store/run_dir.h"
 #include "bench/study/progress.h"
+#include "integrators/method.h"
 
 static volatile sig_atomic_t sweep_stop;
 
@@ -95,6 +96,10 @@ void pb_sweep_identity(const pb_case_list *list, char *out, size_t outlen)
         h = pb_fnv1a64(h, nums, sizeof nums);
         h = pb_fnv1a64(h, ints, sizeof ints);
         h = pb_fnv1a64(h, &c->max_steps, sizeof c->max_steps);
+        /* a plug-in method: its file's bytes, so a rebuilt plug-in does not merge */
+        const pb_method_origin *pl = pb_method_origin_of(c->method);
+        if (pl)
+            h = pb_fnv1a64(h, pl->sha256, sizeof pl->sha256);
     }
     snprintf(out, outlen, "%d:%016llx", list->n, (unsigned long long)h);
 }
