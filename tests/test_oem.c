@@ -223,6 +223,22 @@ Test(oem, bad_files_exit_2_naming_line_and_keyword)
         expect_bad_oem(cases[i].text, "leo-circular", cases[i].named);
         free(cases[i].text);
     }
+    /* a NUL byte inside a line */
+    {
+        char dir[256], bad[300], sc[300];
+        pbt_tmpdir(dir, sizeof dir);
+        snprintf(bad, sizeof bad, "%s/nul.oem", dir);
+        snprintf(sc, sizeof sc, "%s/score", dir);
+        FILE *fp = fopen(bad, "wb");
+        cr_assert(fp);
+        fwrite(good, 1, 30, fp);   /* into line 2, the COMMENT */
+        fputc(0, fp);
+        fputs(good + 30, fp);
+        fclose(fp);
+        cr_assert_eq(cli((const char *[]){"score", "--problem", "leo-circular", "--ephemeris", bad,
+                     "--out", sc, NULL}), 2, "%s", err_buf);
+        cr_assert(strstr(err_buf, ":2: line: a non-printable byte 0x00") && !pbt_exists(sc), "%s", err_buf);
+    }
     /* a normalized problem's states are not about the Earth */
     expect_bad_oem(good, "kepler-e0", ":10: CENTER_NAME: 'EARTH'");
     free(good);

@@ -219,28 +219,38 @@ static int oem_line(oem_parse *ps, char *s)
 }
 
 /* Read and check one physical line into buf (newline removed); 1 at end of
- * file, 0, or -1 after an error. */
+ * file, 0, or -1 after an error. A NUL byte counts as non-printable. */
 static int oem_getline(oem_parse *ps, FILE *f, char *buf, size_t len)
 {
-    if (!fgets(buf, (int)len, f))
+    char *line = NULL;
+    size_t cap = 0;
+    ssize_t got = getline(&line, &cap, f);
+    if (got < 0) {
+        free(line);
         return 1;
-    ps->line++;
-    size_t n = strlen(buf);
-    int nl = n > 0 && buf[n - 1] == '\n';
-    if (nl)
-        buf[--n] = 0;
-    if (n > 0 && buf[n - 1] == '\r')
-        buf[--n] = 0;
-    if (n > PB_OEM_LINE_MAX || (!nl && !feof(f)))
-        return oem_fail(ps, "line", "longer than %d characters", PB_OEM_LINE_MAX);
-    for (size_t k = 0; k < n; k++) {
-        unsigned char c = (unsigned char)buf[k];
-        if (c == '\t')
-            return oem_fail(ps, "line", "a tab at column %zu: KVN allows spaces only", k + 1);
-        if (c < 32 || c > 126)
-            return oem_fail(ps, "line", "a non-printable byte 0x%02x at column %zu", c, k + 1);
     }
-    return 0;
+    ps->line++;
+    size_t n = (size_t)got;
+    if (n > 0 && line[n - 1] == '\n')
+        n--;
+    if (n > 0 && line[n - 1] == '\r')
+        n--;
+    int rc = 0;
+    if (n > PB_OEM_LINE_MAX)
+        rc = oem_fail(ps, "line", "longer than %d characters", PB_OEM_LINE_MAX);
+    for (size_t k = 0; !rc && k < n; k++) {
+        unsigned char c = (unsigned char)line[k];
+        if (c == '\t')
+            rc = oem_fail(ps, "line", "a tab at column %zu: KVN allows spaces only", k + 1);
+        else if (c < 32 || c > 126)
+            rc = oem_fail(ps, "line", "a non-printable byte 0x%02x at column %zu", c, k + 1);
+    }
+    if (!rc) {
+        memcpy(buf, line, n < len ? n : len - 1);
+        buf[n < len ? n : len - 1] = 0;
+    }
+    free(line);
+    return rc;
 }
 
 static char *oem_trim(char *s)
