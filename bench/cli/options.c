@@ -85,8 +85,9 @@ const pb_method_type *pb_cli_method(const char *verb, const char *name)
     if (m)
         return m;
     fprintf(stderr, "propbench %s: error: unknown method '%s'; known methods:", verb, name);
-    for (const pb_method_type *const *t = pb_method_table; *t; t++)
-        fprintf(stderr, " %s", (*t)->name);
+    /* built-in methods, then those of the plug-ins loaded */
+    for (int i = 0; pb_method_at(i); i++)
+        fprintf(stderr, " %s", pb_method_at(i)->name);
     fputc('\n', stderr);
     return NULL;
 }
