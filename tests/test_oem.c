@@ -267,3 +267,35 @@ Test(oem, run_refuses_bad_output_paths_before_running)
         cr_assert(!pbt_exists(run), "a run folder was written");
     }
 }
+
+/* A scored trajectory gets growth laws like a run's: its epochs nearest the
+ * log-spaced whole periods serve the position fit. rk4 on kepler-e0.5 over
+ * 100 orbits at 500 steps per orbit: the OEM it writes, scored back, gives
+ * the run's position growth exponent and class to round-off (measured here:
+ * 1.825, quadratic). The invariants' fits differ by design: a run's windows
+ * cover every step, a scored file's only its records. */
+Test(oem, scored_file_gets_the_runs_position_growth_law)
+{
+    char dir[256], run[300], sc[300], eph[300];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    snprintf(sc, sizeof sc, "%s/score", dir);
+    snprintf(eph, sizeof eph, "%s/rk4.oem", dir);
+    cr_assert_eq(cli((const char *[]){"run", "--problem", "kepler-e0.5", "--method", "rk4",
+                                      "--steps-per-orbit", "500", "--orbits", "100", "--repeats", "0",
+                                      "--ephemeris-out", eph, "--quiet", "--out", run, NULL}),
+                 0, "%s", err_buf);
+    cr_assert_eq(cli((const char *[]){"score", "--problem", "kepler-e0.5", "--ephemeris", eph,
+                                      "--label", "mine", "--quiet", "--out", sc, NULL}),
+                 0, "%s", err_buf);
+    json_t *a = case0(run), *b = case0(sc);
+    double ka = metric(a, "growth_exponent_pos"), kb = metric(b, "growth_exponent_pos");
+    cr_assert(fabs(ka - kb) <= 1e-9 * fabs(ka), "run k = %.12g, scored k = %.12g", ka, kb);
+    cr_assert_str_eq(json_string_value(json_object_get(json_object_get(b, "metrics"),
+                                                       "growth_class_pos")),
+                     json_string_value(json_object_get(json_object_get(a, "metrics"),
+                                                       "growth_class_pos")));
+    cr_assert(ka > 1.5 && ka < 2.25, "rk4's position error grows about quadratically: k = %g", ka);
+    json_decref(a);
+    json_decref(b);
+}

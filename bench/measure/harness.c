@@ -500,7 +500,25 @@ static void harness_ending(const pb_case_spec *spec, void *ws, const harness_wat
     res->projected_s = spec->eval_cost_us > 0 ? 1e-6 * spec->eval_cost_us * (double)res->evals : 0;
 }
 
-/* The planned grid, or the caller's times (metric, not log grid); 0 or -1. */
+/* The caller's time nearest each log-spaced time, when it lies within half
+ * the spacing of the times around it, serves that log time in the fits, so
+ * a trajectory scored at its own epochs gets growth laws like a run's. */
+static void harness_mark_log(const pb_case_spec *spec, double horizon, pb_sample_plan *plan)
+{
+    double lx[200], t0 = spec->problem.t0;
+    int nl = pb_sample_log_times(horizon, harness_scale(spec), lx, 200), j = 0;
+    for (int i = 0; i < nl && plan->n > 1; i++) {
+        double want = t0 + lx[i];
+        while (j + 1 < plan->n && fabs(plan->t[j + 1] - want) <= fabs(plan->t[j] - want))
+            j++;
+        double gap = j + 1 < plan->n ? plan->t[j + 1] - plan->t[j] : plan->t[j] - plan->t[j - 1];
+        if (fabs(plan->t[j] - want) <= 0.5 * gap)
+            plan->on_log_grid[j] = 1;
+    }
+}
+
+/* The planned grid, or the caller's times (all on the metric grid, the
+ * nearest to each log-spaced time on the log grid); 0 or -1. */
 static int harness_plan(const pb_case_spec *spec, double horizon, pb_sample_plan *plan)
 {
     int n = spec->nsample_times, n1 = n > 0 ? n : 1;
@@ -520,6 +538,7 @@ static int harness_plan(const pb_case_spec *spec, double horizon, pb_sample_plan
         plan->in_metrics[k] = 1;
     }
     plan->n = n;
+    harness_mark_log(spec, horizon, plan);
     return 0;
 }
 

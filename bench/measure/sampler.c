@@ -15,10 +15,29 @@ static int sampler_cmp(const void *a, const void *b)
     return (d > 0) - (d < 0);
 }
 
+int pb_sample_log_times(double horizon, double scale, double *x, int max)
+{
+    static const double mant[] = {1, 2, 3, 5, 7};
+    int n = 0;
+    /* elapsed units on which log samples are placed: whole periods, or for
+     * problems without a period, fractions 1e-3 .. 1 of the horizon */
+    double unit = scale, first = 1.0;
+    if (!(scale > 0) || scale >= horizon * 0.999999) {
+        unit = horizon;
+        first = 1e-3;
+    }
+    for (double dec = first; dec * unit <= horizon * (1 + 1e-12) && n < max; dec *= 10)
+        for (int j = 0; j < 5 && n < max; j++) {
+            double k = mant[j] * dec;
+            if (k * unit <= horizon * (1 + 1e-12))
+                x[n++] = k * unit;
+        }
+    return n;
+}
+
 int pb_sample_plan_make(double t0, double horizon, double scale, double h,
                         int linear_samples, pb_sample_plan *plan)
 {
-    static const double mant[] = {1, 2, 3, 5, 7};
     plan->n = 0;
     plan->t = NULL;
     plan->on_log_grid = NULL;
@@ -28,19 +47,10 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
     if (!it)
         return -1;
     int n = 0;
-    /* elapsed units on which log samples are placed: whole periods, or for
-     * problems without a period, fractions 1e-3 .. 1 of the horizon */
-    double unit = scale, first = 1.0;
-    if (!(scale > 0) || scale >= horizon * 0.999999) {
-        unit = horizon;
-        first = 1e-3;
-    }
-    for (double dec = first; dec * unit <= horizon * (1 + 1e-12) && n < 5 * 40; dec *= 10)
-        for (int j = 0; j < 5; j++) {
-            double k = mant[j] * dec;
-            if (k * unit <= horizon * (1 + 1e-12))
-                it[n++] = (sampler_item){k * unit, 1, 1};
-        }
+    double lx[5 * 40];
+    int nl = pb_sample_log_times(horizon, scale, lx, 5 * 40);
+    for (int j = 0; j < nl; j++)
+        it[n++] = (sampler_item){lx[j], 1, 1};
     for (int j = 1; j <= PB_METRIC_LINEAR; j++)
         it[n++] = (sampler_item){horizon * j / PB_METRIC_LINEAR, 0, 1};
     for (int j = 1; j <= linear_samples; j++)

@@ -18,6 +18,11 @@ typedef struct pb_sample_plan {
                          * points, the horizon); 0 for points only plotted */
 } pb_sample_plan;
 
+/* The log-spaced elapsed times (1, 2, 3, 5, 7, 10, ... units of scale, or
+ * 1e-3 .. 1 of the horizon when there is no period) up to the horizon, at
+ * most max of them into x; returns how many. */
+int pb_sample_log_times(double horizon, double scale, double *x, int max);
+
 /* Plan samples from t0 over `horizon` time units. scale is the period (or, for
  * problems without one, the horizon itself). When h > 0 every time is put on
  * the grid t0 + n*h (n integer), as fixed-step methods need. Returns 0, or -1
