@@ -500,46 +500,14 @@ static void harness_ending(const pb_case_spec *spec, void *ws, const harness_wat
     res->projected_s = spec->eval_cost_us > 0 ? 1e-6 * spec->eval_cost_us * (double)res->evals : 0;
 }
 
-/* The caller's time nearest each log-spaced time, when it lies within half
- * the spacing of the times around it, serves that log time in the fits, so
- * a trajectory scored at its own epochs gets growth laws like a run's. */
-static void harness_mark_log(const pb_case_spec *spec, double horizon, pb_sample_plan *plan)
-{
-    double lx[200], t0 = spec->problem.t0;
-    int nl = pb_sample_log_times(horizon, harness_scale(spec), lx, 200), j = 0;
-    for (int i = 0; i < nl && plan->n > 1; i++) {
-        double want = t0 + lx[i];
-        while (j + 1 < plan->n && fabs(plan->t[j + 1] - want) <= fabs(plan->t[j] - want))
-            j++;
-        double gap = j + 1 < plan->n ? plan->t[j + 1] - plan->t[j] : plan->t[j] - plan->t[j - 1];
-        if (fabs(plan->t[j] - want) <= 0.5 * gap)
-            plan->on_log_grid[j] = 1;
-    }
-}
-
-/* The planned grid, or the caller's times (all on the metric grid, the
- * nearest to each log-spaced time on the log grid); 0 or -1. */
+/* The planned grid, or the caller's times; 0 or -1. */
 static int harness_plan(const pb_case_spec *spec, double horizon, pb_sample_plan *plan)
 {
-    int n = spec->nsample_times, n1 = n > 0 ? n : 1;
     if (!spec->sample_times)
         return pb_sample_plan_make(spec->problem.t0, horizon, harness_scale(spec), 0,
                                    spec->linear_samples, plan);
-    memset(plan, 0, sizeof *plan);
-    plan->t = malloc((size_t)n1 * sizeof(double));
-    plan->on_log_grid = calloc((size_t)n1, sizeof(int));
-    plan->in_metrics = malloc((size_t)n1 * sizeof(int));
-    if (!plan->t || !plan->on_log_grid || !plan->in_metrics) {
-        pb_sample_plan_free(plan);
-        return -1;
-    }
-    for (int k = 0; k < n; k++) {
-        plan->t[k] = spec->sample_times[k];
-        plan->in_metrics[k] = 1;
-    }
-    plan->n = n;
-    harness_mark_log(spec, horizon, plan);
-    return 0;
+    return pb_sample_plan_given(spec->sample_times, spec->nsample_times, spec->problem.t0,
+                                horizon, harness_scale(spec), plan);
 }
 
 int pb_case_run(const pb_case_spec *spec, pb_case_result *res)

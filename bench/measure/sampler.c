@@ -1,10 +1,11 @@
-/* sampler.c - log-spaced whole-period samples merged with a linear grid.
- * Invariant: times are strictly increasing and all lie in (t0, t0 + horizon];
- * with a fixed step they are exact grid points t0 + n*h, so a fixed-step
- * method reaches each one without a partial step. */
+/* sampler.c - log-spaced whole-period samples merged with the metric and plot
+ * grids, or a caller's own times (a scored ephemeris's epochs). Invariant:
+ * times are strictly increasing and all lie in (t0, t0 + horizon]; with a
+ * fixed step they are exact grid points t0 + n*h. */
 #include <float.h>
 #include <math.h>
 #include <stdlib.h>
+#include <string.h>
 #include "bench/measure/sampler.h"
 
 typedef struct { double x; int log, metric; } sampler_item; /* x: elapsed time */
@@ -109,4 +110,42 @@ void pb_sample_plan_free(pb_sample_plan *plan)
     plan->on_log_grid = NULL;
     plan->in_metrics = NULL;
     plan->n = 0;
+}
+
+/* The given time nearest each log-spaced time, when it lies within half the
+ * spacing of the times around it, serves that log time in the fits, so a
+ * trajectory scored at its own epochs gets growth laws like a run's. */
+static void sampler_mark_log(double t0, double horizon, double scale, pb_sample_plan *plan)
+{
+    double lx[200];
+    int nl = pb_sample_log_times(horizon, scale, lx, 200), j = 0;
+    for (int i = 0; i < nl && plan->n > 1; i++) {
+        double want = t0 + lx[i];
+        while (j + 1 < plan->n && fabs(plan->t[j + 1] - want) <= fabs(plan->t[j] - want))
+            j++;
+        double gap = j + 1 < plan->n ? plan->t[j + 1] - plan->t[j] : plan->t[j] - plan->t[j - 1];
+        if (fabs(plan->t[j] - want) <= 0.5 * gap)
+            plan->on_log_grid[j] = 1;
+    }
+}
+
+int pb_sample_plan_given(const double *times, int n, double t0, double horizon, double scale,
+                         pb_sample_plan *plan)
+{
+    int n1 = n > 0 ? n : 1;
+    memset(plan, 0, sizeof *plan);
+    plan->t = malloc((size_t)n1 * sizeof(double));
+    plan->on_log_grid = calloc((size_t)n1, sizeof(int));
+    plan->in_metrics = malloc((size_t)n1 * sizeof(int));
+    if (!plan->t || !plan->on_log_grid || !plan->in_metrics) {
+        pb_sample_plan_free(plan);
+        return -1;
+    }
+    for (int k = 0; k < n; k++) {
+        plan->t[k] = times[k];
+        plan->in_metrics[k] = 1;
+    }
+    plan->n = n;
+    sampler_mark_log(t0, horizon, scale, plan);
+    return 0;
 }

@@ -29,6 +29,11 @@ int pb_sample_log_times(double horizon, double scale, double *x, int max);
  * when out of memory. Owner: the caller (pb_sample_plan_free). */
 int pb_sample_plan_make(double t0, double horizon, double scale, double h,
                         int linear_samples, pb_sample_plan *plan);
+/* A plan of the caller's times (increasing, absolute), all on the metric
+ * grid; the one nearest each log-spaced time (within half the spacing
+ * there) also on the log grid. 0, or -1 when out of memory. */
+int pb_sample_plan_given(const double *times, int n, double t0, double horizon, double scale,
+                         pb_sample_plan *plan);
 void pb_sample_plan_free(pb_sample_plan *plan);
 
 #endif
