@@ -33,7 +33,7 @@ TEST_OBJ_A := $(TEST_SRC:%.c=$(BA)/%.o)
 BIN   := $(B)/propbench
 BIN_A := $(BA)/propbench
 
-.PHONY: all deps demo test test-layout test-plain test-asan test-install bench clean install uninstall
+.PHONY: all deps demo fuzz test test-layout test-plain test-asan test-install bench clean install uninstall
 all: $(BIN) $(B)/plugins/ralston3.so
 
 deps:
@@ -139,3 +139,19 @@ clean:
 	rm -rf $(B)
 
 -include $(LIB_OBJ:.o=.d) $(TEST_OBJ:.o=.d) $(LIB_OBJ_A:.o=.d) $(TEST_OBJ_A:.o=.d) $(B)/bench/cli/main.d $(B)/bench/perf/bench_main.d
+
+# Fuzz the readers of outside input (OEM, problem files, summary.json,
+# baselines) with libFuzzer under ASan + UBSan; FUZZ_SECONDS each run (not
+# part of make test: it needs clang and takes minutes). Seeds: tests/data
+# and the example problem file.
+FUZZ_SECONDS ?= 60
+fuzz: | deps
+	PB_WITH_FUZZ=1 sh scripts/install-deps.sh
+	@mkdir -p $(B)/fuzz/corpus $(B)/fuzz/inc
+	@# clang reads GCC's quadmath.h (only that header, not GCC's others)
+	ln -sf $$(gcc -print-file-name=include)/quadmath.h $$(gcc -print-file-name=include)/quadmath_weak.h $(B)/fuzz/inc/
+	clang $(CSTD) -g -O1 -I. -Iinclude -I$(B)/fuzz/inc $(shell pkg-config --cflags $(PKGS)) \
+	    -fsanitize=fuzzer,address,undefined -fno-sanitize-recover=undefined \
+	    tests/fuzz/fuzz_readers.c $(LIB_SRC) -o $(B)/fuzz/fuzz_readers $(PB_LDLIBS)
+	sh tests/fuzz/seed.sh $(B)/fuzz/corpus
+	./$(B)/fuzz/fuzz_readers -max_total_time=$(FUZZ_SECONDS) -max_len=8192 $(B)/fuzz/corpus

@@ -1,10 +1,14 @@
 #!/bin/sh
 # Installs the Debian packages propbench needs, only those that are missing.
 # Called by the Makefile before every build; safe to run again (it does nothing
-# when everything is present). Set PB_WITH_BROWSER=1 to also get chromium.
+# when everything is present). Set PB_WITH_BROWSER=1 to also get chromium,
+# PB_WITH_FUZZ=1 clang and its libFuzzer runtime (make fuzz).
 set -u
 
 pkgs="libgsl-dev libcriterion-dev gnuplot-nox libjansson-dev libinih-dev nettle-dev pkg-config parallel libxml2-utils"
+if [ "${PB_WITH_FUZZ:-0}" = 1 ]; then
+    pkgs="$pkgs clang libclang-rt-14-dev"
+fi
 if [ "${PB_WITH_BROWSER:-0}" = 1 ]; then
     pkgs="$pkgs chromium"
 fi
