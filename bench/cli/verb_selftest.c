@@ -5,6 +5,7 @@
  * order, a NaN force, advance reaching t_out exactly, the observer after
  * every step and dense output at the step ends. Prints a table; exit 1 when
  * a check fails, 2 on bad input. */
+#include <malloc.h>
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
@@ -87,9 +88,20 @@ typedef struct st_run {
     double t, r[PB_DIM_MAX], v[PB_DIM_MAX];
     double pos_err;       /* against the exact solution at t */
     double t_miss;        /* largest |t reached - t_out| over the pieces */
+    long heap_growth;     /* largest net growth of the heap over one advance (bytes) */
     pb_method_stats st;
     st_obs obs;
 } st_run;
+
+/* Bytes in use on the heap (glibc's mallinfo2): a method that allocates in
+ * advance and does not give it back shows as growth. One that frees what it
+ * took within the call is not seen: the contract's "nothing allocated in a
+ * step" is checked only as far as this can see. */
+static long st_heap_in_use(void)
+{
+    struct mallinfo2 mi = mallinfo2();
+    return (long)(mi.uordblks + mi.hblkhd);
+}
 
 static void st_config(const pb_method_type *m, const pb_problem *p, double par,
                       pb_method_config *cfg)
@@ -108,7 +120,10 @@ static void st_advance(const pb_method_type *m, void *ws, const pb_problem *p, d
 {
     for (int k = 1; k <= pieces && out->status == PB_OK; k++) {
         double t_out = p->t0 + orbits * p->period * k / pieces, t;
+        long heap0 = st_heap_in_use();
         out->status = m->advance(ws, t_out, st_observer, &out->obs);
+        long grown = st_heap_in_use() - heap0;
+        out->heap_growth = grown > out->heap_growth ? grown : out->heap_growth;
         m->get_state(ws, &t, out->r, out->v);
         if (out->status == PB_OK)
             out->t_miss = fmax(out->t_miss, fabs(t - t_out));
@@ -290,6 +305,8 @@ static void st_check_contract(const pb_method_type *m)
         snprintf(val, sizeof val, "%.2e", r.obs.dense_dev);
     snprintf(lim, sizeof lim, "<= %.0e", ST_DENSE_TOL);
     st_row("dense output at step ends = state", val, lim, r.obs.dense_dev <= ST_DENSE_TOL);
+    snprintf(val, sizeof val, "%ld bytes", r.heap_growth);
+    st_row("heap kept by an advance (mallinfo2)", val, "0 bytes", r.heap_growth <= 0);
 }
 
 static int st_method(const pb_method_type *m)
