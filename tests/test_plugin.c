@@ -310,7 +310,7 @@ Test(plugin, selftest_sees_an_advance_that_keeps_heap_memory)
     char dir[256], so[512];
     pbt_tmpdir(dir, sizeof dir);
     pl_build(dir, "leaky", PL_HEAD PL_RECORD("leaky") PL_PACK("PB_METHOD_PACK_HEAD"),
-             "'-DADVANCE=(void)malloc(4096)'", so, sizeof so);
+             "'-DADVANCE=if (!malloc(4096)) return 1'", so, sizeof so);
     int rc = cli((const char *[]){"selftest", "--plugin", so, NULL});
     cr_assert_eq(rc, 1, "exit %d: %s", rc, out_buf);
     const char *row = strstr(out_buf, "heap kept by an advance");
