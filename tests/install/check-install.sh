@@ -40,5 +40,21 @@ $cc -std=c11 -Wall -Wextra -Werror -shared -fPIC $(pkg-config --cflags propbench
 "$stage/usr/bin/propbench" selftest --plugin ./ralston3.so >selftest.txt
 grep -q "ralston3: 9 of 9 checks passed" selftest.txt
 echo "check-install: the example plug-in, built against the installed headers, passes selftest"
+# and is gated as a team would in its CI: a sweep with it (two workers), its
+# baseline, a rerun checked against that baseline, bit for bit
+pb="$stage/usr/bin/propbench"
+for d in gate1 gate2; do
+    "$pb" sweep --plugin ./ralston3.so --problems kepler-e0.5,leo-circular --methods ralston3,rk4 \
+        --steps-per-orbit 200,400 --orbits 5 --repeats 0 -j 2 --quiet --out "$d"
+done
+grep -q '"sha256"' gate1/summary.json
+"$pb" baseline gate1 --out gate.json >/dev/null
+"$pb" check --strict --baseline gate.json gate2 >check.txt
+grep -q "PASS" check.txt
+"$pb" run --plugin ./ralston3.so --problem kepler-e0.5 --method ralston3 --steps-per-orbit 200 \
+    --orbits 2 --repeats 0 --quiet --out gate-run
+"$pb" select --plugin ./ralston3.so --problem kepler-e0.5 --orbits 5 --max-pos-err 1e-4 \
+    --methods ralston3 --quiet --out select.json
+echo "check-install: the plug-in through run, sweep -j 2, select, baseline and check --strict"
 echo "check-install: the shared and the static build both passed"
 rm -rf "$stage"
