@@ -195,13 +195,15 @@ Test(check, improvement_passes_and_is_reported)
     cr_assert(strstr(ctx.out, "0 regressions, 1 improvements"), "%s", ctx.out);
 }
 
-static void edit_roundoff(json_t *cs) { pbc_scale(cs, "leapfrog", "metrics", "angmom_rel_max", 3.0); }
+static void edit_roundoff(json_t *cs) { pbc_scale(cs, "leapfrog", "metrics", "angmom_rel_max", 2.0); }
 
 Test(check, roundoff_noise_below_floor_does_not_flag)
 {
     /* leapfrog conserves angular momentum exactly (Hairer, Lubich, Wanner 2006,
-     * from memory), so its |h| error is round-off, ~3e-15 here; three times it
-     * is still below the 1e-14 floor and must pass; with no floor it fails */
+     * from memory), so its |h| error at the steps is round-off; at the samples,
+     * taken between steps on dense output, the interpolant adds its own, and
+     * the largest is ~1e-14 here. Twice it stays within (1 + 10%) of it plus
+     * the 1e-14 floor and must pass; with no floor it fails */
     const char *d = pbc_doctor(&ctx, "noise", edit_roundoff);
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 0, "%s", ctx.out);
     cr_assert_eq(pbc_check(&ctx, d, "--floor", "0", NULL), 1, "%s", ctx.out);

@@ -89,6 +89,9 @@ static void print_setup(const pb_case_spec *spec, const pb_case_result *res, con
                res->status_detail ? res->status_detail : pb_strerror(res->status));
     else
         printf("  %-22s ok\n", "status");
+    if (res->status && res->nsamples > 0)
+        printf("  %-22s at t = %.9g %s, the last metric sample before the run stopped\n",
+               "final values", res->t_final, u->T);
     if (res->saturated)
         printf("  %-22s the position error exceeds a tenth of the orbit's size: this run\n"
                "  %-22s follows another orbit, and its growth law and drifts mean little\n",
@@ -146,10 +149,10 @@ static void print_cost(const pb_case_spec *spec, const pb_case_result *res)
     if (res->startup_steps)
         printf(", %ld start-up", res->startup_steps);
     printf("\n");
-    if (spec->method->flags & PB_KIND_ADAPTIVE)
-        printf("  %-22s %ld of the steps were shortened to land on a sample time (cost the\n"
-               "  %-22s output grid adds; --samples sets the grid, a longer horizon dilutes it)\n",
-               "output grid", res->output_cut, "");
+    if ((spec->method->flags & PB_KIND_ADAPTIVE) && res->output_cut > 0)
+        printf("  %-22s the last step was shortened to end on the horizon (samples never\n"
+               "  %-22s shorten a step: they are taken on the method's dense output)\n",
+               "last step", "");
     if (isfinite(res->ns_per_step) && res->timing_repeats > 0)
         printf("  %-22s %.1f ns/step, %.1f ns/evaluation (thread CPU time; %d repeats,\n"
                "  %-22s spread %.1f%%: interquartile range over median)\n", "timing (median)",

@@ -63,6 +63,8 @@ typedef struct pb_case_result {
     int status;               /* pb_status of the metric pass */
     const char *status_name;  /* "ok", "diverged", "max_steps", "crashed" */
     double t_end;             /* time actually reached */
+    double t_final;           /* time of the "final" values: the horizon, or for a run
+                               * that stopped early its last metric sample before t_end */
     double diverged_at;       /* time of failure (status != ok) */
     double h;                 /* step used (fixed-step) */
     int nsamples;

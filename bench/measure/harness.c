@@ -50,15 +50,18 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
     harness_watch *w = ctx;
     const pb_problem *p = w->p;
     double e = 0;
+    /* a fixed-step method's last step may end past the horizon: that state
+     * is not part of the case (the horizon's own sample, on dense output, is) */
+    int inside = !w->plan || w->plan->n < 1 || t <= w->plan->t[w->plan->n - 1];
     if (p->energy) {
         e = fabs(p->energy(p, t, r, v) - w->E0) / w->E_scale;
-        if (e > w->e_win) w->e_win = e;
-        if (e > w->e_fit) w->e_fit = e;
+        if (inside && e > w->e_win) w->e_win = e;
+        if (inside && e > w->e_fit) w->e_fit = e;
     }
     if (p->angmom) {
         double h = pb_rel_err(p->angmom(p, r, v), w->H0);
-        if (h > w->h_win) w->h_win = h;
-        if (h > w->h_fit) w->h_fit = h;
+        if (inside && h > w->h_win) w->h_win = h;
+        if (inside && h > w->h_fit) w->h_fit = h;
     }
     /* an energy error of 100% means the orbit is no longer the problem's
      * (a bound orbit has become unbound, or the reverse) */
@@ -297,6 +300,7 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
         kl--; /* final values at the last metric-grid sample reached */
     if (n > 0) {
         pb_sample *last = &res->samples[kl];
+        res->t_final = last->t;
         res->energy_rel_final = last->energy_rel;
         res->angmom_rel_final = last->angmom_rel;
         res->pos_err_final = last->pos_err;
@@ -382,8 +386,15 @@ static void harness_close_window(harness_watch *w, const pb_problem *p, pb_sampl
     smp->angmom_rel_window = fmax(w->h_win, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
     if (!p->energy) smp->energy_rel_window = NAN;
     if (!p->angmom) smp->angmom_rel_window = NAN;
+    /* the running maxima cover every step and every metric-grid sample (a
+     * sample on dense output lies between steps), so a maximum is never below
+     * a final; plot-only samples stay out, as everywhere */
     w->e_max = fmax(w->e_max, w->e_win);
     w->h_max = fmax(w->h_max, w->h_win);
+    if (smp->in_metrics && isfinite(smp->energy_rel))
+        w->e_max = fmax(w->e_max, smp->energy_rel);
+    if (smp->in_metrics && isfinite(smp->angmom_rel))
+        w->h_max = fmax(w->h_max, smp->angmom_rel);
     w->e_win = w->h_win = 0;
     /* the fits' windows run from one log-grid sample to the next over every
      * step, so extra plot samples cannot change a growth class */

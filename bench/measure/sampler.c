@@ -76,6 +76,11 @@ int pb_sample_plan_make(double t0, double horizon, double scale, double h,
         if (!(it[j].x > eps))
             continue;
         if (m > 0 && fabs(it[j].x - it[m - 1].x) <= eps) {
+            /* the time of a metric-grid point never depends on the plot grid:
+             * of two merged times, the log or metric one is kept */
+            int rank_j = 2 * it[j].log + it[j].metric, rank_m = 2 * it[m - 1].log + it[m - 1].metric;
+            if (rank_j > rank_m)
+                it[m - 1].x = it[j].x;
             it[m - 1].log |= it[j].log;
             it[m - 1].metric |= it[j].metric;
             continue;

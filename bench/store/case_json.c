@@ -118,6 +118,9 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
                                 pb_json_real((res->diverged_at - spec->problem.t0) / spec->problem.period));
     }
     json_object_set_new(o, "t_end", pb_json_real(res->t_end));
+    /* the "final" metrics are taken here: t_end on a finished run, the last
+     * metric sample before it on one that stopped early */
+    json_object_set_new(o, "t_final", pb_json_real(res->nsamples > 0 ? res->t_final : (double)NAN));
     if (res->h > 0)
         json_object_set_new(o, "h", json_real(res->h));
 
