@@ -222,8 +222,18 @@ Test(plugin, pb_plugins_environment)
     int rc = cli((const char *[]){"list", "methods", NULL});
     cr_assert_eq(rc, 0, "%s", err_buf);
     cr_assert(strstr(out_buf, "ralston3"), "%s", out_buf);
-    /* the same file twice: the second copy's name collides */
+    /* the same file named twice (PB_PLUGINS and --plugin) is loaded once */
     rc = cli((const char *[]){"list", "methods", "--plugin", so, NULL});
+    cr_assert_eq(rc, 0, "%s", err_buf);
+    const char *first = strstr(out_buf, "\nralston3");
+    cr_assert(first && !strstr(first + 1, "\nralston3"), "%s", out_buf);
+    /* a copy of it under another name is another plug-in: its name collides */
+    char dir[256], copy[600], cmd[1400];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(copy, sizeof copy, "%s/copy.so", dir);
+    snprintf(cmd, sizeof cmd, "cp '%s' '%s'", so, copy);
+    cr_assert_eq(system(cmd), 0);
+    rc = cli((const char *[]){"list", "methods", "--plugin", copy, NULL});
     cr_assert_eq(rc, 2, "%s", out_buf);
     cr_assert(strstr(err_buf, "taken"), "%s", err_buf);
     setenv("PB_PLUGINS", "/nonexistent/p.so", 1);

@@ -7,6 +7,7 @@
 #include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <limits.h>
 #include <string.h>
 #include <nettle/sha2.h>
 #include "bench/cli/cli.h"
@@ -106,6 +107,12 @@ int pb_plugin_load(const char *path, char *err, size_t errlen)
                  strlen(path) >= sizeof o->path ? "path too long" : strerror(errno));
         return -1;
     }
+    /* the same file named twice (PB_PLUGINS and --plugin, say) is loaded once */
+    char real[PATH_MAX], prev[PATH_MAX];
+    for (int i = 0; i < plugins_n; i++)
+        if (!strcmp(plugins_origin[i].sha256, o->sha256) && realpath(path, real) &&
+            realpath(plugins_origin[i].path, prev) && !strcmp(real, prev))
+            return 0;
     void *h = plugins_open(path);
     if (!h) {
         const char *e = dlerror();
