@@ -1,11 +1,12 @@
 /* ephemeris_method.c - the ephemeris pseudo-method (ephemeris_method.h).
- * Dense output: the cubic Hermite interpolant through the positions and
- * velocities of the two records around t (common practice for ephemeris
- * interpolation between state vectors). */
+ * Dense output: the cubic Hermite interpolant (propbench/dense.h) through
+ * the positions and velocities of the two records around t (common practice
+ * for ephemeris interpolation between state vectors). */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 #include "bench/measure/ephemeris_method.h"
+#include "propbench/dense.h"
 
 static _Thread_local const pb_ephemeris *ephemeris_bound;
 
@@ -113,16 +114,13 @@ static int ephemeris_dense(const void *ws, double t, double *r, double *v)
     }
     if (i == 0 || t < e->t[i - 1] || t > e->t[i])
         return PB_EINVAL;
-    double h = e->t[i] - e->t[i - 1], s = (t - e->t[i - 1]) / h, s2 = s * s, s3 = s2 * s;
-    double h00 = 2 * s3 - 3 * s2 + 1, h10 = s3 - 2 * s2 + s, h01 = -2 * s3 + 3 * s2, h11 = s3 - s2;
-    double d00 = (6 * s2 - 6 * s) / h, d10 = 3 * s2 - 4 * s + 1, d01 = -d00, d11 = 3 * s2 - 2 * s;
-    const double *ra = e->r + 3 * (i - 1), *va = e->v + 3 * (i - 1);
-    const double *rb = e->r + 3 * i, *vb = e->v + 3 * i;
-    for (int k = 0; k < 3; k++) {
-        r[k] = h00 * ra[k] + h10 * h * va[k] + h01 * rb[k] + h11 * h * vb[k];
-        v[k] = d00 * ra[k] + d10 * va[k] + d01 * rb[k] + d11 * vb[k];
-    }
-    return 0;
+    /* the two records around t as the ends of a step, through the Hermite
+     * interpolant every method without its own dense output uses (cubic:
+     * the records have no accelerations) */
+    pb_dense_span span;
+    pb_dense_start(&span, 3, e->t[i - 1], e->r + 3 * (i - 1), e->v + 3 * (i - 1), NULL);
+    pb_dense_push(&span, e->t[i], e->r + 3 * i, e->v + 3 * i, NULL);
+    return pb_dense_eval(&span, t, r, v);
 }
 
 const pb_method_type pb_method_ephemeris = {
