@@ -29,6 +29,19 @@ const pb_method_type *pb_method_at(int i);
 /* A plug-in method's origin; NULL for a built-in one. */
 const pb_method_origin *pb_method_origin_of(const pb_method_type *m);
 
+/* The setting and position-error bound (problem length units, after 3
+ * periods of a normalized Kepler orbit of eccentricity e from periapsis) a
+ * method is expected to meet, from its order p and kind. Fixed step: N =
+ * 1000 (p <= 2) or 200 steps per orbit and the bound 1e3 (h/(1-e)^1.5)^p,
+ * i.e. the global error ~ C h^p (common practice) with the step measured
+ * against the periapsis time scale (1-e)^1.5 of the orbit, clamped to
+ * [1e-10, 0.1], with p at most 8: past that the error constants of the
+ * high-order methods here (gauss-jackson8 converges at order 11 but its
+ * error at 200 steps is that of an order-8 bound) decide, not the exponent.
+ * Adaptive: rtol = atol = 1e-9 and 1e-4. */
+void pb_method_expected_error(const pb_method_type *m, double e, double *steps_or_tol,
+                              double *bound);
+
 /* 1 when m can integrate p: a second-order-form method (PB_FORM_SECOND) sees
  * a(r) only, so it cannot take a velocity-dependent force. */
 int pb_method_fits(const pb_method_type *m, const pb_problem *p);

@@ -64,27 +64,12 @@ static const mx_setting *mx_find(const char *name)
     return NULL;
 }
 
-/* Default for a method missing from the table, from its order p and flags.
- * Fixed step: N = 1000 (p <= 2) or 200 steps per orbit and the bound
- * 1e3 (h / (1-e)^1.5)^p, i.e. the global error ~ C h^p (common practice)
- * with the step measured against the periapsis time scale (1-e)^1.5 of the
- * orbit, clamped to [1e-10, 0.1], with p at most 8: past that the error
- * constants of the high-order methods here (gauss-jackson8 converges at
- * order 11 but its error at 200 steps is that of an order-8 bound) decide,
- * not the exponent. Adaptive: rtol = atol = 1e-9 and 1e-4.
- * The test matrix_defaults checks this default on every method in the table. */
+/* Default for a method missing from the table, from its order p and flags:
+ * pb_method_expected_error (integrators/method.h states the rule). The test
+ * matrix_defaults checks this default on every method in the table. */
 static void mx_default(const pb_method_type *m, double e, double *steps_or_rtol, double *tol)
 {
-    if (m->flags & PB_KIND_ADAPTIVE) {
-        *steps_or_rtol = 1e-9;
-        *tol = 1e-4;
-        return;
-    }
-    double n = m->order <= 2 ? 1000 : 200;
-    double heff = 2.0 * M_PI / n / pow(1.0 - e, 1.5);
-    *steps_or_rtol = n;
-    int p = m->order < 8 ? m->order : 8;
-    *tol = fmin(0.1, fmax(1e-10, 1e3 * pow(heff, p)));
+    pb_method_expected_error(m, e, steps_or_rtol, tol);
 }
 
 static void mx_config(const pb_method_type *m, const pb_problem *p, double steps_or_rtol,

@@ -156,24 +156,6 @@ static int st_integrate(const pb_method_type *m, const pb_problem *p, double par
     return out->status;
 }
 
-/* The default of tests/test_method_matrix.c (mx_default): fixed step, N =
- * 1000 (p <= 2) or 200 steps per orbit and the bound 1e3 (h/(1-e)^1.5)^p
- * after 3 orbits, p at most 8, clamped to [1e-10, 0.1] (global error ~ C h^p,
- * common practice); adaptive, rtol = atol = 1e-9 and 1e-4. */
-static void st_default(const pb_method_type *m, double e, double *par, double *bound)
-{
-    if (m->flags & PB_KIND_ADAPTIVE) {
-        *par = 1e-9;
-        *bound = 1e-4;
-        return;
-    }
-    double n = m->order <= 2 ? 1000 : 200;
-    double heff = 2.0 * M_PI / n / pow(1.0 - e, 1.5);
-    int p = m->order < 8 ? m->order : 8;
-    *par = n;
-    *bound = fmin(0.1, fmax(1e-10, 1e3 * pow(heff, p)));
-}
-
 static int st_failures, st_checks;
 
 static void st_row(const char *check, const char *value, const char *bound, int ok)
@@ -190,7 +172,7 @@ static void st_check_accuracy(const pb_method_type *m, const char *problem, doub
     pb_problem_lookup(problem, &p);
     double par, bound;
     char what[80], val[64], lim[64];
-    st_default(m, e, &par, &bound);
+    pb_method_expected_error(m, e, &par, &bound);
     st_run r;
     st_integrate(m, &p, par, ST_ORBITS, 1, INFINITY, &r);
     if (m->flags & PB_KIND_ADAPTIVE)
@@ -206,7 +188,7 @@ static void st_check_accuracy(const pb_method_type *m, const char *problem, doub
 }
 
 /* Fixed step: errors after one orbit of kepler-e0.5 at N/2 .. 16 N steps per
- * orbit (N as st_default); the observed order over the finest three steps
+ * orbit (N as pb_method_expected_error); the observed order over the finest three steps
  * (two halvings) whose errors all lie above the round-off floor and below
  * 1e-2 (the asymptotic range; two halvings average out the alternation a
  * high-order multistep method shows from one halving to the next:
@@ -218,7 +200,7 @@ static void st_check_order(const pb_method_type *m)
     pb_problem p;
     pb_problem_lookup("kepler-e0.5", &p);
     double par, bound, err[6], x[6];
-    st_default(m, 0.5, &par, &bound);
+    pb_method_expected_error(m, 0.5, &par, &bound);
     int adaptive = (m->flags & PB_KIND_ADAPTIVE) != 0, nk = adaptive ? 2 : 6, best = -1;
     for (int k = 0; k < nk; k++) {
         x[k] = adaptive ? (k ? 1e-9 : 1e-6) : par / 2 * pow(2.0, k);
@@ -261,7 +243,7 @@ static void st_check_nan(const pb_method_type *m)
     pb_problem p;
     pb_problem_lookup("kepler-e0.1", &p);
     double par, bound, t_nan = p.t0 + ST_T_NAN * p.period;
-    st_default(m, 0.1, &par, &bound);
+    pb_method_expected_error(m, 0.1, &par, &bound);
     st_run r;
     st_integrate(m, &p, par, ST_ORBITS, 1, t_nan, &r);
     int finite = 1;
@@ -287,7 +269,7 @@ static void st_check_contract(const pb_method_type *m)
     pb_problem p;
     pb_problem_lookup("kepler-e0.5", &p);
     double par, bound, t_end = p.t0 + p.period;
-    st_default(m, 0.5, &par, &bound);
+    pb_method_expected_error(m, 0.5, &par, &bound);
     st_run r;
     st_integrate(m, &p, (m->flags & PB_KIND_ADAPTIVE) ? par : 4 * ceil(par / 4), 1.0, 4,
                  INFINITY, &r);
