@@ -3,7 +3,6 @@
  * running maxima of the invariant errors (global and since the last sample)
  * and stops the integration when the orbit leaves the region it started in;
  * metrics against truth are computed only at the planned sample times. */
-#include <float.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -445,10 +444,10 @@ static double harness_integration_end(const pb_case_spec *spec, double horizon, 
     double t0 = spec->problem.t0;
     if (!(spec->method->flags & PB_KIND_FIXED) || !(h > 0))
         return t0 + horizon;
-    /* a quotient within rounding of a whole number is that number */
-    double q = horizon / h, nq = nearbyint(q);
-    double n = fabs(q - nq) <= 8 * DBL_EPSILON * (fabs(q) + 1) ? nq : ceil(q);
-    return t0 + n * h;
+    /* a horizon on the grid (to within the rounding the method itself
+     * allows, pb_grid_index) is that grid time; else the next one */
+    long n = pb_grid_index(t0, h, t0 + horizon);
+    return t0 + (n >= 0 ? (double)n : ceil(horizon / h)) * h;
 }
 
 /* The metric pass: one advance to the integration's end; the observer
