@@ -46,7 +46,7 @@ static int cat_earth(pb_problem *out, const char *name, const char *desc, int wi
     if (s)
         return s;
     if (with_j2)
-        pb_problem_init_j2(out, name, desc, b->mu, b->radius, b->j2, r0, v0);
+        pb_problem_init_j2(out, name, desc, b->mu, b->radius, b->jn[2], r0, v0);
     else {
         pb_problem_init_twobody(out, name, desc, PB_UNITS_KM_S, b->mu, r0, v0);
         out->body_radius = b->radius;
@@ -68,7 +68,7 @@ static double cat_sso_inclination_deg(double a, double e)
 {
     const pb_body *b = &pb_body_earth;
     double n = sqrt(b->mu / (a * a * a)), p = a * (1.0 - e * e);
-    double c = -SUN_RATE / (1.5 * n * b->j2 * (b->radius / p) * (b->radius / p));
+    double c = -SUN_RATE / (1.5 * n * b->jn[2] * (b->radius / p) * (b->radius / p));
     return acos(c) / DEG;
 }
 

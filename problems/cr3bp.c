@@ -1,25 +1,12 @@
 /* cr3bp.c - circular restricted three-body problem, rotating frame, as
  * written in Hairer, Norsett, Wanner, Solving ODEs I (2nd ed.), Sec. II.0,
- * extended to three dimensions; the Jacobi integral is its energy-like invariant. */
+ * extended to three dimensions; the Jacobi integral is its energy-like invariant.
+ * The force itself is in force_terms_impl.h, shared with the reference. */
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
 #include "cr3bp.h"
-
-int pb_cr3bp_accel(const pb_problem *p, double t, const double *r, const double *v, double *a)
-{
-    (void)t;
-    double mu = p->mu, mu1 = 1.0 - mu;
-    double x1 = r[0] + mu, x2 = r[0] - mu1, yz2 = r[1] * r[1] + r[2] * r[2];
-    double d1 = x1 * x1 + yz2, d2 = x2 * x2 + yz2;
-    d1 *= sqrt(d1);
-    d2 *= sqrt(d2);
-    double g = mu1 / d1 + mu / d2;
-    a[0] = r[0] + 2.0 * v[1] - mu1 * x1 / d1 - mu * x2 / d2;
-    a[1] = r[1] - 2.0 * v[0] - g * r[1];
-    a[2] = -g * r[2];
-    return PB_OK;
-}
+#include "force_terms.h"
 
 double pb_cr3bp_jacobi(const pb_problem *p, double t, const double *r, const double *v)
 {

@@ -6,6 +6,7 @@
 #define PB_PROBLEM_H
 
 #include "status.h"
+#include "forces.h"
 
 #define PB_DIM_MAX 3
 #define PB_NAME_MAX 64
@@ -18,7 +19,8 @@ typedef enum pb_units {
 typedef enum pb_force_model {
     PB_FORCE_TWO_BODY = 0,
     PB_FORCE_J2,             /* two-body plus the J2 zonal term */
-    PB_FORCE_CR3BP           /* circular restricted three-body, rotating frame */
+    PB_FORCE_CR3BP,          /* circular restricted three-body, rotating frame */
+    PB_FORCE_PERTURBED       /* two-body plus the terms of pb_problem.forces */
 } pb_force_model;
 
 typedef struct pb_problem pb_problem;
@@ -36,8 +38,13 @@ struct pb_problem {
     int dim;                  /* spatial dimension; state is (r, v), 2*dim values */
     double mu;                /* gravitational parameter; CR3BP: mass ratio */
     double body_radius;       /* central body's equatorial radius (0: none) */
-    double j2;                /* unnormalized J2 (0: none) */
-    int velocity_dependent;   /* 1 if accel depends on v (CR3BP's Coriolis term) */
+    pb_forces forces;         /* terms beyond the central attraction (J2 problems
+                               * included: forces.jn[2]); all zero for two-body */
+    int velocity_dependent;   /* 1 if accel depends on v (CR3BP's Coriolis term, drag) */
+    int invariants_from_truth; /* 1: energy and angular momentum change by the force
+                                * itself (drag, third bodies, radiation pressure,
+                                * manoeuvres), so their errors are measured against
+                                * the truth's own values at the same time */
     double t0;
     double r0[PB_DIM_MAX], v0[PB_DIM_MAX];
     double period;            /* the time scale "orbits" counts; 0 if none */

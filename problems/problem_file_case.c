@@ -113,7 +113,7 @@ static int pf_finish_central(pf_build *b, pf_central *cb)
     if (!(cb->mu >= PF_MU_MIN && cb->mu <= PF_MU_MAX))
         return pf_fail_key(b, K_MU, "mu must be within [%g, %g] (got %g)", PF_MU_MIN, PF_MU_MAX, cb->mu);
     cb->radius = cb->body ? cb->body->radius : 0.0;
-    cb->j2 = cb->body ? cb->body->j2 : 0.0;
+    cb->j2 = cb->body ? cb->body->jn[2] : 0.0;
     if (L[K_RADIUS]) {
         cb->radius = cs->num[K_RADIUS];
         if (!(cb->radius > 0))

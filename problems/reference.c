@@ -12,6 +12,7 @@
 #include "problems/reference.h"
 #include "problems/files.h"
 #include "problems/hash.h"
+#include "problems/force_terms.h"
 
 typedef __float128 ref_real;
 
@@ -20,46 +21,16 @@ typedef __float128 ref_real;
 #define REF_TOL_COARSE 1e-24L
 #define REF_TOL_FINE 1e-28L
 #define REF_MAX_STEPS 20000000L
-#define REF_VERSION "pb-reference gbs20 float128 v1"
+#define REF_VERSION "pb-reference gbs20 float128 v2 forces"
 
-static void ref_deriv(const pb_problem *p, const ref_real *y, ref_real *dy)
+static void ref_deriv(const pb_problem *p, ref_real t, const ref_real *y, ref_real *dy)
 {
-    const ref_real *r = y, *v = y + 3;
-    ref_real *a = dy + 3;
-    dy[0] = v[0];
-    dy[1] = v[1];
-    dy[2] = v[2];
-    ref_real mu = p->mu;
-    if (p->force == PB_FORCE_CR3BP) {
-        ref_real mu1 = 1.0Q - mu;
-        ref_real x1 = r[0] + mu, x2 = r[0] - mu1, yz2 = r[1] * r[1] + r[2] * r[2];
-        ref_real d1 = x1 * x1 + yz2, d2 = x2 * x2 + yz2;
-        d1 *= sqrtq(d1);
-        d2 *= sqrtq(d2);
-        ref_real g = mu1 / d1 + mu / d2;
-        a[0] = r[0] + 2.0Q * v[1] - mu1 * x1 / d1 - mu * x2 / d2;
-        a[1] = r[1] - 2.0Q * v[0] - g * r[1];
-        a[2] = -g * r[2];
-        return;
-    }
-    ref_real r2 = r[0] * r[0] + r[1] * r[1] + r[2] * r[2];
-    ref_real c = -mu / (r2 * sqrtq(r2));
-    if (p->force == PB_FORCE_J2) {
-        ref_real R = p->body_radius, z2 = r[2] * r[2] / r2;
-        ref_real k = 1.5Q * (ref_real)p->j2 * R * R / r2;
-        ref_real cxy = c * (1.0Q + k * (1.0Q - 5.0Q * z2));
-        a[0] = cxy * r[0];
-        a[1] = cxy * r[1];
-        a[2] = c * (1.0Q + k * (3.0Q - 5.0Q * z2)) * r[2];
-        return;
-    }
-    a[0] = c * r[0];
-    a[1] = c * r[1];
-    a[2] = c * r[2];
+    /* pb_reference_propagate refuses a force with no __float128 form first */
+    (void)pb_forces_deriv_q(p, t, y, dy);
 }
 
 /* Gragg's modified midpoint rule: m substeps of size H/m from y0 (f0 = f(y0)). */
-static void ref_midpoint(const pb_problem *p, const ref_real *y0, const ref_real *f0,
+static void ref_midpoint(const pb_problem *p, ref_real t0, const ref_real *y0, const ref_real *f0,
                          ref_real H, int m, ref_real *out)
 {
     ref_real h = H / m, zp[REF_N], z[REF_N], zn[REF_N], f[REF_N];
@@ -68,14 +39,14 @@ static void ref_midpoint(const pb_problem *p, const ref_real *y0, const ref_real
         z[i] = y0[i] + h * f0[i];
     }
     for (int j = 1; j < m; j++) {
-        ref_deriv(p, z, f);
+        ref_deriv(p, t0 + j * h, z, f);
         for (int i = 0; i < REF_N; i++) {
             zn[i] = zp[i] + 2.0Q * h * f[i];
             zp[i] = z[i];
             z[i] = zn[i];
         }
     }
-    ref_deriv(p, z, f);
+    ref_deriv(p, t0 + H, z, f);
     for (int i = 0; i < REF_N; i++)
         out[i] = 0.5Q * (z[i] + zp[i] + h * f[i]);
 }
@@ -87,13 +58,14 @@ static ref_real ref_norm3(const ref_real *x)
 
 /* One extrapolated step of size H; y1 receives the result, the return value
  * is the scaled error estimate (relative to |r| and |v| separately). */
-static ref_real ref_step(const pb_problem *p, const ref_real *y0, ref_real H, ref_real *y1)
+static ref_real ref_step(const pb_problem *p, ref_real t0, const ref_real *y0, ref_real H,
+                         ref_real *y1)
 {
     ref_real T[REF_K][REF_N], f0[REF_N];
-    ref_deriv(p, y0, f0);
+    ref_deriv(p, t0, y0, f0);
     for (int j = 0; j < REF_K; j++) {
         int nj = 2 * (j + 1);
-        ref_midpoint(p, y0, f0, H, nj, T[j]);
+        ref_midpoint(p, t0, y0, f0, H, nj, T[j]);
         /* Aitken-Neville in place: T[j-k] becomes the k-times extrapolated value. */
         for (int k = 1; k <= j; k++) {
             int nk = 2 * (j - k + 1);
@@ -125,58 +97,144 @@ static int ref_finite(const ref_real *y)
     return 1;
 }
 
+/* The running integration: state, step size, tolerance and the shadow
+ * boundary functions at the current state. */
+typedef struct ref_run {
+    const pb_problem *p;
+    ref_real t, y[REF_N], h, tol;
+    long steps;
+    int nev;
+    ref_real g[2];
+} ref_run;
+
+static int ref_crossed(const ref_real *g0, const ref_real *g1, int n)
+{
+    for (int j = 0; j < n; j++)
+        if ((g0[j] > 0) != (g1[j] > 0))
+            return 1;
+    return 0;
+}
+
+/* A shadow boundary lies inside the accepted step of length H from w: find
+ * the first crossing by bisection (each trial a step from w's state) to a
+ * bracket of 1e-24 H, and land just past it, so that the next step starts on
+ * the far side and no step ever integrates across the jump in the force. */
+static int ref_land_on_event(ref_run *w, ref_real H)
+{
+    ref_real lo = 0, hi = H, y1[REF_N], g1[2];
+    while (hi - lo > 1e-24Q * H) {
+        ref_real mid = 0.5Q * (lo + hi);
+        ref_step(w->p, w->t, w->y, mid, y1);
+        if (!ref_finite(y1))
+            return PB_ENONFINITE;
+        pb_forces_events_q(w->p, w->t + mid, y1, g1);
+        if (ref_crossed(w->g, g1, w->nev))
+            hi = mid;
+        else
+            lo = mid;
+    }
+    ref_step(w->p, w->t, w->y, hi, y1);
+    memcpy(w->y, y1, sizeof y1);
+    w->t += hi;
+    w->nev = pb_forces_events_q(w->p, w->t, w->y, w->g);
+    return ++w->steps > REF_MAX_STEPS ? PB_EMAXSTEPS : PB_OK;
+}
+
+/* Step w exactly to target, stopping at every shadow boundary on the way. */
+static int ref_advance(ref_run *w, ref_real target)
+{
+    const ref_real expo = 1.0Q / (2 * REF_K - 1);
+    ref_real y1[REF_N], g1[2];
+    while (w->t < target) {
+        ref_real H = w->h, left = target - w->t;
+        int last = H >= left;
+        if (last)
+            H = left;
+        ref_real err = ref_step(w->p, w->t, w->y, H, y1);
+        if (!ref_finite(y1) || !finiteq(err))
+            return PB_ENONFINITE;
+        ref_real fac = err > 0 ? 0.9Q * powq(w->tol / err, expo) : 4.0Q;
+        fac = fminq(4.0Q, fmaxq(0.2Q, fac));
+        if (err <= w->tol) {
+            if (w->nev && (pb_forces_events_q(w->p, w->t + H, y1, g1), ref_crossed(w->g, g1, w->nev))) {
+                int s = ref_land_on_event(w, H);
+                if (s)
+                    return s;
+                continue;
+            }
+            memcpy(w->y, y1, sizeof y1);
+            memcpy(w->g, g1, sizeof g1);
+            w->t = last ? target : w->t + H;
+            if (++w->steps > REF_MAX_STEPS)
+                return PB_EMAXSTEPS;
+            if (!last || fac < 1)
+                w->h = H * fac;
+        } else {
+            w->h = H * fac;
+        }
+        if (w->h < 1e-30Q * fabsq(w->t) || w->h <= 0)
+            return PB_EMINSTEP;
+    }
+    return PB_OK;
+}
+
+/* An impulsive manoeuvre: dv in the radial, along-track and cross-track
+ * directions of the current state (the same frame the harness applies). */
+static void ref_apply_manoeuvre(ref_run *w, const pb_manoeuvre *m)
+{
+    ref_real *r = w->y, *v = w->y + 3, h[3], R[3], C[3], I[3];
+    h[0] = r[1] * v[2] - r[2] * v[1];
+    h[1] = r[2] * v[0] - r[0] * v[2];
+    h[2] = r[0] * v[1] - r[1] * v[0];
+    ref_real rn = ref_norm3(r), hn = ref_norm3(h);
+    for (int i = 0; i < 3; i++)
+        R[i] = r[i] / rn, C[i] = h[i] / hn;
+    I[0] = C[1] * R[2] - C[2] * R[1];
+    I[1] = C[2] * R[0] - C[0] * R[2];
+    I[2] = C[0] * R[1] - C[1] * R[0];
+    for (int i = 0; i < 3; i++)
+        v[i] += (ref_real)m->dv[0] * R[i] + (ref_real)m->dv[1] * I[i] + (ref_real)m->dv[2] * C[i];
+}
+
 int pb_reference_propagate(const pb_problem *p, const double *times, int n,
                            long double tol, long double *r, long double *v,
                            long *steps)
 {
-    if (!p || p->dim < 1 || p->dim > 3 || n < 0 || (n > 0 && !times) || !(tol > 0))
+    if (!p || p->dim < 1 || p->dim > 3 || n < 0 || (n > 0 && !times) || !(tol > 0) ||
+        !pb_forces_have_quad(p))
         return PB_EINVAL;
-    ref_real y[REF_N] = {0}, y1[REF_N];
+    ref_run w = {.p = p, .t = p->t0, .tol = tol};
     for (int i = 0; i < p->dim; i++) {
-        y[i] = p->r0[i];
-        y[i + 3] = p->v0[i];
+        w.y[i] = p->r0[i];
+        w.y[i + 3] = p->v0[i];
     }
-    ref_real t = p->t0;
-    ref_real vn = ref_norm3(y + 3);
-    ref_real h = vn > 0 ? 0.01Q * ref_norm3(y) / vn : 1e-3Q;
-    if (p->period > 0 && h > p->period / 50)
-        h = p->period / 50;
-    long nsteps = 0;
-    const ref_real expo = 1.0Q / (2 * REF_K - 1);
+    ref_real vn = ref_norm3(w.y + 3);
+    w.h = vn > 0 ? 0.01Q * ref_norm3(w.y) / vn : 1e-3Q;
+    if (p->period > 0 && w.h > p->period / 50)
+        w.h = p->period / 50;
+    w.nev = pb_forces_events_q(p, w.t, w.y, w.g);
+    const pb_forces *f = &p->forces;
+    int im = 0;
     for (int k = 0; k < n; k++) {
         ref_real tk = times[k];
-        if (tk < t || !isfinite(tk))
+        if (tk < w.t || !isfinite(tk))
             return PB_EINVAL;
-        while (t < tk) {
-            ref_real H = h, left = tk - t;
-            int last = H >= left;
-            if (last)
-                H = left;
-            ref_real err = ref_step(p, y, H, y1);
-            if (!ref_finite(y1) || !finiteq(err))
-                return PB_ENONFINITE;
-            ref_real fac = err > 0 ? 0.9Q * powq(tol / err, expo) : 4.0Q;
-            fac = fminq(4.0Q, fmaxq(0.2Q, fac));
-            if (err <= tol) {
-                memcpy(y, y1, sizeof y);
-                t = last ? tk : t + H;
-                if (++nsteps > REF_MAX_STEPS)
-                    return PB_EMAXSTEPS;
-                if (!last || fac < 1)
-                    h = H * fac;
-            } else {
-                h = H * fac;
-            }
-            if (h < 1e-30Q * fabsq(t) || h <= 0)
-                return PB_EMINSTEP;
+        /* a sample at a manoeuvre's time sees the state before it */
+        while (w.t < tk || (im < f->n_manoeuvres && f->manoeuvres[im].t < tk)) {
+            int burn = im < f->n_manoeuvres && f->manoeuvres[im].t < tk;
+            int s = ref_advance(&w, burn ? (ref_real)f->manoeuvres[im].t : tk);
+            if (s)
+                return s;
+            if (burn)
+                ref_apply_manoeuvre(&w, &f->manoeuvres[im++]);
         }
         for (int i = 0; i < PB_DIM_MAX; i++) {
-            r[(size_t)k * PB_DIM_MAX + i] = i < p->dim ? y[i] : 0.0Q;
-            v[(size_t)k * PB_DIM_MAX + i] = i < p->dim ? y[i + 3] : 0.0Q;
+            r[(size_t)k * PB_DIM_MAX + i] = i < p->dim ? w.y[i] : 0.0Q;
+            v[(size_t)k * PB_DIM_MAX + i] = i < p->dim ? w.y[i + 3] : 0.0Q;
         }
     }
     if (steps)
-        *steps = nsteps;
+        *steps = w.steps;
     return PB_OK;
 }
 
@@ -192,7 +250,7 @@ uint64_t pb_reference_key(const pb_problem *p, const double *times, int n)
     h = pb_fnv1a64(h, &p->dim, sizeof p->dim);
     h = pb_fnv1a64(h, &p->mu, sizeof p->mu);
     h = pb_fnv1a64(h, &p->body_radius, sizeof p->body_radius);
-    h = pb_fnv1a64(h, &p->j2, sizeof p->j2);
+    h = pb_forces_hash(h, &p->forces);
     h = pb_fnv1a64(h, &p->t0, sizeof p->t0);
     h = pb_fnv1a64(h, p->r0, sizeof p->r0);
     h = pb_fnv1a64(h, p->v0, sizeof p->v0);

@@ -57,8 +57,8 @@ void pb_ric_frame(const double *r, const double *v, double *R, double *I, double
     tb_cross(C, R, I);
 }
 
-static int tb_accel(const pb_problem *p, double t, const double *r, const double *v,
-                    double *a)
+int pb_twobody_accel(const pb_problem *p, double t, const double *r, const double *v,
+                     double *a)
 {
     (void)t;
     (void)v;
@@ -122,7 +122,7 @@ void pb_problem_init_twobody(pb_problem *p, const char *name, const char *descri
     p->default_orbits = 10;
     /* Open conics have no period: default to ten circular periods at r0. */
     p->default_horizon_s = p->period > 0 ? 0.0 : 10.0 * pb_twobody_period(mu, rn);
-    p->accel = tb_accel;
+    p->accel = pb_twobody_accel;
     p->energy = tb_energy;
     p->angmom = tb_angmom;
     p->energy_label = "energy";

@@ -16,6 +16,9 @@ typedef struct pb_elements {
     double p;     /* semi-latus rectum */
 } pb_elements;
 
+/* -mu r/|r|^3: the problem's force when nothing else acts (force_terms.c
+ * recognises it as having a __float128 form). */
+int pb_twobody_accel(const pb_problem *p, double t, const double *r, const double *v, double *a);
 double pb_twobody_energy(double mu, const double *r, const double *v);
 void pb_twobody_angmom_vec(const double *r, const double *v, double *h);
 void pb_twobody_eccvec(double mu, const double *r, const double *v, double *e);

@@ -11,6 +11,7 @@
 #include "problems/bodies.h"
 #include "problems/catalogue.h"
 #include "problems/j2.h"
+#include "problems/force_terms.h"
 #include "problems/reference.h"
 #include "problems/twobody.h"
 
@@ -25,7 +26,7 @@ static pb_problem j2t_from_elements(double a, double e, double i_deg, double arg
     double r[3], v[3];
     cr_assert_eq(pb_state_from_elements(b->mu, &el, r, v), PB_OK);
     pb_problem p;
-    pb_problem_init_j2(&p, "j2-test", "test orbit", b->mu, b->radius, b->j2, r, v);
+    pb_problem_init_j2(&p, "j2-test", "test orbit", b->mu, b->radius, b->jn[2], r, v);
     return p;
 }
 
@@ -72,7 +73,7 @@ static void j2t_theory(const pb_problem *p, double *raan_rate, double *argp_rate
     pb_elements el;
     cr_assert_eq(pb_elements_from_state(p->mu, p->r0, p->v0, &el), PB_OK);
     double n = sqrt(p->mu / (el.a * el.a * el.a));
-    double k = n * p->j2 * (p->body_radius / el.p) * (p->body_radius / el.p);
+    double k = n * p->forces.jn[2] * (p->body_radius / el.p) * (p->body_radius / el.p);
     double c = cos(el.i);
     *raan_rate = -1.5 * k * c;
     *argp_rate = 0.75 * k * (5 * c * c - 1);
@@ -145,14 +146,14 @@ Test(j2, acceleration_is_minus_gradient)
 {
     pb_problem p = j2t_from_elements(7000.0, 0.05, 40.0, 30.0);
     double r[3] = {4000.0, -3000.0, 4500.0}, v0[3] = {0, 0, 0}, a[3], h = 1e-3;
-    cr_assert_eq(pb_j2_accel(&p, 0, r, v0, a), PB_OK);
+    cr_assert_eq(pb_forces_accel(&p, 0, r, v0, a), PB_OK);
     for (int i = 0; i < 3; i++) {
         double rp[3], rm[3];
         memcpy(rp, r, sizeof r);
         memcpy(rm, r, sizeof r);
         rp[i] += h;
         rm[i] -= h;
-        double g = -(pb_j2_energy(&p, 0, rp, v0) - pb_j2_energy(&p, 0, rm, v0)) / (2 * h);
+        double g = -(pb_forces_energy(&p, 0, rp, v0) - pb_forces_energy(&p, 0, rm, v0)) / (2 * h);
         cr_assert_float_eq(a[i], g, 1e-8 * fabs(g), "component %d: %.12g vs %.12g", i, a[i], g);
     }
 }

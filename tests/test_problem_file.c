@@ -7,6 +7,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
+#include "problems/bodies.h"
 #include "problems/problem_file.h"
 #include "problems/problem_file_case.h"
 #include "problems/twobody.h"
@@ -427,7 +428,7 @@ Test(problem_file, several_cases)
     cr_assert_eq(c[1].force, PB_FORCE_J2);
     cr_assert_eq(c[1].mu, 398600.4418);
     cr_assert_eq(c[1].body_radius, 6378.137);
-    cr_assert_eq(c[1].j2, 1.08262668e-3);
+    cr_assert_eq(c[1].forces.jn[2], pb_body_earth.jn[2]);
     cr_assert_eq(c[1].r0[0], 6778.0);
     cr_assert_eq(c[1].v0[2], 5.9983);
     cr_assert_null(c[1].exact);

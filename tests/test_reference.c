@@ -106,7 +106,17 @@ Test(reference, key_changes_with_every_field_and_time)
     cr_assert_eq(pb_reference_key(&q, t, 4), k0);
 #define CHANGED(stmt) do { q = p; stmt; cr_assert_neq(pb_reference_key(&q, t, 4), k0, #stmt); } while (0)
     CHANGED(q.mu *= 1 + 1e-15);
-    CHANGED(q.j2 *= 1 + 1e-15);
+    CHANGED(q.forces.jn[2] *= 1 + 1e-15);
+    CHANGED(q.forces.zonal_degree = 3);
+    CHANGED(q.forces.drag = PB_DRAG_EXPONENTIAL);
+    CHANGED(q.forces.ballistic_m2_kg = 0.01);
+    CHANGED(q.forces.moon = 1);
+    CHANGED(q.forces.circular = 1);
+    CHANGED(q.forces.circ.rate = 1e-6);
+    CHANGED(q.forces.epoch_days = 1e-9);
+    CHANGED(q.forces.srp_area_mass_m2_kg = 0.02);
+    CHANGED(q.forces.shadow = PB_SHADOW_CONICAL);
+    CHANGED((q.forces.n_manoeuvres = 1, q.forces.manoeuvres[0].t = 50));
     CHANGED(q.body_radius += 1e-9);
     CHANGED(q.t0 = 1.0);
     CHANGED(q.force = PB_FORCE_TWO_BODY);

@@ -123,7 +123,7 @@ static void list_detail_row(const pb_problem *p)
     printf("| %s | %s | %.10g |", p->name, p->units == PB_UNITS_KM_S ? "km-s" : "normalized",
            p->mu);
     list_cell(p->body_radius > 0 ? p->body_radius : (double)NAN, " %.10g |");
-    list_cell(p->j2 != 0 ? p->j2 : (double)NAN, " %.9g |");
+    list_cell(p->forces.jn[2] != 0 ? p->forces.jn[2] : (double)NAN, " %.9g |");
     printf(" %s |", list_force(p->force));
     if (kep) {
         list_cell(el.a, " %.10g |");

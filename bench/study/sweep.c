@@ -90,11 +90,12 @@ void pb_sweep_identity(const pb_case_list *list, char *out, size_t outlen)
         /* what the id does not show: the problem's own numbers and the
          * settings that change results, so edited inputs do not merge */
         const pb_problem *p = &c->problem;
-        double nums[] = {p->mu, p->body_radius, p->j2, p->t0, p->r0[0], p->r0[1], p->r0[2],
+        double nums[] = {p->mu, p->body_radius, p->t0, p->r0[0], p->r0[1], p->r0[2],
                          p->v0[0], p->v0[1], p->v0[2], c->eval_cost_us};
         int ints[] = {p->force, p->units, c->repeats, c->linear_samples, c->compensated};
         h = pb_fnv1a64(h, nums, sizeof nums);
         h = pb_fnv1a64(h, ints, sizeof ints);
+        h = pb_forces_hash(h, &p->forces);
         h = pb_fnv1a64(h, &c->max_steps, sizeof c->max_steps);
         /* a plug-in method: its file's bytes, so a rebuilt plug-in does not merge */
         const pb_method_origin *pl = pb_method_origin_of(c->method);

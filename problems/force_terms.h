@@ -1,0 +1,35 @@
+/* force_terms.h - a problem made of the central attraction and the terms of
+ * forces.h: its acceleration, energy and angular momentum in double, and the
+ * same force in __float128 for the reference trajectory
+ * (force_terms_quad.c). */
+#ifndef PB_FORCE_TERMS_H
+#define PB_FORCE_TERMS_H
+
+#include "problem.h"
+#include "twobody.h"
+
+int pb_forces_accel(const pb_problem *p, double t, const double *r, const double *v, double *a);
+/* Energy of the conservative terms (two-body, zonal, gamma/r^2). */
+double pb_forces_energy(const pb_problem *p, double t, const double *r, const double *v);
+double pb_forces_hz(const pb_problem *p, const double *r, const double *v);
+double pb_forces_h(const pb_problem *p, const double *r, const double *v);
+
+/* Fill p with a central-body problem (dim 3) of parameter mu and body radius
+ * radius plus the terms f (copied); with no terms it is the plain two-body
+ * problem with its exact solution. Terms make the exact solution NULL (a
+ * reference is built), the force velocity-dependent with drag, and the
+ * invariants measured against the truth with dissipative terms. */
+void pb_problem_init_forces(pb_problem *p, const char *name, const char *description,
+                            pb_units units, double mu, double radius, const pb_forces *f,
+                            const double *r0, const double *v0);
+
+/* The acceleration of p in __float128 into dy[3..5] (dy[0..2] = v), y = (r, v).
+ * PB_EINVAL when p's force has no __float128 form (a force this file does not
+ * know is refused, never integrated as two-body). */
+int pb_forces_deriv_q(const pb_problem *p, __float128 t, const __float128 *y, __float128 *dy);
+/* Whether p's force has a __float128 form. */
+int pb_forces_have_quad(const pb_problem *p);
+/* Shadow boundary functions at (t, r) (positive in sunlight); how many. */
+int pb_forces_events_q(const pb_problem *p, __float128 t, const __float128 *r, __float128 *g);
+
+#endif

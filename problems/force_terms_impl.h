@@ -1,0 +1,302 @@
+/* force_terms_impl.h - every force term, written once for a real type FT_REAL
+ * and included by force_terms.c (double, for the methods) and by
+ * force_terms_quad.c (__float128, for the reference trajectory), so that the
+ * truth follows exactly the model the methods integrate. The includer defines
+ * FT_REAL, FT_SUF and the math macros FT_SQRT, FT_EXP, FT_SIN, FT_COS, FT_ASIN,
+ * FT_ACOS, FT_FABS and FT_PI. Constants are double literals in both
+ * instantiations, so both evaluate the same model. */
+#include "problem.h"
+
+#define FT_CAT2(a, b) a##b
+#define FT_CAT(a, b) FT_CAT2(a, b)
+#define FT_FN(name) FT_CAT(name, FT_SUF)
+/* each includer uses a different subset */
+#define FT_API static __attribute__((unused))
+
+FT_API FT_REAL FT_FN(ft_dot)(const FT_REAL *a, const FT_REAL *b)
+{
+    return a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
+}
+
+/* Zonal harmonics J2..J_deg of the potential energy per unit mass
+ * V = (mu/r) sum_n J_n (R/r)^n P_n(s), s = z/r (Vallado 4th ed. Sec. 8.6;
+ * Montenbruck & Gill Sec. 3.2). With V_n = mu J_n R^n r^-(n+1) P_n(s),
+ * a = -grad V_n = mu J_n R^n / r^(n+2) [((n+1) P_n + s P_n') r_hat - P_n' z_hat];
+ * P_n and P_n' by the Bonnet recurrence, P'_(n+1) = (n+1) P_n + s P'_n, which
+ * has no pole at s = +-1. Adds to a; *V (may be NULL) receives V. */
+FT_API void FT_FN(ft_zonal)(const pb_problem *p, const FT_REAL *r, FT_REAL *a, FT_REAL *V)
+{
+    const pb_forces *f = &p->forces;
+    FT_REAL r2 = FT_FN(ft_dot)(r, r), rn = FT_SQRT(r2), s = r[2] / rn;
+    FT_REAL mu = p->mu, q = (FT_REAL)p->body_radius / rn;
+    FT_REAL Pm = 1, P = s, dP = 1, qn = q, radial = 0, axial = 0, pot = 0;
+    for (int n = 1; n < f->zonal_degree; n++) {
+        FT_REAL Pn = ((FT_REAL)(2 * n + 1) * s * P - (FT_REAL)n * Pm) / (FT_REAL)(n + 1);
+        FT_REAL dPn = (FT_REAL)(n + 1) * P + s * dP;
+        Pm = P, P = Pn, dP = dPn;
+        qn *= q;
+        FT_REAL J = (FT_REAL)f->jn[n + 1] * qn;
+        radial += J * ((FT_REAL)(n + 2) * P + s * dP);
+        axial += J * dP;
+        pot += J * P;
+    }
+    FT_REAL c = mu / r2;
+    for (int i = 0; i < 3; i++)
+        a[i] += c * radial * r[i] / rn;
+    a[2] -= c * axial;
+    if (V)
+        *V = mu / rn * pot;
+}
+
+/* Exponential atmosphere, Vallado 4th ed. Table 8-4 (REFERENCES.md): base
+ * altitude h0 [km], density rho0 [kg/m^3], scale height H [km]. */
+static const double FT_FN(ft_atmosphere)[][3] = {
+    {0, 1.225, 7.249}, {25, 3.899e-2, 6.349}, {30, 1.774e-2, 6.682},
+    {40, 3.972e-3, 7.554}, {50, 1.057e-3, 8.382}, {60, 3.206e-4, 7.714},
+    {70, 8.770e-5, 6.549}, {80, 1.905e-5, 5.799}, {90, 3.396e-6, 5.382},
+    {100, 5.297e-7, 5.877}, {110, 9.661e-8, 7.263}, {120, 2.438e-8, 9.473},
+    {130, 8.484e-9, 12.636}, {140, 3.845e-9, 16.149}, {150, 2.070e-9, 22.523},
+    {180, 5.464e-10, 29.740}, {200, 2.789e-10, 37.105}, {250, 7.248e-11, 45.546},
+    {300, 2.418e-11, 53.628}, {350, 9.518e-12, 53.298}, {400, 3.725e-12, 58.515},
+    {450, 1.585e-12, 60.828}, {500, 6.967e-13, 63.822}, {600, 1.454e-13, 71.835},
+    {700, 3.614e-14, 88.667}, {800, 1.170e-14, 124.64}, {900, 5.245e-15, 181.05},
+    {1000, 3.019e-15, 268.00},
+};
+
+/* Density [kg/m^3] at altitude h [km] above the body's sphere: the row with
+ * the largest base at or below h (the first row below 0, the last above). */
+FT_API FT_REAL FT_FN(ft_density)(FT_REAL h)
+{
+    const int rows = (int)(sizeof FT_FN(ft_atmosphere) / sizeof FT_FN(ft_atmosphere)[0]);
+    int k = 0;
+    while (k + 1 < rows && h >= (FT_REAL)FT_FN(ft_atmosphere)[k + 1][0])
+        k++;
+    const double *row = FT_FN(ft_atmosphere)[k];
+    return (FT_REAL)row[1] * FT_EXP(-(h - (FT_REAL)row[0]) / (FT_REAL)row[2]);
+}
+
+/* Drag a = -(1/2) rho (C_D A/m) |v_rel| v_rel with v_rel = v - omega x r
+ * (Vallado 4th ed. Sec. 8.6.2); rho B is per metre, speeds in km/s, so the
+ * result in km/s^2 carries a factor 1000. */
+FT_API void FT_FN(ft_drag)(const pb_problem *p, const FT_REAL *r, const FT_REAL *v, FT_REAL *a)
+{
+    const pb_forces *f = &p->forces;
+    FT_REAL w = f->body_rate;
+    FT_REAL vr[3] = {v[0] + w * r[1], v[1] - w * r[0], v[2]};
+    FT_REAL h = FT_SQRT(FT_FN(ft_dot)(r, r)) - (FT_REAL)p->body_radius;
+    FT_REAL k = -(FT_REAL)0.5 * (FT_REAL)1000 * FT_FN(ft_density)(h) * (FT_REAL)f->ballistic_m2_kg
+                * FT_SQRT(FT_FN(ft_dot)(vr, vr));
+    for (int i = 0; i < 3; i++)
+        a[i] += k * vr[i];
+}
+
+#define FT_DEG (FT_PI / (FT_REAL)180)
+#define FT_ARCSEC (FT_PI / (FT_REAL)648000)
+
+/* Ecliptic (longitude, latitude, distance) to equatorial coordinates by the
+ * obliquity of J2000 (rotation about x). */
+FT_API void FT_FN(ft_ecliptic_to_equatorial)(FT_REAL lon, FT_REAL lat, FT_REAL dist, FT_REAL *s)
+{
+    FT_REAL eps = (FT_REAL)PB_OBLIQUITY_J2000_DEG * FT_DEG, ce = FT_COS(eps), se = FT_SIN(eps);
+    FT_REAL x = dist * FT_COS(lon) * FT_COS(lat), y = dist * FT_SIN(lon) * FT_COS(lat);
+    FT_REAL z = dist * FT_SIN(lat);
+    s[0] = x;
+    s[1] = ce * y - se * z;
+    s[2] = se * y + ce * z;
+}
+
+/* Low-precision Sun, Montenbruck & Gill, Satellite Orbits (2000), Sec. 3.3.2,
+ * eqs. 3.43-3.45 (REFERENCES.md); T in Julian centuries TT from J2000. */
+FT_API void FT_FN(ft_sun)(FT_REAL days, FT_REAL *s)
+{
+    FT_REAL T = days / (FT_REAL)36525;
+    FT_REAL M = ((FT_REAL)357.5256 + (FT_REAL)35999.049 * T) * FT_DEG;
+    FT_REAL lon = (FT_REAL)282.9400 * FT_DEG + M
+                  + ((FT_REAL)6892 * FT_SIN(M) + (FT_REAL)72 * FT_SIN(2 * M)) * FT_ARCSEC;
+    FT_REAL dist = ((FT_REAL)149.619 - (FT_REAL)2.499 * FT_COS(M) - (FT_REAL)0.021 * FT_COS(2 * M))
+                   * (FT_REAL)1e6;
+    FT_FN(ft_ecliptic_to_equatorial)(lon, 0, dist, s);
+}
+
+/* Low-precision Moon, Montenbruck & Gill (2000), eqs. 3.47-3.49 (as
+ * REFERENCES.md gives them: 22640" and D = 297.85027, not the typo'd copies). */
+FT_API void FT_FN(ft_moon)(FT_REAL days, FT_REAL *s)
+{
+    FT_REAL T = days / (FT_REAL)36525;
+    FT_REAL L0 = ((FT_REAL)218.31617 + (FT_REAL)481267.88088 * T - (FT_REAL)1.3972 * T) * FT_DEG;
+    FT_REAL l = ((FT_REAL)134.96292 + (FT_REAL)477198.86753 * T) * FT_DEG;
+    FT_REAL lp = ((FT_REAL)357.52543 + (FT_REAL)35999.04944 * T) * FT_DEG;
+    FT_REAL F = ((FT_REAL)93.27283 + (FT_REAL)483202.01873 * T) * FT_DEG;
+    FT_REAL D = ((FT_REAL)297.85027 + (FT_REAL)445267.11135 * T) * FT_DEG;
+    FT_REAL dl = (FT_REAL)22640 * FT_SIN(l) + (FT_REAL)769 * FT_SIN(2 * l)
+                 - (FT_REAL)4586 * FT_SIN(l - 2 * D) + (FT_REAL)2370 * FT_SIN(2 * D)
+                 - (FT_REAL)668 * FT_SIN(lp) - (FT_REAL)412 * FT_SIN(2 * F)
+                 - (FT_REAL)212 * FT_SIN(2 * l - 2 * D) - (FT_REAL)206 * FT_SIN(l + lp - 2 * D)
+                 + (FT_REAL)192 * FT_SIN(l + 2 * D) - (FT_REAL)165 * FT_SIN(lp - 2 * D)
+                 + (FT_REAL)148 * FT_SIN(l - lp) - (FT_REAL)125 * FT_SIN(D)
+                 - (FT_REAL)110 * FT_SIN(l + lp) - (FT_REAL)55 * FT_SIN(2 * F - 2 * D);
+    FT_REAL lon = L0 + dl * FT_ARCSEC;
+    FT_REAL lat = (FT_REAL)18520 * FT_SIN(F + lon - L0 + ((FT_REAL)412 * FT_SIN(2 * F)
+                                                         + (FT_REAL)541 * FT_SIN(lp)) * FT_ARCSEC)
+                  - (FT_REAL)526 * FT_SIN(F - 2 * D) + (FT_REAL)44 * FT_SIN(l + F - 2 * D)
+                  - (FT_REAL)31 * FT_SIN(-l + F - 2 * D) - (FT_REAL)25 * FT_SIN(-2 * l + F)
+                  - (FT_REAL)23 * FT_SIN(lp + F - 2 * D) + (FT_REAL)21 * FT_SIN(-l + F)
+                  + (FT_REAL)11 * FT_SIN(-lp + F - 2 * D);
+    FT_REAL dist = (FT_REAL)385000 - (FT_REAL)20905 * FT_COS(l) - (FT_REAL)3699 * FT_COS(2 * D - l)
+                   - (FT_REAL)2956 * FT_COS(2 * D) - (FT_REAL)570 * FT_COS(2 * l)
+                   + (FT_REAL)246 * FT_COS(2 * l - 2 * D) - (FT_REAL)205 * FT_COS(lp - 2 * D)
+                   - (FT_REAL)171 * FT_COS(l + 2 * D) - (FT_REAL)152 * FT_COS(l + lp - 2 * D);
+    FT_FN(ft_ecliptic_to_equatorial)(lon, lat * FT_ARCSEC, dist, s);
+}
+
+/* The user's circular third body at time t. */
+FT_API void FT_FN(ft_circular)(const pb_circular_body *c, FT_REAL t, FT_REAL *s)
+{
+    FT_REAL u = (FT_REAL)c->u0 + (FT_REAL)c->rate * t;
+    FT_REAL x = (FT_REAL)c->radius * FT_COS(u), y = (FT_REAL)c->radius * FT_SIN(u);
+    FT_REAL ci = FT_COS((FT_REAL)c->i), si = FT_SIN((FT_REAL)c->i);
+    FT_REAL cO = FT_COS((FT_REAL)c->raan), sO = FT_SIN((FT_REAL)c->raan);
+    s[0] = cO * x - sO * ci * y;
+    s[1] = sO * x + cO * ci * y;
+    s[2] = si * y;
+}
+
+/* A third body of parameter mu_b at s, direct and indirect terms together in
+ * Battin's form (Battin 1987, Sec. 8.4, eq. 8.60): a = -mu_b/d^3 (r + F(q) s),
+ * d = |s - r|, q = r.(r - 2s)/s^2, F(q) = q (3 + 3q + q^2)/(1 + (1 + q)^(3/2)),
+ * which avoids the cancellation of mu_b((s - r)/d^3 - s/s^3) for far bodies. */
+FT_API void FT_FN(ft_third_body)(FT_REAL mu_b, const FT_REAL *s, const FT_REAL *r, FT_REAL *a)
+{
+    FT_REAL d[3] = {s[0] - r[0], s[1] - r[1], s[2] - r[2]};
+    FT_REAL rm2s[3] = {r[0] - 2 * s[0], r[1] - 2 * s[1], r[2] - 2 * s[2]};
+    FT_REAL q = FT_FN(ft_dot)(r, rm2s) / FT_FN(ft_dot)(s, s);
+    FT_REAL q1 = 1 + q, F = q * (3 + 3 * q + q * q) / (1 + q1 * FT_SQRT(q1));
+    FT_REAL d2 = FT_FN(ft_dot)(d, d), k = -mu_b / (d2 * FT_SQRT(d2));
+    for (int i = 0; i < 3; i++)
+        a[i] += k * (r[i] + F * s[i]);
+}
+
+/* Shadow boundary functions at r for the Sun at s, positive in sunlight:
+ * g[0] crosses zero at penumbra entry (conical) or at the shadow cylinder's
+ * wall (cylindrical), g[1] at umbra entry (conical only). Montenbruck & Gill
+ * Sec. 3.4.2: apparent radii a (Sun) and b (body), separation c. Returns how
+ * many functions the model has. Also the visible fraction into *nu. */
+FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REAL *r,
+                            FT_REAL *g, FT_REAL *nu)
+{
+    *nu = 1;
+    if (model == PB_SHADOW_CYLINDRICAL) {
+        FT_REAL sn = FT_SQRT(FT_FN(ft_dot)(s, s)), along = FT_FN(ft_dot)(r, s) / sn;
+        FT_REAL rr = FT_FN(ft_dot)(r, r), perp = FT_SQRT(FT_FABS(rr - along * along));
+        /* on the sunlit side the distance from the body's centre stands in:
+         * equal to perp where along = 0, so g is continuous */
+        g[0] = along < 0 ? perp - R : FT_SQRT(rr) - R;
+        *nu = g[0] < 0 ? 0 : 1;
+        return 1;
+    }
+    if (model != PB_SHADOW_CONICAL)
+        return 0;
+    FT_REAL d[3] = {s[0] - r[0], s[1] - r[1], s[2] - r[2]};
+    FT_REAL dn = FT_SQRT(FT_FN(ft_dot)(d, d)), rn = FT_SQRT(FT_FN(ft_dot)(r, r));
+    FT_REAL sa = FT_ASIN((FT_REAL)PB_SUN_RADIUS_KM / dn), sb = FT_ASIN(R / rn);
+    FT_REAL cc = -FT_FN(ft_dot)(r, d) / (rn * dn);
+    cc = cc > 1 ? 1 : cc < -1 ? -1 : cc;
+    FT_REAL c = FT_ACOS(cc);
+    g[0] = c - (sa + sb);
+    g[1] = c - FT_FABS(sb - sa);
+    if (g[0] >= 0) {
+        *nu = 1;
+    } else if (g[1] <= 0) {
+        /* inside the umbra, or the body lies within the Sun's disc (annular) */
+        *nu = sb >= sa ? 0 : 1 - (sb * sb) / (sa * sa);
+    } else {
+        FT_REAL x = (c * c + sa * sa - sb * sb) / (2 * c), y2 = sa * sa - x * x;
+        FT_REAL y = FT_SQRT(y2 > 0 ? y2 : 0);
+        FT_REAL xa = x / sa, xb = (c - x) / sb;
+        xa = xa > 1 ? 1 : xa < -1 ? -1 : xa;
+        xb = xb > 1 ? 1 : xb < -1 ? -1 : xb;
+        FT_REAL A = sa * sa * FT_ACOS(xa) + sb * sb * FT_ACOS(xb) - c * y;
+        *nu = 1 - A / (FT_PI * sa * sa);
+    }
+    return 2;
+}
+
+/* Cannonball radiation pressure a = nu P (AU/|d|)^2 C_R (A/m) d_hat, d from
+ * the Sun to the satellite (Montenbruck & Gill Sec. 3.4); N/m^2 times m^2/kg
+ * is m/s^2, hence the 1e-3 for km/s^2. */
+FT_API void FT_FN(ft_srp)(const pb_problem *p, const FT_REAL *sun, const FT_REAL *r, FT_REAL *a)
+{
+    const pb_forces *f = &p->forces;
+    FT_REAL g[2], nu = 1;
+    FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, g, &nu);
+    if (nu <= 0)
+        return;
+    FT_REAL d[3] = {r[0] - sun[0], r[1] - sun[1], r[2] - sun[2]};
+    FT_REAL d2 = FT_FN(ft_dot)(d, d), au = (FT_REAL)PB_AU_KM;
+    FT_REAL k = nu * (FT_REAL)PB_SRP_1AU_N_M2 * (FT_REAL)1e-3 * (FT_REAL)f->cr
+                * (FT_REAL)f->srp_area_mass_m2_kg * au * au / (d2 * FT_SQRT(d2));
+    for (int i = 0; i < 3; i++)
+        a[i] += k * d[i];
+}
+
+/* The whole acceleration of a central-body problem at (t, r, v): the
+ * inverse-square attraction and every term of p->forces. */
+FT_API void FT_FN(ft_accel)(const pb_problem *p, FT_REAL t, const FT_REAL *r, const FT_REAL *v,
+                            FT_REAL *a)
+{
+    const pb_forces *f = &p->forces;
+    FT_REAL r2 = FT_FN(ft_dot)(r, r), rn = FT_SQRT(r2);
+    FT_REAL c = -(FT_REAL)p->mu / (r2 * rn);
+    if (f->inverse_cube_gamma != 0)
+        c -= 2 * (FT_REAL)f->inverse_cube_gamma / (r2 * r2);
+    for (int i = 0; i < 3; i++)
+        a[i] = c * r[i];
+    if (f->zonal_degree >= 2)
+        FT_FN(ft_zonal)(p, r, a, NULL);
+    if (f->drag)
+        FT_FN(ft_drag)(p, r, v, a);
+    FT_REAL days = (FT_REAL)f->epoch_days + t / (FT_REAL)86400, sun[3];
+    if (f->sun || f->srp_area_mass_m2_kg > 0)
+        FT_FN(ft_sun)(days, sun);
+    if (f->sun)
+        FT_FN(ft_third_body)((FT_REAL)PB_GM_SUN, sun, r, a);
+    if (f->moon) {
+        FT_REAL moon[3];
+        FT_FN(ft_moon)(days, moon);
+        FT_FN(ft_third_body)((FT_REAL)PB_GM_MOON, moon, r, a);
+    }
+    if (f->circular) {
+        FT_REAL s[3];
+        FT_FN(ft_circular)(&f->circ, t, s);
+        FT_FN(ft_third_body)((FT_REAL)f->circ.mu, s, r, a);
+    }
+    if (f->srp_area_mass_m2_kg > 0)
+        FT_FN(ft_srp)(p, sun, r, a);
+}
+
+/* Circular restricted three-body problem in the rotating frame (Hairer,
+ * Norsett & Wanner, Solving ODEs I, Sec. II.0, extended to 3-D). */
+FT_API void FT_FN(ft_cr3bp)(const pb_problem *p, const FT_REAL *r, const FT_REAL *v, FT_REAL *a)
+{
+    FT_REAL mu = p->mu, mu1 = 1 - mu;
+    FT_REAL x1 = r[0] + mu, x2 = r[0] - mu1, yz2 = r[1] * r[1] + r[2] * r[2];
+    FT_REAL d1 = x1 * x1 + yz2, d2 = x2 * x2 + yz2;
+    d1 *= FT_SQRT(d1);
+    d2 *= FT_SQRT(d2);
+    FT_REAL g = mu1 / d1 + mu / d2;
+    a[0] = r[0] + 2 * v[1] - mu1 * x1 / d1 - mu * x2 / d2;
+    a[1] = r[1] - 2 * v[0] - g * r[1];
+    a[2] = -g * r[2];
+}
+
+/* The shadow boundary functions at (t, r) for the reference's event
+ * location; returns how many (0 without radiation pressure and shadow). */
+FT_API int FT_FN(ft_shadow_events)(const pb_problem *p, FT_REAL t, const FT_REAL *r, FT_REAL *g)
+{
+    const pb_forces *f = &p->forces;
+    if (!(f->srp_area_mass_m2_kg > 0) || f->shadow == PB_SHADOW_NONE)
+        return 0;
+    FT_REAL sun[3], nu;
+    FT_FN(ft_sun)((FT_REAL)f->epoch_days + t / (FT_REAL)86400, sun);
+    return FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, g, &nu);
+}
