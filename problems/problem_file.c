@@ -1,7 +1,8 @@
 /* problem_file.c - reads user problem files (INI through inih, one case per
  * "[case NAME]" section) into problems, validating every key; the checks of
- * a finished case are in problem_file_case.c. Lines are counted by our own
- * reader so every message names file, line and key. */
+ * a finished case are in problem_file_case.c, those of its force terms in
+ * problem_file_forces.c. Lines are counted by our own reader so every
+ * message names file, line and key. */
 #include <ctype.h>
 #include <errno.h>
 #include <math.h>
@@ -13,6 +14,7 @@
 #include <ini.h>
 #include "problem_file.h"
 #include "problem_file_case.h"
+#include "problem_file_forces.h"
 #include "bodies.h"
 
 /* inih keeps at most MAX_SECTION - 1 = 49 characters between the brackets
@@ -26,7 +28,11 @@ const char *const pb_problem_file_keys[K_COUNT + 1] = {
     [K_UNITS] = "units", [K_MU] = "mu", [K_BODY] = "body", [K_FORCE] = "force",
     [K_A] = "a", [K_E] = "e", [K_I] = "i_deg", [K_RAAN] = "raan_deg", [K_ARGP] = "argp_deg",
     [K_NU] = "nu_deg", [K_R] = "r", [K_V] = "v", [K_ORBITS] = "orbits",
-    [K_HORIZON] = "horizon_s", [K_RADIUS] = "radius", [K_J2] = "j2", [K_DESC] = "description",
+    [K_HORIZON] = "horizon_s", [K_RADIUS] = "radius", [K_J2] = "j2", [K_J3] = "j3", [K_J4] = "j4",
+    [K_J5] = "j5", [K_J6] = "j6", [K_ZONAL] = "zonal_degree", [K_GAMMA] = "r2_potential_gamma",
+    [K_DRAG] = "drag", [K_BALLISTIC] = "ballistic_m2_kg", [K_THIRD] = "third_bodies",
+    [K_EPOCH] = "epoch", [K_CIRC] = "third_body_circular", [K_SRP] = "srp_area_mass_m2_kg",
+    [K_CR] = "cr", [K_SHADOW] = "shadow", [K_MAN] = "manoeuvres", [K_DESC] = "description",
     [K_COUNT] = NULL
 };
 
@@ -47,6 +53,7 @@ typedef struct pf_ctx {
     int hdr_line;             /* line of the latest header seen by the reader */
     int hdr_keys;             /* keys handled since that header */
     char hdr_text[80];        /* its text between the brackets, for messages */
+    char raw[256];            /* the current line as read, before inih cuts comments */
 } pf_ctx;
 
 static void pf_fail(pf_ctx *c, int line, const char *key, const char *fmt, ...)
@@ -56,7 +63,7 @@ static void pf_fail(pf_ctx *c, int line, const char *key, const char *fmt, ...)
     if (c->failed)
         return;
     c->failed = PB_EINVAL;
-    char msg[512];
+    char msg[1024];  /* room for the unknown-key message's list of keys */
     va_list ap;
     va_start(ap, fmt);
     vsnprintf(msg, sizeof msg, fmt, ap);
@@ -124,6 +131,7 @@ static char *pf_reader(char *str, int num, void *stream)
         return NULL;
     }
     c->line++;
+    snprintf(c->raw, sizeof c->raw, "%s", s);
     size_t len = strlen(s);
     if (len == (size_t)num - 1 && s[len - 1] != '\n' && !feof(c->f)) {
         /* inih's line buffer is fixed: say so rather than misparse the rest */
@@ -235,6 +243,27 @@ static void pf_known_keys(char *buf, size_t len)
     }
 }
 
+/* inih ends a value at " ;" (an inline comment), so "1 0 0.1 0 ; 2 0 0.1 0"
+ * would silently lose its second manoeuvre: a comment that reads like more
+ * entries is refused. */
+static void pf_check_cut_list(pf_ctx *c, const char *key, const char *val)
+{
+    const char *eq = strchr(c->raw, '=');
+    const char *at = eq ? strstr(eq, val) : NULL;
+    if (!at || !*val)
+        return;
+    const char *q = at + strlen(val);
+    while (*q == ' ' || *q == '\t')
+        q++;
+    if (*q != ';')
+        return;
+    for (q++; *q == ' ' || *q == '\t'; q++)
+        ;
+    if (isdigit((unsigned char)*q) || *q == '+' || *q == '-' || *q == '.')
+        pf_fail(c, c->line, key, "' ;' starts a comment, which would drop the entries after it ('%.*s'); "
+                "write 't dv_r dv_t dv_n; t ...' with no blank before each ';'", (int)strcspn(q, "\r\n"), q);
+}
+
 static int pf_finish(pf_ctx *c);
 
 static int pf_handler(void *user, const char *section, const char *key, const char *val)
@@ -261,7 +290,7 @@ static int pf_handler(void *user, const char *section, const char *key, const ch
     while (k < K_COUNT && strcmp(pb_problem_file_keys[k], key) != 0)
         k++;
     if (k == K_COUNT) {
-        char known[512];
+        char known[768];
         pf_known_keys(known, sizeof known);
         pf_fail(c, c->line, key, "unknown key (known: %s)", known);
         return 1;
@@ -283,9 +312,18 @@ static int pf_handler(void *user, const char *section, const char *key, const ch
         break;
     case K_BODY:
         if (!pb_body_find(val))
-            pf_fail(c, c->line, key, "unknown body '%s' (known: earth)", val);
+            pf_fail(c, c->line, key, "unknown body '%s' (known: %s)", val, pb_body_names());
         break;
     case K_DESC:
+        break;
+    case K_DRAG:
+    case K_THIRD:
+    case K_EPOCH:
+    case K_CIRC:
+    case K_SHADOW:
+        break;  /* read and checked with the case (problem_file_forces.c) */
+    case K_MAN:
+        pf_check_cut_list(c, key, val);
         break;
     case K_R:
     case K_V:
@@ -303,7 +341,8 @@ static int pf_handler(void *user, const char *section, const char *key, const ch
 static int pf_finish(pf_ctx *c)
 {
     c->have_cur = 0;
-    if (pb_problem_file_case(&c->cur, c->path, &c->out[c->n], c->err, c->errlen, c->warn)) {
+    if (pb_problem_file_case(&c->cur, c->path, &c->out[c->n], c->err, c->errlen, c->warn) ||
+        pb_problem_file_forces(&c->cur, c->path, &c->out[c->n], c->err, c->errlen, c->warn)) {
         c->failed = PB_EINVAL;
         return -1;
     }

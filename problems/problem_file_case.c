@@ -1,13 +1,13 @@
 /* problem_file_case.c - the checks that make one case of a problem file a
  * problem: its central body, its initial state (classical elements or r and
- * v) and its horizon, each failure naming the file, the line and the key. */
+ * v) and its horizon, each failure naming the file, the line and the key;
+ * its force terms are problem_file_forces.c's. */
 #include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <string.h>
 #include "problem_file_case.h"
 #include "bodies.h"
-#include "j2.h"
 #include "twobody.h"
 
 #define DEG (M_PI / 180.0)
@@ -32,23 +32,8 @@
 #define PF_HORIZON_MIN 1e-3
 #define PF_HORIZON_MAX 1e8
 
-/* largest |angle| in degrees still reduced modulo 360 to better than 1e-7 deg */
-#define PF_ANGLE_MAX 1e9
-
-/* Where a case's checks report: one failure (the first ends the checks),
- * and any number of warnings. */
-typedef struct pf_build {
-    pf_case *cs;
-    const char *path;
-    char *err;
-    size_t errlen;
-    void (*warn)(const char *msg);  /* may be NULL */
-} pf_build;
-
-/* A failure about key k: at k's line, or at the case's header when k was
- * not given. Returns -1, for the caller to return. */
-static int pf_fail_key(pf_build *b, int k, const char *fmt, ...) __attribute__((format(printf, 3, 4)));
-static int pf_fail_key(pf_build *b, int k, const char *fmt, ...)
+/* Shared with problem_file_forces.c, hence not static. */
+int pf_fail_key(pf_build *b, int k, const char *fmt, ...)
 {
     const pf_case *cs = b->cs;
     char msg[512];
@@ -80,14 +65,13 @@ static int pf_first_element_key(const pf_case *cs)
 typedef struct pf_central {
     const pb_body *body;      /* NULL: none named */
     pb_units units;
-    double mu, radius, j2;
-    int with_j2;              /* force = j2 */
+    double mu, radius;        /* radius 0: none known */
     double len0;              /* the radius if known, else 1 unit */
     const char *len0_what;
 } pf_central;
 
-/* Units, mu, radius and J2 of the case being finished, from its body or its
- * own keys; -1 after a failure. */
+/* Units, mu and radius of the case being finished, from its body or its
+ * own keys; -1 after a failure. (Its zonal terms are problem_file_forces.c's.) */
 static int pf_finish_central(pf_build *b, pf_central *cb)
 {
     const pf_case *cs = b->cs;
@@ -113,7 +97,6 @@ static int pf_finish_central(pf_build *b, pf_central *cb)
     if (!(cb->mu >= PF_MU_MIN && cb->mu <= PF_MU_MAX))
         return pf_fail_key(b, K_MU, "mu must be within [%g, %g] (got %g)", PF_MU_MIN, PF_MU_MAX, cb->mu);
     cb->radius = cb->body ? cb->body->radius : 0.0;
-    cb->j2 = cb->body ? cb->body->jn[2] : 0.0;
     if (L[K_RADIUS]) {
         cb->radius = cs->num[K_RADIUS];
         if (!(cb->radius > 0))
@@ -122,13 +105,6 @@ static int pf_finish_central(pf_build *b, pf_central *cb)
             return pf_fail_key(b, K_RADIUS, "radius must be within [%g, %g] (got %g)", PF_RADIUS_MIN,
                                PF_RADIUS_MAX, cb->radius);
     }
-    if (L[K_J2])
-        cb->j2 = cs->num[K_J2];
-    cb->with_j2 = L[K_FORCE] && strcmp(cs->str[K_FORCE], "j2") == 0;
-    if (cb->with_j2 && !(cb->radius > 0))
-        return pf_fail_key(b, K_RADIUS, "missing in case '%s' (force = j2 needs body or radius and j2)", cs->name);
-    if (cb->with_j2 && !L[K_J2] && !cb->body)
-        return pf_fail_key(b, K_J2, "missing in case '%s' (force = j2 needs body or radius and j2)", cs->name);
     cb->len0 = cb->radius > 0 ? cb->radius : 1.0;
     cb->len0_what = cb->radius > 0 ? "the body's radius" : "the unit length";
     return 0;
@@ -297,14 +273,6 @@ static void pf_warn_suspicious(pf_build *b, const pf_central *cb, double rp)
                  "surface (radius %.3f%s)", b->path, cs->line, cs->name, rp, lu, cb->radius, lu);
         b->warn(msg);
     }
-    /* J2 is about 1e-3 for the Earth and of that order for planets (common
-     * practice); anything outside (0, 0.1) is most likely a typing error */
-    if (cb->with_j2 && !(cb->j2 > 0 && cb->j2 < 0.1)) {
-        char msg[512];
-        snprintf(msg, sizeof msg, "%s:%d: case '%s': j2 = %g is outside (0, 0.1); is it "
-                 "unnormalized?", b->path, cs->kline[K_J2] ? cs->kline[K_J2] : cs->line, cs->name, cb->j2);
-        b->warn(msg);
-    }
 }
 
 int pb_problem_file_case(pf_case *cs, const char *path, pb_problem *p, char *err, size_t errlen,
@@ -316,13 +284,8 @@ int pb_problem_file_case(pf_case *cs, const char *path, pb_problem *p, char *err
     if (pf_finish_central(&b, &cb) || pf_finish_state(&b, &cb, r0, v0, &rp))
         return PB_EINVAL;
     const char *desc = cs->kline[K_DESC] ? cs->str[K_DESC] : "user problem";
-    if (cb.with_j2) {
-        pb_problem_init_j2(p, cs->name, desc, cb.mu, cb.radius, cb.j2, r0, v0);
-        p->units = cb.units;
-    } else {
-        pb_problem_init_twobody(p, cs->name, desc, cb.units, cb.mu, r0, v0);
-        p->body_radius = cb.radius;
-    }
+    pb_problem_init_twobody(p, cs->name, desc, cb.units, cb.mu, r0, v0);
+    p->body_radius = cb.radius;
     if (pf_finish_horizon(&b, p, cb.mu, rp))
         return PB_EINVAL;
     pf_warn_suspicious(&b, &cb, rp);
