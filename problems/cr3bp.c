@@ -6,7 +6,6 @@
 #include <stdio.h>
 #include <string.h>
 #include "cr3bp.h"
-#include "force_terms.h"
 
 double pb_cr3bp_jacobi(const pb_problem *p, double t, const double *r, const double *v)
 {

@@ -24,7 +24,7 @@
 
 int pb_forces_accel(const pb_problem *p, double t, const double *r, const double *v, double *a)
 {
-    ft_accel_d(p, t, r, v, a);
+    ft_accel_d(p, t, r, v, FT_REGION_GEOMETRY, a);
     return isfinite(a[0]) && isfinite(a[1]) && isfinite(a[2]) ? PB_OK : PB_ENONFINITE;
 }
 
@@ -112,7 +112,7 @@ void pb_moon_position(double days, double *s) { ft_moon_d(days, s); }
 double pb_shadow_fraction(int model, double R, const double *s, const double *r)
 {
     double g[2], nu = 1;
-    ft_shadow_d(model, R, s, r, g, &nu);
+    ft_shadow_d(model, R, s, r, FT_REGION_GEOMETRY, g, &nu);
     return nu;
 }
 

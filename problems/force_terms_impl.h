@@ -180,8 +180,13 @@ FT_API void FT_FN(ft_third_body)(FT_REAL mu_b, const FT_REAL *s, const FT_REAL *
  * g[0] crosses zero at penumbra entry (conical) or at the shadow cylinder's
  * wall (cylindrical), g[1] at umbra entry (conical only). Montenbruck & Gill
  * Sec. 3.4.2: apparent radii a (Sun) and b (body), separation c. Returns how
- * many functions the model has. Also the visible fraction into *nu. */
-FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REAL *r,
+ * many functions the model has. The visible fraction goes into *nu: from the
+ * geometry when region is FT_REGION_GEOMETRY (the methods' force), else the
+ * formula of the given region (FT_REGION_SUN, _PENUMBRA, _UMBRA) wherever r
+ * is, which is smooth: the reference integrates each region with its own
+ * formula between located boundaries. */
+enum { FT_REGION_GEOMETRY = -1, FT_REGION_SUN = 0, FT_REGION_PENUMBRA = 1, FT_REGION_UMBRA = 2 };
+FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REAL *r, int region,
                             FT_REAL *g, FT_REAL *nu)
 {
     *nu = 1;
@@ -191,7 +196,9 @@ FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REA
         /* on the sunlit side the distance from the body's centre stands in:
          * equal to perp where along = 0, so g is continuous */
         g[0] = along < 0 ? perp - R : FT_SQRT(rr) - R;
-        *nu = g[0] < 0 ? 0 : 1;
+        if (region == FT_REGION_GEOMETRY)
+            region = g[0] < 0 ? FT_REGION_UMBRA : FT_REGION_SUN;
+        *nu = region == FT_REGION_SUN ? 1 : 0;
         return 1;
     }
     if (model != PB_SHADOW_CONICAL)
@@ -204,12 +211,16 @@ FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REA
     FT_REAL c = FT_ACOS(cc);
     g[0] = c - (sa + sb);
     g[1] = c - FT_FABS(sb - sa);
-    if (g[0] >= 0) {
+    if (region == FT_REGION_GEOMETRY)
+        region = g[0] >= 0 ? FT_REGION_SUN : g[1] <= 0 ? FT_REGION_UMBRA : FT_REGION_PENUMBRA;
+    if (region == FT_REGION_SUN) {
         *nu = 1;
-    } else if (g[1] <= 0) {
+    } else if (region == FT_REGION_UMBRA) {
         /* inside the umbra, or the body lies within the Sun's disc (annular) */
         *nu = sb >= sa ? 0 : 1 - (sb * sb) / (sa * sa);
     } else {
+        /* the overlap of two discs; arguments clamped so that the formula
+         * stays defined a little outside the penumbra */
         FT_REAL x = (c * c + sa * sa - sb * sb) / (2 * c), y2 = sa * sa - x * x;
         FT_REAL y = FT_SQRT(y2 > 0 ? y2 : 0);
         FT_REAL xa = x / sa, xb = (c - x) / sb;
@@ -224,11 +235,12 @@ FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REA
 /* Cannonball radiation pressure a = nu P (AU/|d|)^2 C_R (A/m) d_hat, d from
  * the Sun to the satellite (Montenbruck & Gill Sec. 3.4); N/m^2 times m^2/kg
  * is m/s^2, hence the 1e-3 for km/s^2. */
-FT_API void FT_FN(ft_srp)(const pb_problem *p, const FT_REAL *sun, const FT_REAL *r, FT_REAL *a)
+FT_API void FT_FN(ft_srp)(const pb_problem *p, const FT_REAL *sun, const FT_REAL *r, int region,
+                          FT_REAL *a)
 {
     const pb_forces *f = &p->forces;
     FT_REAL g[2], nu = 1;
-    FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, g, &nu);
+    FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, region, g, &nu);
     if (nu <= 0)
         return;
     FT_REAL d[3] = {r[0] - sun[0], r[1] - sun[1], r[2] - sun[2]};
@@ -239,10 +251,26 @@ FT_API void FT_FN(ft_srp)(const pb_problem *p, const FT_REAL *sun, const FT_REAL
         a[i] += k * d[i];
 }
 
+/* Positions at t of the bodies whose place depends on time alone: [0] the
+ * Sun (for its attraction or its radiation), [1] the Moon, [2] the user's
+ * circular body; only those the problem has are set. */
+FT_API void FT_FN(ft_bodies)(const pb_problem *p, FT_REAL t, FT_REAL pos[3][3])
+{
+    const pb_forces *f = &p->forces;
+    FT_REAL days = (FT_REAL)f->epoch_days + t / (FT_REAL)86400;
+    if (f->sun || f->srp_area_mass_m2_kg > 0)
+        FT_FN(ft_sun)(days, pos[0]);
+    if (f->moon)
+        FT_FN(ft_moon)(days, pos[1]);
+    if (f->circular)
+        FT_FN(ft_circular)(&f->circ, t, pos[2]);
+}
+
 /* The whole acceleration of a central-body problem at (t, r, v): the
- * inverse-square attraction and every term of p->forces. */
-FT_API void FT_FN(ft_accel)(const pb_problem *p, FT_REAL t, const FT_REAL *r, const FT_REAL *v,
-                            FT_REAL *a)
+ * inverse-square attraction and every term of p->forces, with the bodies at
+ * pos (ft_bodies); region as for ft_shadow. */
+FT_API void FT_FN(ft_accel_at)(const pb_problem *p, const FT_REAL *r, const FT_REAL *v,
+                               int region, FT_REAL pos[3][3], FT_REAL *a)
 {
     const pb_forces *f = &p->forces;
     FT_REAL r2 = FT_FN(ft_dot)(r, r), rn = FT_SQRT(r2);
@@ -255,23 +283,22 @@ FT_API void FT_FN(ft_accel)(const pb_problem *p, FT_REAL t, const FT_REAL *r, co
         FT_FN(ft_zonal)(p, r, a, NULL);
     if (f->drag)
         FT_FN(ft_drag)(p, r, v, a);
-    FT_REAL days = (FT_REAL)f->epoch_days + t / (FT_REAL)86400, sun[3];
-    if (f->sun || f->srp_area_mass_m2_kg > 0)
-        FT_FN(ft_sun)(days, sun);
     if (f->sun)
-        FT_FN(ft_third_body)((FT_REAL)PB_GM_SUN, sun, r, a);
-    if (f->moon) {
-        FT_REAL moon[3];
-        FT_FN(ft_moon)(days, moon);
-        FT_FN(ft_third_body)((FT_REAL)PB_GM_MOON, moon, r, a);
-    }
-    if (f->circular) {
-        FT_REAL s[3];
-        FT_FN(ft_circular)(&f->circ, t, s);
-        FT_FN(ft_third_body)((FT_REAL)f->circ.mu, s, r, a);
-    }
+        FT_FN(ft_third_body)((FT_REAL)PB_GM_SUN, pos[0], r, a);
+    if (f->moon)
+        FT_FN(ft_third_body)((FT_REAL)PB_GM_MOON, pos[1], r, a);
+    if (f->circular)
+        FT_FN(ft_third_body)((FT_REAL)f->circ.mu, pos[2], r, a);
     if (f->srp_area_mass_m2_kg > 0)
-        FT_FN(ft_srp)(p, sun, r, a);
+        FT_FN(ft_srp)(p, pos[0], r, region, a);
+}
+
+FT_API void FT_FN(ft_accel)(const pb_problem *p, FT_REAL t, const FT_REAL *r, const FT_REAL *v,
+                            int region, FT_REAL *a)
+{
+    FT_REAL pos[3][3];
+    FT_FN(ft_bodies)(p, t, pos);
+    FT_FN(ft_accel_at)(p, r, v, region, pos, a);
 }
 
 /* Circular restricted three-body problem in the rotating frame (Hairer,
@@ -298,5 +325,5 @@ FT_API int FT_FN(ft_shadow_events)(const pb_problem *p, FT_REAL t, const FT_REAL
         return 0;
     FT_REAL sun[3], nu;
     FT_FN(ft_sun)((FT_REAL)f->epoch_days + t / (FT_REAL)86400, sun);
-    return FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, g, &nu);
+    return FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, FT_REGION_GEOMETRY, g, &nu);
 }

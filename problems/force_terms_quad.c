@@ -24,7 +24,8 @@ int pb_forces_have_quad(const pb_problem *p)
            p->accel == pb_twobody_accel;
 }
 
-int pb_forces_deriv_q(const pb_problem *p, __float128 t, const __float128 *y, __float128 *dy)
+int pb_forces_deriv_q(const pb_problem *p, __float128 t, const __float128 *y, int region,
+                      __float128 (*pos)[3], __float128 *dy)
 {
     if (!pb_forces_have_quad(p))
         return PB_EINVAL;
@@ -33,12 +34,34 @@ int pb_forces_deriv_q(const pb_problem *p, __float128 t, const __float128 *y, __
     dy[2] = y[5];
     if (p->accel == pb_cr3bp_accel)
         ft_cr3bp_q(p, y, y + 3, dy + 3);
+    else if (pos)
+        ft_accel_at_q(p, y, y + 3, region < 0 ? FT_REGION_GEOMETRY : region, pos, dy + 3);
     else
-        ft_accel_q(p, t, y, y + 3, dy + 3);
+        ft_accel_q(p, t, y, y + 3, region < 0 ? FT_REGION_GEOMETRY : region, dy + 3);
     return PB_OK;
 }
 
 int pb_forces_events_q(const pb_problem *p, __float128 t, const __float128 *r, __float128 *g)
 {
     return ft_shadow_events_q(p, t, r, g);
+}
+
+int pb_forces_region_q(const pb_problem *p, const __float128 *g)
+{
+    if (p->forces.shadow == PB_SHADOW_CYLINDRICAL)
+        return g[0] > 0 ? FT_REGION_SUN : FT_REGION_UMBRA;
+    if (p->forces.shadow == PB_SHADOW_CONICAL)
+        return g[0] > 0 ? FT_REGION_SUN : g[1] > 0 ? FT_REGION_PENUMBRA : FT_REGION_UMBRA;
+    return FT_REGION_GEOMETRY;
+}
+
+int pb_forces_timed_bodies(const pb_problem *p)
+{
+    const pb_forces *f = &p->forces;
+    return p->accel == pb_forces_accel && (f->sun || f->moon || f->circular || f->srp_area_mass_m2_kg > 0);
+}
+
+void pb_forces_bodies_q(const pb_problem *p, __float128 t, __float128 (*pos)[3])
+{
+    ft_bodies_q(p, t, pos);
 }

@@ -13,6 +13,7 @@
 #include "problems/files.h"
 #include "problems/hash.h"
 #include "problems/force_terms.h"
+#include "problems/ephemeris_fit.h"
 
 typedef __float128 ref_real;
 
@@ -23,14 +24,26 @@ typedef __float128 ref_real;
 #define REF_MAX_STEPS 20000000L
 #define REF_VERSION "pb-reference gbs20 float128 v2 forces"
 
-static void ref_deriv(const pb_problem *p, ref_real t, const ref_real *y, ref_real *dy)
+/* The force as the reference evaluates it: the problem, and the shadow
+ * region whose formula holds until the next located boundary. */
+typedef struct ref_force {
+    const pb_problem *p;
+    int region;
+    pb_ephemeris_fit *fit;  /* the time-only bodies over the current step (NULL: none) */
+} ref_force;
+
+static void ref_deriv(const ref_force *F, ref_real t, const ref_real *y, ref_real *dy)
 {
+    ref_real pos[3][3];
+    int fitted = F->fit && F->fit->on;
+    if (fitted)
+        pb_ephemeris_fit_at(F->fit, t, pos);
     /* pb_reference_propagate refuses a force with no __float128 form first */
-    (void)pb_forces_deriv_q(p, t, y, dy);
+    (void)pb_forces_deriv_q(F->p, t, y, F->region, fitted ? pos : NULL, dy);
 }
 
 /* Gragg's modified midpoint rule: m substeps of size H/m from y0 (f0 = f(y0)). */
-static void ref_midpoint(const pb_problem *p, ref_real t0, const ref_real *y0, const ref_real *f0,
+static void ref_midpoint(const ref_force *F, ref_real t0, const ref_real *y0, const ref_real *f0,
                          ref_real H, int m, ref_real *out)
 {
     ref_real h = H / m, zp[REF_N], z[REF_N], zn[REF_N], f[REF_N];
@@ -39,14 +52,14 @@ static void ref_midpoint(const pb_problem *p, ref_real t0, const ref_real *y0, c
         z[i] = y0[i] + h * f0[i];
     }
     for (int j = 1; j < m; j++) {
-        ref_deriv(p, t0 + j * h, z, f);
+        ref_deriv(F, t0 + j * h, z, f);
         for (int i = 0; i < REF_N; i++) {
             zn[i] = zp[i] + 2.0Q * h * f[i];
             zp[i] = z[i];
             z[i] = zn[i];
         }
     }
-    ref_deriv(p, t0 + H, z, f);
+    ref_deriv(F, t0 + H, z, f);
     for (int i = 0; i < REF_N; i++)
         out[i] = 0.5Q * (z[i] + zp[i] + h * f[i]);
 }
@@ -58,14 +71,16 @@ static ref_real ref_norm3(const ref_real *x)
 
 /* One extrapolated step of size H; y1 receives the result, the return value
  * is the scaled error estimate (relative to |r| and |v| separately). */
-static ref_real ref_step(const pb_problem *p, ref_real t0, const ref_real *y0, ref_real H,
+static ref_real ref_step(const ref_force *F, ref_real t0, const ref_real *y0, ref_real H,
                          ref_real *y1)
 {
     ref_real T[REF_K][REF_N], f0[REF_N];
-    ref_deriv(p, t0, y0, f0);
+    if (F->fit)
+        pb_ephemeris_fit_make(F->fit, F->p, t0, H);
+    ref_deriv(F, t0, y0, f0);
     for (int j = 0; j < REF_K; j++) {
         int nj = 2 * (j + 1);
-        ref_midpoint(p, t0, y0, f0, H, nj, T[j]);
+        ref_midpoint(F, t0, y0, f0, H, nj, T[j]);
         /* Aitken-Neville in place: T[j-k] becomes the k-times extrapolated value. */
         for (int k = 1; k <= j; k++) {
             int nk = 2 * (j - k + 1);
@@ -101,6 +116,7 @@ static int ref_finite(const ref_real *y)
  * boundary functions at the current state. */
 typedef struct ref_run {
     const pb_problem *p;
+    ref_force F;          /* p and the shadow region of the current state */
     ref_real t, y[REF_N], h, tol;
     long steps;
     int nev;
@@ -115,28 +131,88 @@ static int ref_crossed(const ref_real *g0, const ref_real *g1, int n)
     return 0;
 }
 
-/* A shadow boundary lies inside the accepted step of length H from w: find
- * the first crossing by bisection (each trial a step from w's state) to a
- * bracket of 1e-24 H, and land just past it, so that the next step starts on
- * the far side and no step ever integrates across the jump in the force. */
-static int ref_land_on_event(ref_run *w, ref_real H)
+/* The state and boundary functions at w->t + tau, by one step from w. */
+static int ref_trial(ref_run *w, ref_real tau, ref_real *y, ref_real *g, ref_real *err)
 {
-    ref_real lo = 0, hi = H, y1[REF_N], g1[2];
-    while (hi - lo > 1e-24Q * H) {
-        ref_real mid = 0.5Q * (lo + hi);
-        ref_step(w->p, w->t, w->y, mid, y1);
-        if (!ref_finite(y1))
-            return PB_ENONFINITE;
-        pb_forces_events_q(w->p, w->t + mid, y1, g1);
-        if (ref_crossed(w->g, g1, w->nev))
-            hi = mid;
-        else
-            lo = mid;
+    *err = ref_step(&w->F, w->t, w->y, tau, y);
+    if (!ref_finite(y))
+        return PB_ENONFINITE;
+    pb_forces_events_q(w->p, w->t + tau, y, g);
+    return PB_OK;
+}
+
+/* Where a boundary function changes sign within a step from w: the bracket
+ * [lo, hi] around it, the state at lo (and that step's error estimate) and
+ * every function's value at hi. */
+typedef struct ref_bracket {
+    ref_real lo, hi, y_lo[REF_N], err_lo, g_hi[2];
+} ref_bracket;
+
+/* Function j's crossing within (0, br->hi], by the Illinois variant of
+ * regula falsi (Dowell & Jarratt 1971) with a bisection every fourth trial
+ * as a safeguard, to a bracket of REF_EVENT_TOL * H. */
+#define REF_EVENT_TOL 1e-22Q
+static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_bracket *br)
+{
+    ref_real a = 0, b = br->hi, ga = w->g[j], gb = br->g_hi[j], y[REF_N], g[2], err;
+    memcpy(br->y_lo, w->y, sizeof br->y_lo);
+    br->err_lo = 0;
+    int side = 0;
+    for (int it = 0; b - a > REF_EVENT_TOL * H && it < 200; it++) {
+        ref_real m = (it % 4 == 3 || gb == ga) ? 0.5Q * (a + b) : (a * gb - b * ga) / (gb - ga);
+        if (!(m > a && m < b))
+            m = 0.5Q * (a + b);
+        int s = ref_trial(w, m, y, g, &err);
+        if (s)
+            return s;
+        if ((g[j] > 0) == (ga > 0)) {
+            a = m, ga = g[j];
+            memcpy(br->y_lo, y, sizeof y);
+            br->err_lo = err;
+            if (side == -1)
+                gb *= 0.5Q;  /* Illinois: the stale end's value is halved */
+            side = -1;
+        } else {
+            b = m, gb = g[j];
+            memcpy(br->g_hi, g, sizeof g);
+            if (side == 1)
+                ga *= 0.5Q;
+            side = 1;
+        }
     }
-    ref_step(w->p, w->t, w->y, hi, y1);
-    memcpy(w->y, y1, sizeof y1);
-    w->t += hi;
-    w->nev = pb_forces_events_q(w->p, w->t, w->y, w->g);
+    br->lo = a;
+    br->hi = b;
+    return PB_OK;
+}
+
+/* A shadow boundary lies inside the step of length H just tried from w (g1
+ * at its end): find the first crossing and stop just before it (within
+ * REF_EVENT_TOL of a step), then switch to the far side's region. Every step
+ * integrates one region's formula, which is smooth, so its error estimate
+ * means what it says (the steps' intermediate states would otherwise stray
+ * across a boundary they end near). A step too long to be accurate even
+ * before the boundary is shortened instead. The step size is kept for after
+ * the boundary. */
+static int ref_land_on_event(ref_run *w, ref_real H, const ref_real *g1)
+{
+    ref_bracket br = {.hi = H};
+    memcpy(br.g_hi, g1, sizeof br.g_hi);
+    memcpy(br.y_lo, w->y, sizeof br.y_lo);
+    for (int j = 0; j < w->nev; j++) {
+        if ((w->g[j] > 0) == (br.g_hi[j] > 0))
+            continue;  /* no crossing before the earliest one found so far */
+        int s = ref_find_crossing(w, j, H, &br);
+        if (s)
+            return s;
+    }
+    if (!(br.err_lo <= w->tol)) {
+        w->h = 0.5Q * br.lo;
+        return PB_OK;
+    }
+    memcpy(w->y, br.y_lo, sizeof br.y_lo);
+    memcpy(w->g, br.g_hi, sizeof br.g_hi);
+    w->F.region = pb_forces_region_q(w->p, w->g);
+    w->t += br.lo;
     return ++w->steps > REF_MAX_STEPS ? PB_EMAXSTEPS : PB_OK;
 }
 
@@ -150,18 +226,20 @@ static int ref_advance(ref_run *w, ref_real target)
         int last = H >= left;
         if (last)
             H = left;
-        ref_real err = ref_step(w->p, w->t, w->y, H, y1);
+        ref_real err = ref_step(&w->F, w->t, w->y, H, y1);
         if (!ref_finite(y1) || !finiteq(err))
             return PB_ENONFINITE;
+        /* a step across a shadow boundary is cut there, accurate or not: the
+         * error estimate of a step across a jump says nothing */
+        if (w->nev && (pb_forces_events_q(w->p, w->t + H, y1, g1), ref_crossed(w->g, g1, w->nev))) {
+            int s = ref_land_on_event(w, H, g1);
+            if (s)
+                return s;
+            continue;
+        }
         ref_real fac = err > 0 ? 0.9Q * powq(w->tol / err, expo) : 4.0Q;
         fac = fminq(4.0Q, fmaxq(0.2Q, fac));
         if (err <= w->tol) {
-            if (w->nev && (pb_forces_events_q(w->p, w->t + H, y1, g1), ref_crossed(w->g, g1, w->nev))) {
-                int s = ref_land_on_event(w, H);
-                if (s)
-                    return s;
-                continue;
-            }
             memcpy(w->y, y1, sizeof y1);
             memcpy(w->g, g1, sizeof g1);
             w->t = last ? target : w->t + H;
@@ -213,6 +291,10 @@ int pb_reference_propagate(const pb_problem *p, const double *times, int n,
     if (p->period > 0 && w.h > p->period / 50)
         w.h = p->period / 50;
     w.nev = pb_forces_events_q(p, w.t, w.y, w.g);
+    w.F.p = p;
+    pb_ephemeris_fit fit;
+    w.F.fit = pb_forces_timed_bodies(p) ? &fit : NULL;
+    w.F.region = w.nev ? pb_forces_region_q(p, w.g) : -1;
     const pb_forces *f = &p->forces;
     int im = 0;
     for (int k = 0; k < n; k++) {

@@ -105,7 +105,10 @@ static void print_accuracy(const pb_case_spec *spec, const pb_case_result *res, 
     if (p->energy)
         print_invariant(p->energy_label ? p->energy_label : "energy", res->energy_rel_max,
                         res->energy_rel_final);
-    if (res->energy_rel_to_parts)
+    if (p->invariants_from_truth && (p->energy || p->angmom))
+        printf("  %-22s invariants against the truth's own values at the same time: the force\n"
+               "  %-22s (drag, third bodies, radiation pressure, manoeuvres) changes them\n", "", "");
+    else if (res->energy_rel_to_parts)
         printf("  %-22s relative to v0^2/2 + mu/|r0|, not |E0|: the start is nearly parabolic\n"
                "  %-22s (|E0| under 1e-6 of it), so most of |E0| is cancellation\n", "", "");
     if (p->angmom)

@@ -13,6 +13,7 @@
 #include "bench/measure/growth.h"
 #include "bench/measure/metrics.h"
 #include "bench/measure/sampler.h"
+#include "bench/measure/segments.h"
 #include "bench/measure/timing.h"
 #include "problems/summary.h"
 #include "problems/truth.h"
@@ -52,19 +53,22 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
     /* a fixed-step method's last step may end past the horizon: that state
      * is not part of the case (the horizon's own sample, on dense output, is) */
     int inside = !w->plan || w->plan->n < 1 || t <= w->plan->t[w->plan->n - 1];
-    if (p->energy) {
+    /* where the force itself changes the invariants, their errors exist only
+     * against the truth, at the samples (harness_take_samples) */
+    int own = !p->invariants_from_truth;
+    if (own && p->energy) {
         e = fabs(p->energy(p, t, r, v) - w->E0) / w->E_scale;
         if (inside && e > w->e_win) w->e_win = e;
         if (inside && e > w->e_fit) w->e_fit = e;
     }
-    if (p->angmom) {
+    if (own && p->angmom) {
         double h = pb_rel_err(p->angmom(p, r, v), w->H0);
         if (inside && h > w->h_win) w->h_win = h;
         if (inside && h > w->h_fit) w->h_fit = h;
     }
     /* an energy error of 100% means the orbit is no longer the problem's
      * (a bound orbit has become unbound, or the reverse) */
-    if (p->energy && !(e <= HARNESS_ENERGY_DIVERGED)) {
+    if (own && p->energy && !(e <= HARNESS_ENERGY_DIVERGED)) {
         w->t_escape = t;
         w->why = "relative energy error passed 100%";
         return PB_EDIVERGED;
@@ -94,141 +98,13 @@ const char *pb_case_status_name(int status)
     }
 }
 
-double pb_case_horizon(const pb_case_spec *spec)
-{
-    if (spec->orbits > 0 && spec->problem.period > 0)
-        return spec->orbits * spec->problem.period;
-    return spec->horizon_s;
-}
-
-/* Time scale that "steps per orbit" divides: the period, or the horizon. */
-static double harness_scale(const pb_case_spec *spec)
-{
-    return spec->problem.period > 0 ? spec->problem.period : pb_case_horizon(spec);
-}
-
-static double harness_step(const pb_case_spec *spec)
-{
-    if (spec->step_s > 0)
-        return spec->step_s;
-    if (spec->steps_per_orbit > 0)
-        return harness_scale(spec) / spec->steps_per_orbit;
-    return 0;
-}
-
-double pb_case_fixed_steps(const pb_case_spec *spec)
-{
-    double h = harness_step(spec);
-    if (!spec->method || !(spec->method->flags & PB_KIND_FIXED) || !(h > 0))
-        return 0;
-    double n = pb_case_horizon(spec) / h;
-    return spec->max_steps > 0 && spec->max_steps < n ? (double)spec->max_steps : n;
-}
-
-void pb_case_spec_default(pb_case_spec *spec)
-{
-    memset(spec, 0, sizeof *spec);
-    spec->repeats = 3;
-    spec->linear_samples = 100;
-    spec->cache_dir = PB_CACHE_DIR_DEFAULT;
-}
-
-int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
-{
-    const pb_method_type *m = spec->method;
-    const pb_problem *p = &spec->problem;
-    if (!m) {
-        snprintf(err, errlen, "no method given");
-        return -1;
-    }
-    /* a record from outside (a user's method) may be built against other headers */
-    if (pb_method_check(m, err, errlen))
-        return -1;
-    if (!pb_method_fits(m, p)) {
-        snprintf(err, errlen, "method '%s' needs a velocity-independent force, but "
-                 "problem '%s' depends on velocity", m->name, p->name);
-        return -1;
-    }
-    double hz = pb_case_horizon(spec);
-    if (!(hz > 0) || !isfinite(hz)) {
-        snprintf(err, errlen, "horizon must be positive (problem '%s' %s)", p->name,
-                 p->period > 0 ? "takes --orbits" : "has no period: give --horizon-s");
-        return -1;
-    }
-    if (m->flags & PB_KIND_FIXED) {
-        double h = harness_step(spec);
-        if (!(h > 0) || !isfinite(h)) {
-            snprintf(err, errlen, "fixed-step method '%s' needs a positive --steps-per-orbit "
-                     "or --step", m->name);
-            return -1;
-        }
-        if (h > hz * (1 + 1e-9)) {
-            snprintf(err, errlen, "the step %.6g is longer than the horizon %.6g", h, hz);
-            return -1;
-        }
-        if (hz / h > 1e11) {
-            snprintf(err, errlen, "%.3g steps are too many for one case", hz / h);
-            return -1;
-        }
-    } else if (!(spec->tolerance > 0) || !(spec->tolerance < 1)) {
-        snprintf(err, errlen, "adaptive method '%s' needs --tolerance in (0, 1)", m->name);
-        return -1;
-    }
-    if (spec->compensated && !(m->flags & PB_KIND_COMPENSABLE)) {
-        snprintf(err, errlen, "method '%s' has no compensated-summation variant", m->name);
-        return -1;
-    }
-    return 0;
-}
-
-static void harness_tag(double x, char *out, size_t n)
-{
-    /* the shortest %g that reads back as x: ids stay short and file-name
-     * safe ("1e-08") yet two different values never share one */
-    for (int prec = 6; prec <= 17; prec++) {
-        snprintf(out, n, "%.*g", prec, x);
-        if (strtod(out, NULL) == x)
-            return;
-    }
-}
-
-void pb_case_id(const pb_case_spec *spec, char *out, size_t outlen)
-{
-    char tag[48];
-    if (spec->method && !(spec->method->flags & PB_KIND_FIXED)) {
-        harness_tag(spec->tolerance, tag, sizeof tag);
-        snprintf(out, outlen, "%s__%s__tol%s", spec->problem.name,
-                 spec->method ? spec->method->name : "none", tag);
-    } else if (spec->step_s > 0) {
-        harness_tag(spec->step_s, tag, sizeof tag);
-        snprintf(out, outlen, "%s__%s__h%s", spec->problem.name,
-                 spec->method ? spec->method->name : "none", tag);
-    } else {
-        snprintf(out, outlen, "%s__%s__n%d", spec->problem.name,
-                 spec->method ? spec->method->name : "none", spec->steps_per_orbit);
-    }
-    if (spec->compensated) {
-        size_t l = strlen(out);
-        snprintf(out + l, outlen - l, "__comp");
-    }
-    if (spec->orbits > 0 && spec->problem.period > 0) {
-        harness_tag(spec->orbits, tag, sizeof tag);
-        size_t l = strlen(out);
-        snprintf(out + l, outlen - l, "__o%s", tag);
-    } else {
-        harness_tag(spec->horizon_s, tag, sizeof tag);
-        size_t l = strlen(out);
-        snprintf(out + l, outlen - l, "__s%s", tag);
-    }
-}
-
 static void harness_config(const pb_case_spec *spec, double horizon, pb_method_config *cfg)
 {
     memset(cfg, 0, sizeof *cfg);
-    cfg->time_scale = harness_scale(spec);
+    cfg->time_scale = pb_case_scale(spec);
     cfg->compensated = spec->compensated;
     if (spec->method->flags & PB_KIND_FIXED) {
-        cfg->h = harness_step(spec);
+        cfg->h = pb_case_step(spec);
         cfg->max_steps = spec->max_steps > 0 ? spec->max_steps
                                               : (long)ceil(horizon / cfg->h) + 16;
     } else {
@@ -268,7 +144,7 @@ static void harness_summarise(const pb_case_spec *spec, pb_case_result *res)
     int n = res->nsamples;
     double *t = malloc((size_t)(n > 0 ? n : 1) * sizeof(double));
     double *y = malloc((size_t)(n > 0 ? n : 1) * sizeof(double));
-    double scale = harness_scale(spec);
+    double scale = pb_case_scale(spec);
     double t_fit = spec->problem.period > 0 ? 10.0 * scale : 0.0;
     /* with no sample there is no error to report: NaN (null in JSON), never 0 */
     double none = n > 0 ? 0 : NAN;
@@ -444,6 +320,12 @@ static double harness_integration_end(const pb_case_spec *spec, double horizon, 
     double t0 = spec->problem.t0;
     if (!(spec->method->flags & PB_KIND_FIXED) || !(h > 0))
         return t0 + horizon;
+    /* with a manoeuvre on the way the last segment's step is cut to land on
+     * the horizon (segments.h) */
+    const pb_forces *f = &spec->problem.forces;
+    for (int k = 0; k < f->n_manoeuvres; k++)
+        if (f->manoeuvres[k].t > t0 && f->manoeuvres[k].t < t0 + horizon)
+            return t0 + horizon;
     /* a horizon on the grid (to within the rounding the method itself
      * allows, pb_grid_index) is that grid time; else the next one */
     long n = pb_grid_index(t0, h, t0 + horizon);
@@ -453,9 +335,11 @@ static double harness_integration_end(const pb_case_spec *spec, double horizon, 
 /* The metric pass: one advance to the integration's end; the observer
  * measures every sample on the way. Returns the integration's status;
  * res->nsamples is how many samples were reached. */
-static int harness_metric_pass(const pb_case_spec *spec, const pb_sample_plan *plan,
+static int harness_metric_pass(const pb_case_spec *spec, const pb_method_config *cfg,
+                               const pb_force *f, const pb_sample_plan *plan,
                                const pb_truth *truth, void *ws, harness_watch *w,
-                               double horizon, double t_int_end, pb_case_result *res)
+                               double horizon, double t_int_end, pb_method_stats *st,
+                               int *first_start, pb_case_result *res)
 {
     w->m = spec->method;
     w->ws = ws;
@@ -464,7 +348,7 @@ static int harness_metric_pass(const pb_case_spec *spec, const pb_sample_plan *p
     w->res = res;
     w->horizon = horizon;
     w->k = 0;
-    int s = spec->method->advance(ws, t_int_end, harness_observe, w);
+    int s = pb_case_integrate(spec, cfg, ws, f, t_int_end, harness_observe, w, st, first_start);
     res->nsamples = w->k;
     /* a run that reached its end has measured every sample: never a silent gap */
     if (s == PB_OK && w->k < plan->n)
@@ -475,7 +359,8 @@ static int harness_metric_pass(const pb_case_spec *spec, const pb_sample_plan *p
 /* How the integration ended (status s), the invariant maxima, the final
  * state and its fingerprint, and the counts. */
 static void harness_ending(const pb_case_spec *spec, void *ws, const harness_watch *w,
-                           const pb_force_counter *counter, int s, pb_case_result *res)
+                           const pb_force_counter *counter, const pb_method_stats *stp, int s,
+                           pb_case_result *res)
 {
     const pb_problem *p = &spec->problem;
     const pb_method_type *m = spec->method;
@@ -484,8 +369,7 @@ static void harness_ending(const pb_case_spec *spec, void *ws, const harness_wat
     res->status_name = pb_case_status_name(s);
     m->get_state(ws, &t, r, v);
     res->t_end = t;
-    pb_method_stats st;
-    m->get_stats(ws, &st);
+    pb_method_stats st = *stp;
     if (s) {
         /* a step budget ends the case where the last step left it */
         res->diverged_at = s == PB_EDIVERGED ? w->t_escape
@@ -514,10 +398,10 @@ static void harness_ending(const pb_case_spec *spec, void *ws, const harness_wat
 static int harness_plan(const pb_case_spec *spec, double horizon, pb_sample_plan *plan)
 {
     if (!spec->sample_times)
-        return pb_sample_plan_make(spec->problem.t0, horizon, harness_scale(spec), 0,
+        return pb_sample_plan_make(spec->problem.t0, horizon, pb_case_scale(spec), 0,
                                    spec->linear_samples, plan);
     return pb_sample_plan_given(spec->sample_times, spec->nsample_times, spec->problem.t0,
-                                horizon, harness_scale(spec), plan);
+                                horizon, pb_case_scale(spec), plan);
 }
 
 int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
@@ -561,10 +445,13 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     pb_force_counter counter;
     pb_force f;
     pb_force_counter_init(&counter, p, &f);
-    if ((rc = m->start(ws, &f, &cfg, p->t0, p->r0, p->v0)))
-        goto out;
-    int s = harness_metric_pass(spec, &plan, truth, ws, &w, horizon, t_int_end, res);
-    harness_ending(spec, ws, &w, &counter, s, res);
+    pb_method_stats st;
+    int started;
+    int s = harness_metric_pass(spec, &cfg, &f, &plan, truth, ws, &w, horizon, t_int_end, &st,
+                                &started, res);
+    if ((rc = started))
+        goto out;  /* the method refused its start: a set-up failure, not a result */
+    harness_ending(spec, ws, &w, &counter, &st, s, res);
     double t_state = res->t_end;
     /* reached: the horizon itself (the last sample), or where the run ended */
     if (s == PB_OK && res->nsamples > 0)

@@ -24,6 +24,10 @@ void pb_case_id(const pb_case_spec *spec, char *out, size_t outlen);
 
 /* Horizon in time units. */
 double pb_case_horizon(const pb_case_spec *spec);
+/* Time scale that "steps per orbit" divides: the period, or the horizon. */
+double pb_case_scale(const pb_case_spec *spec);
+/* A fixed-step case's step in time units (0 when none is given). */
+double pb_case_step(const pb_case_spec *spec);
 
 /* Steps a fixed-step case takes to its horizon, or to its --max-steps if
  * that comes first (0 for an adaptive method, whose count is known only

@@ -60,6 +60,14 @@ void pb_metrics_sample(const pb_problem *p, double t, const double *r, const dou
         dv[i] = (long double)v[i] - vt[i];
     }
     s->t = t;
+    /* a force that changes the invariants itself (drag, third bodies, ...):
+     * the error is against the truth's own value at t, not the start's */
+    if (p->invariants_from_truth) {
+        if (p->energy)
+            E0 = p->energy(p, t, rt3, vt3);
+        if (p->angmom)
+            H0 = p->angmom(p, rt3, vt3);
+    }
     s->energy_rel = p->energy ? fabs(p->energy(p, t, r, v) - E0) / E_scale : (double)NAN;
     s->angmom_rel = p->angmom ? pb_rel_err(p->angmom(p, r, v), H0) : (double)NAN;
     double d3[3] = {(double)dr[0], (double)dr[1], (double)dr[2]};

@@ -7,6 +7,7 @@
 #include <time.h>
 #include "bench/measure/timing.h"
 #include "bench/measure/force_counter.h"
+#include "bench/measure/segments.h"
 
 /* The timing pass integrates at most this many steps of the case. */
 #define TIMING_STEPS 200000.0
@@ -69,21 +70,17 @@ static int timing_once(const pb_case_spec *spec, const pb_method_config *cfg, vo
                        double t_stop, double *sec, pb_case_result *res)
 {
     const pb_problem *p = &spec->problem;
-    const pb_method_type *m = spec->method;
     pb_force_counter c;
     pb_force f;
     pb_force_counter_init(&c, p, &f);
+    pb_method_stats st;
     double t0 = timing_now();
-    int s = m->start(ws, &f, cfg, p->t0, p->r0, p->v0);
-    if (!s)
-        s = m->advance(ws, t_stop, NULL, NULL);
+    int s = pb_case_integrate(spec, cfg, ws, &f, t_stop, NULL, NULL, &st, NULL);
     *sec = timing_now() - t0;
     if (s)
         return s;
     if (!isfinite(*sec))
         return PB_EINVAL;
-    pb_method_stats st;
-    m->get_stats(ws, &st);
     res->timing_steps = st.steps + st.startup_steps;
     res->timing_evals = c.evals;
     return 0;

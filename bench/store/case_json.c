@@ -104,6 +104,18 @@ static void case_growth(json_t *mt, const char *name, const pb_growth *g, double
     json_object_set_new(mt, key, pb_json_real(period > 0 ? g->from / period : (double)NAN));
 }
 
+/* What energy_rel is relative to, where it is not |E0| against the start's
+ * energy; NULL there. */
+static const char *case_energy_rel_to(const pb_case_spec *spec, const pb_case_result *res)
+{
+    if (spec->problem.invariants_from_truth && spec->problem.energy)
+        return "the truth's own energy at the same time (the force changes the energy), "
+               "divided by |E0|";
+    if (res->energy_rel_to_parts)
+        return "v0^2/2 + mu/|r0| (near-parabolic start: |E0| under 1e-6 of it)";
+    return NULL;
+}
+
 json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
 {
     json_t *o = json_object();
@@ -127,8 +139,9 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     json_t *mt = json_object();
     int km = spec->problem.units == PB_UNITS_KM_S;
     json_object_set_new(mt, "energy_rel_max", pb_json_real(res->energy_rel_max));
-    if (res->energy_rel_to_parts)
-        json_object_set_new(mt, "energy_rel_to", json_string("v0^2/2 + mu/|r0| (near-parabolic start: |E0| under 1e-6 of it)"));
+    const char *rel_to = case_energy_rel_to(spec, res);
+    if (rel_to)
+        json_object_set_new(mt, "energy_rel_to", json_string(rel_to));
     json_object_set_new(mt, "energy_rel_final", pb_json_real(res->energy_rel_final));
     json_object_set_new(mt, "angmom_rel_max", pb_json_real(res->angmom_rel_max));
     json_object_set_new(mt, "angmom_rel_final", pb_json_real(res->angmom_rel_final));

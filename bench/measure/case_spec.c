@@ -1,0 +1,141 @@
+/* case_spec.c - what a case asks for, before it runs: its horizon, time
+ * scale and step, the checks that it can run, and its identifier. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include "bench/measure/harness.h"
+#include "problems/force_terms.h"
+
+double pb_case_horizon(const pb_case_spec *spec)
+{
+    if (spec->orbits > 0 && spec->problem.period > 0)
+        return spec->orbits * spec->problem.period;
+    return spec->horizon_s;
+}
+
+double pb_case_scale(const pb_case_spec *spec)
+{
+    return spec->problem.period > 0 ? spec->problem.period : pb_case_horizon(spec);
+}
+
+double pb_case_step(const pb_case_spec *spec)
+{
+    if (spec->step_s > 0)
+        return spec->step_s;
+    if (spec->steps_per_orbit > 0)
+        return pb_case_scale(spec) / spec->steps_per_orbit;
+    return 0;
+}
+
+double pb_case_fixed_steps(const pb_case_spec *spec)
+{
+    double h = pb_case_step(spec);
+    if (!spec->method || !(spec->method->flags & PB_KIND_FIXED) || !(h > 0))
+        return 0;
+    double n = pb_case_horizon(spec) / h;
+    return spec->max_steps > 0 && spec->max_steps < n ? (double)spec->max_steps : n;
+}
+
+void pb_case_spec_default(pb_case_spec *spec)
+{
+    memset(spec, 0, sizeof *spec);
+    spec->repeats = 3;
+    spec->linear_samples = 100;
+    spec->cache_dir = PB_CACHE_DIR_DEFAULT;
+}
+
+int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
+{
+    const pb_method_type *m = spec->method;
+    const pb_problem *p = &spec->problem;
+    if (!m) {
+        snprintf(err, errlen, "no method given");
+        return -1;
+    }
+    /* a record from outside (a user's method) may be built against other headers */
+    if (pb_method_check(m, err, errlen))
+        return -1;
+    if (!pb_method_fits(m, p)) {
+        snprintf(err, errlen, "method '%s' needs a velocity-independent force, but "
+                 "problem '%s' depends on velocity", m->name, p->name);
+        return -1;
+    }
+    if (!p->exact_q && !pb_forces_have_quad(p)) {
+        snprintf(err, errlen, "problem '%s' has a force with no extended-precision form, so "
+                 "there is no reference to measure it against", p->name);
+        return -1;
+    }
+    double hz = pb_case_horizon(spec);
+    if (!(hz > 0) || !isfinite(hz)) {
+        snprintf(err, errlen, "horizon must be positive (problem '%s' %s)", p->name,
+                 p->period > 0 ? "takes --orbits" : "has no period: give --horizon-s");
+        return -1;
+    }
+    if (m->flags & PB_KIND_FIXED) {
+        double h = pb_case_step(spec);
+        if (!(h > 0) || !isfinite(h)) {
+            snprintf(err, errlen, "fixed-step method '%s' needs a positive --steps-per-orbit "
+                     "or --step", m->name);
+            return -1;
+        }
+        if (h > hz * (1 + 1e-9)) {
+            snprintf(err, errlen, "the step %.6g is longer than the horizon %.6g", h, hz);
+            return -1;
+        }
+        if (hz / h > 1e11) {
+            snprintf(err, errlen, "%.3g steps are too many for one case", hz / h);
+            return -1;
+        }
+    } else if (!(spec->tolerance > 0) || !(spec->tolerance < 1)) {
+        snprintf(err, errlen, "adaptive method '%s' needs --tolerance in (0, 1)", m->name);
+        return -1;
+    }
+    if (spec->compensated && !(m->flags & PB_KIND_COMPENSABLE)) {
+        snprintf(err, errlen, "method '%s' has no compensated-summation variant", m->name);
+        return -1;
+    }
+    return 0;
+}
+
+static void case_tag(double x, char *out, size_t n)
+{
+    /* the shortest %g that reads back as x: ids stay short and file-name
+     * safe ("1e-08") yet two different values never share one */
+    for (int prec = 6; prec <= 17; prec++) {
+        snprintf(out, n, "%.*g", prec, x);
+        if (strtod(out, NULL) == x)
+            return;
+    }
+}
+
+void pb_case_id(const pb_case_spec *spec, char *out, size_t outlen)
+{
+    char tag[48];
+    if (spec->method && !(spec->method->flags & PB_KIND_FIXED)) {
+        case_tag(spec->tolerance, tag, sizeof tag);
+        snprintf(out, outlen, "%s__%s__tol%s", spec->problem.name,
+                 spec->method ? spec->method->name : "none", tag);
+    } else if (spec->step_s > 0) {
+        case_tag(spec->step_s, tag, sizeof tag);
+        snprintf(out, outlen, "%s__%s__h%s", spec->problem.name,
+                 spec->method ? spec->method->name : "none", tag);
+    } else {
+        snprintf(out, outlen, "%s__%s__n%d", spec->problem.name,
+                 spec->method ? spec->method->name : "none", spec->steps_per_orbit);
+    }
+    if (spec->compensated) {
+        size_t l = strlen(out);
+        snprintf(out + l, outlen - l, "__comp");
+    }
+    if (spec->orbits > 0 && spec->problem.period > 0) {
+        case_tag(spec->orbits, tag, sizeof tag);
+        size_t l = strlen(out);
+        snprintf(out + l, outlen - l, "__o%s", tag);
+    } else {
+        case_tag(spec->horizon_s, tag, sizeof tag);
+        size_t l = strlen(out);
+        snprintf(out + l, outlen - l, "__s%s", tag);
+    }
+}
+

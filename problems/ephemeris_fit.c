@@ -1,0 +1,66 @@
+/* ephemeris_fit.c - Chebyshev interpolation of time-only body positions over
+ * one reference step (ephemeris_fit.h). Barycentric formula at Chebyshev
+ * points of the second kind, weights (-1)^j halved at both ends (Berrut &
+ * Trefethen, SIAM Review 46 (2004) 501, eq. 5.1): stable at any t. */
+#include <quadmath.h>
+#include <string.h>
+#include "ephemeris_fit.h"
+#include "force_terms.h"
+
+/* The fit must reproduce the series to this, relative to the body's
+ * distance. The series themselves carry a rounding noise of about 1e-32
+ * relative (arguments of thousands of degrees in __float128), so the check
+ * cannot ask for less; a relative position error e moves a third body's pull
+ * by about 3e of itself, and that pull is a small part of the total force, so
+ * 1e-27 stays below the reference's step tolerance of 1e-28 of the state. */
+#define EPH_FIT_TOL 1e-27Q
+
+void pb_ephemeris_fit_at(const pb_ephemeris_fit *fit, __float128 t, __float128 (*pos)[3])
+{
+    __float128 num[3][3] = {{0}}, den = 0;
+    for (int j = 0; j < PB_EPH_FIT_NODES; j++) {
+        __float128 d = t - fit->t[j];
+        if (d == 0) {
+            memcpy(pos, fit->pos[j], sizeof fit->pos[j]);
+            return;
+        }
+        __float128 c = fit->w[j] / d;
+        den += c;
+        for (int b = 0; b < 3; b++)
+            for (int i = 0; i < 3; i++)
+                num[b][i] += c * fit->pos[j][b][i];
+    }
+    for (int b = 0; b < 3; b++)
+        for (int i = 0; i < 3; i++)
+            pos[b][i] = num[b][i] / den;
+}
+
+void pb_ephemeris_fit_make(pb_ephemeris_fit *fit, const pb_problem *p, __float128 t0,
+                           __float128 H)
+{
+    const int n = PB_EPH_FIT_NODES - 1;
+    memset(fit, 0, sizeof *fit);
+    for (int j = 0; j <= n; j++) {
+        /* node 0 at t0 + H, node n at t0: both step ends are nodes */
+        fit->t[j] = t0 + 0.5Q * H * (1 + cosq(M_PIq * j / n));
+        fit->w[j] = (j % 2 ? -1 : 1) * ((j == 0 || j == n) ? 0.5Q : 1.0Q);
+        pb_forces_bodies_q(p, fit->t[j], fit->pos[j]);
+    }
+    fit->t[n] = t0;
+    fit->t[0] = t0 + H;
+    /* check at a point off the nodes */
+    __float128 tc = t0 + 0.3183098861837907Q * H, want[3][3] = {{0}}, got[3][3];
+    pb_forces_bodies_q(p, tc, want);
+    fit->on = 1;
+    pb_ephemeris_fit_at(fit, tc, got);
+    for (int b = 0; b < 3; b++) {
+        __float128 d2 = 0, r2 = 0;
+        for (int i = 0; i < 3; i++) {
+            __float128 d = got[b][i] - want[b][i];
+            d2 += d * d;
+            r2 += want[b][i] * want[b][i];
+        }
+        if (d2 > EPH_FIT_TOL * EPH_FIT_TOL * r2)
+            fit->on = 0;
+    }
+}

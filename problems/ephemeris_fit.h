@@ -1,0 +1,27 @@
+/* ephemeris_fit.h - the positions of a problem's time-only bodies (Sun, Moon,
+ * a circular body) over one step of the reference integrator, interpolated in
+ * __float128 from a few evaluations of their series at Chebyshev points, so
+ * that the ~110 force evaluations of a step do not each sum the Moon's series.
+ * Each fit is checked against the series at a point off its nodes and is not
+ * used when it disagrees by more than 1e-27 relative. */
+#ifndef PB_EPHEMERIS_FIT_H
+#define PB_EPHEMERIS_FIT_H
+
+#include "problem.h"
+
+#define PB_EPH_FIT_NODES 14
+
+typedef struct pb_ephemeris_fit {
+    int on;                                   /* 1: the fit holds over [t0, t0 + H] */
+    __float128 t[PB_EPH_FIT_NODES];           /* nodes */
+    __float128 w[PB_EPH_FIT_NODES];           /* barycentric weights */
+    __float128 pos[PB_EPH_FIT_NODES][3][3];   /* body positions at the nodes */
+} pb_ephemeris_fit;
+
+/* Fit the bodies of p over [t0, t0 + H]; fit->on says whether it may be used. */
+void pb_ephemeris_fit_make(pb_ephemeris_fit *fit, const pb_problem *p, __float128 t0,
+                           __float128 H);
+/* The fitted positions at t (within the step) into pos. */
+void pb_ephemeris_fit_at(const pb_ephemeris_fit *fit, __float128 t, __float128 (*pos)[3]);
+
+#endif
