@@ -99,4 +99,8 @@ int bench_overhead(const pb_problem *p, double *timing_pct, double *timing_min_p
 int bench_memory(double *diff_pct);
 int bench_load(const pb_problem *p, double *worst_spread_pct);
 
+/* bench_reference.c: reference builds with mission-like forces; the
+ * slowest build's CPU seconds into *worst_s. 0, or -1 when a build failed. */
+int bench_reference(double *worst_s);
+
 #endif
