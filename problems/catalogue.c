@@ -1,13 +1,17 @@
 /* catalogue.c - the named built-in scenarios (our own invention, for demos and
- * benchmarks): normalized Kepler orbits, Earth orbits in km and s with and
- * without J2, a hyperbolic flyby and the Arenstorf orbit of the CR3BP. */
+ * benchmarks): normalized Kepler orbits and a revolving (precessing) one,
+ * Earth orbits in km and s with and without J2, a hyperbolic flyby and the
+ * Arenstorf orbit of the CR3BP; the mission scenarios with more force terms
+ * are in catalogue_missions.c. */
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
 #include "catalogue.h"
+#include "catalogue_missions.h"
 #include "bodies.h"
 #include "cr3bp.h"
 #include "j2.h"
+#include "revolving.h"
 #include "twobody.h"
 
 #define DEG (M_PI / 180.0)
@@ -32,6 +36,18 @@ static int cat_kepler_e05(pb_problem *o) { return cat_kepler(o, 0.5, "kepler-e0.
 static int cat_kepler_e06(pb_problem *o) { return cat_kepler(o, 0.6, "kepler-e0.6"); }
 static int cat_kepler_e09(pb_problem *o) { return cat_kepler(o, 0.9, "kepler-e0.9"); }
 static int cat_kepler_e099(pb_problem *o) { return cat_kepler(o, 0.99, "kepler-e0.99"); }
+
+/* Newton's revolving orbit: the radial motion of kepler-e0.5 under an added
+ * potential -gamma/r^2, gamma = 0.01; its apse advances 0.0832 rad a turn. */
+static int cat_revolving_e05(pb_problem *o)
+{
+    int s = pb_problem_init_revolving(o, "revolving-e0.5",
+                                      "normalized Kepler + gamma/r^2 potential (Newton's revolving "
+                                      "orbit), mu = 1, gamma = 0.01, a = 1, e = 0.5: exact, precessing",
+                                      1.0, 0.01, 1.0, 0.5);
+    o->default_orbits = 100.0;
+    return s;
+}
 
 /* An Earth orbit from classical elements (km, degrees); with_j2 adds J2. */
 static int cat_earth(pb_problem *out, const char *name, const char *desc, int with_j2,
@@ -159,6 +175,7 @@ const pb_problem_entry pb_problem_table[] = {
     {"kepler-e0.6", cat_kepler_e06},
     {"kepler-e0.9", cat_kepler_e09},
     {"kepler-e0.99", cat_kepler_e099},
+    {"revolving-e0.5", cat_revolving_e05},
     {"leo-circular", cat_leo_circular},
     {"leo-near-circular", cat_leo_near_circular},
     {"sso-700", cat_sso_700},
@@ -169,6 +186,11 @@ const pb_problem_entry pb_problem_table[] = {
     {"leo-j2", cat_leo_j2},
     {"sso-700-j2", cat_sso_700_j2},
     {"molniya-j2", cat_molniya_j2},
+    {"leo-drag", pb_cat_leo_drag},
+    {"geo-sun-moon-srp", pb_cat_geo_sun_moon_srp},
+    {"heo-moon", pb_cat_heo_moon},
+    {"leo-manoeuvre", pb_cat_leo_manoeuvre},
+    {"lunar-orbiter", pb_cat_lunar_orbiter},
     {"arenstorf", cat_arenstorf},
     {NULL, NULL}
 };
