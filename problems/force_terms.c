@@ -24,7 +24,7 @@
 
 int pb_forces_accel(const pb_problem *p, double t, const double *r, const double *v, double *a)
 {
-    ft_accel_d(p, t, r, v, FT_REGION_GEOMETRY, a);
+    ft_accel_d(p, t, r, v, FT_REGION_GEOMETRY, -1, a);
     return isfinite(a[0]) && isfinite(a[1]) && isfinite(a[2]) ? PB_OK : PB_ENONFINITE;
 }
 

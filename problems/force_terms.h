@@ -26,11 +26,12 @@ void pb_problem_init_forces(pb_problem *p, const char *name, const char *descrip
 /* The acceleration of p in __float128 into dy[3..5] (dy[0..2] = v), y = (r, v).
  * pos (may be NULL) holds the time-only bodies' positions at t.
  * region (pb_forces_region_q; -1: from the geometry at y) fixes the shadow
- * formula used, so that a step between located boundaries sees a smooth
- * force. PB_EINVAL when p's force has no __float128 form (a force this file
+ * formula used, and band (pb_forces_band_q; -1: from the altitude) the row of
+ * the atmosphere table, so that a step between located boundaries sees a
+ * smooth force. PB_EINVAL when p's force has no __float128 form (a force this file
  * does not know is refused, never integrated as two-body). */
 int pb_forces_deriv_q(const pb_problem *p, __float128 t, const __float128 *y, int region,
-                      __float128 (*pos)[3], __float128 *dy);
+                      int band, __float128 (*pos)[3], __float128 *dy);
 /* Whether p has bodies whose positions depend on time alone (Sun, Moon, a
  * circular body); their positions at t (pb_forces_deriv_q's pos, which
  * NULL computes afresh; the reference interpolates them over a step). */
@@ -41,7 +42,13 @@ void pb_forces_bodies_q(const pb_problem *p, __float128 t, __float128 (*pos)[3])
 int pb_forces_region_q(const pb_problem *p, const __float128 *g);
 /* Whether p's force has a __float128 form. */
 int pb_forces_have_quad(const pb_problem *p);
-/* Shadow boundary functions at (t, r) (positive in sunlight); how many. */
-int pb_forces_events_q(const pb_problem *p, __float128 t, const __float128 *r, __float128 *g);
+/* The functions whose zeros are jumps in the force at (t, r), positive on
+ * the current side: shadow boundaries (*nshadow of them, first), then with
+ * drag the two bounds of atmosphere row band (-1: the row of r); at most 4.
+ * Returns how many. */
+int pb_forces_events_q(const pb_problem *p, __float128 t, const __float128 *r, int band,
+                       __float128 *g, int *nshadow);
+/* The atmosphere row of the altitude of r; -1 without drag. */
+int pb_forces_band_q(const pb_problem *p, const __float128 *r);
 
 #endif

@@ -26,12 +26,15 @@ FT_API FT_REAL FT_FN(ft_dot)(const FT_REAL *a, const FT_REAL *b)
  * has no pole at s = +-1. Adds to a; *V (may be NULL) receives V. */
 FT_API void FT_FN(ft_zonal)(const pb_problem *p, const FT_REAL *r, FT_REAL *a, FT_REAL *V)
 {
+    /* 1/(n+1) for n = 1..5, so the loop multiplies rather than divides (the
+     * __float128 division costs several multiplications) */
+    static const double inv[] = {0, 1.0 / 2, 1.0 / 3, 1.0 / 4, 1.0 / 5, 1.0 / 6};
     const pb_forces *f = &p->forces;
-    FT_REAL r2 = FT_FN(ft_dot)(r, r), rn = FT_SQRT(r2), s = r[2] / rn;
-    FT_REAL mu = p->mu, q = (FT_REAL)p->body_radius / rn;
+    FT_REAL r2 = FT_FN(ft_dot)(r, r), rn = FT_SQRT(r2), irn = 1 / rn, s = r[2] * irn;
+    FT_REAL mu = p->mu, q = (FT_REAL)p->body_radius * irn;
     FT_REAL Pm = 1, P = s, dP = 1, qn = q, radial = 0, axial = 0, pot = 0;
     for (int n = 1; n < f->zonal_degree; n++) {
-        FT_REAL Pn = ((FT_REAL)(2 * n + 1) * s * P - (FT_REAL)n * Pm) / (FT_REAL)(n + 1);
+        FT_REAL Pn = ((FT_REAL)(2 * n + 1) * s * P - (FT_REAL)n * Pm) * (FT_REAL)inv[n];
         FT_REAL dPn = (FT_REAL)(n + 1) * P + s * dP;
         Pm = P, P = Pn, dP = dPn;
         qn *= q;
@@ -40,12 +43,12 @@ FT_API void FT_FN(ft_zonal)(const pb_problem *p, const FT_REAL *r, FT_REAL *a, F
         axial += J * dP;
         pot += J * P;
     }
-    FT_REAL c = mu / r2;
+    FT_REAL c = mu * irn * irn, cr = c * radial * irn;
     for (int i = 0; i < 3; i++)
-        a[i] += c * radial * r[i] / rn;
+        a[i] += cr * r[i];
     a[2] -= c * axial;
     if (V)
-        *V = mu / rn * pot;
+        *V = mu * irn * pot;
 }
 
 /* Exponential atmosphere, Vallado 4th ed. Table 8-4 (REFERENCES.md): base
@@ -63,28 +66,44 @@ static const double FT_FN(ft_atmosphere)[][3] = {
     {1000, 3.019e-15, 268.00},
 };
 
-/* Density [kg/m^3] at altitude h [km] above the body's sphere: the row with
- * the largest base at or below h (the first row below 0, the last above). */
-FT_API FT_REAL FT_FN(ft_density)(FT_REAL h)
+#define FT_ATMOSPHERE_ROWS ((int)(sizeof FT_FN(ft_atmosphere) / sizeof FT_FN(ft_atmosphere)[0]))
+
+/* The row of the table for altitude h: the largest base at or below h (the
+ * first row below 0, the last above). */
+FT_API int FT_FN(ft_band)(FT_REAL h)
 {
-    const int rows = (int)(sizeof FT_FN(ft_atmosphere) / sizeof FT_FN(ft_atmosphere)[0]);
     int k = 0;
-    while (k + 1 < rows && h >= (FT_REAL)FT_FN(ft_atmosphere)[k + 1][0])
+    while (k + 1 < FT_ATMOSPHERE_ROWS && h >= (FT_REAL)FT_FN(ft_atmosphere)[k + 1][0])
         k++;
-    const double *row = FT_FN(ft_atmosphere)[k];
+    return k;
+}
+
+/* Density [kg/m^3] at altitude h [km] above the body's sphere, from row band
+ * (-1: the row of h itself; the reference holds a row fixed between located
+ * crossings of its bounds, so that each step sees one smooth exponential). */
+FT_API FT_REAL FT_FN(ft_density)(FT_REAL h, int band)
+{
+    const double *row = FT_FN(ft_atmosphere)[band >= 0 ? band : FT_FN(ft_band)(h)];
     return (FT_REAL)row[1] * FT_EXP(-(h - (FT_REAL)row[0]) / (FT_REAL)row[2]);
+}
+
+/* The altitude of r (km above the body's sphere). */
+FT_API FT_REAL FT_FN(ft_altitude)(const pb_problem *p, const FT_REAL *r)
+{
+    return FT_SQRT(FT_FN(ft_dot)(r, r)) - (FT_REAL)p->body_radius;
 }
 
 /* Drag a = -(1/2) rho (C_D A/m) |v_rel| v_rel with v_rel = v - omega x r
  * (Vallado 4th ed. Sec. 8.6.2); rho B is per metre, speeds in km/s, so the
  * result in km/s^2 carries a factor 1000. */
-FT_API void FT_FN(ft_drag)(const pb_problem *p, const FT_REAL *r, const FT_REAL *v, FT_REAL *a)
+FT_API void FT_FN(ft_drag)(const pb_problem *p, const FT_REAL *r, const FT_REAL *v, int band,
+                           FT_REAL *a)
 {
     const pb_forces *f = &p->forces;
     FT_REAL w = f->body_rate;
     FT_REAL vr[3] = {v[0] + w * r[1], v[1] - w * r[0], v[2]};
-    FT_REAL h = FT_SQRT(FT_FN(ft_dot)(r, r)) - (FT_REAL)p->body_radius;
-    FT_REAL k = -(FT_REAL)0.5 * (FT_REAL)1000 * FT_FN(ft_density)(h) * (FT_REAL)f->ballistic_m2_kg
+    FT_REAL h = FT_FN(ft_altitude)(p, r);
+    FT_REAL k = -(FT_REAL)0.5 * (FT_REAL)1000 * FT_FN(ft_density)(h, band) * (FT_REAL)f->ballistic_m2_kg
                 * FT_SQRT(FT_FN(ft_dot)(vr, vr));
     for (int i = 0; i < 3; i++)
         a[i] += k * vr[i];
@@ -190,6 +209,14 @@ FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REA
                             FT_REAL *g, FT_REAL *nu)
 {
     *nu = 1;
+    /* a region given by the caller needs no geometry where its formula is a
+     * constant (g is asked for only with FT_REGION_GEOMETRY) */
+    if (region == FT_REGION_SUN)
+        return model == PB_SHADOW_CONICAL ? 2 : model == PB_SHADOW_CYLINDRICAL ? 1 : 0;
+    if (region == FT_REGION_UMBRA && model == PB_SHADOW_CYLINDRICAL) {
+        *nu = 0;
+        return 1;
+    }
     if (model == PB_SHADOW_CYLINDRICAL) {
         FT_REAL sn = FT_SQRT(FT_FN(ft_dot)(s, s)), along = FT_FN(ft_dot)(r, s) / sn;
         FT_REAL rr = FT_FN(ft_dot)(r, r), perp = FT_SQRT(FT_FABS(rr - along * along));
@@ -268,9 +295,9 @@ FT_API void FT_FN(ft_bodies)(const pb_problem *p, FT_REAL t, FT_REAL pos[3][3])
 
 /* The whole acceleration of a central-body problem at (t, r, v): the
  * inverse-square attraction and every term of p->forces, with the bodies at
- * pos (ft_bodies); region as for ft_shadow. */
+ * pos (ft_bodies); region as for ft_shadow, band as for ft_density. */
 FT_API void FT_FN(ft_accel_at)(const pb_problem *p, const FT_REAL *r, const FT_REAL *v,
-                               int region, FT_REAL pos[3][3], FT_REAL *a)
+                               int region, int band, FT_REAL pos[3][3], FT_REAL *a)
 {
     const pb_forces *f = &p->forces;
     FT_REAL r2 = FT_FN(ft_dot)(r, r), rn = FT_SQRT(r2);
@@ -282,7 +309,7 @@ FT_API void FT_FN(ft_accel_at)(const pb_problem *p, const FT_REAL *r, const FT_R
     if (f->zonal_degree >= 2)
         FT_FN(ft_zonal)(p, r, a, NULL);
     if (f->drag)
-        FT_FN(ft_drag)(p, r, v, a);
+        FT_FN(ft_drag)(p, r, v, band, a);
     if (f->sun)
         FT_FN(ft_third_body)((FT_REAL)PB_GM_SUN, pos[0], r, a);
     if (f->moon)
@@ -294,11 +321,11 @@ FT_API void FT_FN(ft_accel_at)(const pb_problem *p, const FT_REAL *r, const FT_R
 }
 
 FT_API void FT_FN(ft_accel)(const pb_problem *p, FT_REAL t, const FT_REAL *r, const FT_REAL *v,
-                            int region, FT_REAL *a)
+                            int region, int band, FT_REAL *a)
 {
     FT_REAL pos[3][3];
     FT_FN(ft_bodies)(p, t, pos);
-    FT_FN(ft_accel_at)(p, r, v, region, pos, a);
+    FT_FN(ft_accel_at)(p, r, v, region, band, pos, a);
 }
 
 /* Circular restricted three-body problem in the rotating frame (Hairer,
@@ -316,14 +343,28 @@ FT_API void FT_FN(ft_cr3bp)(const pb_problem *p, const FT_REAL *r, const FT_REAL
     a[2] = -g * r[2];
 }
 
-/* The shadow boundary functions at (t, r) for the reference's event
- * location; returns how many (0 without radiation pressure and shadow). */
-FT_API int FT_FN(ft_shadow_events)(const pb_problem *p, FT_REAL t, const FT_REAL *r, FT_REAL *g)
+/* The functions whose sign changes mark a jump in the force, for the
+ * reference's event location, positive on the side where the state is:
+ * the shadow boundaries (none, one or two; *nshadow of them), then, with
+ * drag, the bounds of atmosphere row band: h - h0(band) and
+ * h0(band + 1) - h (an unbounded side gives a constant 1). Returns how many. */
+FT_API int FT_FN(ft_events)(const pb_problem *p, FT_REAL t, const FT_REAL *r, int band, FT_REAL *g,
+                            int *nshadow)
 {
     const pb_forces *f = &p->forces;
-    if (!(f->srp_area_mass_m2_kg > 0) || f->shadow == PB_SHADOW_NONE)
-        return 0;
-    FT_REAL sun[3], nu;
-    FT_FN(ft_sun)((FT_REAL)f->epoch_days + t / (FT_REAL)86400, sun);
-    return FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, FT_REGION_GEOMETRY, g, &nu);
+    int n = 0;
+    if (f->srp_area_mass_m2_kg > 0 && f->shadow != PB_SHADOW_NONE) {
+        FT_REAL sun[3], nu;
+        FT_FN(ft_sun)((FT_REAL)f->epoch_days + t / (FT_REAL)86400, sun);
+        n = FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, FT_REGION_GEOMETRY, g, &nu);
+    }
+    *nshadow = n;
+    if (f->drag) {
+        FT_REAL h = FT_FN(ft_altitude)(p, r);
+        if (band < 0)
+            band = FT_FN(ft_band)(h);
+        g[n++] = band > 0 ? h - (FT_REAL)FT_FN(ft_atmosphere)[band][0] : 1;
+        g[n++] = band + 1 < FT_ATMOSPHERE_ROWS ? (FT_REAL)FT_FN(ft_atmosphere)[band + 1][0] - h : 1;
+    }
+    return n;
 }

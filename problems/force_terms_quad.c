@@ -25,7 +25,7 @@ int pb_forces_have_quad(const pb_problem *p)
 }
 
 int pb_forces_deriv_q(const pb_problem *p, __float128 t, const __float128 *y, int region,
-                      __float128 (*pos)[3], __float128 *dy)
+                      int band, __float128 (*pos)[3], __float128 *dy)
 {
     if (!pb_forces_have_quad(p))
         return PB_EINVAL;
@@ -35,15 +35,21 @@ int pb_forces_deriv_q(const pb_problem *p, __float128 t, const __float128 *y, in
     if (p->accel == pb_cr3bp_accel)
         ft_cr3bp_q(p, y, y + 3, dy + 3);
     else if (pos)
-        ft_accel_at_q(p, y, y + 3, region < 0 ? FT_REGION_GEOMETRY : region, pos, dy + 3);
+        ft_accel_at_q(p, y, y + 3, region < 0 ? FT_REGION_GEOMETRY : region, band, pos, dy + 3);
     else
-        ft_accel_q(p, t, y, y + 3, region < 0 ? FT_REGION_GEOMETRY : region, dy + 3);
+        ft_accel_q(p, t, y, y + 3, region < 0 ? FT_REGION_GEOMETRY : region, band, dy + 3);
     return PB_OK;
 }
 
-int pb_forces_events_q(const pb_problem *p, __float128 t, const __float128 *r, __float128 *g)
+int pb_forces_events_q(const pb_problem *p, __float128 t, const __float128 *r, int band,
+                       __float128 *g, int *nshadow)
 {
-    return ft_shadow_events_q(p, t, r, g);
+    return ft_events_q(p, t, r, band, g, nshadow);
+}
+
+int pb_forces_band_q(const pb_problem *p, const __float128 *r)
+{
+    return p->forces.drag ? ft_band_q(ft_altitude_q(p, r)) : -1;
 }
 
 int pb_forces_region_q(const pb_problem *p, const __float128 *g)

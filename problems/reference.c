@@ -28,7 +28,8 @@ typedef __float128 ref_real;
  * region whose formula holds until the next located boundary. */
 typedef struct ref_force {
     const pb_problem *p;
-    int region;
+    int region;             /* shadow region (-1: none) */
+    int band;               /* atmosphere row (-1: no drag) */
     pb_ephemeris_fit *fit;  /* the time-only bodies over the current step (NULL: none) */
 } ref_force;
 
@@ -39,7 +40,7 @@ static void ref_deriv(const ref_force *F, ref_real t, const ref_real *y, ref_rea
     if (fitted)
         pb_ephemeris_fit_at(F->fit, t, pos);
     /* pb_reference_propagate refuses a force with no __float128 form first */
-    (void)pb_forces_deriv_q(F->p, t, y, F->region, fitted ? pos : NULL, dy);
+    (void)pb_forces_deriv_q(F->p, t, y, F->region, F->band, fitted ? pos : NULL, dy);
 }
 
 /* Gragg's modified midpoint rule: m substeps of size H/m from y0 (f0 = f(y0)). */
@@ -119,8 +120,8 @@ typedef struct ref_run {
     ref_force F;          /* p and the shadow region of the current state */
     ref_real t, y[REF_N], h, tol;
     long steps;
-    int nev;
-    ref_real g[2];
+    int nev, nshadow;       /* boundary functions, the first nshadow of them the shadow's */
+    ref_real g[4];
 } ref_run;
 
 static int ref_crossed(const ref_real *g0, const ref_real *g1, int n)
@@ -137,7 +138,8 @@ static int ref_trial(ref_run *w, ref_real tau, ref_real *y, ref_real *g, ref_rea
     *err = ref_step(&w->F, w->t, w->y, tau, y);
     if (!ref_finite(y))
         return PB_ENONFINITE;
-    pb_forces_events_q(w->p, w->t + tau, y, g);
+    int ns;
+    pb_forces_events_q(w->p, w->t + tau, y, w->F.band, g, &ns);
     return PB_OK;
 }
 
@@ -145,7 +147,7 @@ static int ref_trial(ref_run *w, ref_real tau, ref_real *y, ref_real *g, ref_rea
  * [lo, hi] around it, the state at lo (and that step's error estimate) and
  * every function's value at hi. */
 typedef struct ref_bracket {
-    ref_real lo, hi, y_lo[REF_N], err_lo, g_hi[2];
+    ref_real lo, hi, y_lo[REF_N], err_lo, g_hi[4], y_hi[REF_N];
 } ref_bracket;
 
 /* Function j's crossing within (0, br->hi], by the Illinois variant of
@@ -154,7 +156,7 @@ typedef struct ref_bracket {
 #define REF_EVENT_TOL 1e-22Q
 static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_bracket *br)
 {
-    ref_real a = 0, b = br->hi, ga = w->g[j], gb = br->g_hi[j], y[REF_N], g[2], err;
+    ref_real a = 0, b = br->hi, ga = w->g[j], gb = br->g_hi[j], y[REF_N], g[4], err;
     memcpy(br->y_lo, w->y, sizeof br->y_lo);
     br->err_lo = 0;
     int side = 0;
@@ -175,6 +177,7 @@ static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_bracket *br)
         } else {
             b = m, gb = g[j];
             memcpy(br->g_hi, g, sizeof g);
+            memcpy(br->y_hi, y, sizeof y);
             if (side == 1)
                 ga *= 0.5Q;
             side = 1;
@@ -185,18 +188,21 @@ static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_bracket *br)
     return PB_OK;
 }
 
-/* A shadow boundary lies inside the step of length H just tried from w (g1
- * at its end): find the first crossing and stop just before it (within
+/* A shadow boundary or an atmosphere row's bound lies inside the step of
+ * length H just tried from w (y1, g1 at its end): find the first crossing and stop just before it (within
  * REF_EVENT_TOL of a step), then switch to the far side's region. Every step
  * integrates one region's formula, which is smooth, so its error estimate
  * means what it says (the steps' intermediate states would otherwise stray
  * across a boundary they end near). A step too long to be accurate even
  * before the boundary is shortened instead. The step size is kept for after
- * the boundary. */
-static int ref_land_on_event(ref_run *w, ref_real H, const ref_real *g1)
+ * the boundary. (The same holds a row of the atmosphere table fixed: a
+ * step's intermediate states stray by kilometres from the trajectory and
+ * would otherwise mix two rows' exponentials near a bound.) */
+static int ref_land_on_event(ref_run *w, ref_real H, const ref_real *y1, const ref_real *g1)
 {
     ref_bracket br = {.hi = H};
     memcpy(br.g_hi, g1, sizeof br.g_hi);
+    memcpy(br.y_hi, y1, sizeof br.y_hi);
     memcpy(br.y_lo, w->y, sizeof br.y_lo);
     for (int j = 0; j < w->nev; j++) {
         if ((w->g[j] > 0) == (br.g_hi[j] > 0))
@@ -209,9 +215,14 @@ static int ref_land_on_event(ref_run *w, ref_real H, const ref_real *g1)
         w->h = 0.5Q * br.lo;
         return PB_OK;
     }
+    /* the far side's region and atmosphere row, and the boundary functions
+     * of those, taken at hi: on the far side, so they start positive */
+    if (w->nshadow)
+        w->F.region = pb_forces_region_q(w->p, br.g_hi);
+    if (w->nev > w->nshadow)
+        w->F.band += br.g_hi[w->nshadow] <= 0 ? -1 : br.g_hi[w->nshadow + 1] <= 0 ? 1 : 0;
+    pb_forces_events_q(w->p, w->t + br.hi, br.y_hi, w->F.band, w->g, &w->nshadow);
     memcpy(w->y, br.y_lo, sizeof br.y_lo);
-    memcpy(w->g, br.g_hi, sizeof br.g_hi);
-    w->F.region = pb_forces_region_q(w->p, w->g);
     w->t += br.lo;
     return ++w->steps > REF_MAX_STEPS ? PB_EMAXSTEPS : PB_OK;
 }
@@ -220,7 +231,8 @@ static int ref_land_on_event(ref_run *w, ref_real H, const ref_real *g1)
 static int ref_advance(ref_run *w, ref_real target)
 {
     const ref_real expo = 1.0Q / (2 * REF_K - 1);
-    ref_real y1[REF_N], g1[2];
+    ref_real y1[REF_N], g1[4];
+    int ns;
     while (w->t < target) {
         ref_real H = w->h, left = target - w->t;
         int last = H >= left;
@@ -231,8 +243,9 @@ static int ref_advance(ref_run *w, ref_real target)
             return PB_ENONFINITE;
         /* a step across a shadow boundary is cut there, accurate or not: the
          * error estimate of a step across a jump says nothing */
-        if (w->nev && (pb_forces_events_q(w->p, w->t + H, y1, g1), ref_crossed(w->g, g1, w->nev))) {
-            int s = ref_land_on_event(w, H, g1);
+        if (w->nev && (pb_forces_events_q(w->p, w->t + H, y1, w->F.band, g1, &ns),
+                       ref_crossed(w->g, g1, w->nev))) {
+            int s = ref_land_on_event(w, H, y1, g1);
             if (s)
                 return s;
             continue;
@@ -290,11 +303,12 @@ int pb_reference_propagate(const pb_problem *p, const double *times, int n,
     w.h = vn > 0 ? 0.01Q * ref_norm3(w.y) / vn : 1e-3Q;
     if (p->period > 0 && w.h > p->period / 50)
         w.h = p->period / 50;
-    w.nev = pb_forces_events_q(p, w.t, w.y, w.g);
+    w.F.band = pb_forces_band_q(p, w.y);
+    w.nev = pb_forces_events_q(p, w.t, w.y, w.F.band, w.g, &w.nshadow);
     w.F.p = p;
     pb_ephemeris_fit fit;
     w.F.fit = pb_forces_timed_bodies(p) ? &fit : NULL;
-    w.F.region = w.nev ? pb_forces_region_q(p, w.g) : -1;
+    w.F.region = w.nshadow ? pb_forces_region_q(p, w.g) : -1;
     const pb_forces *f = &p->forces;
     int im = 0;
     for (int k = 0; k < n; k++) {
