@@ -1,7 +1,8 @@
 /* catalogue_missions.c - built-in mission scenarios (our own invention, for
  * benchmarks): a decaying LEO with drag and J2..J6, a GEO under Sun, Moon
  * and radiation pressure, a highly eccentric orbit under the Moon, a LEO
- * raised by a burn each orbit, and a polar lunar orbiter. Their truth is the
+ * raised by a burn each orbit, and a polar lunar orbiter with the Earth as a
+ * third body on a circular orbit. Their truth is the
  * quad-precision reference trajectory (no closed form). */
 #include <math.h>
 #include "catalogue_missions.h"
@@ -148,17 +149,24 @@ int pb_cat_leo_manoeuvre(pb_problem *out)
     return s;
 }
 
-/* Polar lunar orbiter, circular at 100 km above the Moon's radius, lunar J2;
- * no Earth perturbation (the force terms have no Moon-centred Earth
- * ephemeris); one day (about 12 orbits). */
+/* Polar lunar orbiter, circular at 100 km above the Moon's radius, lunar J2
+ * and the Earth as a third body on a circular orbit as the user states one
+ * (the force terms have no Moon-centred Earth ephemeris): radius 384400 km
+ * and the sidereal month 27.321661 days (common practice; rate^2 r^3 =
+ * 4.03e5 km^3/s^2 = GM of Earth plus Moon, as a circular orbit needs), in a
+ * plane 6.68 deg from the lunar equator (common practice); one day (about 12
+ * orbits). */
 int pb_cat_lunar_orbiter(pb_problem *out)
 {
     const pb_body *b = &pb_body_moon;
     pb_forces f = {0};
     ms_zonal(&f, b, 2);
+    f.circular = 1;
+    f.circ = (pb_circular_body){pb_body_earth.mu, 384400.0, 2.0 * M_PI / (27.321661 * MS_DAY),
+                                6.68 * MS_DEG, 0.0, 0.0};
     int s = ms_build(out, "lunar-orbiter",
-                     "polar lunar orbit, circular at 100 km altitude, lunar J2 only (no Earth "
-                     "perturbation: no Moon-centred Earth ephemeris), 1 day",
+                     "polar lunar orbit, circular at 100 km altitude, lunar J2 and the Earth on a "
+                     "circular orbit about the Moon, 1 day",
                      b, &f, b->radius + 100.0, 0.0, 90.0, 0.0, 0.0, 0.0);
     if (!s)
         out->default_orbits = ms_orbits_in(MS_DAY, out->period);

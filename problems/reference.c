@@ -410,7 +410,9 @@ int pb_reference_build(const pb_problem *p, const double *times, int n,
                        const char *cache_dir, long double *r, long double *v,
                        double *floor)
 {
-    if (!p || n < 0 || (n > 0 && (!times || !r || !v || !floor)))
+    /* a force with no __float128 form is refused before the cache is read:
+     * the key cannot tell two force functions apart */
+    if (!p || n < 0 || (n > 0 && (!times || !r || !v || !floor)) || !pb_forces_have_quad(p))
         return PB_EINVAL;
     uint64_t key = pb_reference_key(p, times, n);
     char path[4096];

@@ -5,6 +5,7 @@
 #include <criterion/criterion.h>
 #include <math.h>
 #include <string.h>
+#include "problems/bodies.h"
 #include "problems/catalogue.h"
 #include "problems/catalogue_missions.h"
 #include "problems/twobody.h"
@@ -136,8 +137,9 @@ Test(missions, leo_manoeuvre)
 }
 
 /* lunar-orbiter: the Moon (GM 4902.800066 km^3/s^2, radius 1737.4 km, J2
- * 2.033e-4: REFERENCES.md, from memory), circular polar at 100 km; no
- * third body; one day. */
+ * 2.033e-4: REFERENCES.md, from memory), circular polar at 100 km; the Earth
+ * (GM of the body table) on a circular orbit of 384400 km with the sidereal
+ * month 27.321661 d (common practice), inclined 6.68 deg; one day. */
 Test(missions, lunar_orbiter)
 {
     pb_problem p = tm_get("lunar-orbiter");
@@ -145,7 +147,17 @@ Test(missions, lunar_orbiter)
     cr_assert_eq(p.body_radius, 1737.4);
     cr_assert_eq(p.forces.zonal_degree, 2);
     cr_assert_eq(p.forces.jn[2], 2.033e-4);
-    cr_assert(!p.forces.sun && !p.forces.moon && !p.forces.drag && !p.invariants_from_truth);
+    cr_assert(!p.forces.sun && !p.forces.moon && !p.forces.drag && p.invariants_from_truth);
+    cr_assert(p.forces.circular);
+    cr_assert_eq(p.forces.circ.mu, pb_body_earth.mu);
+    cr_assert_eq(p.forces.circ.radius, 384400.0);
+    cr_assert_float_eq(p.forces.circ.rate * 27.321661 * 86400.0, 2 * M_PI, 1e-12);
+    cr_assert_float_eq(p.forces.circ.i * 180 / M_PI, 6.68, 1e-12);
+    /* nearly a Keplerian circle about Earth + Moon: rate^2 r^3 = GM_E + GM_M
+     * within 0.5% (computed here: 0.27% low, since the mean distance 384400
+     * km is not the Keplerian radius of the sidereal month) */
+    double gm = p.forces.circ.rate * p.forces.circ.rate * pow(384400.0, 3);
+    cr_assert(fabs(gm / (pb_body_earth.mu + p.mu) - 1) < 5e-3, "rate^2 r^3 = %g", gm);
     pb_elements el = tm_elements(&p);
     cr_assert_float_eq(el.a, 1837.4, 1e-6);
     cr_assert_float_eq(el.e, 0.0, 1e-12);

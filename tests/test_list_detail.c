@@ -99,7 +99,13 @@ Test(list_detail, every_problem_has_a_row_matching_the_catalogue)
             cr_expect(fabs(v0[i] - p.v0[i]) <= 1e-14 * vs, "%s v0[%d]", p.name, i);
         }
         cr_expect(fabs(ld_num(&r, C_MU) - p.mu) <= 1e-9 * p.mu, "%s mu", p.name);
-        cr_expect_eq(ld_num(&r, C_T0), p.t0, "%s t0", p.name);
+        /* "t0", or "t0 (J2000.0 + D d TT)" for a problem with an epoch */
+        double t0 = NAN, days = NAN;
+        int got = sscanf(r.cell[C_T0], "%lf (J2000.0 + %lf d TT)", &t0, &days);
+        cr_expect_eq(t0, p.t0, "%s t0", p.name);
+        cr_expect_eq(got, p.forces.has_epoch ? 2 : 1, "%s epoch cell '%s'", p.name, r.cell[C_T0]);
+        if (p.forces.has_epoch)
+            cr_expect_float_eq(days, p.forces.epoch_days, 1e-9, "%s epoch", p.name);
         double orbits, horizon;
         if (p.period > 0) {
             cr_assert_eq(sscanf(r.cell[C_HORIZON], "%lf orbits = %lf", &orbits, &horizon), 2);

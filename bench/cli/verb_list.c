@@ -107,11 +107,13 @@ static void list_vec(const double *x)
     printf(" (%.15g, %.15g, %.15g) |", x[0] + 0.0, x[1] + 0.0, x[2] + 0.0);
 }
 
-static const char *list_force(pb_force_model f)
+/* The force terms in words ("two-body + J2..J6 + drag (...)"). */
+static const char *list_force(const pb_problem *p, char *buf, unsigned len)
 {
-    if (f == PB_FORCE_J2) return "two-body + J2";
-    if (f == PB_FORCE_CR3BP) return "CR3BP, rotating frame";
-    return "two-body";
+    if (p->force == PB_FORCE_CR3BP)
+        return "CR3BP, rotating frame";
+    pb_forces_describe(&p->forces, buf, len);
+    return buf;
 }
 
 /* One row: constants, elements (osculating, from the state; "-" where the
@@ -124,7 +126,8 @@ static void list_detail_row(const pb_problem *p)
            p->mu);
     list_cell(p->body_radius > 0 ? p->body_radius : (double)NAN, " %.10g |");
     list_cell(p->forces.jn[2] != 0 ? p->forces.jn[2] : (double)NAN, " %.9g |");
-    printf(" %s |", list_force(p->force));
+    char force[256];
+    printf(" %s |", list_force(p, force, sizeof force));
     if (kep) {
         list_cell(el.a, " %.10g |");
         /* an eccentricity at round-off level is a circular orbit */
@@ -143,7 +146,10 @@ static void list_detail_row(const pb_problem *p)
         printf(" %g orbits = %.10g |", p->default_orbits, p->default_orbits * p->period);
     else
         printf(" %.10g |", p->default_horizon_s);
-    printf(" %g |\n", p->t0);
+    if (p->forces.has_epoch)
+        printf(" %g (J2000.0 + %.10g d TT) |\n", p->t0, p->forces.epoch_days);
+    else
+        printf(" %g |\n", p->t0);
 }
 
 static void list_problems_detail(void)

@@ -23,6 +23,10 @@ double pb_energy_scale(const pb_problem *p, double E0);
 
 /* Relative error |x - x0| / |x0| (absolute when x0 == 0). */
 double pb_rel_err(double x, double x0);
+/* What an angular-momentum error is relative to: |H0|, except for h_z of a
+ * (nearly) polar orbit (|h_z| under 1e-3 of |h|), where |h| is used, since
+ * h_z is then a round-off residue. */
+double pb_angmom_scale(const pb_problem *p, double H0);
 
 /* Angle (rad) from vector e0 to e1 about the axis n, in (-pi, pi]. */
 double pb_angle_about(const double *e0, const double *e1, const double *n);
