@@ -9,6 +9,7 @@
 #include <math.h>
 #include <string.h>
 #include "bench/measure/harness.h"
+#include "test_support.h"
 #include "problems/bodies.h"
 #include "problems/force_terms.h"
 #include "problems/reference.h"
@@ -546,4 +547,24 @@ Test(reference_forces, unknown_accel_is_refused)
     spec.problem = known;
     err[0] = 0;
     cr_assert_eq(pb_case_validate(&spec, err, sizeof err), 0, "message: %s", err);
+}
+
+/* The cache cannot tell two force functions apart (its key holds the force
+ * terms, not the function): a cached reference of the known force must not
+ * be handed out for an unknown one. */
+Test(reference_forces, unknown_accel_is_refused_even_with_a_cached_reference)
+{
+    pb_forces f = rf_j2();
+    pb_problem known = rf_leo(&f), p = known;
+    p.accel = rf_unknown_accel;
+    char dir[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    cr_assert(dir[0]);
+    double t[1] = {600.0}, floor[1];
+    long double r[3], v[3];
+    cr_assert_eq(pb_reference_build(&known, t, 1, dir, r, v, floor), PB_OK);
+    cr_assert_eq(pb_reference_build(&p, t, 1, dir, r, v, floor), PB_EINVAL);
+    pb_truth *tr = NULL;
+    cr_assert_eq(pb_truth_build(&p, t, 1, dir, &tr), PB_EINVAL);
+    cr_assert_null(tr);
 }
