@@ -103,4 +103,9 @@ int bench_load(const pb_problem *p, double *worst_spread_pct);
  * slowest build's CPU seconds into *worst_s. 0, or -1 when a build failed. */
 int bench_reference(double *worst_s);
 
+/* bench_precision.c: evaluations of each adaptive method to a 1e-9 position
+ * error on p; and the share of each job's time per step beyond the force. */
+void bench_precision(const pb_problem *p);
+void bench_overhead_beyond_force(const pb_problem *p, const bench_job *jobs, int n);
+
 #endif

@@ -1,6 +1,7 @@
 /* bench_main.c - `make bench`: the cost of every method on one problem
- * (bench_methods.c), our RK4 against GSL's rk4 (bench_gsl.c), the harness's
- * overhead against hand-written RK4 loops (bench_overhead.c), peak memory
+ * (bench_methods.c), evaluations to a 1e-9 error (bench_precision.c), our
+ * RK4 against GSL's rk4 (bench_gsl.c), the harness's overhead against
+ * hand-written RK4 loops (bench_overhead.c), peak memory
  * against horizon (bench_memory.c), the timing pass's spread under load
  * (bench_load.c) and reference builds with mission-like forces
  * (bench_reference.c); this file runs them in order and prints the goals.
@@ -33,6 +34,7 @@ int main(void)
     double rk4_ns = nan, oh_pct = nan, oh_min_pct = nan, mem_pct = nan, od_pct = nan, od_min = nan;
     double load_pct = nan;
     bench_methods(&p, &rk4_ns);
+    bench_precision(&p);
     bench_rk4_vs_gsl(&p);
     int oh_ok = bench_overhead(&p, &oh_pct, &oh_min_pct, &od_pct, &od_min) == 0;
     int mem_ok = bench_memory(&mem_pct) == 0;

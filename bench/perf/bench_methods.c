@@ -48,4 +48,5 @@ void bench_methods(const pb_problem *p, double *rk4_ns_step)
     }
     printf("   (x rk4: ns per step relative to our rk4; GSL's peers run behind our method\n"
            "    interface, gsl-rk4 step-doubles: 11 evaluations a step)\n\n");
+    bench_overhead_beyond_force(p, jobs, nm);
 }
