@@ -76,6 +76,20 @@ double pb_truth_floor(const pb_truth *tr, int k) { return tr->floor[k]; }
 
 int pb_truth_is_exact(const pb_truth *tr) { return tr->exact; }
 
+void pb_truth_shift(pb_truth *tr, int k, double t, double dt, const pb_problem *p)
+{
+    long double *r = tr->r + (size_t)k * PB_DIM_MAX, *v = tr->v + (size_t)k * PB_DIM_MAX;
+    double rd[PB_DIM_MAX] = {0}, vd[PB_DIM_MAX] = {0}, a[PB_DIM_MAX] = {0};
+    for (int i = 0; i < PB_DIM_MAX; i++)
+        rd[i] = (double)r[i], vd[i] = (double)v[i];
+    if (p->accel(p, t, rd, vd, a) != PB_OK)
+        return;
+    for (int i = 0; i < tr->dim && i < PB_DIM_MAX; i++) {
+        r[i] += (long double)dt * (v[i] + 0.5L * (long double)dt * (long double)a[i]);
+        v[i] += (long double)dt * (long double)a[i];
+    }
+}
+
 void pb_truth_free(pb_truth *tr)
 {
     if (!tr)

@@ -19,6 +19,10 @@ void pb_truth_state(const pb_truth *tr, int k, long double *r, long double *v);
  * measured error below 10 times this is "below the reference floor". */
 double pb_truth_floor(const pb_truth *tr, int k);
 int pb_truth_is_exact(const pb_truth *tr);
+/* Move sample k's state (at time t) by dt (a few ulps of time, never more than a step's
+ * round-off) with a second-order Taylor step on p's force: r += v dt +
+ * a dt^2/2, v += a dt; the error, O(dt^3), is far below any floor. */
+void pb_truth_shift(pb_truth *tr, int k, double t, double dt, const pb_problem *p);
 void pb_truth_free(pb_truth *tr); /* accepts NULL */
 
 #endif

@@ -442,12 +442,17 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     if (!res->samples)
         goto out;
     double t_int_end = harness_integration_end(spec, horizon, res->h);
-    /* t0 + n h may fall an ulp short of t0 + horizon: the horizon is then
-     * that grid time, which the method reaches exactly */
-    for (int k = plan.n - 1; k >= 0 && plan.t[k] > t_int_end; k--)
-        plan.t[k] = t_int_end;
+    /* the truth at the planned times, which do not depend on the step, so
+     * that one cached reference serves every step size */
     if ((rc = pb_truth_build(p, plan.t, plan.n, spec->cache_dir, &truth)))
         goto out;
+    /* t0 + n h may fall an ulp short of t0 + horizon: the horizon is then
+     * that grid time, which the method reaches exactly; the truth follows it
+     * there by a Taylor step of those few ulps */
+    for (int k = plan.n - 1; k >= 0 && plan.t[k] > t_int_end; k--) {
+        pb_truth_shift(truth, k, plan.t[k], t_int_end - plan.t[k], p);
+        plan.t[k] = t_int_end;
+    }
     rc = PB_ENOMEM;
     if (!(ws = m->alloc(p->dim)))
         goto out;
