@@ -739,3 +739,21 @@ Test(cli, case_spec_default_kept_by_each_verb)
     snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
     cr_assert_eq(system(cmd), 0);
 }
+
+/* select leaves out the methods written for r'' = a(r) on a drag problem
+ * and says which, rather than printing a shorter table without a word. */
+Test(cli, select_names_the_methods_it_leaves_out)
+{
+    char dir[256], out[300];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/sel.json", dir);
+    cr_assert_eq(cli((const char *[]){"select", "--problem", "leo-drag", "--horizon-s", "3000",
+                                      "--max-pos-err-m", "1000", "--methods", "rk4,rkf45",
+                                      "--out", out, NULL}), 0, "%s", err_buf);
+    cr_assert_null(strstr(out_buf, "not searched"), "%s", out_buf);
+    cr_assert_eq(cli((const char *[]){"select", "--problem", "leo-drag", "--horizon-s", "3000",
+                                      "--max-pos-err-m", "1000", "--out", out, NULL}), 0, "%s", err_buf);
+    cr_assert_not_null(strstr(out_buf, "not searched: leapfrog"), "%s", out_buf);
+    cr_assert_not_null(strstr(out_buf, "not searched: gauss-jackson8"), "%s", out_buf);
+    cr_assert_null(strstr(out_buf, "not searched: rk4"), "%s", out_buf);
+}

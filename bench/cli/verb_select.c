@@ -204,6 +204,10 @@ static int select_methods(const select_options *o, const pb_problem *p, const pb
                          "problem '%s' depends on velocity", list[i]->name, p->name);
             return -1;
         }
+        /* one the search leaves out is said, so a short table is not a surprise */
+        if (!o->quiet)
+            printf("not searched: %s (written for r'' = a(r); problem '%s' depends on velocity)\n",
+                   list[i]->name, p->name);
     }
     return m;
 }
