@@ -54,6 +54,12 @@ static const mx_setting mx_settings[] = {
     {"gsl-rk8pd", 1e-9, {4e-7, 4e-7, 4e-7, 4e-7}},
     /* measured: 1.6e-5, 4.7e-6, 5.9e-6, 4.1e-6 */
     {"gsl-msadams", 1e-9, {2e-4, 5e-5, 6e-5, 5e-5}},
+    /* rtol 1e-12: at 1e-9, 3 orbits of e = 0.5 take 46 attempts, inside the
+     * step-budget test's 50 (77 at 1e-12); measured: 4.6e-13, 7.5e-14,
+     * 3.4e-13, 2.4e-13 */
+    {"rkn12", 1e-12, {5e-12, 1e-12, 4e-12, 3e-12}},
+    /* measured: 1.2e-14, 1.4e-14, 7.6e-14, 6.1e-14 (round-off) */
+    {"radau15", 1e-9, {1e-11, 1e-11, 1e-11, 1e-11}},
 };
 
 static const mx_setting *mx_find(const char *name)
