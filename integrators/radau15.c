@@ -1,8 +1,8 @@
 /* radau15.c - Everhart's implicit Runge-Kutta integrator of order 15 on
  * Gauss-Radau spacings (Everhart 1985, IAU Colloq. 83, 185) for
  * r'' = a(t, r, v), its B values iterated to convergence in every step; step
- * control and round-off practice of Rein & Spiegel (2015), MNRAS 446, 1424
- * (their IAS15): compensated summation of the state update, always on. */
+ * control and round-off practice of Rein & Spiegel (2015), MNRAS 446, 1424,
+ * with compensated summation of the state update, always on. */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -581,7 +581,7 @@ void pb_radau15_get_info(const void *ws, pb_radau15_info *info)
 const pb_method_type pb_method_radau15 = {
     PB_METHOD_RECORD_HEAD,
     .name = "radau15",
-    .description = "Everhart's Gauss-Radau 15 (IAS15 step control), r'' = a(t, r, v), "
+    .description = "Everhart's Gauss-Radau 15 (Rein & Spiegel step control), r'' = a(t, r, v), "
                    "compensated sums always",
     .source = "Everhart (1985), IAU Colloq. 83, 185; Rein & Spiegel (2015), MNRAS 446, 1424",
     .order = 15,

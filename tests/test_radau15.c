@@ -282,7 +282,7 @@ Test(radau15, arenstorf_orbit_closes)
     cr_assert(dr <= 1e-8, "position after one period %.3e from the start", dr);
 }
 
-/* Brouwer's law (Brouwer 1937; Rein & Spiegel 2015, Sec. 4: IAS15's energy
+/* Brouwer's law (Brouwer 1937; Rein & Spiegel 2015, Sec. 4: their integrator's energy
  * error grows as t^(1/2) over 1e9 orbits, thanks to compensated sums): at
  * round-off accuracy the energy error is a random walk. The long run
  * (kepler-e0.5, 1e4 orbits at rtol 1e-18, `propbench run --problem
