@@ -88,10 +88,14 @@ typedef struct pb_method_type {
     void (*free)(void *ws);  /* accepts NULL */
     /* Dense output (continuous extension): the state at any t within the
      * last accepted step, between the previous state and the current one,
-     * without a force evaluation and without touching the integration, so
-     * that output times never shorten a step. PB_OK, or PB_EINVAL when t
-     * lies outside that step (or no step was taken). propbench/dense.h has a
-     * Hermite interpolant for methods without one of their own. */
+     * without touching the integration, so that output times never shorten
+     * a step. It may evaluate the force (dop853: three extra stages, once a
+     * step; the harness keeps them out of a case's evaluation count) and fill
+     * a cache of its own through the const pointer. PB_OK, PB_EINVAL when t
+     * lies outside that step (or no step was taken), or the status of a
+     * failed evaluation.
+     * propbench/dense.h has a Hermite interpolant for methods without one of
+     * their own. */
     int (*dense)(const void *ws, double t, double *r, double *v);
     int dense_order;         /* the extension's order q: local error O(h^(q+1)) */
 } pb_method_type;
