@@ -10,6 +10,8 @@ extern const pb_method_type pb_method_yoshida4;
 extern const pb_method_type pb_method_yoshida6;
 extern const pb_method_type pb_method_yoshida8;
 extern const pb_method_type pb_method_rkf45;
+extern const pb_method_type pb_method_dop853;
+extern const pb_method_type pb_method_bulirsch_stoer;
 extern const pb_method_type pb_method_gsl_rk4;
 extern const pb_method_type pb_method_gsl_rkf45;
 extern const pb_method_type pb_method_gsl_rkck;
@@ -26,6 +28,8 @@ const pb_method_type *const pb_method_table[] = {
     &pb_method_yoshida6,
     &pb_method_yoshida8,
     &pb_method_rkf45,
+    &pb_method_dop853,
+    &pb_method_bulirsch_stoer,
     &pb_method_gsl_rk4,
     &pb_method_gsl_rkf45,
     &pb_method_gsl_rkck,
