@@ -281,6 +281,6 @@ Test(fixed_step, every_fixed_method)
             cr_assert(rs[i] == r[i] && vs[i] == v[i], "%s: component %d", m->name, i);
         m->free(ws);
     }
-    /* rk4, leapfrog, yoshida4/6/8, gsl-rk4, gauss-jackson8 */
-    cr_assert_eq(nfixed, 7);
+    /* rk4, leapfrog, yoshida4/6/8, gsl-rk4, gauss-jackson8, gauss-legendre(12) */
+    cr_assert_eq(nfixed, 9);
 }
