@@ -7,6 +7,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include "integrators/adaptive_tolerance.h"
 #include "integrators/bulirsch_stoer.h"
 
 /* Row j (1-based, as HNW) takes a step H with n_j midpoint substeps,
@@ -126,30 +127,6 @@ static void bs_free(void *ws)
     free(w);
 }
 
-static double bs_vnorm(const double *x, int d)
-{
-    double s = 0;
-    for (int i = 0; i < d; i++)
-        s += x[i] * x[i];
-    return sqrt(s);
-}
-
-/* Tolerances as rkf45 and dop853: sc_i = atol_i + rtol max(|y_i|, |ynew_i|);
- * atol = 0 becomes rtol times |r0| (positions) or |v0| (velocities). */
-static int bs_set_tolerances(bs_ws *w, const double *r0, const double *v0)
-{
-    const pb_method_config *c = &w->cfg;
-    if (!(c->atol >= 0) || !(c->rtol >= 0) || !(c->atol > 0 || c->rtol > 0) ||
-        !isfinite(c->atol) || !isfinite(c->rtol))
-        return PB_EINVAL;
-    double sr = bs_vnorm(r0, w->dim), sv = bs_vnorm(v0, w->dim);
-    for (int i = 0; i < w->dim; i++) {
-        w->atol[i] = c->atol > 0 ? c->atol : c->rtol * (sr > 0 ? sr : 1.0);
-        w->atol[w->dim + i] = c->atol > 0 ? c->atol : c->rtol * (sv > 0 ? sv : 1.0);
-    }
-    return PB_OK;
-}
-
 /* The first target row from the tolerance, as HNW's ODEX: tighter
  * tolerances start higher. */
 static int bs_first_row(double tol)
@@ -166,7 +143,7 @@ static int bs_start(void *ws, const pb_force *f, const pb_method_config *cfg, do
         return PB_EINVAL;
     w->f = *f;
     w->cfg = *cfg;
-    int s = bs_set_tolerances(w, r0, v0);
+    int s = pb_adaptive_tolerances(&w->cfg, w->dim, r0, v0, w->atol);
     if (s)
         return s;
     double scale = cfg->time_scale > 0 ? cfg->time_scale : 1.0;

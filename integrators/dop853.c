@@ -6,6 +6,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include "integrators/adaptive_tolerance.h"
 #include "method.h"
 #include "dop853_coeffs.h"
 
@@ -120,33 +121,6 @@ static void dop853_free(void *ws)
     free(w);
 }
 
-static double dop853_vnorm(const double *x, int d)
-{
-    double s = 0;
-    for (int i = 0; i < d; i++)
-        s += x[i] * x[i];
-    return sqrt(s);
-}
-
-/* Tolerances: sc_i = atol_i + rtol * max(|y_i|, |ynew_i|) (HNW I, II.4). With
- * cfg->atol == 0, atol_i becomes rtol times the initial size of its own
- * vector (|r0| for positions, |v0| for velocities; 1 if that is 0), as rkf45
- * does, so that a zero component (z of a planar orbit) does not collapse the
- * step and the test stays unit-independent. */
-static int dop853_set_tolerances(dop853_ws *w, const double *r0, const double *v0)
-{
-    const pb_method_config *c = &w->cfg;
-    if (!(c->atol >= 0) || !(c->rtol >= 0) || !(c->atol > 0 || c->rtol > 0) ||
-        !isfinite(c->atol) || !isfinite(c->rtol))
-        return PB_EINVAL;
-    double sr = dop853_vnorm(r0, w->dim), sv = dop853_vnorm(v0, w->dim);
-    for (int i = 0; i < w->dim; i++) {
-        w->atol[i] = c->atol > 0 ? c->atol : c->rtol * (sr > 0 ? sr : 1.0);
-        w->atol[w->dim + i] = c->atol > 0 ? c->atol : c->rtol * (sv > 0 ? sv : 1.0);
-    }
-    return PB_OK;
-}
-
 static int dop853_start(void *ws, const pb_force *f, const pb_method_config *cfg,
                         double t0, const double *r0, const double *v0)
 {
@@ -155,7 +129,7 @@ static int dop853_start(void *ws, const pb_force *f, const pb_method_config *cfg
         return PB_EINVAL;
     w->f = *f;
     w->cfg = *cfg;
-    int s = dop853_set_tolerances(w, r0, v0);
+    int s = pb_adaptive_tolerances(&w->cfg, w->dim, r0, v0, w->atol);
     if (s)
         return s;
     double scale = cfg->time_scale > 0 ? cfg->time_scale : 1.0;

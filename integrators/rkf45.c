@@ -8,6 +8,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include "integrators/adaptive_tolerance.h"
 #include "method.h"
 #include "propbench/dense.h"
 
@@ -94,33 +95,6 @@ static void rkf45_free(void *ws)
     free(w);
 }
 
-static double rkf45_vnorm(const double *x, int d)
-{
-    double s = 0;
-    for (int i = 0; i < d; i++)
-        s += x[i] * x[i];
-    return sqrt(s);
-}
-
-/* Tolerances: sc_i = atol_i + rtol * max(|y_i|, |ynew_i|) (Hairer, Norsett &
- * Wanner I, II.4). With cfg->atol == 0 a purely relative test would divide by
- * zero on a component that is zero (z of a planar orbit), so atol_i becomes
- * rtol times the initial size of its own vector: |r0| for positions, |v0| for
- * velocities (1 if that size is 0). This keeps the test unit-independent. */
-static int rkf45_set_tolerances(rkf45_ws *w, const double *r0, const double *v0)
-{
-    const pb_method_config *c = &w->cfg;
-    if (!(c->atol >= 0) || !(c->rtol >= 0) || !(c->atol > 0 || c->rtol > 0) ||
-        !isfinite(c->atol) || !isfinite(c->rtol))
-        return PB_EINVAL;
-    double sr = rkf45_vnorm(r0, w->dim), sv = rkf45_vnorm(v0, w->dim);
-    for (int i = 0; i < w->dim; i++) {
-        w->atol[i] = c->atol > 0 ? c->atol : c->rtol * (sr > 0 ? sr : 1.0);
-        w->atol[w->dim + i] = c->atol > 0 ? c->atol : c->rtol * (sv > 0 ? sv : 1.0);
-    }
-    return PB_OK;
-}
-
 static int rkf45_start(void *ws, const pb_force *f, const pb_method_config *cfg,
                        double t0, const double *r0, const double *v0)
 {
@@ -129,7 +103,7 @@ static int rkf45_start(void *ws, const pb_force *f, const pb_method_config *cfg,
         return PB_EINVAL;
     w->f = *f;
     w->cfg = *cfg;
-    int s = rkf45_set_tolerances(w, r0, v0);
+    int s = pb_adaptive_tolerances(&w->cfg, w->dim, r0, v0, w->atol);
     if (s)
         return s;
     double scale = cfg->time_scale > 0 ? cfg->time_scale : 1.0;

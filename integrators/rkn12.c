@@ -6,6 +6,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include "integrators/adaptive_tolerance.h"
 #include "method.h"
 #include "integrators/rkn12_coeffs.h"
 #include "propbench/dense.h"
@@ -98,32 +99,6 @@ static void rkn12_free(void *ws)
     free(w);
 }
 
-static double rkn12_vnorm(const double *x, int d)
-{
-    double s = 0;
-    for (int i = 0; i < d; i++)
-        s += x[i] * x[i];
-    return sqrt(s);
-}
-
-/* sc_i = atol_i + rtol * max(|y_i|, |ynew_i|) (Hairer, Norsett & Wanner I,
- * II.4). With cfg->atol == 0 a zero component (z of a planar orbit) would
- * make a pure relative test divide by zero, so atol_i becomes rtol times the
- * initial size of its own vector, |r0| or |v0| (as rkf45 does). */
-static int rkn12_set_tolerances(rkn12_ws *w, const double *r0, const double *v0)
-{
-    const pb_method_config *c = &w->cfg;
-    if (!(c->atol >= 0) || !(c->rtol >= 0) || !(c->atol > 0 || c->rtol > 0) ||
-        !isfinite(c->atol) || !isfinite(c->rtol))
-        return PB_EINVAL;
-    double sr = rkn12_vnorm(r0, w->dim), sv = rkn12_vnorm(v0, w->dim);
-    for (int i = 0; i < w->dim; i++) {
-        w->atol[i] = c->atol > 0 ? c->atol : c->rtol * (sr > 0 ? sr : 1.0);
-        w->atol[w->dim + i] = c->atol > 0 ? c->atol : c->rtol * (sv > 0 ? sv : 1.0);
-    }
-    return PB_OK;
-}
-
 static int rkn12_start(void *ws, const pb_force *f, const pb_method_config *cfg, double t0,
                        const double *r0, const double *v0)
 {
@@ -133,7 +108,7 @@ static int rkn12_start(void *ws, const pb_force *f, const pb_method_config *cfg,
         return PB_EINVAL;
     w->f = *f;
     w->cfg = *cfg;
-    int s = rkn12_set_tolerances(w, r0, v0);
+    int s = pb_adaptive_tolerances(&w->cfg, w->dim, r0, v0, w->atol);
     if (s)
         return s;
     double scale = cfg->time_scale > 0 ? cfg->time_scale : 1.0;
