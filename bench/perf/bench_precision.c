@@ -11,7 +11,7 @@
 #include "bench/perf/bench.h"
 
 #define PREC_TARGET 1e-9
-#define PREC_RUNGS 17                /* tolerances 1e-5 .. 1e-13, half decades */
+#define PREC_RUNGS 23                /* tolerances 1e-5 .. 1e-16, half decades */
 
 /* pos_err_max and evaluations of one metric pass (no timing). */
 static int prec_case(const pb_problem *p, const pb_method_type *m, double tol, double *err,
@@ -76,7 +76,7 @@ void bench_precision(const pb_problem *p)
 {
     printf("== Adaptive methods: evaluations to a %.0e position error, %s, %g orbits ==\n",
            PREC_TARGET, p->name, BENCH_ORBITS);
-    printf("   (tolerance ladder 1e-5 .. 1e-13 in half decades, log-log interpolation; '-':\n"
+    printf("   (tolerance ladder 1e-5 .. 1e-16 in half decades, log-log interpolation; '-':\n"
            "    the ladder does not reach it)\n");
     printf("   %-16s %14s\n", "method", "evals at 1e-9");
     for (const pb_method_type *const *mp = pb_method_table; *mp; mp++) {
