@@ -7,7 +7,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "integrators/adaptive_tolerance.h"
+#include "integrators/adaptive_setup.h"
 #include "integrators/bulirsch_stoer.h"
 
 /* Row j (1-based, as HNW) takes a step H with n_j midpoint substeps,
@@ -326,7 +326,7 @@ static int bs_initial_step(bs_ws *w)
     int n = w->n, s;
     double scale = w->cfg.time_scale > 0 ? w->cfg.time_scale : 1.0;
     double d0 = bs_err_norm(w, w->y, w->y, w->y), d1 = bs_err_norm(w, w->y, w->y, w->f0);
-    double h0 = (d0 < 1e-5 || d1 < 1e-5) ? 1e-6 * scale : 0.01 * d0 / d1;
+    double h0 = pb_first_step_trial(d0, d1, scale);
     for (int i = 0; i < n; i++)
         w->zprev[i] = w->y[i] + h0 * w->f0[i];
     double *f1 = w->fstore[w->cur];
@@ -334,10 +334,8 @@ static int bs_initial_step(bs_ws *w)
         return s;
     for (int i = 0; i < n; i++)
         w->zcur[i] = f1[i] - w->f0[i];
-    double d2 = bs_err_norm(w, w->y, w->y, w->zcur) / h0, dm = fmax(d1, d2);
-    double h1 = dm <= 1e-15 ? fmax(1e-6 * scale, h0 * 1e-3)
-                            : pow(0.01 / dm, 1.0 / (2 * w->k + 1));
-    w->H = fmin(100.0 * h0, h1);
+    double d2 = bs_err_norm(w, w->y, w->y, w->zcur) / h0;
+    w->H = pb_first_step(h0, d1, d2, 2 * w->k + 1, scale);
     return PB_OK;
 }
 

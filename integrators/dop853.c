@@ -6,7 +6,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "integrators/adaptive_tolerance.h"
+#include "integrators/adaptive_setup.h"
 #include "method.h"
 #include "dop853_coeffs.h"
 

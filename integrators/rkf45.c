@@ -8,7 +8,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "integrators/adaptive_tolerance.h"
+#include "integrators/adaptive_setup.h"
 #include "method.h"
 #include "propbench/dense.h"
 
@@ -150,7 +150,7 @@ static int rkf45_initial_step(rkf45_ws *w)
     double scale = w->cfg.time_scale > 0 ? w->cfg.time_scale : 1.0;
     double d0 = rkf45_err_norm(w, w->y, w->y, w->y);
     double d1 = rkf45_err_norm(w, w->y, w->y, w->k[0]);
-    double h0 = (d0 < 1e-5 || d1 < 1e-5) ? 1e-6 * scale : 0.01 * d0 / d1;
+    double h0 = pb_first_step_trial(d0, d1, scale);
     for (int i = 0; i < n; i++)
         w->ytmp[i] = w->y[i] + h0 * w->k[0][i];
     if ((s = rkf45_deriv(w, w->t + h0, w->ytmp, w->k[1])))
@@ -158,9 +158,7 @@ static int rkf45_initial_step(rkf45_ws *w)
     for (int i = 0; i < n; i++)
         w->ynew[i] = w->k[1][i] - w->k[0][i];
     double d2 = rkf45_err_norm(w, w->y, w->y, w->ynew) / h0;
-    double dm = fmax(d1, d2);
-    double h1 = dm <= 1e-15 ? fmax(1e-6 * scale, h0 * 1e-3) : pow(0.01 / dm, 1.0 / RKF45_K);
-    w->h = fmin(100.0 * h0, h1);
+    w->h = pb_first_step(h0, d1, d2, RKF45_K, scale);
     return PB_OK;
 }
 

@@ -6,7 +6,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "integrators/adaptive_tolerance.h"
+#include "integrators/adaptive_setup.h"
 #include "method.h"
 #include "integrators/rkn12_coeffs.h"
 #include "propbench/dense.h"
@@ -152,7 +152,7 @@ static int rkn12_initial_step(rkn12_ws *w)
     memcpy(w->rn, w->r, (size_t)d * sizeof(double));
     memcpy(w->vn, w->v, (size_t)d * sizeof(double));
     double d0 = rkn12_err_norm(w, w->r, w->v), d1 = rkn12_err_norm(w, w->v, a0);
-    double h0 = (d0 < 1e-5 || d1 < 1e-5) ? 1e-6 * scale : 0.01 * d0 / d1;
+    double h0 = pb_first_step_trial(d0, d1, scale);
     for (int i = 0; i < d; i++)
         w->rt[i] = w->r[i] + h0 * w->v[i];
     if ((s = w->f.accel(w->f.ctx, w->t + h0, w->rt, w->v, w->er)))
@@ -162,9 +162,7 @@ static int rkn12_initial_step(rkn12_ws *w)
         w->ev[i] = h0 * a0[i]; /* change of v over h0 */
     }
     double d2 = rkn12_err_norm(w, w->ev, w->er) / h0;
-    double dm = fmax(d1, d2);
-    double h1 = dm <= 1e-15 ? fmax(1e-6 * scale, h0 * 1e-3) : pow(0.01 / dm, 1.0 / RKN12_K);
-    w->h = fmin(100.0 * h0, h1);
+    w->h = pb_first_step(h0, d1, d2, RKN12_K, scale);
     return PB_OK;
 }
 
