@@ -43,7 +43,8 @@ void pb_method_expected_error(const pb_method_type *m, double e, double *steps_o
                               double *bound);
 
 /* 1 when m can integrate p: a second-order-form method (PB_FORM_SECOND) sees
- * a(r) only, so it cannot take a velocity-dependent force. */
+ * a(r) only, so it cannot take a velocity-dependent force; a method built
+ * around the Kepler flow (PB_KIND_KEPLER) needs a central -mu r/|r|^3 term. */
 int pb_method_fits(const pb_method_type *m, const pb_problem *p);
 
 #endif

@@ -149,5 +149,7 @@ int pb_method_check(const pb_method_type *m, char *err, size_t errlen)
 
 int pb_method_fits(const pb_method_type *m, const pb_problem *p)
 {
+    if ((m->flags & PB_KIND_KEPLER) && pb_problem_kepler_mu(p) <= 0)
+        return 0;
     return !((m->flags & PB_FORM_SECOND) && p->velocity_dependent);
 }

@@ -67,6 +67,13 @@ struct pb_problem {
     int (*exact_q)(const pb_problem *p, double t, __float128 *r, __float128 *v);
 };
 
+/* The GM of the central -mu r/|r|^3 term that the force is made of plus a
+ * perturbation (pb_method_config.mu); 0 where there is none (the CR3BP). */
+static inline double pb_problem_kepler_mu(const pb_problem *p)
+{
+    return p->force == PB_FORCE_CR3BP ? 0.0 : p->mu;
+}
+
 /* Evaluate a problem's acceleration; thin wrapper kept for symmetry. */
 static inline int pb_problem_accel(const pb_problem *p, double t, const double *r,
                                    const double *v, double *a)

@@ -108,6 +108,7 @@ static void st_config(const pb_method_type *m, const pb_problem *p, double par,
 {
     memset(cfg, 0, sizeof *cfg);
     cfg->time_scale = p->period;
+    cfg->mu = pb_problem_kepler_mu(p);
     cfg->max_steps = 10000000; /* a hang guard */
     if (m->flags & PB_KIND_ADAPTIVE)
         cfg->rtol = cfg->atol = par;

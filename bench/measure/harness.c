@@ -104,6 +104,7 @@ static void harness_config(const pb_case_spec *spec, double horizon, pb_method_c
 {
     memset(cfg, 0, sizeof *cfg);
     cfg->time_scale = pb_case_scale(spec);
+    cfg->mu = pb_problem_kepler_mu(&spec->problem);
     cfg->compensated = spec->compensated;
     if (spec->method->flags & PB_KIND_FIXED) {
         cfg->h = pb_case_step(spec);

@@ -44,6 +44,7 @@ void bench_config(const pb_method_type *m, const pb_problem *p, double h, double
 {
     memset(cfg, 0, sizeof *cfg);
     cfg->time_scale = p->period;
+    cfg->mu = pb_problem_kepler_mu(p);
     if (m->flags & PB_KIND_FIXED) {
         cfg->h = h;
     } else {

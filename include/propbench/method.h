@@ -18,7 +18,7 @@ extern "C" {
  * Raised whenever a field changes meaning or place, so that a record built
  * against another version is refused, not misread; the shared library's
  * soname (libpropbench.so.N) carries it. */
-#define PB_METHOD_ABI 2u
+#define PB_METHOD_ABI 3u
 
 /* Kind flags (capabilities are fields, never checks of a name). */
 enum {
@@ -28,7 +28,9 @@ enum {
     PB_KIND_MULTISTEP   = 1u << 3,
     PB_FORM_SECOND      = 1u << 4, /* sees r, v, a(r): needs a velocity-independent force */
     PB_KIND_COMPENSABLE = 1u << 5, /* honours cfg->compensated */
-    PB_FROM_GSL         = 1u << 6  /* GSL's stepper, wrapped */
+    PB_FROM_GSL         = 1u << 6, /* GSL's stepper, wrapped */
+    PB_KIND_KEPLER      = 1u << 7  /* built around the Kepler flow of cfg->mu: needs a
+                                    * force that is -mu r/|r|^3 plus a perturbation */
 };
 
 /* The force as a method sees it: a(t, r, v) through an opaque context.
@@ -53,6 +55,10 @@ typedef struct pb_method_config {
     double corrector_tol;  /* multistep: iterate the corrector to this (0: PEC once) */
     int corrector_max_iter;
     double time_scale;     /* the problem's period or scale, to size automatic steps */
+    double mu;             /* GM of the central body when the force is -mu r/|r|^3 plus a
+                            * perturbation (every problem but the CR3BP); 0 otherwise.
+                            * For methods that split off or regularise the Kepler flow
+                            * (PB_KIND_KEPLER); others may ignore it. */
 } pb_method_config;
 
 typedef struct pb_method_stats {
