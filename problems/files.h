@@ -4,9 +4,17 @@
 #ifndef PB_FILES_H
 #define PB_FILES_H
 
+#include <stdio.h>
+
 /* mkdir -p: make path and every missing parent (mode 0777 less the umask).
  * 0, or -1 with errno: ENAMETOOLONG past 4095 bytes, ENOTDIR when path
  * exists but is not a directory, or mkdir's own. */
 int pb_mkdirs(const char *path);
+
+/* Open an input file for reading, refusing anything but a regular file: a
+ * folder, a FIFO (whose open would wait for a writer), a device such as
+ * /dev/zero (endless) or a socket. The open itself does not block. The
+ * stream, or NULL with the reason (a fixed phrase or strerror's) in *why. */
+FILE *pb_open_input(const char *path, const char *mode, const char **why);
 
 #endif

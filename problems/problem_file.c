@@ -16,6 +16,7 @@
 #include "problem_file_case.h"
 #include "problem_file_forces.h"
 #include "bodies.h"
+#include "files.h"
 
 /* inih keeps at most MAX_SECTION - 1 = 49 characters between the brackets
  * (MAX_SECTION is 50 in inih's ini.c and not exported) and cuts the rest
@@ -125,14 +126,28 @@ static char *pf_reader(char *str, int num, void *stream)
     pf_ctx *c = stream;
     if (c->failed)
         return NULL;
-    char *s = fgets(str, num, c->f);
-    if (!s) {
+    size_t len = 0;
+    int ch = EOF, nul = 0;
+    /* fgets would hide a NUL byte from every strlen after it: a key behind
+     * one would be read, "e = 0.1\0junk" accepted, /dev/zero read forever */
+    while (len + 1 < (size_t)num && (ch = getc(c->f)) != EOF) {
+        nul |= ch == 0;
+        str[len++] = (char)ch;
+        if (ch == '\n')
+            break;
+    }
+    str[len] = 0;
+    if (!len) {
         pf_check_empty_section(c);
         return NULL;
     }
+    char *s = str;
     c->line++;
+    if (nul) {
+        pf_fail(c, c->line, NULL, "a NUL byte: not a text file");
+        return NULL;
+    }
     snprintf(c->raw, sizeof c->raw, "%s", s);
-    size_t len = strlen(s);
     if (len == (size_t)num - 1 && s[len - 1] != '\n' && !feof(c->f)) {
         /* inih's line buffer is fixed: say so rather than misparse the rest */
         pf_fail(c, c->line, NULL, "line longer than %d characters", num - 2);
@@ -396,15 +411,10 @@ int pb_problem_file_read(const char *path, pb_problem **cases, int *ncases,
     c.err = err;
     c.errlen = errlen;
     c.warn = warn;
-    c.f = fopen(path, "r");
+    const char *why;
+    c.f = pb_open_input(path, "r", &why);
     if (!c.f) {
-        snprintf(err, errlen, "%s: cannot read the problem file: %s", path, strerror(errno));
-        return PB_EINVAL;
-    }
-    struct stat st;
-    if (!fstat(fileno(c.f), &st) && S_ISDIR(st.st_mode)) {
-        fclose(c.f);
-        snprintf(err, errlen, "%s: is a folder, not a problem file", path);
+        snprintf(err, errlen, "%s: cannot read the problem file: %s", path, why);
         return PB_EINVAL;
     }
     int r = ini_parse_stream(pf_reader, &c, pf_handler_grow, &c);

@@ -257,17 +257,23 @@ void pb_report_series_free(pb_report_series *s)
 int pb_report_series_read(const char *path, pb_report_series *s, char *err, size_t errlen)
 {
     memset(s, 0, sizeof *s);
-    FILE *f = fopen(path, "r");
+    const char *why;
+    FILE *f = pb_open_input(path, "r", &why);
     if (!f) {
-        snprintf(err, errlen, "%s: cannot read: %s", path, strerror(errno));
+        snprintf(err, errlen, "%s: cannot read: %s", path, why);
         return -1;
     }
     char *line = NULL;
     size_t cap = 0;
     size_t rows_cap = 0;
     int lineno = 0, rc = -1;
-    while (getline(&line, &cap, f) > 0) {
+    ssize_t got;
+    while ((got = getline(&line, &cap, f)) > 0) {
         lineno++;
+        if (memchr(line, 0, (size_t)got)) {
+            snprintf(err, errlen, "%s:%d: a NUL byte: not a text file", path, lineno);
+            goto out;
+        }
         line[strcspn(line, "\r\n")] = 0;
         if (lineno == 1) {
             for (char *tok = strtok(line, ","); tok; tok = strtok(NULL, ",")) {

@@ -13,6 +13,7 @@
 #include <string.h>
 #include "bench/store/oem_read.h"
 #include "bench/store/oem_write.h"
+#include "problems/files.h"
 
 enum { OEM_HEADER, OEM_META, OEM_DATA };
 
@@ -267,9 +268,10 @@ int pb_oem_read(const char *path, const pb_problem *p, pb_oem *out, char *err, s
 {
     memset(out, 0, sizeof *out);
     oem_parse ps = {.path = path, .p = p, .o = out, .err = err, .errlen = errlen};
-    FILE *f = fopen(path, "rb");
+    const char *why;
+    FILE *f = pb_open_input(path, "rb", &why);
     if (!f) {
-        snprintf(err, errlen, "%s: cannot read: %s", path, strerror(errno));
+        snprintf(err, errlen, "%s: cannot read: %s", path, why);
         return -1;
     }
     char buf[PB_OEM_LINE_MAX + 8];

@@ -8,6 +8,7 @@
 #include <sys/stat.h>
 #include "bench/store/summary_read.h"
 #include "bench/store/case_json.h"
+#include "problems/files.h"
 
 const char *const pb_summary_metric_keys[] = {
     "energy_rel_max", "energy_rel_final", "angmom_rel_max", "angmom_rel_final",
@@ -17,15 +18,10 @@ const char *const pb_summary_count_keys[] = {"steps", "evals", "rejected", "star
 
 json_t *pb_json_doc_read(const char *path, char *err, size_t errlen)
 {
-    FILE *f = fopen(path, "rb");
+    const char *why;
+    FILE *f = pb_open_input(path, "rb", &why);
     if (!f) {
-        snprintf(err, errlen, "%s: cannot open: %s", path, strerror(errno));
-        return NULL;
-    }
-    struct stat st;
-    if (!fstat(fileno(f), &st) && S_ISDIR(st.st_mode)) {
-        fclose(f);
-        snprintf(err, errlen, "%s: is a folder, not a JSON file", path);
+        snprintf(err, errlen, "%s: cannot open: %s", path, why);
         return NULL;
     }
     json_error_t e;
