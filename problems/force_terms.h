@@ -40,6 +40,10 @@ void pb_forces_bodies_q(const pb_problem *p, __float128 t, __float128 (*pos)[3])
 /* The shadow region (sunlight, penumbra, umbra) that the boundary functions
  * g (pb_forces_events_q) put a state in; -1 without a shadow model. */
 int pb_forces_region_q(const pb_problem *p, const __float128 *g);
+/* Whether region's formula has terms in (t - t_b)^(3/2) at its edges: the
+ * conical penumbra, where the visible part of the Sun's disc is the overlap
+ * of two discs (an area that grows as depth^(3/2)). */
+int pb_forces_region_has_edge_terms(const pb_problem *p, int region);
 /* Whether p's force has a __float128 form. */
 int pb_forces_have_quad(const pb_problem *p);
 /* The functions whose zeros are jumps in the force at (t, r), positive on

@@ -61,6 +61,11 @@ int pb_forces_region_q(const pb_problem *p, const __float128 *g)
     return FT_REGION_GEOMETRY;
 }
 
+int pb_forces_region_has_edge_terms(const pb_problem *p, int region)
+{
+    return p->forces.shadow == PB_SHADOW_CONICAL && region == FT_REGION_PENUMBRA;
+}
+
 int pb_forces_timed_bodies(const pb_problem *p)
 {
     const pb_forces *f = &p->forces;

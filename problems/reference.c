@@ -22,25 +22,50 @@ typedef __float128 ref_real;
 #define REF_TOL_COARSE 1e-24L
 #define REF_TOL_FINE 1e-28L
 #define REF_MAX_STEPS 20000000L
-#define REF_VERSION "pb-reference gbs20 float128 v2 forces"
+#define REF_VERSION "pb-reference gbs20 float128 v3 edges"
 
-/* The force as the reference evaluates it: the problem, and the shadow
- * region whose formula holds until the next located boundary. */
+/* How a step's time is stretched near a located boundary. At a penumbra's
+ * edges the visible fraction goes as depth^(3/2) (the overlap of two discs),
+ * so the force has a (t - t_b)^(3/2) term there that no extrapolation step
+ * resolves without shrinking towards the edge. A step [t0, t0 + H] with an
+ * edge at one end is therefore taken in s in [0, 1] with t = t0 + H phi(s),
+ * phi(s) = s^2 (edge at the start), 1 - (1 - s)^2 (at the end) or
+ * 3s^2 - 2s^3 (both): the edge term becomes a power of s of degree 3 and the
+ * integrand is smooth again (a change of variables of the kind used for
+ * integrable end-point singularities in quadrature; common practice). */
+enum { REF_MAP_NONE = 0, REF_MAP_START = 1, REF_MAP_END = 2, REF_MAP_BOTH = 3 };
+
+/* The force as the reference evaluates it: the problem, the shadow region
+ * whose formula holds until the next located boundary, and the time map of
+ * the step being taken. */
 typedef struct ref_force {
     const pb_problem *p;
     int region;             /* shadow region (-1: none) */
     int band;               /* atmosphere row (-1: no drag) */
     pb_ephemeris_fit *fit;  /* the time-only bodies over the current step (NULL: none) */
+    int map;                /* REF_MAP_*: then the derivative is taken in s */
+    ref_real mt0, mH;       /* the mapped step's physical start and length */
 } ref_force;
 
 static void ref_deriv(const ref_force *F, ref_real t, const ref_real *y, ref_real *dy)
 {
-    ref_real pos[3][3];
+    ref_real pos[3][3], dtds = 1;
+    if (F->map) {
+        ref_real s = t, u = 1 - s;
+        ref_real phi = F->map == REF_MAP_START ? s * s
+                     : F->map == REF_MAP_END ? 1 - u * u : s * s * (3 - 2 * s);
+        dtds = F->mH * (F->map == REF_MAP_START ? 2 * s
+                      : F->map == REF_MAP_END ? 2 * u : 6 * s * u);
+        t = F->mt0 + F->mH * phi;
+    }
     int fitted = F->fit && F->fit->on;
     if (fitted)
         pb_ephemeris_fit_at(F->fit, t, pos);
     /* pb_reference_propagate refuses a force with no __float128 form first */
     (void)pb_forces_deriv_q(F->p, t, y, F->region, F->band, fitted ? pos : NULL, dy);
+    if (F->map)
+        for (int i = 0; i < REF_N; i++)
+            dy[i] *= dtds;
 }
 
 /* Gragg's modified midpoint rule: m substeps of size H/m from y0 (f0 = f(y0)). */
@@ -70,18 +95,25 @@ static ref_real ref_norm3(const ref_real *x)
     return sqrtq(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
 }
 
-/* One extrapolated step of size H; y1 receives the result, the return value
- * is the scaled error estimate (relative to |r| and |v| separately). */
-static ref_real ref_step(const ref_force *F, ref_real t0, const ref_real *y0, ref_real H,
-                         ref_real *y1)
+/* One extrapolated step of size H, its time mapped by map (REF_MAP_*); y1
+ * receives the result, the return value is the scaled error estimate
+ * (relative to |r| and |v| separately). */
+static ref_real ref_step(const ref_force *Fp, ref_real t0, const ref_real *y0, ref_real H,
+                         int map, ref_real *y1)
 {
     ref_real T[REF_K][REF_N], f0[REF_N];
+    ref_force Fm = *Fp, *F = &Fm;
+    F->map = map;
+    F->mt0 = t0;
+    F->mH = H;
     if (F->fit)
         pb_ephemeris_fit_make(F->fit, F->p, t0, H);
-    ref_deriv(F, t0, y0, f0);
+    /* in s the step runs over [0, 1] */
+    ref_real s0 = map ? 0 : t0, S = map ? 1 : H;
+    ref_deriv(F, s0, y0, f0);
     for (int j = 0; j < REF_K; j++) {
         int nj = 2 * (j + 1);
-        ref_midpoint(F, t0, y0, f0, H, nj, T[j]);
+        ref_midpoint(F, s0, y0, f0, S, nj, T[j]);
         /* Aitken-Neville in place: T[j-k] becomes the k-times extrapolated value. */
         for (int k = 1; k <= j; k++) {
             int nk = 2 * (j - k + 1);
@@ -113,15 +145,20 @@ static int ref_finite(const ref_real *y)
     return 1;
 }
 
-/* The running integration: state, step size, tolerance and the shadow
- * boundary functions at the current state. */
+/* The running integration: state, step size, tolerance, the boundary
+ * functions at the current state, and what is known of the next boundary. */
 typedef struct ref_run {
     const pb_problem *p;
-    ref_force F;          /* p and the shadow region of the current state */
     ref_real t, y[REF_N], h, tol;
     long steps;
     int nev, nshadow;       /* boundary functions, the first nshadow of them the shadow's */
     ref_real g[4];
+    ref_force F;            /* p, the shadow region and atmosphere row of the current state */
+    int fresh;              /* the state sits on a boundary just landed on */
+    int pending;            /* a located boundary lies ahead, at t_edge */
+    ref_real t_edge, h_keep;
+    ref_real rej_t, rej_H, rej_err; /* the last rejected attempt */
+    ref_real t_far, y_far[REF_N], g_far[4]; /* a state just past it, and its functions */
 } ref_run;
 
 static int ref_crossed(const ref_real *g0, const ref_real *g1, int n)
@@ -133,44 +170,44 @@ static int ref_crossed(const ref_real *g0, const ref_real *g1, int n)
 }
 
 /* The state and boundary functions at w->t + tau, by one step from w. */
-static int ref_trial(ref_run *w, ref_real tau, ref_real *y, ref_real *g, ref_real *err)
+static int ref_trial(ref_run *w, ref_real tau, ref_real *y, ref_real *g)
 {
-    *err = ref_step(&w->F, w->t, w->y, tau, y);
-    if (!ref_finite(y))
+    ref_real err = ref_step(&w->F, w->t, w->y, tau, w->fresh ? REF_MAP_START : REF_MAP_NONE, y);
+    if (!ref_finite(y) || !finiteq(err))
         return PB_ENONFINITE;
     int ns;
     pb_forces_events_q(w->p, w->t + tau, y, w->F.band, g, &ns);
     return PB_OK;
 }
 
-/* Where a boundary function changes sign within a step from w: the bracket
- * [lo, hi] around it, the state at lo (and that step's error estimate) and
- * every function's value at hi. */
+/* Where the first boundary function to change sign within a step from w
+ * does so: the bracket [lo, hi] around it, with the state and every
+ * function's value at hi. */
 typedef struct ref_bracket {
-    ref_real lo, hi, y_lo[REF_N], err_lo, g_hi[4], y_hi[REF_N];
+    ref_real lo, hi, g_hi[4], y_hi[REF_N];
 } ref_bracket;
 
 /* Function j's crossing within (0, br->hi], by the Illinois variant of
  * regula falsi (Dowell & Jarratt 1971) with a bisection every fourth trial
- * as a safeguard, to a bracket of REF_EVENT_TOL * H. */
-#define REF_EVENT_TOL 1e-22Q
+ * as a safeguard, to a bracket of REF_EVENT_TOL * H. The integration does
+ * not start from the bracket: it steps to lo itself, so lo need only be
+ * close to the boundary and on its near side; the far side's formula then
+ * holds over at most REF_EVENT_TOL * H, where the two sides' forces differ
+ * by a term of order (REF_EVENT_TOL H / T)^(3/2) of the radiation pressure. */
+#define REF_EVENT_TOL 1e-16Q
 static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_bracket *br)
 {
-    ref_real a = 0, b = br->hi, ga = w->g[j], gb = br->g_hi[j], y[REF_N], g[4], err;
-    memcpy(br->y_lo, w->y, sizeof br->y_lo);
-    br->err_lo = 0;
+    ref_real a = 0, b = br->hi, ga = w->g[j], gb = br->g_hi[j], y[REF_N], g[4];
     int side = 0;
     for (int it = 0; b - a > REF_EVENT_TOL * H && it < 200; it++) {
         ref_real m = (it % 4 == 3 || gb == ga) ? 0.5Q * (a + b) : (a * gb - b * ga) / (gb - ga);
         if (!(m > a && m < b))
             m = 0.5Q * (a + b);
-        int s = ref_trial(w, m, y, g, &err);
+        int s = ref_trial(w, m, y, g);
         if (s)
             return s;
         if ((g[j] > 0) == (ga > 0)) {
             a = m, ga = g[j];
-            memcpy(br->y_lo, y, sizeof y);
-            br->err_lo = err;
             if (side == -1)
                 gb *= 0.5Q;  /* Illinois: the stale end's value is halved */
             side = -1;
@@ -189,21 +226,20 @@ static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_bracket *br)
 }
 
 /* A shadow boundary or an atmosphere row's bound lies inside the step of
- * length H just tried from w (y1, g1 at its end): find the first crossing and stop just before it (within
- * REF_EVENT_TOL of a step), then switch to the far side's region. Every step
- * integrates one region's formula, which is smooth, so its error estimate
- * means what it says (the steps' intermediate states would otherwise stray
- * across a boundary they end near). A step too long to be accurate even
- * before the boundary is shortened instead. The step size is kept for after
- * the boundary. (The same holds a row of the atmosphere table fixed: a
- * step's intermediate states stray by kilometres from the trajectory and
- * would otherwise mix two rows' exponentials near a bound.) */
-static int ref_land_on_event(ref_run *w, ref_real H, const ref_real *y1, const ref_real *g1)
+ * length H just tried from w (y1, g1 at its end): locate the first crossing
+ * and keep it as the pending edge, which later steps reach exactly, the
+ * last of them mapped so that the edge's (t_b - t)^(3/2) term is smooth
+ * (REF_MAP_END). Every step integrates one region's formula, which is smooth
+ * inside the region, so its error estimate means what it says (the steps'
+ * intermediate states would otherwise stray across a boundary they end
+ * near). (The same holds a row of the atmosphere table fixed: a step's
+ * intermediate states stray by kilometres from the trajectory and would
+ * otherwise mix two rows' exponentials near a bound.) */
+static int ref_locate_edge(ref_run *w, ref_real H, const ref_real *y1, const ref_real *g1)
 {
     ref_bracket br = {.hi = H};
     memcpy(br.g_hi, g1, sizeof br.g_hi);
     memcpy(br.y_hi, y1, sizeof br.y_hi);
-    memcpy(br.y_lo, w->y, sizeof br.y_lo);
     for (int j = 0; j < w->nev; j++) {
         if ((w->g[j] > 0) == (br.g_hi[j] > 0))
             continue;  /* no crossing before the earliest one found so far */
@@ -211,56 +247,85 @@ static int ref_land_on_event(ref_run *w, ref_real H, const ref_real *y1, const r
         if (s)
             return s;
     }
-    if (!(br.err_lo <= w->tol)) {
-        w->h = 0.5Q * br.lo;
-        return PB_OK;
-    }
-    /* the far side's region and atmosphere row, and the boundary functions
-     * of those, taken at hi: on the far side, so they start positive */
+    w->pending = 1;
+    w->t_edge = w->t + br.lo;
+    w->h_keep = H;
+    w->t_far = w->t + br.hi;
+    memcpy(w->y_far, br.y_hi, sizeof br.y_hi);
+    memcpy(w->g_far, br.g_hi, sizeof br.g_hi);
+    return PB_OK;
+}
+
+/* On the pending edge: the far side's region and atmosphere row, and the
+ * boundary functions of those, taken just past it (where they start with
+ * the far side's signs). The step size from before the edge is kept. */
+static void ref_cross_edge(ref_run *w)
+{
     if (w->nshadow)
-        w->F.region = pb_forces_region_q(w->p, br.g_hi);
+        w->F.region = pb_forces_region_q(w->p, w->g_far);
     if (w->nev > w->nshadow)
-        w->F.band += br.g_hi[w->nshadow] <= 0 ? -1 : br.g_hi[w->nshadow + 1] <= 0 ? 1 : 0;
-    pb_forces_events_q(w->p, w->t + br.hi, br.y_hi, w->F.band, w->g, &w->nshadow);
-    memcpy(w->y, br.y_lo, sizeof br.y_lo);
-    w->t += br.lo;
-    return ++w->steps > REF_MAX_STEPS ? PB_EMAXSTEPS : PB_OK;
+        w->F.band += w->g_far[w->nshadow] <= 0 ? -1 : w->g_far[w->nshadow + 1] <= 0 ? 1 : 0;
+    pb_forces_events_q(w->p, w->t_far, w->y_far, w->F.band, w->g, &w->nshadow);
+    w->pending = 0;
+    w->fresh = pb_forces_region_has_edge_terms(w->p, w->F.region);
+    w->h = fmaxq(w->h, w->h_keep);
 }
 
 /* Step w exactly to target, stopping at every shadow boundary on the way. */
 static int ref_advance(ref_run *w, ref_real target)
 {
-    const ref_real expo = 1.0Q / (2 * REF_K - 1);
     ref_real y1[REF_N], g1[4];
     int ns;
     while (w->t < target) {
-        ref_real H = w->h, left = target - w->t;
+        int to_edge = w->pending && w->t_edge <= target;
+        ref_real end = to_edge ? w->t_edge : target;
+        ref_real H = w->h, left = end - w->t;
         int last = H >= left;
         if (last)
             H = left;
-        ref_real err = ref_step(&w->F, w->t, w->y, H, y1);
+        int at_edge = last && to_edge;
+        int map = (w->fresh ? REF_MAP_START : 0)
+                | (at_edge && pb_forces_region_has_edge_terms(w->p, w->F.region) ? REF_MAP_END : 0);
+        ref_real err = ref_step(&w->F, w->t, w->y, H, map, y1);
         if (!ref_finite(y1) || !finiteq(err))
             return PB_ENONFINITE;
-        /* a step across a shadow boundary is cut there, accurate or not: the
-         * error estimate of a step across a jump says nothing */
-        if (w->nev && (pb_forces_events_q(w->p, w->t + H, y1, w->F.band, g1, &ns),
-                       ref_crossed(w->g, g1, w->nev))) {
-            int s = ref_land_on_event(w, H, y1, g1);
+        /* a step across a boundary is cut there, accurate or not: the error
+         * estimate of a step across a jump says nothing (no boundary lies
+         * before a pending one: it was the first) */
+        if (w->nev && !w->pending && (pb_forces_events_q(w->p, w->t + H, y1, w->F.band, g1, &ns),
+                                      ref_crossed(w->g, g1, w->nev))) {
+            int s = ref_locate_edge(w, H, y1, g1);
             if (s)
                 return s;
             continue;
         }
+        /* in s a step's error goes as about H^K rather than H^(2K) */
+        ref_real expo = (map ? 2.0Q : 1.0Q) / (2 * REF_K - 1);
         ref_real fac = err > 0 ? 0.9Q * powq(w->tol / err, expo) : 4.0Q;
         fac = fminq(4.0Q, fmaxq(0.2Q, fac));
         if (err <= w->tol) {
             memcpy(w->y, y1, sizeof y1);
-            memcpy(w->g, g1, sizeof g1);
-            w->t = last ? target : w->t + H;
+            if (w->nev && !w->pending)
+                memcpy(w->g, g1, sizeof g1);
+            w->t = last ? end : w->t + H;
+            w->fresh = 0;
             if (++w->steps > REF_MAX_STEPS)
                 return PB_EMAXSTEPS;
             if (!last || fac < 1)
                 w->h = H * fac;
+            if (at_edge)
+                ref_cross_edge(w);
         } else {
+            /* a second rejection from the same state: where a singular
+             * term dominates, the error falls far slower than H^(2K); cut
+             * by the rate the two attempts show */
+            if (w->rej_t == w->t && w->rej_H > H && w->rej_err > 0) {
+                ref_real p = logq(w->rej_err / err) / logq(w->rej_H / H);
+                if (p > 0.5Q && p < 2 * REF_K)
+                    fac = fminq(fac, 0.9Q * powq(w->tol / err, 1 / p));
+                fac = fmaxq(fac, 1e-4Q);
+            }
+            w->rej_t = w->t, w->rej_H = H, w->rej_err = err;
             w->h = H * fac;
         }
         if (w->h < 1e-30Q * fabsq(w->t) || w->h <= 0)
@@ -273,6 +338,7 @@ static int ref_advance(ref_run *w, ref_real target)
  * directions of the current state (the same frame the harness applies). */
 static void ref_apply_manoeuvre(ref_run *w, const pb_manoeuvre *m)
 {
+    w->pending = 0;  /* a boundary found ahead belonged to the old trajectory */
     ref_real *r = w->y, *v = w->y + 3, h[3], R[3], C[3], I[3];
     h[0] = r[1] * v[2] - r[2] * v[1];
     h[1] = r[2] * v[0] - r[0] * v[2];
@@ -294,7 +360,7 @@ int pb_reference_propagate(const pb_problem *p, const double *times, int n,
     if (!p || p->dim < 1 || p->dim > 3 || n < 0 || (n > 0 && !times) || !(tol > 0) ||
         !pb_forces_have_quad(p))
         return PB_EINVAL;
-    ref_run w = {.p = p, .t = p->t0, .tol = tol};
+    ref_run w = {.p = p, .t = p->t0, .tol = tol, .rej_t = -1};
     for (int i = 0; i < p->dim; i++) {
         w.y[i] = p->r0[i];
         w.y[i + 3] = p->v0[i];
