@@ -12,7 +12,7 @@ OPT     ?= -O2 -g
 PB_CFLAGS  = $(CSTD) $(OPT) $(WARN) -I. -Iinclude -fPIC -fno-semantic-interposition -fvisibility=hidden -DPB_BUILD_FLAGS='"$(CSTD) $(OPT) $(WARN)"' $(shell pkg-config --cflags $(PKGS) 2>/dev/null) $(CFLAGS)
 PB_LDLIBS  = $(shell pkg-config --libs $(PKGS) 2>/dev/null) -lquadmath -lm $(LDLIBS)
 TEST_LIBS  = $(shell pkg-config --libs criterion 2>/dev/null)
-SAN        := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
+SAN        := -fsanitize=address,undefined,float-cast-overflow -fno-omit-frame-pointer -fno-sanitize-recover=undefined,float-cast-overflow
 
 # Every .c below problems/, integrators/ and bench/'s layer folders is library
 # code, except the two programs' mains.

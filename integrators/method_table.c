@@ -9,6 +9,10 @@ extern const pb_method_type pb_method_leapfrog;
 extern const pb_method_type pb_method_yoshida4;
 extern const pb_method_type pb_method_yoshida6;
 extern const pb_method_type pb_method_yoshida8;
+extern const pb_method_type pb_method_leapfrog_tt;
+extern const pb_method_type pb_method_yoshida4_tt;
+extern const pb_method_type pb_method_yoshida6_tt;
+extern const pb_method_type pb_method_yoshida8_tt;
 extern const pb_method_type pb_method_rkf45;
 extern const pb_method_type pb_method_dop853;
 extern const pb_method_type pb_method_bulirsch_stoer;
@@ -29,6 +33,10 @@ const pb_method_type *const pb_method_table[] = {
     &pb_method_yoshida4,
     &pb_method_yoshida6,
     &pb_method_yoshida8,
+    &pb_method_leapfrog_tt,
+    &pb_method_yoshida4_tt,
+    &pb_method_yoshida6_tt,
+    &pb_method_yoshida8_tt,
     &pb_method_rkf45,
     &pb_method_dop853,
     &pb_method_bulirsch_stoer,

@@ -1,6 +1,8 @@
 /* files.c - file-system helpers shared by every layer (see files.h). */
 #include <errno.h>
 #include <fcntl.h>
+#include <limits.h>
+#include <stdlib.h>
 #include <stdio.h>
 #include <unistd.h>
 #include <string.h>
@@ -73,4 +75,36 @@ FILE *pb_open_input(const char *path, const char *mode, const char **why)
         close(fd);
     }
     return f;
+}
+
+/* realpath of path's folder, then "/" and its last name; -1 if the folder
+ * cannot be resolved or the result does not fit. */
+static int files_canonical(const char *path, char *out, size_t len)
+{
+    const char *slash = strrchr(path, '/');
+    const char *name = slash ? slash + 1 : path;
+    char dir[PATH_MAX], real[PATH_MAX];
+    if (!slash)
+        snprintf(dir, sizeof dir, ".");
+    else if ((size_t)(slash - path) >= sizeof dir)
+        return -1;
+    else
+        snprintf(dir, sizeof dir, "%.*s", slash == path ? 1 : (int)(slash - path), path);
+    if (!realpath(dir, real))
+        return -1;
+    return snprintf(out, len, "%s/%s", real, name) < (int)len ? 0 : -1;
+}
+
+int pb_same_file(const char *a, const char *b)
+{
+    struct stat sa, sb;
+    int ea = stat(a, &sa) == 0, eb = stat(b, &sb) == 0;
+    if (ea && eb)
+        return sa.st_dev == sb.st_dev && sa.st_ino == sb.st_ino;
+    if (ea != eb)
+        return 0;
+    char ca[PATH_MAX + 256], cb[PATH_MAX + 256];
+    if (files_canonical(a, ca, sizeof ca) || files_canonical(b, cb, sizeof cb))
+        return !strcmp(a, b);
+    return !strcmp(ca, cb);
 }

@@ -17,4 +17,10 @@ int pb_mkdirs(const char *path);
  * stream, or NULL with the reason (a fixed phrase or strerror's) in *why. */
 FILE *pb_open_input(const char *path, const char *mode, const char **why);
 
+/* 1 if paths a and b name one file: the same inode when both exist (links
+ * followed), else the same folder (by realpath) and the same last name; 0
+ * otherwise. Used to refuse an output that would replace an input or
+ * another output. */
+int pb_same_file(const char *a, const char *b);
+
 #endif

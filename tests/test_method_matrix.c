@@ -83,6 +83,7 @@ static void mx_config(const pb_method_type *m, const pb_problem *p, double steps
 {
     memset(cfg, 0, sizeof *cfg);
     cfg->time_scale = p->period;
+    cfg->mu = pb_problem_kepler_mu(p); /* as the harness sets it */
     cfg->max_steps = 10000000; /* a hang guard, far above any case here */
     if (m->flags & PB_KIND_ADAPTIVE) {
         cfg->rtol = steps_or_rtol;

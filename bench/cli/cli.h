@@ -30,6 +30,17 @@ int pb_cli_error(const char *verb, const char *fmt, ...) __attribute__((format(p
 int pb_cli_double(const char *verb, const char *opt, const char *s, double *out);
 int pb_cli_long(const char *verb, const char *opt, const char *s, long *out);
 
+/* Room kept below an output path for the names propbench adds: a run
+ * folder's series/<case id>.csv.tmp.<pid>, .work.<pid>/..., plots/...; a
+ * file's .tmp.<pid> or .part.<pid>. */
+#define PB_CLI_RESERVE_DIR 512
+#define PB_CLI_RESERVE_FILE 32
+/* An output path must fit the system's limits with reserve bytes added
+ * (PATH_MAX for the whole, NAME_MAX for each name in it): refused before
+ * anything is created, never cut. 0, or -1 after a message that gives the
+ * reason before the path. */
+int pb_cli_out_path(const char *verb, const char *opt, const char *path, int reserve);
+
 /* Split a comma list in place into at most max items (at least one); -1
  * with a message naming the option when it is empty, has an empty item
  * ("a,,b", a leading or trailing comma) or has more than max. */

@@ -1,5 +1,6 @@
 /* options.c - shared command-line helpers (see cli.h). */
 #include <errno.h>
+#include <limits.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
@@ -47,6 +48,28 @@ int pb_cli_long(const char *verb, const char *opt, const char *s, long *out)
         return -1;
     }
     *out = x;
+    return 0;
+}
+
+int pb_cli_out_path(const char *verb, const char *opt, const char *path, int reserve)
+{
+    size_t len = strlen(path);
+    if (len + (size_t)reserve >= PATH_MAX) {
+        pb_cli_error(verb, "%s: a path of %zu bytes is too long (at most %d here, the system's "
+                     "limit %d less room for the names propbench adds): %s", opt, len,
+                     PATH_MAX - 1 - reserve, PATH_MAX, path);
+        return -1;
+    }
+    for (const char *p = path; *p;) {
+        size_t n = strcspn(p, "/");
+        if (n > NAME_MAX) {
+            pb_cli_error(verb, "%s: a name of %zu bytes in the path is too long (the system's "
+                         "limit is %d): %.*s", opt, n, NAME_MAX, (int)n, p);
+            return -1;
+        }
+        p += n;
+        p += strspn(p, "/");
+    }
     return 0;
 }
 

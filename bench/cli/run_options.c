@@ -137,11 +137,19 @@ int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options
         case OPT_FILE: o->problem_file = a; break;
         case OPT_CASE: o->case_name = a; break;
         case OPT_METHOD: o->method = a; break;
-        case OPT_OUT: o->out = a; break;
+        case OPT_OUT:
+            if (pb_cli_out_path(verb, "--out", a, PB_CLI_RESERVE_DIR)) return PB_EXIT_USAGE;
+            o->out = a;
+            break;
         case OPT_COMP: o->compensated = 1; break;
         case OPT_QUIET: o->quiet = 1; break;
-        case OPT_EPH_OUT: o->ephemeris_out = a; break;
-        case OPT_TRUTH_OUT: o->truth_out = a; break;
+        case OPT_EPH_OUT:
+        case OPT_TRUTH_OUT:
+            if (pb_cli_out_path(verb, c == OPT_EPH_OUT ? "--ephemeris-out" : "--truth-out", a,
+                                PB_CLI_RESERVE_FILE))
+                return PB_EXIT_USAGE;
+            *(c == OPT_EPH_OUT ? &o->ephemeris_out : &o->truth_out) = a;
+            break;
         case OPT_SERIES_STATES: o->series_states = 1; break;
         case OPT_SPO: case OPT_STEP: case OPT_TOL: case OPT_ORBITS: case OPT_HORIZON:
         case OPT_REPEATS: case OPT_COST: case OPT_SAMPLES: case OPT_MAXSTEPS:

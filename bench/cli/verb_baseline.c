@@ -1,6 +1,7 @@
 /* verb_baseline.c - `propbench baseline RUN_DIR --out FILE`: keep a run's
  * settings, accuracy metrics, counts, fingerprints, compiler, flags and
  * machine as the reference a later `propbench check` compares against. */
+#include <errno.h>
 #include <getopt.h>
 #include <stdio.h>
 #include <string.h>
@@ -40,8 +41,15 @@ int pb_cli_baseline(int argc, char **argv)
     }
     if (!out || optind != argc - 1)
         return pb_cli_error("baseline", "give one RUN_DIR and --out FILE (see --help)");
+    if (pb_cli_out_path("baseline", "--out", out, PB_CLI_RESERVE_FILE))
+        return PB_EXIT_USAGE;
     char path[4200], err[1024];
     snprintf(path, sizeof path, "%s/summary.json", argv[optind]);
+    /* written over the summary it was made from, the run could no longer
+     * be reported or checked */
+    if (pb_same_file(out, path))
+        return pb_cli_error("baseline", "--out %s is the run's own summary %s: give another file",
+                            out, path);
     json_t *summary = NULL;
     int rc = PB_EXIT_USAGE;
     if (pb_summary_load(path, &summary, err, sizeof err) ||
@@ -56,10 +64,10 @@ int pb_cli_baseline(int argc, char **argv)
     }
     json_t *b = pb_baseline_from_summary(summary);
     size_t n = json_array_size(json_object_get(b, "cases"));
-    int bad = pb_json_write_atomic(out, b);
+    int bad = pb_json_write_atomic(out, b), e = errno;
     json_decref(b);
     if (bad) {
-        pb_cli_error("baseline", "%s: cannot write", out);
+        pb_cli_error("baseline", "%s: cannot write: %s", out, strerror(e));
         goto out;
     }
     printf("wrote %s: %zu cases from %s\n", out, n, path);

@@ -360,11 +360,11 @@ static int check_write_reports(const check_args *a, const char *run_path, const 
     if (a->md)
         snprintf(fl->mtmp, sizeof fl->mtmp, "%s.part.%ld", a->md, (long)getpid());
     if (a->junit && check_junit(fl->jtmp, r)) {
-        pb_cli_error("check", "%s: cannot write the JUnit report", a->junit);
+        pb_cli_error("check", "%s: cannot write the JUnit report: %s", a->junit, strerror(errno));
         return -1;
     }
     if (a->md && check_markdown(fl->mtmp, r, &a->o, a->base_path, run_path)) {
-        pb_cli_error("check", "%s: cannot write the Markdown summary", a->md);
+        pb_cli_error("check", "%s: cannot write the Markdown summary: %s", a->md, strerror(errno));
         return -1;
     }
     if (a->junit && rename(fl->jtmp, a->junit)) {
@@ -389,6 +389,27 @@ static void check_files_discard(const check_files *fl)
         unlink(fl->jdone);
 }
 
+/* An output over an input (--junit B.json replaced the baseline with XML)
+ * or over the other output is refused before anything is read; 1 after a
+ * message. */
+static int check_outputs_clash(const check_args *a, const char *run_path)
+{
+    const char *out[2] = {a->junit, a->md}, *oname[2] = {"--junit", "--markdown"};
+    const char *in[2] = {a->base_path, run_path}, *iname[2] = {"the baseline", "the run's summary"};
+    for (int i = 0; i < 2; i++) {
+        if (out[i] && pb_cli_out_path("check", oname[i], out[i], PB_CLI_RESERVE_FILE))
+            return 1;
+        for (int k = 0; out[i] && k < 2; k++)
+            if (pb_same_file(out[i], in[k]))
+                return pb_cli_error("check", "%s %s is %s %s: an output may not replace an input",
+                                    oname[i], out[i], iname[k], in[k]) != 0;
+    }
+    if (a->junit && a->md && pb_same_file(a->junit, a->md))
+        return pb_cli_error("check", "--junit and --markdown name one file, %s: give two files",
+                            a->junit) != 0;
+    return 0;
+}
+
 int pb_cli_check(int argc, char **argv)
 {
     check_args a;
@@ -397,6 +418,8 @@ int pb_cli_check(int argc, char **argv)
         return rc;
     char run_path[4200];
     snprintf(run_path, sizeof run_path, "%s/summary.json", a.run_dir);
+    if (check_outputs_clash(&a, run_path))
+        return PB_EXIT_USAGE;
     check_inputs in = {0};
     check_files fl = {"", "", NULL};
     rc = PB_EXIT_USAGE;

@@ -1,6 +1,7 @@
 /* verb_report.c - `propbench report RUN_DIR`: gnuplot scripts and figures per
  * problem, then report.html (self-contained) and report.md, from a run
  * directory's summary.json and series CSVs. */
+#include <errno.h>
 #include <getopt.h>
 #include <limits.h>
 #include <stdio.h>
@@ -85,6 +86,8 @@ static int report_parse(int argc, char **argv, report_opts *o)
     o->dir = argv[optind];
     if (!o->out)
         o->out = o->dir;
+    if (pb_cli_out_path("report", "--out", o->out, PB_CLI_RESERVE_DIR))
+        return PB_EXIT_USAGE;
     if (!o->prog || !*o->prog)
         o->prog = "gnuplot";
     return 0;
@@ -107,7 +110,8 @@ static int report_prepare(const report_opts *o, const pb_report_run *run, char *
     char rdir[PATH_MAX], odir[PATH_MAX], prefix[PATH_MAX + 2], err[1024];
     snprintf(plots, plots_len, "%s/plots", o->out);
     if (pb_mkdirs(plots) || !realpath(o->dir, rdir) || !realpath(o->out, odir))
-        return pb_cli_error("report", "%s: cannot create the plots folder", plots);
+        return pb_cli_error("report", "%s: cannot create the plots folder: %s", plots,
+                            strerror(errno));
     /* scripts reach the data relative to plots/ when the report sits in the run */
     if (!strcmp(rdir, odir))
         snprintf(prefix, sizeof prefix, "../");

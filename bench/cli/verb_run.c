@@ -1,5 +1,6 @@
 /* verb_run.c - `propbench run`: one case into a run directory. All input is
  * checked before anything is written, so bad input leaves no files. */
+#include <errno.h>
 #include <getopt.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -50,11 +51,11 @@ static int run_check_outputs(const pb_run_options *o)
 static int run_write_oems(const pb_run_options *o, const pb_case_spec *spec, const pb_case_result *res)
 {
     if (o->ephemeris_out && pb_oem_write(o->ephemeris_out, spec, res, PB_OEM_METHOD)) {
-        pb_cli_error("run", "cannot write --ephemeris-out %s", o->ephemeris_out);
+        pb_cli_error("run", "cannot write --ephemeris-out %s: %s", o->ephemeris_out, strerror(errno));
         return -1;
     }
     if (o->truth_out && pb_oem_write(o->truth_out, spec, res, PB_OEM_TRUTH)) {
-        pb_cli_error("run", "cannot write --truth-out %s", o->truth_out);
+        pb_cli_error("run", "cannot write --truth-out %s: %s", o->truth_out, strerror(errno));
         if (o->ephemeris_out)
             unlink(o->ephemeris_out); /* both or neither */
         return -1;
@@ -116,7 +117,9 @@ int pb_cli_run(int argc, char **argv)
     snprintf(path, sizeof path, "%s/summary.json", dir);
     int bad = run_write_oems(&o, &spec, &res) ? 2
             : pb_series_write_states(dir, &spec, &res, o.series_states) ? 1 : 0;
+    int e = errno;
     if (!bad && pb_json_write_atomic(path, doc)) {
+        e = errno;
         pb_run_dir_unwrite(dir, cases); /* no series without its summary */
         bad = 1;
     }
@@ -129,7 +132,8 @@ int pb_cli_run(int argc, char **argv)
         pb_case_result_free(&res);
         pb_run_dir_unprepare(dir);
         if (bad == 1) {
-            fprintf(stderr, "propbench run: error: cannot write the run directory %s\n", dir);
+            fprintf(stderr, "propbench run: error: cannot write the run directory %s: %s\n", dir,
+                    strerror(e));
             if (o.ephemeris_out) unlink(o.ephemeris_out);
             if (o.truth_out) unlink(o.truth_out);
         }

@@ -4,6 +4,7 @@
  * check read unchanged. The file is replayed as the ephemeris pseudo-method
  * (bench/measure/ephemeris_method.h). All input is checked before anything
  * is written. */
+#include <errno.h>
 #include <getopt.h>
 #include <math.h>
 #include <stdio.h>
@@ -86,7 +87,10 @@ static int score_parse(int argc, char **argv, score_opts *o)
         case SC_CASE: o->case_name = optarg; break;
         case SC_EPH: o->ephemeris = optarg; break;
         case SC_LABEL: o->label = optarg; break;
-        case SC_OUT: o->out = optarg; break;
+        case SC_OUT:
+            if (pb_cli_out_path("score", "--out", optarg, PB_CLI_RESERVE_DIR)) return PB_EXIT_USAGE;
+            o->out = optarg;
+            break;
         case SC_QUIET: o->quiet = 1; break;
         case SC_EVALS: case SC_CPU:
             if ((rc = score_number(c, optarg, o)) >= 0)
@@ -220,8 +224,9 @@ static int score_write(const score_opts *o, const pb_case_spec *spec, const pb_o
     json_t *doc = pb_summary_new(cases);
     char path[4200];
     snprintf(path, sizeof path, "%s/summary.json", dir);
-    int bad = pb_series_write(dir, spec, &res) != 0;
+    int bad = pb_series_write(dir, spec, &res) != 0, e = errno;
     if (!bad && pb_json_write_atomic(path, doc)) {
+        e = errno;
         pb_run_dir_unwrite(dir, cases);
         bad = 1;
     }
@@ -232,7 +237,7 @@ static int score_write(const score_opts *o, const pb_case_spec *spec, const pb_o
     pb_case_result_free(&res);
     if (bad) {
         pb_run_dir_unprepare(dir);
-        return pb_cli_error("score", "cannot write the run directory %s", dir);
+        return pb_cli_error("score", "cannot write the run directory %s: %s", dir, strerror(e));
     }
     if (!o->quiet)
         printf("wrote %s and %s/series/%s.csv\n", path, dir, id);

@@ -342,13 +342,13 @@ static int select_run(const select_options *o, const pb_case_spec *base, const p
     if (!o->quiet)
         select_print(o, &base->problem, req, sel, m, found);
     json_t *doc = pb_selection_json(base, req, sel, m);
-    int w = pb_json_write_atomic(path, doc);
+    int w = pb_json_write_atomic(path, doc), e = errno;
     json_decref(doc);
     for (int i = 0; i < m; i++)
         pb_selection_free(&sel[i]);
     free(sel);
     if (w)
-        return pb_cli_error("select", "cannot write %s", path);
+        return pb_cli_error("select", "cannot write %s: %s", path, strerror(e));
     if (!o->quiet)
         printf("wrote %s\n", path);
     return found ? PB_EXIT_OK : PB_EXIT_FAIL;

@@ -99,7 +99,10 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
         case SW_METHODS: o->methods = optarg; break;
         case SW_STEPS: o->steps = optarg; break;
         case SW_TOLS: o->tols = optarg; break;
-        case SW_OUT: o->out = optarg; break;
+        case SW_OUT:
+            if (pb_cli_out_path("sweep", "--out", optarg, PB_CLI_RESERVE_DIR)) return PB_EXIT_USAGE;
+            o->out = optarg;
+            break;
         case SW_QUIET: o->quiet = 1; break;
         case SW_REPORT: o->report = 1; break;
         case SW_COMP: o->comp = 1; break;

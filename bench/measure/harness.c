@@ -111,8 +111,9 @@ static void harness_config(const pb_case_spec *spec, double horizon, pb_method_c
         /* 5% over the grid's count: a method stepping in a fictitious time
          * (leapfrog-tt, gauss-jackson8-s, a regularised formulation) takes
          * N steps per Kepler orbit of its start, not exactly horizon / h */
+        double grid = ceil(1.05 * horizon / cfg->h) + 16;
         cfg->max_steps = spec->max_steps > 0 ? spec->max_steps
-                                              : (long)ceil(1.05 * horizon / cfg->h) + 16;
+                         : grid < 0x1p62 ? (long)grid : 1L << 62;  /* no float-cast overflow */
     } else {
         /* rtol = atol = tolerance: the weighted norm is then relative for the
          * O(1)-and-larger state components of both unit systems */
@@ -417,6 +418,36 @@ static void harness_ending(const pb_case_spec *spec, void *ws, const harness_wat
     res->projected_s = spec->eval_cost_us > 0 ? 1e-6 * spec->eval_cost_us * (double)res->evals : 0;
 }
 
+static int harness_reach_obs(void *ctx, double t, const double *r, const double *v)
+{
+    (void)r;
+    (void)v;
+    *(double *)ctx = t;
+    return 0;
+}
+
+/* With the user's step budget (--max-steps) the method may stop far short of
+ * the horizon, yet the truth was built for all of it (a stiff problem file:
+ * 12.6 s of reference for a 10-step run). A first pass without samples,
+ * bounded by that budget, finds where the method stops; the plan keeps the
+ * samples up to there. The method is deterministic and the metric pass
+ * stops at the same step or, on an escape, earlier. */
+static void harness_bound_plan(const pb_case_spec *spec, const pb_method_config *cfg, void *ws,
+                               double t_int_end, pb_sample_plan *plan)
+{
+    if (spec->max_steps <= 0)
+        return;
+    pb_force_counter counter;
+    pb_force f;
+    pb_force_counter_init(&counter, &spec->problem, &f);
+    pb_method_stats st;
+    double t = spec->problem.t0;
+    if (pb_case_integrate(spec, cfg, ws, &f, t_int_end, harness_reach_obs, &t, &st, NULL) == PB_OK)
+        return;
+    while (plan->n > 0 && plan->t[plan->n - 1] > t)
+        plan->n--;
+}
+
 /* The planned grid, or the caller's times; 0 or -1. */
 static int harness_plan(const pb_case_spec *spec, double horizon, pb_sample_plan *plan)
 {
@@ -454,6 +485,9 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     if (!res->samples)
         goto out;
     double t_int_end = harness_integration_end(spec, horizon, res->h);
+    if (!(ws = m->alloc(p->dim)))
+        goto out;
+    harness_bound_plan(spec, &cfg, ws, t_int_end, &plan);
     /* the truth at the planned times, which do not depend on the step, so
      * that one cached reference serves every step size */
     if ((rc = pb_truth_build(p, plan.t, plan.n, spec->cache_dir, &truth)))
@@ -465,9 +499,6 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
         pb_truth_shift(truth, k, plan.t[k], t_int_end - plan.t[k], p);
         plan.t[k] = t_int_end;
     }
-    rc = PB_ENOMEM;
-    if (!(ws = m->alloc(p->dim)))
-        goto out;
     harness_watch w;
     harness_watch_init(&w, p, horizon, res);
     pb_force_counter counter;

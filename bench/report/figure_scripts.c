@@ -1,6 +1,7 @@
 /* figure_scripts.c - figure scripts for gnuplot (see figure_scripts.h). Each script is
  * self-contained apart from style.gp and the series CSVs, so the figures can
  * be redrawn elsewhere with `gnuplot ./<base>.gp` inside plots/. */
+#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -360,7 +361,7 @@ static int gp_write_figure(const pb_report_run *run, const pb_report_problem *p,
             fclose(fa);
             snprintf(path, sizeof path, "%s/%s.gp", plots_dir, base);
             if (pb_write_atomic(path, all, nall)) {
-                snprintf(err, errlen, "%s: cannot write", path);
+                snprintf(err, errlen, "%s: cannot write: %s", path, strerror(errno));
                 rc = -1;
             } else {
                 *made = 1;
@@ -382,7 +383,7 @@ int pb_report_gp_write(const pb_report_run *run, const char *run_dir, const char
     char path[4200];
     snprintf(path, sizeof path, "%s/style.gp", plots_dir);
     if (pb_mkdirs(plots_dir) || pb_write_atomic(path, pb_report_style_gp, strlen(pb_report_style_gp))) {
-        snprintf(err, errlen, "%s: cannot write", path);
+        snprintf(err, errlen, "%s: cannot write: %s", path, strerror(errno));
         return -1;
     }
     for (int pi = 0; pi < run->nproblems; pi++) {

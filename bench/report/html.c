@@ -1,6 +1,7 @@
 /* html.c - report.html: settings, per-problem tables with the best
  * values marked, figures as inline SVG (ids made unique per figure), and the
  * caution. One file, no scripts, nothing fetched from the network. */
+#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -225,7 +226,7 @@ int pb_report_html_write(const pb_report_view *v, char *err, size_t errlen)
     char path[4200];
     snprintf(path, sizeof path, "%s/report.html", v->out_dir);
     if (pb_write_atomic_printed(path, html_print, v)) {
-        snprintf(err, errlen, "%s: cannot write", path);
+        snprintf(err, errlen, "%s: cannot write: %s", path, strerror(errno));
         return -1;
     }
     return 0;

@@ -1,5 +1,6 @@
 /* markdown.c - report.md: the same tables as report.html (best values in
  * bold) with links to the PNG figures, for pasting into review documents. */
+#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -110,7 +111,7 @@ int pb_report_md_write(const pb_report_view *v, char *err, size_t errlen)
     char path[4200];
     snprintf(path, sizeof path, "%s/report.md", v->out_dir);
     if (pb_write_atomic_printed(path, md_print, v)) {
-        snprintf(err, errlen, "%s: cannot write", path);
+        snprintf(err, errlen, "%s: cannot write: %s", path, strerror(errno));
         return -1;
     }
     return 0;

@@ -17,10 +17,16 @@ static double data_num(const json_t *o, const char *key)
     return json_is_number(v) ? json_number_value(v) : (double)NAN;
 }
 
+/* -1 for a value that is not a whole number in 0..2^62: a summary's
+ * "steps_per_orbit": 1e300 was converted to long (undefined behaviour). */
 static long data_long(const json_t *o, const char *key)
 {
     const json_t *v = json_object_get(o, key);
-    return json_is_number(v) ? (long)json_number_value(v) : -1;
+    if (json_is_integer(v))
+        return json_integer_value(v) >= 0 && json_integer_value(v) <= (1LL << 62)
+                   ? (long)json_integer_value(v) : -1;
+    double x = json_is_real(v) ? json_real_value(v) : -1.0;
+    return x >= 0 && x <= 0x1p62 ? (long)x : -1;
 }
 
 static const char *data_str(const json_t *o, const char *key, const char *dflt)
@@ -59,7 +65,8 @@ static int data_case(const json_t *o, pb_report_case *c, char *err, size_t errle
                  path, i, c->id, c->series);
         return -1;
     }
-    c->order = (int)data_long(o, "method_order");
+    long order = data_long(o, "method_order");
+    c->order = order <= 64 ? (int)order : -1;
     c->from_gsl = json_is_true(json_object_get(o, "from_gsl"));
     c->steps_per_orbit = data_long(o, "steps_per_orbit");
     /* a step given in time units carries steps_per_orbit as a real number for

@@ -2,6 +2,7 @@
  * earlier run in the same folder. */
 #include <ctype.h>
 #include <errno.h>
+#include <limits.h>
 #include <stdarg.h>
 #include <math.h>
 #include <stdio.h>
@@ -69,8 +70,21 @@ void pb_run_dir_unwrite(const char *dir, const json_t *cases)
 
 int pb_write_atomic(const char *path, const char *data, size_t len)
 {
-    char tmp[4200];
-    snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid());
+    /* an output that is a symbolic link is written through: the file it
+     * names is replaced, by a rename in that file's own folder, and the link
+     * stays (a link that names nothing is refused: ENOENT) */
+    char target[PATH_MAX], tmp[4200];
+    struct stat st;
+    if (!lstat(path, &st) && S_ISLNK(st.st_mode)) {
+        if (!realpath(path, target))
+            return -1;
+        path = target;
+    }
+    /* never cut: a shortened name would be another file */
+    if (snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid()) >= (int)sizeof tmp) {
+        errno = ENAMETOOLONG;
+        return -1;
+    }
     FILE *f = fopen(tmp, "wb");
     if (!f)
         return -1;
@@ -97,7 +111,9 @@ int pb_write_atomic_printed(const char *path, int (*body)(FILE *f, const void *c
         rc = -1;
     if (rc == 0 && pb_write_atomic(path, buf, n))
         rc = -1;
+    int e = errno;
     free(buf);
+    errno = e;
     return rc ? -1 : 0;
 }
 

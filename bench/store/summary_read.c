@@ -62,11 +62,20 @@ const char *pb_summary_numbers_bad(const json_t *m, const json_t *n)
         json_t *v = json_object_get(m, *k);
         if (v && !json_is_number(v) && !json_is_null(v))
             return "has a metric that is not a number";
+        /* every metric is a size (an error, a drift): a negative one was
+         * compared as a regression against itself */
+        if (v && json_is_number(v) && !(json_number_value(v) >= 0))
+            return "has a negative metric";
     }
     for (const char *const *k = pb_summary_count_keys; *k; k++) {
         json_t *v = json_object_get(n, *k);
         if (v && !json_is_integer(v) && !json_is_null(v)) /* null: not known (score) */
             return "has a count that is not an integer";
+        /* counts are differenced in a comparison: a bound keeps that
+         * difference within a long long (-9223372036854775807 overflowed it) */
+        if (v && json_is_integer(v) &&
+            (json_integer_value(v) < 0 || json_integer_value(v) > PB_SUMMARY_COUNT_MAX))
+            return "has a count that is negative or above 2^62";
     }
     return NULL;
 }

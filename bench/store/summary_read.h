@@ -25,8 +25,12 @@ json_t *pb_json_doc_read(const char *path, char *err, size_t errlen);
 int pb_json_doc_format_ok(const char *path, const json_t *d, int want, const char *what,
                           char *err, size_t errlen);
 
-/* Why the metrics m (numbers or null) or counts n (integers) are bad; NULL
- * if fine. */
+/* Counts (steps, evaluations) above this are refused: 2^62 is far beyond
+ * any run, and the difference of two such counts fits a long long. */
+#define PB_SUMMARY_COUNT_MAX (1LL << 62)
+
+/* Why the metrics m (numbers >= 0, or null) or counts n (integers in
+ * 0..PB_SUMMARY_COUNT_MAX, or null) are bad; NULL if fine. */
 const char *pb_summary_numbers_bad(const json_t *m, const json_t *n);
 
 /* The first compared key missing from metrics m or counts n (group is set
