@@ -205,3 +205,27 @@ Test(leapfrog_tt, leo_j2_order_against_reference, .timeout = 120)
     const int n1[4] = {80, 80, 80, 40};
     ltt_case_order("leo-j2", 15, n1);
 }
+
+/* Refused before any step, through the CLI: leo-drag's drag depends on the
+ * velocity (PB_FORM_SECOND), arenstorf (the CR3BP) has no central Kepler
+ * term and a Coriolis force (PB_KIND_KEPLER, PB_FORM_SECOND): exit status
+ * 2, a message naming method and problem, no run folder written. */
+Test(leapfrog_tt, refused_on_drag_and_cr3bp_through_cli, .timeout = 60)
+{
+    const char *problems[2] = {"leo-drag", "arenstorf"};
+    const char *why[2] = {"depends on velocity", "no central"};
+    for (int i = 0; i < 2; i++) {
+        char dir[512], outdir[600], out[4096], err[4096];
+        pbt_tmpdir(dir, sizeof dir);
+        cr_assert(dir[0]);
+        snprintf(outdir, sizeof outdir, "%s/run", dir);
+        const char *args[] = {"run", "--problem", problems[i], "--method", "leapfrog-tt",
+                              "--steps-per-orbit", "50", "--repeats", "0", "--out", outdir,
+                              NULL};
+        int rc = pbt_run_cli(args, out, sizeof out, err, sizeof err);
+        cr_assert_eq(rc, 2, "%s: exit %d (%s)", problems[i], rc, err);
+        cr_assert(strstr(err, "leapfrog-tt") && strstr(err, problems[i]) && strstr(err, why[i]),
+                  "%s: %s", problems[i], err);
+        cr_assert_not(pbt_exists(outdir), "%s: %s written", problems[i], outdir);
+    }
+}
