@@ -26,6 +26,9 @@ extern const pb_method_type pb_method_gauss_legendre;
 extern const pb_method_type pb_method_gauss_legendre12;
 extern const pb_method_type pb_method_rkn12;
 extern const pb_method_type pb_method_radau15;
+extern const pb_method_type pb_method_kepler_split2;
+extern const pb_method_type pb_method_kepler_split4;
+extern const pb_method_type pb_method_kepler_split8;
 
 const pb_method_type *const pb_method_table[] = {
     &pb_method_rk4,
@@ -50,6 +53,9 @@ const pb_method_type *const pb_method_table[] = {
     &pb_method_gauss_legendre12,
     &pb_method_rkn12,
     &pb_method_radau15,
+    &pb_method_kepler_split2,
+    &pb_method_kepler_split4,
+    &pb_method_kepler_split8,
     NULL
 };
 
@@ -160,4 +166,18 @@ int pb_method_fits(const pb_method_type *m, const pb_problem *p)
     if ((m->flags & PB_KIND_KEPLER) && pb_problem_kepler_mu(p) <= 0)
         return 0;
     return !((m->flags & PB_FORM_SECOND) && p->velocity_dependent);
+}
+
+int pb_method_fit_error(const pb_method_type *m, const pb_problem *p, char *err, size_t errlen)
+{
+    int no_mu = (m->flags & PB_KIND_KEPLER) && pb_problem_kepler_mu(p) <= 0;
+    int vel = (m->flags & PB_FORM_SECOND) && p->velocity_dependent;
+    if (!no_mu && !vel)
+        return 0;
+    snprintf(err, errlen, "method '%s' %s%s%s, but problem '%s' %s%s%s", m->name,
+             no_mu ? "is built around the Kepler flow of a central body" : "",
+             no_mu && vel ? " and " : "", vel ? "needs a velocity-independent force" : "",
+             p->name, no_mu ? "has no central -mu r/|r|^3 term" : "", no_mu && vel ? " and " : "",
+             vel ? "depends on velocity" : "");
+    return -1;
 }

@@ -131,7 +131,10 @@ Test(dense, fixed_step_methods_converge_at_their_stated_dense_order, .timeout = 
 {
     for (const pb_method_type *const *mp = pb_method_table; *mp; mp++) {
         const pb_method_type *m = *mp;
-        if (!(m->flags & PB_KIND_FIXED))
+        /* a Kepler-splitting map is exact on this orbit, dense output too
+         * (round-off at any step): tests/test_kepler_split.c measures its
+         * dense order on the perturbed revolving orbit */
+        if (!(m->flags & PB_KIND_FIXED) || (m->flags & PB_KIND_KEPLER))
             continue;
         int step = (m->flags & PB_KIND_MULTISTEP) ? 10 : 1;
         int q = m->dense_order, n = 400;

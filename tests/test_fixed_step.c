@@ -218,6 +218,7 @@ static void *fst_method_start(const pb_method_type *m, const pb_problem *p, long
     pb_method_config cfg;
     memset(&cfg, 0, sizeof cfg);
     cfg.h = *h = p->period / 100;
+    cfg.mu = pb_problem_kepler_mu(p); /* as the harness sets it */
     cfg.max_steps = max_steps;
     f->accel = fst_kepler_accel;
     f->ctx = (void *)p;
@@ -295,6 +296,7 @@ Test(fixed_step, every_fixed_method)
             cr_assert(rs[i] == r[i] && vs[i] == v[i], "%s: component %d", m->name, i);
         m->free(ws);
     }
-    /* rk4, leapfrog, yoshida4/6/8, gsl-rk4, gauss-jackson8, gauss-legendre(12) */
-    cr_assert_eq(nfixed, 9);
+    /* rk4, leapfrog, yoshida4/6/8, gsl-rk4, gauss-jackson8, gauss-legendre(12),
+     * kepler-split2/4/8 */
+    cr_assert_eq(nfixed, 12);
 }

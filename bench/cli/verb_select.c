@@ -200,8 +200,9 @@ static int select_methods(const select_options *o, const pb_problem *p, const pb
         }
         /* a method asked for by name that cannot run here is bad input */
         if (o->methods) {
-            pb_cli_error("select", "method '%s' needs a velocity-independent force, but "
-                         "problem '%s' depends on velocity", list[i]->name, p->name);
+            char why[256];
+            pb_method_fit_error(list[i], p, why, sizeof why);
+            pb_cli_error("select", "%s", why);
             return -1;
         }
         /* one the search leaves out is said, so a short table is not a surprise */

@@ -56,11 +56,8 @@ int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
     /* a record from outside (a user's method) may be built against other headers */
     if (pb_method_check(m, err, errlen))
         return -1;
-    if (!pb_method_fits(m, p)) {
-        snprintf(err, errlen, "method '%s' needs a velocity-independent force, but "
-                 "problem '%s' depends on velocity", m->name, p->name);
+    if (pb_method_fit_error(m, p, err, errlen))
         return -1;
-    }
     if (!p->exact_q && !pb_forces_have_quad(p)) {
         snprintf(err, errlen, "problem '%s' has a force with no extended-precision form, so "
                  "there is no reference to measure it against", p->name);
