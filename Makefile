@@ -10,7 +10,7 @@ WARN    := -Wall -Wextra -Wshadow -Wmissing-prototypes -Wstrict-prototypes -Wdou
 CSTD    := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE
 OPT     ?= -O2 -g
 PB_CFLAGS  = $(CSTD) $(OPT) $(WARN) -I. -Iinclude -fPIC -fno-semantic-interposition -fvisibility=hidden -DPB_BUILD_FLAGS='"$(CSTD) $(OPT) $(WARN)"' $(shell pkg-config --cflags $(PKGS) 2>/dev/null) $(CFLAGS)
-PB_LDLIBS  = $(shell pkg-config --libs $(PKGS) 2>/dev/null) -lquadmath -lm $(LDLIBS)
+PB_LDLIBS  = $(shell pkg-config --libs $(PKGS) 2>/dev/null) -lquadmath -lm -pthread $(LDLIBS)
 TEST_LIBS  = $(shell pkg-config --libs criterion 2>/dev/null)
 SAN        := -fsanitize=address,undefined,float-cast-overflow -fno-omit-frame-pointer -fno-sanitize-recover=undefined,float-cast-overflow
 

@@ -9,10 +9,16 @@
 
 #include "problem.h"
 
+/* Nodes of the first try and of the second: 8 carry the Moon to 1e-27
+ * over a LEO-length step, 14 over a GEO-length one (measured in
+ * tests/test_forces_ephemeris.c); a fit that fails both is not used. */
+#define PB_EPH_FIT_NODES_FEW 8
 #define PB_EPH_FIT_NODES 14
 
 typedef struct pb_ephemeris_fit {
     int on;                                   /* 1: the fit holds over [t0, t0 + H] */
+    int n;                                    /* nodes in use */
+    int used[3];                              /* which bodies (Sun, Moon, circular) the problem has */
     __float128 t[PB_EPH_FIT_NODES];           /* nodes */
     __float128 w[PB_EPH_FIT_NODES];           /* barycentric weights */
     __float128 pos[PB_EPH_FIT_NODES][3][3];   /* body positions at the nodes */

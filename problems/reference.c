@@ -7,6 +7,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <pthread.h>
 #include <unistd.h>
 #include <quadmath.h>
 #include "problems/reference.h"
@@ -19,6 +20,12 @@ typedef __float128 ref_real;
 
 #define REF_N 6                 /* state (r, v), 3 + 3 */
 #define REF_K 10                /* extrapolation columns: order 2K */
+/* Columns of the trial steps that locate a boundary: their states serve
+ * only to place the boundary in time (the integration itself steps there
+ * with REF_K), and where REF_K columns meet the step tolerance, 8 are
+ * within a factor (18 * 20)^2 (H/T)^-4 of it (the extrapolation's error
+ * constant is 1 / prod n_j^2; Hairer, Norsett & Wanner, Sec. II.9) */
+#define REF_K_TRIAL 8
 #define REF_TOL_COARSE 1e-24L
 #define REF_TOL_FINE 1e-28L
 #define REF_MAX_STEPS 20000000L
@@ -98,8 +105,8 @@ static ref_real ref_norm3(const ref_real *x)
 /* One extrapolated step of size H, its time mapped by map (REF_MAP_*); y1
  * receives the result, the return value is the scaled error estimate
  * (relative to |r| and |v| separately). */
-static ref_real ref_step(const ref_force *Fp, ref_real t0, const ref_real *y0, ref_real H,
-                         int map, ref_real *y1)
+static ref_real ref_step_k(const ref_force *Fp, ref_real t0, const ref_real *y0, ref_real H,
+                           int map, int K, ref_real *y1)
 {
     ref_real T[REF_K][REF_N], f0[REF_N];
     ref_force Fm = *Fp, *F = &Fm;
@@ -111,7 +118,7 @@ static ref_real ref_step(const ref_force *Fp, ref_real t0, const ref_real *y0, r
     /* in s the step runs over [0, 1] */
     ref_real s0 = map ? 0 : t0, S = map ? 1 : H;
     ref_deriv(F, s0, y0, f0);
-    for (int j = 0; j < REF_K; j++) {
+    for (int j = 0; j < K; j++) {
         int nj = 2 * (j + 1);
         ref_midpoint(F, s0, y0, f0, S, nj, T[j]);
         /* Aitken-Neville in place: T[j-k] becomes the k-times extrapolated value. */
@@ -137,6 +144,12 @@ static ref_real ref_step(const ref_force *Fp, ref_real t0, const ref_real *y0, r
     return fmaxq(er, ev);
 }
 
+static ref_real ref_step(const ref_force *F, ref_real t0, const ref_real *y0, ref_real H,
+                         int map, ref_real *y1)
+{
+    return ref_step_k(F, t0, y0, H, map, REF_K, y1);
+}
+
 static int ref_finite(const ref_real *y)
 {
     for (int i = 0; i < REF_N; i++)
@@ -158,6 +171,9 @@ typedef struct ref_run {
     int pending;            /* a located boundary lies ahead, at t_edge */
     ref_real t_edge, h_keep;
     ref_real rej_t, rej_H, rej_err; /* the last rejected attempt */
+    ref_real acc_t, acc_H, acc_err; /* the last accepted step */
+    ref_real t_fresh;               /* when the last edge was crossed */
+    ref_real end_ok;                /* the last step onto a singular edge is tried from this close */
     ref_real t_far, y_far[REF_N], g_far[4]; /* a state just past it, and its functions */
 } ref_run;
 
@@ -172,7 +188,8 @@ static int ref_crossed(const ref_real *g0, const ref_real *g1, int n)
 /* The state and boundary functions at w->t + tau, by one step from w. */
 static int ref_trial(ref_run *w, ref_real tau, ref_real *y, ref_real *g)
 {
-    ref_real err = ref_step(&w->F, w->t, w->y, tau, w->fresh ? REF_MAP_START : REF_MAP_NONE, y);
+    ref_real err = ref_step_k(&w->F, w->t, w->y, tau, w->fresh ? REF_MAP_START : REF_MAP_NONE,
+                              REF_K_TRIAL, y);
     if (!ref_finite(y) || !finiteq(err))
         return PB_ENONFINITE;
     int ns;
@@ -268,7 +285,45 @@ static void ref_cross_edge(ref_run *w)
     pb_forces_events_q(w->p, w->t_far, w->y_far, w->F.band, w->g, &w->nshadow);
     w->pending = 0;
     w->fresh = pb_forces_region_has_edge_terms(w->p, w->F.region);
+    w->t_fresh = w->t;
+    w->end_ok = 1e300Q;
     w->h = fmaxq(w->h, w->h_keep);
+}
+
+/* The next step's factor after a step of size H with error estimate err
+ * (map: the step was taken in s), within [0.2, 4]. */
+static ref_real ref_step_factor(const ref_run *w, ref_real H, ref_real err, int map)
+{
+    /* in s a step's error goes as about H^K rather than H^(2K); just past a
+     * singular edge, as (H/d)^(2K) d^(3/2) at a distance d from it, so it
+     * hardly grows while H and d double together: the rate the last two
+     * accepted steps show then lets the step grow at the controller's cap
+     * instead of by (tol/err)^(1/(2K-1)) */
+    ref_real expo = (map ? 2.0Q : 1.0Q) / (2 * REF_K - 1);
+    if (err > 0 && err < w->tol && w->acc_err > 0 && w->acc_t >= w->t_fresh
+        && fabsq(logq(H / w->acc_H)) > 0.1Q) {
+        ref_real p = logq(err / w->acc_err) / logq(H / w->acc_H);
+        if (p < 2 * REF_K - 1)
+            expo = 1 / fmaxq(p, 2.0Q);
+    }
+    ref_real fac = err > 0 ? 0.9Q * powq(w->tol / err, expo) : 4.0Q;
+    return fminq(4.0Q, fmaxq(0.2Q, fac));
+}
+
+/* The factor after a rejected step (fac: the controller's), remembering
+ * the attempt: on a second rejection from the same state, where a singular
+ * term dominates and the error falls far slower than H^(2K), the cut is by
+ * the rate the two attempts show. */
+static ref_real ref_reject_factor(ref_run *w, ref_real H, ref_real err, ref_real fac)
+{
+    if (w->rej_t == w->t && w->rej_H > H && w->rej_err > 0) {
+        ref_real p = logq(w->rej_err / err) / logq(w->rej_H / H);
+        if (p > 0.5Q && p < 2 * REF_K)
+            fac = fminq(fac, 0.9Q * powq(w->tol / err, 1 / p));
+        fac = fmaxq(fac, 1e-4Q);
+    }
+    w->rej_t = w->t, w->rej_H = H, w->rej_err = err;
+    return fac;
 }
 
 /* Step w exactly to target, stopping at every shadow boundary on the way. */
@@ -280,12 +335,19 @@ static int ref_advance(ref_run *w, ref_real target)
         int to_edge = w->pending && w->t_edge <= target;
         ref_real end = to_edge ? w->t_edge : target;
         ref_real H = w->h, left = end - w->t;
+        int sing_end = to_edge && pb_forces_region_has_edge_terms(w->p, w->F.region);
+        /* towards a singular edge the error of a step goes as its length L
+         * to about the power 2.5 (as L^(3/2) L): approach it by steps of
+         * three quarters of what is left (a step's error depends on its
+         * length against its distance from the edge) until a last step
+         * is predicted to pass */
+        if (sing_end && left > w->end_ok)
+            H = fminq(H, 0.75Q * left);
         int last = H >= left;
         if (last)
             H = left;
         int at_edge = last && to_edge;
-        int map = (w->fresh ? REF_MAP_START : 0)
-                | (at_edge && pb_forces_region_has_edge_terms(w->p, w->F.region) ? REF_MAP_END : 0);
+        int map = (w->fresh ? REF_MAP_START : 0) | (at_edge && sing_end ? REF_MAP_END : 0);
         ref_real err = ref_step(&w->F, w->t, w->y, H, map, y1);
         if (!ref_finite(y1) || !finiteq(err))
             return PB_ENONFINITE;
@@ -299,14 +361,12 @@ static int ref_advance(ref_run *w, ref_real target)
                 return s;
             continue;
         }
-        /* in s a step's error goes as about H^K rather than H^(2K) */
-        ref_real expo = (map ? 2.0Q : 1.0Q) / (2 * REF_K - 1);
-        ref_real fac = err > 0 ? 0.9Q * powq(w->tol / err, expo) : 4.0Q;
-        fac = fminq(4.0Q, fmaxq(0.2Q, fac));
+        ref_real fac = ref_step_factor(w, H, err, map);
         if (err <= w->tol) {
             memcpy(w->y, y1, sizeof y1);
             if (w->nev && !w->pending)
                 memcpy(w->g, g1, sizeof g1);
+            w->acc_t = w->t, w->acc_H = H, w->acc_err = err;
             w->t = last ? end : w->t + H;
             w->fresh = 0;
             if (++w->steps > REF_MAX_STEPS)
@@ -316,16 +376,9 @@ static int ref_advance(ref_run *w, ref_real target)
             if (at_edge)
                 ref_cross_edge(w);
         } else {
-            /* a second rejection from the same state: where a singular
-             * term dominates, the error falls far slower than H^(2K); cut
-             * by the rate the two attempts show */
-            if (w->rej_t == w->t && w->rej_H > H && w->rej_err > 0) {
-                ref_real p = logq(w->rej_err / err) / logq(w->rej_H / H);
-                if (p > 0.5Q && p < 2 * REF_K)
-                    fac = fminq(fac, 0.9Q * powq(w->tol / err, 1 / p));
-                fac = fmaxq(fac, 1e-4Q);
-            }
-            w->rej_t = w->t, w->rej_H = H, w->rej_err = err;
+            fac = ref_reject_factor(w, H, err, fac);
+            if (at_edge && sing_end)
+                w->end_ok = H * powq(0.5Q * w->tol / err, 1 / 2.5Q);
             w->h = H * fac;
         }
         if (w->h < 1e-30Q * fabsq(w->t) || w->h <= 0)
@@ -360,7 +413,7 @@ int pb_reference_propagate(const pb_problem *p, const double *times, int n,
     if (!p || p->dim < 1 || p->dim > 3 || n < 0 || (n > 0 && !times) || !(tol > 0) ||
         !pb_forces_have_quad(p))
         return PB_EINVAL;
-    ref_run w = {.p = p, .t = p->t0, .tol = tol, .rej_t = -1};
+    ref_run w = {.p = p, .t = p->t0, .tol = tol, .rej_t = -1, .t_fresh = 1e300Q, .end_ok = 1e300Q};
     for (int i = 0; i < p->dim; i++) {
         w.y[i] = p->r0[i];
         w.y[i + 3] = p->v0[i];
@@ -472,6 +525,22 @@ static void ref_cache_write(const char *dir, const char *path, uint64_t key, int
         remove(tmp);
 }
 
+/* One of the two builds (coarse or fine), as a thread's job. */
+typedef struct ref_job {
+    const pb_problem *p;
+    const double *times;
+    int n;
+    long double tol, *r, *v;
+    int status;
+} ref_job;
+
+static void *ref_job_run(void *arg)
+{
+    ref_job *j = arg;
+    j->status = pb_reference_propagate(j->p, j->times, j->n, j->tol, j->r, j->v, NULL);
+    return NULL;
+}
+
 int pb_reference_build(const pb_problem *p, const double *times, int n,
                        const char *cache_dir, long double *r, long double *v,
                        double *floor)
@@ -492,9 +561,18 @@ int pb_reference_build(const pb_problem *p, const double *times, int n,
     if (!rc)
         return PB_ENOMEM;
     long double *vc = rc + m;
-    int s = pb_reference_propagate(p, times, n, REF_TOL_COARSE, rc, vc, NULL);
+    /* the two builds are independent: the coarse one runs on a second
+     * thread where one can be had, so the wait is the fine build's alone */
+    ref_job coarse = {p, times, n, REF_TOL_COARSE, rc, vc, PB_OK};
+    pthread_t th;
+    int threaded = pthread_create(&th, NULL, ref_job_run, &coarse) == 0;
+    if (!threaded)
+        ref_job_run(&coarse);
+    int s = pb_reference_propagate(p, times, n, REF_TOL_FINE, r, v, NULL);
+    if (threaded)
+        pthread_join(th, NULL);
     if (!s)
-        s = pb_reference_propagate(p, times, n, REF_TOL_FINE, r, v, NULL);
+        s = coarse.status;
     if (!s) {
         for (int k = 0; k < n; k++) {
             long double d2 = 0, r2 = 0;

@@ -1,7 +1,8 @@
 /* test_forces_ephemeris.c - the Sun and Moon of force_terms_impl.h
  * (Montenbruck & Gill's low-precision series) against the Astronomical
  * Almanac's low-precision Sun and Meeus's Moon example, the third-body term
- * (Battin's form) against the direct difference in long double, and the
+ * (Battin's form) against the direct difference in long double, the
+ * reference's per-step fit of both against their series, and the
  * yearly inclination growth of a geostationary orbit under Sun and Moon
  * (REFERENCES.md, "Force models"). */
 #include <criterion/criterion.h>
@@ -9,6 +10,7 @@
 #include <string.h>
 #include "test_forces_support.h"
 #include "problems/bodies.h"
+#include "problems/ephemeris_fit.h"
 
 #define DEG (M_PI / 180.0)
 /* general precession in longitude, 5029.0966"/century (IAU 1976; common
@@ -213,4 +215,53 @@ Test(forces_ephemeris, geo_inclination_grows_under_sun_and_moon)
                 mid, hi, lo);
     cr_assert(mid >= 0.75 && mid <= 0.95, "inclination after a year from 2030: %.4f deg", mid);
     cr_assert(hi - lo >= 0.1 && hi - lo <= 0.3, "lunar-cycle spread %.4f deg", hi - lo);
+}
+
+/* The reference's Chebyshev fit of the Sun and Moon over one step
+ * (problems/ephemeris_fit.c) against the series it replaces, at 40 points
+ * off its nodes: within 1e-27 of each body's distance (the fit's own
+ * acceptance bound, below the reference's step tolerance of 1e-28 of the
+ * state scaled by the third bodies' share of the force). 8 nodes hold over
+ * a LEO reference step (about 170 s); a GEO-length step (3000 s) needs the
+ * second try's 14; over 20 days no fit of 14 nodes holds and the reference
+ * sums the series at every evaluation instead. */
+static double eph_fit_worst(const pb_problem *p, __float128 t0, __float128 H,
+                            const pb_ephemeris_fit *fit)
+{
+    double worst = 0;
+    for (int k = 0; k < 40; k++) {
+        __float128 t = t0 + H * (k + 0.37Q) / 40, want[3][3] = {{0}}, got[3][3];
+        pb_forces_bodies_q(p, t, want);
+        pb_ephemeris_fit_at(fit, t, got);
+        for (int b = 0; b < 2; b++) {
+            __float128 d2 = 0, r2 = 0;
+            for (int i = 0; i < 3; i++) {
+                d2 += (got[b][i] - want[b][i]) * (got[b][i] - want[b][i]);
+                r2 += want[b][i] * want[b][i];
+            }
+            worst = fmax(worst, sqrt((double)(d2 / r2)));
+        }
+    }
+    return worst;
+}
+
+Test(forces_ephemeris, step_fit_matches_series)
+{
+    pb_forces f;
+    memset(&f, 0, sizeof f);
+    f.sun = f.moon = 1;
+    f.has_epoch = 1;
+    f.epoch_days = 9564.5; /* 2026-03-10 TT, a scenario epoch (invented: only a date) */
+    double r0[3] = {6778, 0, 0}, v0[3] = {0, 7.67, 0};
+    pb_problem p;
+    pbtf_earth_problem(&p, &f, r0, v0);
+    pb_ephemeris_fit fit;
+    pb_ephemeris_fit_make(&fit, &p, 1000, 170);
+    cr_assert(fit.on && fit.n == PB_EPH_FIT_NODES_FEW, "LEO step: on %d, %d nodes", fit.on, fit.n);
+    cr_expect_lt(eph_fit_worst(&p, 1000, 170, &fit), 1e-27);
+    pb_ephemeris_fit_make(&fit, &p, 5000, 3000);
+    cr_assert(fit.on && fit.n == PB_EPH_FIT_NODES, "GEO step: on %d, %d nodes", fit.on, fit.n);
+    cr_expect_lt(eph_fit_worst(&p, 5000, 3000, &fit), 1e-27);
+    pb_ephemeris_fit_make(&fit, &p, 0, 20 * 86400.0);
+    cr_expect_eq(fit.on, 0, "a 20-day fit of 14 nodes must be refused");
 }

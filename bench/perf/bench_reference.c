@@ -1,10 +1,12 @@
 /* bench_reference.c - the cost of a reference trajectory with mission-like
  * forces: a one-day 425 km LEO with J2..J6, drag, Sun, Moon and radiation
  * pressure (no shadow, cylindrical, conical), built from scratch (no cache)
- * at both tolerances, as the harness builds it; CPU seconds, accepted steps
+ * at both tolerances, as the harness builds it; wall and process CPU
+ * seconds (the coarse build runs on a second thread), accepted steps
  * and the floor (the goal is printed by bench_main.c). */
 #include <stdio.h>
 #include <string.h>
+#include <time.h>
 #include "bench/perf/bench.h"
 #include "problems/bodies.h"
 #include "problems/force_terms.h"
@@ -36,11 +38,20 @@ static void bench_full_force_leo(pb_problem *p, int shadow)
     pb_problem_init_forces(p, "bench-leo-full", "", PB_UNITS_KM_S, b->mu, b->radius, &f, r0, v0);
 }
 
+/* CPU time of the whole process: the build runs its coarse pass on a
+ * second thread, which the calling thread's clock would not see. */
+static double bench_process_cpu(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &ts);
+    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
 int bench_reference(double *worst_s)
 {
     static const char *const names[] = {"no shadow", "cylindrical shadow", "conical shadow"};
     printf("== Reference trajectory: one day of a 425 km LEO, J2..J6 + drag + Sun + Moon + SRP ==\n");
-    printf("   %-20s %10s %12s %12s\n", "shadow", "build CPU s", "fine steps", "floor km");
+    printf("   %-20s %10s %10s %12s %12s\n", "shadow", "build s", "CPU s", "fine steps", "floor km");
     *worst_s = 0;
     int bad = 0;
     for (int shadow = PB_SHADOW_NONE; shadow <= PB_SHADOW_CONICAL; shadow++) {
@@ -48,12 +59,12 @@ int bench_reference(double *worst_s)
         bench_full_force_leo(&p, shadow);
         double t[1] = {86400.0}, floor[1];
         long double r[PB_DIM_MAX], v[PB_DIM_MAX];
-        double c0 = bench_cpu_now();
+        double w0 = bench_now(), c0 = bench_process_cpu();
         int s = pb_reference_build(&p, t, 1, NULL, r, v, floor);
-        double sec = bench_cpu_now() - c0;
+        double sec = bench_now() - w0, cpu = bench_process_cpu() - c0;
         long steps = 0;
         pb_reference_propagate(&p, t, 1, 1e-28L, r, v, &steps);
-        printf("   %-20s %10.2f %12ld %12.2g%s\n", names[shadow], sec, steps, floor[0],
+        printf("   %-20s %10.2f %10.2f %12ld %12.2g%s\n", names[shadow], sec, cpu, steps, floor[0],
                s ? "  (failed)" : "");
         bad |= s != 0;
         if (sec > *worst_s)
