@@ -86,7 +86,7 @@ static double bs_cost(int j)
 
 static void *bs_alloc(int dim)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     bs_ws *w = calloc(1, sizeof *w);
     if (!w)
@@ -445,7 +445,7 @@ static int bs_dense(const void *cws, double t, double *r, double *v)
         w->dense_deg = pb_bs_dense_build(w->n, w->kc_old, w->H_old, w->yold, w->f0old, w->y,
                                          w->f0, (const double *const *)w->zmid[last],
                                          w->fstore[last], w->coef);
-    double yt[2 * PB_DIM_MAX];
+    double yt[2 * PB_STATE_DIM_MAX];
     pb_bs_dense_eval(w->n, w->dense_deg, w->coef, (t - w->t_old) / w->H_old, yt);
     memcpy(r, yt, (size_t)w->dim * sizeof(double));
     memcpy(v, yt + w->dim, (size_t)w->dim * sizeof(double));

@@ -21,7 +21,7 @@
  * u^(2 kc) B(u), B cubic, to meet y and H f at both ends: degree 2 kc + 3,
  * no evaluation beyond the step's own. */
 
-#define BSD_NMAX (2 * PB_DIM_MAX)
+#define BSD_NMAX (2 * PB_STATE_DIM_MAX)
 
 /* l choose i, exact in double for l <= 2 KMAX - 2 */
 static double bsd_binom(int l, int i)

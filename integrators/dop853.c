@@ -44,7 +44,7 @@
  * unused tail zero: the stage sums run over that fixed length, without a
  * test per component (with one they were 58% of a step's instructions on
  * kepler-e0.5, 43% without; callgrind). */
-#define DOP853_NMAX (2 * PB_DIM_MAX)
+#define DOP853_NMAX (2 * PB_STATE_DIM_MAX)
 
 typedef struct dop853_ws {
     int dim, n;
@@ -77,7 +77,7 @@ typedef struct dop853_ws {
 
 static void *dop853_alloc(int dim)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     dop853_ws *w = calloc(1, sizeof *w);
     if (!w)

@@ -52,7 +52,7 @@ typedef struct gj_ws {
 
 static void *gj_alloc(int dim)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     gj_ws *w = calloc(1, sizeof *w);
     if (!w)
@@ -224,7 +224,7 @@ static int gj_startup(gj_ws *w)
     int d = w->dim, s, i, j;
     size_t sz = (size_t)d * sizeof(double);
     double h = w->cfg.h, h2 = h * h;
-    double y[2 * PB_DIM_MAX];
+    double y[2 * PB_STATE_DIM_MAX];
     memcpy(w->rb + 4 * d, w->r, sz);
     memcpy(w->vb + 4 * d, w->v, sz);
     for (int dir = -1; dir <= 1; dir += 2) {
@@ -327,7 +327,7 @@ static int gj_step(gj_ws *w, double t1)
             memcpy(w->fn + 8 * d, w->fa, (size_t)d * sizeof(double));
             for (i = 0; i < d; i++)
                 w->sn[i] = w->s[i] + 0.5 * (fnow[i] + w->fa[i]);
-            double rold[PB_DIM_MAX], change = 0, scale = 0;
+            double rold[PB_STATE_DIM_MAX], change = 0, scale = 0;
             memcpy(rold, w->rc, (size_t)d * sizeof(double));
             gj_correct(w, w->fn, w->rc, w->vc);
             for (i = 0; i < d; i++) {

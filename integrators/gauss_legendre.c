@@ -50,21 +50,21 @@ typedef struct gl_ws {
     gl_scheme sch;
     pb_force f;
     pb_fixed_grid grid;              /* t0, h, the index of the current state */
-    double r[PB_DIM_MAX], v[PB_DIM_MAX];   /* committed state */
+    double r[PB_STATE_DIM_MAX], v[PB_STATE_DIM_MAX];   /* committed state */
     /* the last accepted step: its start, and the stage velocities and
      * accelerations that define its collocation polynomial (dense output
      * and the next step's predictor) */
     int have_last;
-    double t_last, r_last[PB_DIM_MAX], v_last[PB_DIM_MAX];
-    double Vl[GL_S_MAX][PB_DIM_MAX], Al[GL_S_MAX][PB_DIM_MAX];
+    double t_last, r_last[PB_STATE_DIM_MAX], v_last[PB_STATE_DIM_MAX];
+    double Vl[GL_S_MAX][PB_STATE_DIM_MAX], Al[GL_S_MAX][PB_STATE_DIM_MAX];
     /* the step in progress: stage positions, velocities, accelerations */
-    double R[GL_S_MAX][PB_DIM_MAX], V[GL_S_MAX][PB_DIM_MAX], A[GL_S_MAX][PB_DIM_MAX];
+    double R[GL_S_MAX][PB_STATE_DIM_MAX], V[GL_S_MAX][PB_STATE_DIM_MAX], A[GL_S_MAX][PB_STATE_DIM_MAX];
     pb_method_stats st;
 } gl_ws;
 
 static void *gl_alloc(int dim)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     gl_ws *w = calloc(1, sizeof *w);
     if (w)
@@ -117,7 +117,7 @@ static int gl_predict(gl_ws *w, double t, double h)
         }
         return PB_OK;
     }
-    double a0[PB_DIM_MAX];
+    double a0[PB_STATE_DIM_MAX];
     int st = w->f.accel(w->f.ctx, t, w->r, w->v, a0);
     if (st)
         return st;
@@ -206,7 +206,7 @@ static int gl_solve(gl_ws *w, double t, double h)
 static int gl_commit(gl_ws *w, double t, double h)
 {
     int s = w->sch.s, d = w->dim;
-    double rn[PB_DIM_MAX], vn[PB_DIM_MAX];
+    double rn[PB_STATE_DIM_MAX], vn[PB_STATE_DIM_MAX];
     for (int k = 0; k < d; k++) {
         double zr = 0, zv = 0;
         for (int i = 0; i < s; i++) {

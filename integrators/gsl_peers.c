@@ -80,7 +80,7 @@ static void gp_free(void *ws)
 
 static void *gp_alloc(int dim, const gsl_odeiv2_step_type *type, int fixed)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     gp_ws *w = calloc(1, sizeof *w);
     if (!w)

@@ -51,7 +51,7 @@ static yoshida_scheme yoshida_make(int k, const double *w)
 
 static void *yoshida_alloc(int dim)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     yoshida_ws *w = calloc(1, sizeof *w);
     if (!w)

@@ -22,6 +22,7 @@ extern const pb_method_type pb_method_gsl_rkck;
 extern const pb_method_type pb_method_gsl_rk8pd;
 extern const pb_method_type pb_method_gsl_msadams;
 extern const pb_method_type pb_method_gauss_jackson8;
+extern const pb_method_type pb_method_gauss_jackson8_s;
 extern const pb_method_type pb_method_gauss_legendre;
 extern const pb_method_type pb_method_gauss_legendre12;
 extern const pb_method_type pb_method_rkn12;
@@ -49,6 +50,7 @@ const pb_method_type *const pb_method_table[] = {
     &pb_method_gsl_rk8pd,
     &pb_method_gsl_msadams,
     &pb_method_gauss_jackson8,
+    &pb_method_gauss_jackson8_s,
     &pb_method_gauss_legendre,
     &pb_method_gauss_legendre12,
     &pb_method_rkn12,

@@ -156,7 +156,7 @@ static void radau15_tables(radau15_ws *w)
 
 static void *radau15_alloc(int dim)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     radau15_ws *w = calloc(1, sizeof *w);
     if (!w)
@@ -254,7 +254,7 @@ static const double radau15_wv[RADAU15_N + 1] = {1.0, 1.0 / 2, 1.0 / 3, 1.0 / 4,
 static void radau15_poly(int dim, double T, double dt, const double *r0, const double *v0,
                          const double *a0, const double *B, double *r, double *v)
 {
-    double sr[PB_DIM_MAX] = {0}, sv[PB_DIM_MAX] = {0}, Tdt = T * dt;
+    double sr[PB_STATE_DIM_MAX] = {0}, sv[PB_STATE_DIM_MAX] = {0}, Tdt = T * dt;
     for (int k = RADAU15_N; k >= 1; k--) {
         const double *b = B + (k - 1) * dim;
         for (int i = 0; i < dim; i++) {
@@ -296,7 +296,7 @@ static int radau15_sweep(radau15_ws *w, double dt, double *corr)
         if ((s = w->f.accel(w->f.ctx, w->t + w->h[n] * dt, w->rs, w->vs, w->as)))
             return s;
         /* g_n = [a_0 .. a_n]: peel g_1 .. g_{n-1} off (a_n - a_0) / h_n */
-        double q[PB_DIM_MAX], *gn = w->g + (n - 1) * dim;
+        double q[PB_STATE_DIM_MAX], *gn = w->g + (n - 1) * dim;
         for (int i = 0; i < dim; i++)
             q[i] = (w->as[i] - w->a0[i]) * w->rinv[n][0];
         for (int j = 1; j < n; j++)

@@ -18,14 +18,14 @@ typedef struct rk4_ws {
     pb_fixed_grid grid;       /* t0, h, the index of the current state */
     double *y, *comp;         /* state (r, v) and its Kahan compensation */
     pb_method_stats st;
-    double a[PB_DIM_MAX];     /* the first stage's a at the current state, when have_a */
+    double a[PB_STATE_DIM_MAX];     /* the first stage's a at the current state, when have_a */
     int have_a;
     pb_dense_span span;       /* the last step's ends with their accelerations */
 } rk4_ws;
 
 static void *rk4_alloc(int dim)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     rk4_ws *w = calloc(1, sizeof *w);
     if (!w)
@@ -77,10 +77,10 @@ static int rk4_start(void *ws, const pb_force *f, const pb_method_config *cfg,
 static inline int rk4_step_d(rk4_ws *w, double t, double t1, double h, const int d)
 {
     double *r = w->y, *v = w->y + d, *cr = w->comp, *cv = w->comp + d;
-    double a1[PB_DIM_MAX], a2[PB_DIM_MAX], a3[PB_DIM_MAX], a4[PB_DIM_MAX];
-    double r2[PB_DIM_MAX], v2[PB_DIM_MAX], r3[PB_DIM_MAX], v3[PB_DIM_MAX];
-    double r4[PB_DIM_MAX], v4[PB_DIM_MAX], rn[PB_DIM_MAX], vn[PB_DIM_MAX];
-    double ncr[PB_DIM_MAX], ncv[PB_DIM_MAX];
+    double a1[PB_STATE_DIM_MAX], a2[PB_STATE_DIM_MAX], a3[PB_STATE_DIM_MAX], a4[PB_STATE_DIM_MAX];
+    double r2[PB_STATE_DIM_MAX], v2[PB_STATE_DIM_MAX], r3[PB_STATE_DIM_MAX], v3[PB_STATE_DIM_MAX];
+    double r4[PB_STATE_DIM_MAX], v4[PB_STATE_DIM_MAX], rn[PB_STATE_DIM_MAX], vn[PB_STATE_DIM_MAX];
+    double ncr[PB_STATE_DIM_MAX], ncv[PB_STATE_DIM_MAX];
     int s, i, ok = 1;
     void *ctx = w->f.ctx;
     if (w->have_a) {

@@ -67,7 +67,7 @@ typedef struct rkn12_ws {
 
 static void *rkn12_alloc(int dim)
 {
-    if (dim < 1 || dim > PB_DIM_MAX)
+    if (dim < 1 || dim > PB_STATE_DIM_MAX)
         return NULL;
     rkn12_ws *w = calloc(1, sizeof *w);
     if (!w)

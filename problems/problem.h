@@ -23,6 +23,24 @@ typedef enum pb_force_model {
     PB_FORCE_PERTURBED       /* two-body plus the terms of pb_problem.forces */
 } pb_force_model;
 
+/* The equations the methods integrate (problem-file key `formulation`,
+ * option --formulation). The truth, the invariants and every metric stay in
+ * Cartesian time and state whatever this says: a regularised form changes
+ * only what the method sees (integrators/formulation.h). */
+typedef enum pb_formulation {
+    PB_FORMULATION_CARTESIAN = 0,  /* y = (r, v) in physical time */
+    PB_FORMULATION_SUNDMAN,        /* (r, t) in s with dt = c r ds */
+    PB_FORMULATION_KS,             /* Kustaanheimo-Stiefel: (u, t, h) in s with dt = r ds */
+    PB_FORMULATION_COUNT
+} pb_formulation;
+
+/* The formulation's name ("cartesian", "sundman", "ks"); "?" if out of range. */
+static inline const char *pb_formulation_name(int f)
+{
+    static const char *const names[PB_FORMULATION_COUNT] = {"cartesian", "sundman", "ks"};
+    return f >= 0 && f < PB_FORMULATION_COUNT ? names[f] : "?";
+}
+
 typedef struct pb_problem pb_problem;
 
 /* Acceleration at (t, r, v) into a[dim]. Returns PB_OK or a pb_status. */
@@ -50,6 +68,7 @@ struct pb_problem {
     double period;            /* the time scale "orbits" counts; 0 if none */
     double default_orbits;    /* default horizon in periods (when period > 0) */
     double default_horizon_s; /* default horizon in time units (when period == 0) */
+    pb_formulation formulation; /* what the methods integrate; never the truth */
 
     pb_accel_fn accel;
     /* Energy-like integral (energy, energy with J2 potential, Jacobi constant);

@@ -33,7 +33,8 @@ const char *const pb_problem_file_keys[K_COUNT + 1] = {
     [K_J5] = "j5", [K_J6] = "j6", [K_ZONAL] = "zonal_degree", [K_GAMMA] = "r2_potential_gamma",
     [K_DRAG] = "drag", [K_BALLISTIC] = "ballistic_m2_kg", [K_THIRD] = "third_bodies",
     [K_EPOCH] = "epoch", [K_CIRC] = "third_body_circular", [K_SRP] = "srp_area_mass_m2_kg",
-    [K_CR] = "cr", [K_SHADOW] = "shadow", [K_MAN] = "manoeuvres", [K_DESC] = "description",
+    [K_CR] = "cr", [K_SHADOW] = "shadow", [K_MAN] = "manoeuvres", [K_FORM] = "formulation",
+    [K_DESC] = "description",
     [K_COUNT] = NULL
 };
 
@@ -330,6 +331,15 @@ static int pf_handler(void *user, const char *section, const char *key, const ch
             pf_fail(c, c->line, key, "unknown body '%s' (known: %s)", val, pb_body_names());
         break;
     case K_DESC:
+        break;
+    case K_FORM:
+        cs->num[k] = -1;
+        for (int f = 0; f < PB_FORMULATION_COUNT; f++)
+            if (strcmp(val, pb_formulation_name(f)) == 0)
+                cs->num[k] = f;
+        if (cs->num[k] < 0)
+            pf_fail(c, c->line, key, "unknown formulation '%s' (known: cartesian, sundman, ks)",
+                    val);
         break;
     case K_DRAG:
     case K_THIRD:

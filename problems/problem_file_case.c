@@ -286,6 +286,9 @@ int pb_problem_file_case(pf_case *cs, const char *path, pb_problem *p, char *err
     const char *desc = cs->kline[K_DESC] ? cs->str[K_DESC] : "user problem";
     pb_problem_init_twobody(p, cs->name, desc, cb.units, cb.mu, r0, v0);
     p->body_radius = cb.radius;
+    /* checked as it was read (problem_file.c); the methods' concern, never the truth's */
+    if (cs->kline[K_FORM])
+        p->formulation = (pb_formulation)cs->num[K_FORM];
     if (pf_finish_horizon(&b, p, cb.mu, rp))
         return PB_EINVAL;
     pf_warn_suspicious(&b, &cb, rp);

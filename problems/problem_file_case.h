@@ -14,7 +14,7 @@ enum {
     K_UNITS, K_MU, K_BODY, K_FORCE, K_A, K_E, K_I, K_RAAN, K_ARGP, K_NU, K_R, K_V,
     K_ORBITS, K_HORIZON, K_RADIUS, K_J2, K_J3, K_J4, K_J5, K_J6, K_ZONAL, K_GAMMA,
     K_DRAG, K_BALLISTIC, K_THIRD, K_EPOCH, K_CIRC, K_SRP, K_CR, K_SHADOW, K_MAN,
-    K_DESC, K_COUNT
+    K_FORM, K_DESC, K_COUNT
 };
 
 /* The keys a case may hold, by K_ index, NULL after the last (defined in

@@ -231,9 +231,10 @@ static void *fst_method_start(const pb_method_type *m, const pb_problem *p, long
 
 /* Methods that step in a fictitious time s (ds = (mu/r) dt): fixed-step in
  * s, so their step ends lie on no t grid and they take any t_out; their
- * own contract is tested in tests/test_leapfrog_tt.c. */
+ * own contract is tested in tests/test_leapfrog_tt.c (gauss-jackson8-s, dt = c r ds:
+ * tests/test_formulation.c). */
 static const char *const fst_in_s[] = {"leapfrog-tt", "yoshida4-tt", "yoshida6-tt",
-                                       "yoshida8-tt"};
+                                       "yoshida8-tt", "gauss-jackson8-s"};
 
 static int fst_steps_in_s(const pb_method_type *m)
 {

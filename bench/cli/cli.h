@@ -50,6 +50,9 @@ int pb_cli_split(const char *verb, const char *opt, char *s, char **items, int m
 int pb_cli_problem(const char *verb, const char *name, pb_problem *out);
 /* Resolve a method name; error message (with the list of names) if unknown. */
 const pb_method_type *pb_cli_method(const char *verb, const char *name);
+/* --formulation F: "cartesian", "sundman" or "ks" into *out; 0, or -1 after
+ * a message naming the option and the value (exit 2). */
+int pb_cli_formulation(const char *verb, const char *s, int *out);
 
 /* Print a one-case result as a short table a person can read. */
 void pb_cli_print_case(const pb_case_spec *spec, const pb_case_result *res);

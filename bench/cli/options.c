@@ -129,3 +129,14 @@ void pb_cli_warn_long(const char *verb, double steps)
                 "step that is %.3g to %.3g minutes of one core; --max-steps N ends a case early\n",
                 verb, steps, steps * 50e-9 / 60, steps * 500e-9 / 60);
 }
+
+int pb_cli_formulation(const char *verb, const char *s, int *out)
+{
+    for (int f = 0; f < PB_FORMULATION_COUNT; f++)
+        if (strcmp(s, pb_formulation_name(f)) == 0) {
+            *out = f;
+            return 0;
+        }
+    pb_cli_error(verb, "--formulation: unknown formulation '%s' (known: cartesian, sundman, ks)", s);
+    return -1;
+}

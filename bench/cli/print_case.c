@@ -71,6 +71,11 @@ static void print_setup(const pb_case_spec *spec, const pb_case_result *res, con
     printf("  %-22s %s (%s units)\n", "problem", p->name, u->km ? "km-s" : "normalized");
     printf("  %-22s %s%s, order %d\n", "method", spec->method->name,
            (spec->method->flags & PB_FROM_GSL) ? " (GSL's)" : "", spec->method->order);
+    if (p->formulation == PB_FORMULATION_SUNDMAN)
+        printf("  %-22s sundman: (r, t) in s, dt = c r ds (c: 2 pi of s per Kepler orbit)\n",
+               "formulation");
+    else if (p->formulation == PB_FORMULATION_KS)
+        printf("  %-22s ks: Kustaanheimo-Stiefel (u, t, h) in s, dt = r ds\n", "formulation");
     if (spec->method->flags & PB_KIND_FIXED) {
         printf("  %-22s h = %.6g %s", "step", res->h, u->T);
         if (p->period > 0)

@@ -8,7 +8,7 @@
 
 enum { OPT_PROBLEM = 256, OPT_FILE, OPT_CASE, OPT_METHOD, OPT_SPO, OPT_STEP, OPT_TOL,
        OPT_ORBITS, OPT_HORIZON, OPT_OUT, OPT_COMP, OPT_REPEATS, OPT_COST, OPT_SAMPLES,
-       OPT_MAXSTEPS, OPT_QUIET, OPT_HELP, OPT_EPH_OUT, OPT_TRUTH_OUT, OPT_SERIES_STATES };
+       OPT_MAXSTEPS, OPT_QUIET, OPT_HELP, OPT_EPH_OUT, OPT_TRUTH_OUT, OPT_SERIES_STATES, OPT_FORM };
 
 static const struct option run_long_options[] = {
     {"problem", required_argument, 0, OPT_PROBLEM},
@@ -30,6 +30,7 @@ static const struct option run_long_options[] = {
     {"ephemeris-out", required_argument, 0, OPT_EPH_OUT},
     {"truth-out", required_argument, 0, OPT_TRUTH_OUT},
     {"series-states", no_argument, 0, OPT_SERIES_STATES},
+    {"formulation", required_argument, 0, OPT_FORM},
     {"help", no_argument, 0, OPT_HELP},
     {0, 0, 0, 0}
 };
@@ -50,6 +51,9 @@ void pb_run_options_help(FILE *f)
 "  --orbits N              horizon in periods (default: the problem's)\n"
 "  --horizon-s S           horizon in time units (instead of --orbits)\n"
 "  --compensated           compensated summation of the state update\n"
+"  --formulation F         cartesian, sundman or ks: the equations a first-order\n"
+"                          method integrates (default: the problem's, cartesian);\n"
+"                          metrics stay in Cartesian time and state\n"
 "  --repeats N             timing repeats, at least N and 0.2 s of CPU time, median\n"
 "                          reported (default %d; 0: no timing)\n"
 "  --eval-cost-us X        your cost of one force evaluation, for projected cost\n"
@@ -125,6 +129,7 @@ int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options
     pb_case_spec d;
     pb_case_spec_default(&d);
     memset(o, 0, sizeof *o);
+    o->formulation = -1;
     o->repeats = d.repeats;
     o->samples = d.linear_samples;
     optind = 1;
@@ -151,6 +156,9 @@ int pb_run_options_parse(const char *verb, int argc, char **argv, pb_run_options
             *(c == OPT_EPH_OUT ? &o->ephemeris_out : &o->truth_out) = a;
             break;
         case OPT_SERIES_STATES: o->series_states = 1; break;
+        case OPT_FORM:
+            if (pb_cli_formulation(verb, a, &o->formulation)) return PB_EXIT_USAGE;
+            break;
         case OPT_SPO: case OPT_STEP: case OPT_TOL: case OPT_ORBITS: case OPT_HORIZON:
         case OPT_REPEATS: case OPT_COST: case OPT_SAMPLES: case OPT_MAXSTEPS:
             if ((rc = run_options_number(verb, c, a, o)) >= 0)
@@ -239,6 +247,8 @@ int pb_run_options_spec(const char *verb, const pb_run_options *o, pb_case_spec 
     if (run_options_problem_method(verb, o, spec) || run_options_check_setting(verb, o, spec))
         return -1;
     const pb_problem *p = &spec->problem;
+    if (o->formulation >= 0)
+        spec->problem.formulation = (pb_formulation)o->formulation;
     spec->steps_per_orbit = (int)o->steps_per_orbit;
     spec->step_s = o->have_step ? o->step : 0;
     spec->tolerance = o->tolerance;

@@ -15,6 +15,7 @@ typedef struct pb_run_options {
     int have_steps, have_step, have_tol, have_orbits, have_horizon;
     const char *ephemeris_out, *truth_out; /* run: OEM files of the states */
     int series_states;                     /* run: states in the series CSV */
+    int formulation;                       /* -1: the problem's own */
 } pb_run_options;
 
 /* Parse argv. Returns -1 to go on, or an exit status to return at once

@@ -9,6 +9,7 @@
 #include <string.h>
 #include <unistd.h>
 #include "bench/cli/cli.h"
+#include "integrators/formulation.h"
 #include "bench/measure/harness.h"
 #include "bench/store/run_dir.h"
 #include "bench/study/select.h"
@@ -22,7 +23,8 @@ static void select_help(FILE *f)
 "usage: propbench select (--problem NAME | --problem-file FILE [--case NAME])\n"
 "                        (--orbits N | --horizon-s S)\n"
 "                        [--max-pos-err X | --max-pos-err-m M] [--max-energy-err E]\n"
-"                        [--methods M,..] [--eval-cost-us C] [--out FILE] [--quiet]\n\n"
+"                        [--methods M,..] [--formulation F] [--eval-cost-us C]\n"
+"                        [--out FILE] [--quiet]\n\n"
 "Find, for each method, the largest step (fixed-step methods, as steps per\n"
 "orbit) or loosest tolerance (adaptive ones) whose run meets the requirement\n"
 "over the horizon: a coarse sweep, bisection in log space, then confirmation\n"
@@ -31,13 +33,15 @@ static void select_help(FILE *f)
 "  --max-pos-err X     maximum position error, problem length units\n"
 "  --max-pos-err-m M   the same in metres (km-s problems)\n"
 "  --max-energy-err E  maximum relative energy error\n"
+"  --formulation F     cartesian, sundman or ks: the equations the methods\n"
+"                      integrate (methods that cannot take it are not searched)\n"
 "  --eval-cost-us C    cost of one evaluation of YOUR force model (default 1)\n"
 "  --out FILE          selection JSON (default results/runs/select-<problem>.json)\n"
 "Exit status 1 when no method meets the requirement.\n");
 }
 
 enum { SE_PROBLEM = 400, SE_FILE, SE_CASE, SE_ORBITS, SE_HORIZON, SE_POS, SE_POSM, SE_EN,
-       SE_METHODS, SE_COST, SE_OUT, SE_QUIET, SE_HELP };
+       SE_METHODS, SE_COST, SE_OUT, SE_QUIET, SE_HELP, SE_FORM };
 
 static int select_cmp(const void *a, const void *b)
 {
@@ -55,6 +59,7 @@ typedef struct select_options {
     char *methods;
     double orbits, horizon, pos, pos_m, en, cost;
     int quiet;
+    int form;                 /* -1: the problem's own */
 } select_options;
 
 /* Parse argv into o. Returns -1 to go on, or an exit status to return at
@@ -68,9 +73,11 @@ static int select_parse(int argc, char **argv, select_options *o)
         {"max-pos-err-m", required_argument, 0, SE_POSM}, {"max-energy-err", required_argument, 0, SE_EN},
         {"methods", required_argument, 0, SE_METHODS}, {"eval-cost-us", required_argument, 0, SE_COST},
         {"out", required_argument, 0, SE_OUT}, {"quiet", no_argument, 0, SE_QUIET},
+        {"formulation", required_argument, 0, SE_FORM},
         {"help", no_argument, 0, SE_HELP}, {0, 0, 0, 0}};
     memset(o, 0, sizeof *o);
     o->cost = 1;
+    o->form = -1;
     optind = 1;
     opterr = 0;
     int c;
@@ -84,6 +91,9 @@ static int select_parse(int argc, char **argv, select_options *o)
         case SE_METHODS: o->methods = optarg; break;
         case SE_OUT: o->out = optarg; break;
         case SE_QUIET: o->quiet = 1; break;
+        case SE_FORM:
+            if (pb_cli_formulation("select", optarg, &o->form)) return PB_EXIT_USAGE;
+            continue;
         case SE_ORBITS: dst = &o->orbits; name = "--orbits"; break;
         case SE_HORIZON: dst = &o->horizon; name = "--horizon-s"; break;
         case SE_POS: dst = &o->pos; name = "--max-pos-err"; break;
@@ -130,6 +140,8 @@ static int select_setup(const select_options *o, pb_case_spec *base, pb_requirem
     if (o->problem ? pb_cli_problem("select", o->problem, &base->problem)
                    : pb_problem_source_file("select", o->file, o->case_name, &base->problem))
         return PB_EXIT_USAGE;
+    if (o->form >= 0)
+        base->problem.formulation = (pb_formulation)o->form;
     const pb_problem *p = &base->problem;
     if (!o->orbits == !o->horizon)
         return pb_cli_error("select", "give exactly one of --orbits N or --horizon-s S");
@@ -194,6 +206,18 @@ static int select_methods(const select_options *o, const pb_problem *p, const pb
     }
     int m = 0;
     for (int i = 0; i < n; i++) {
+        const char *nf = pb_formulation_refusal(list[i], p->formulation);
+        if (nf && o->methods) {
+            pb_cli_error("select", "method '%s' cannot take formulation '%s': %s", list[i]->name,
+                         pb_formulation_name(p->formulation), nf);
+            return -1;
+        }
+        if (nf) {
+            if (!o->quiet)
+                printf("not searched: %s (cannot take formulation '%s')\n", list[i]->name,
+                       pb_formulation_name(p->formulation));
+            continue;
+        }
         if (pb_method_fits(list[i], p)) {
             list[m++] = list[i];
             continue;
@@ -256,8 +280,9 @@ static void select_commands(const select_options *o, const pb_problem *p, pb_sel
         else
             snprintf(set, sizeof set, "--tolerance %.3g", s->tolerance);
         snprintf(hz, sizeof hz, "%s %.17g", select_horizon_option(o), select_horizon_value(o));
-        snprintf(s->command, sizeof s->command, "propbench run %s --method %s %s %s",
-                 src, s->method->name, set, hz);
+        snprintf(s->command, sizeof s->command, "propbench run %s --method %s %s %s%s%s",
+                 src, s->method->name, set, hz, o->form >= 0 ? " --formulation " : "",
+                 o->form >= 0 ? pb_formulation_name(o->form) : "");
     }
 }
 

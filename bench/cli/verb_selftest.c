@@ -319,8 +319,12 @@ static void st_check_contract(const pb_method_type *m)
     st_row("advance reaches t_out (4 calls)", val, lim,
            r.status == PB_OK && r.t_miss <= 4 * 2.220446049250313e-16 * t_end);
     snprintf(val, sizeof val, "%ld calls, %ld steps", r.obs.calls, r.st.steps);
+    /* a method stepping in a fictitious time s (PB_KIND_KEPLER: gauss-jackson8-s,
+     * leapfrog-tt) ends its last step past t_out and reports t_out from its
+     * dense output: the observer last saw a time at or past it */
+    int past_ok = (m->flags & PB_KIND_KEPLER) && r.obs.t_prev >= r.t;
     st_row("observer after every step", val, "calls = steps",
-           r.obs.calls == r.st.steps && r.obs.calls > 0 && r.obs.t_prev == r.t);
+           r.obs.calls == r.st.steps && r.obs.calls > 0 && (r.obs.t_prev == r.t || past_ok));
     if (isnan(r.obs.dense_dev))
         snprintf(val, sizeof val, "refused or NaN");
     else

@@ -14,6 +14,7 @@
 #include "bench/study/sweep.h"
 #include "bench/cli/problem_source.h"
 #include "bench/cli/summary_table.h"
+#include "integrators/formulation.h"
 
 static void sweep_help(FILE *f)
 {
@@ -22,7 +23,8 @@ static void sweep_help(FILE *f)
 "                        --methods M,..\n"
 "                        [--steps-per-orbit N,..] [--tolerances T,..] [--orbits N])\n"
 "                       [--out DIR] [-j N] [--shard K/N] [--repeats N]\n"
-"                       [--eval-cost-us X] [--compensated] [--report] [--quiet]\n\n"
+"                       [--eval-cost-us X] [--compensated] [--formulation F]\n"
+"                       [--report] [--quiet]\n\n"
 "Run many cases into one run directory: DIR/summary.json and DIR/series/.\n"
 "A grid is problems x methods x (steps per orbit for fixed-step methods,\n"
 "tolerances for adaptive ones); it gives work-precision (error against\n"
@@ -31,11 +33,15 @@ static void sweep_help(FILE *f)
 "  --shard K/N   run only the K-th of N deterministic slices; join with merge\n"
 "  --report      write plots and report.html/report.md afterwards\n"
 "  --compensated compensated summation for every method that has it\n"
+"  --formulation F  cartesian, sundman or ks: the equations the methods\n"
+"                integrate (a grid: every method must take it; a suite: the\n"
+"                first-order methods take it, the others stay Cartesian)\n"
 "suites: propbench list suites\n");
 }
 
 enum { SW_SUITE = 300, SW_PROBLEMS, SW_METHODS, SW_STEPS, SW_TOLS, SW_ORBITS, SW_OUT,
-       SW_SHARD, SW_REPEATS, SW_COST, SW_REPORT, SW_QUIET, SW_HELP, SW_COMP, SW_FILE, SW_CASE };
+       SW_SHARD, SW_REPEATS, SW_COST, SW_REPORT, SW_QUIET, SW_HELP, SW_COMP, SW_FILE, SW_CASE,
+       SW_FORM };
 
 /* What the command line asks for; a suite, or the lists of a grid. */
 typedef struct sweep_options {
@@ -44,6 +50,7 @@ typedef struct sweep_options {
     double orbits, cost;      /* 0: not given */
     long jobs, repeats;       /* repeats -1: not given */
     int shard_k, shard_n, quiet, report, comp;
+    int form;                 /* -1: each problem's own */
 } sweep_options;
 
 /* Parse argv into o. Returns -1 to go on, or an exit status to return at
@@ -80,13 +87,14 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
         {"out", required_argument, 0, SW_OUT}, {"shard", required_argument, 0, SW_SHARD},
         {"jobs", required_argument, 0, 'j'}, {"repeats", required_argument, 0, SW_REPEATS},
         {"eval-cost-us", required_argument, 0, SW_COST}, {"report", no_argument, 0, SW_REPORT},
-        {"compensated", no_argument, 0, SW_COMP},
+        {"compensated", no_argument, 0, SW_COMP}, {"formulation", required_argument, 0, SW_FORM},
         {"problem-file", required_argument, 0, SW_FILE}, {"case", required_argument, 0, SW_CASE},
         {"quiet", no_argument, 0, SW_QUIET}, {"help", no_argument, 0, SW_HELP}, {0, 0, 0, 0}};
     memset(o, 0, sizeof *o);
     o->jobs = 1;
     o->repeats = -1;
     o->shard_k = o->shard_n = 1;
+    o->form = -1;
     optind = 1;
     opterr = 0;
     int c;
@@ -106,6 +114,9 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
         case SW_QUIET: o->quiet = 1; break;
         case SW_REPORT: o->report = 1; break;
         case SW_COMP: o->comp = 1; break;
+        case SW_FORM:
+            if (pb_cli_formulation("sweep", optarg, &o->form)) return PB_EXIT_USAGE;
+            break;
         case SW_ORBITS:
             if (pb_cli_double("sweep", "--orbits", optarg, &o->orbits)) return PB_EXIT_USAGE;
             if (!(o->orbits > 0) || o->orbits > PB_CLI_ORBITS_MAX)
@@ -198,6 +209,8 @@ static int sweep_grid_case(const sweep_options *o, const pb_problem *p, const pb
         s.horizon_s = p->default_horizon_s;
     s.linear_samples = PB_SWEEP_LINEAR_SAMPLES;
     s.compensated = o->comp && (m->flags & PB_KIND_COMPENSABLE);
+    if (o->form >= 0)
+        s.problem.formulation = (pb_formulation)o->form;
     char err[512];
     if (pb_case_validate(&s, err, sizeof err)) {
         char id[PB_CASE_ID_MAX];
@@ -282,6 +295,8 @@ static void sweep_apply_options(const sweep_options *o, pb_case_list *list)
             s->eval_cost_us = o->cost;
         if (o->suite && o->orbits > 0 && s->problem.period > 0)
             s->orbits = o->orbits;
+        if (o->form >= 0 && !pb_formulation_refusal(s->method, (pb_formulation)o->form))
+            s->problem.formulation = (pb_formulation)o->form;
     }
 }
 

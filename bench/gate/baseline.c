@@ -13,7 +13,7 @@ static const char *const baseline_info[] = {"growth_exponent_energy", "growth_ex
 static const char *const baseline_timing[] = {"ns_per_step", "ns_per_eval", NULL};
 const char *const pb_baseline_settings[] = {"problem", "method", "steps_per_orbit", "step",
                                            "tolerance", "orbits", "horizon_s", "compensated",
-                                           NULL};
+                                           "formulation", NULL};
 
 /* Why a baseline case is bad (settings, metrics, counts, fingerprint, a
  * finished case's compared keys, its scale); 0, or -1 with the message. */

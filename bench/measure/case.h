@@ -28,6 +28,14 @@ typedef struct pb_case_spec {
     int nsample_times;
 } pb_case_spec;
 
+/* The record that drives the case's workspace: the method itself, or, for
+ * a regularised formulation (spec->problem.formulation), the adapter around
+ * it (integrators/formulation.h); and that workspace (owner: the caller,
+ * released with the record's free; NULL when memory runs out or the method
+ * refuses the regularised state's dimension). */
+const pb_method_type *pb_case_method(const pb_case_spec *spec);
+void *pb_case_alloc(const pb_case_spec *spec);
+
 /* One sample: errors against truth at time t; window maxima are the largest
  * invariant errors over every step since the previous sample. */
 typedef struct pb_sample {

@@ -5,6 +5,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "bench/measure/harness.h"
+#include "integrators/formulation.h"
 #include "problems/force_terms.h"
 
 double pb_case_horizon(const pb_case_spec *spec)
@@ -37,6 +38,54 @@ double pb_case_fixed_steps(const pb_case_spec *spec)
     return spec->max_steps > 0 && spec->max_steps < n ? (double)spec->max_steps : n;
 }
 
+const pb_method_type *pb_case_method(const pb_case_spec *spec)
+{
+    if (spec->problem.formulation == PB_FORMULATION_CARTESIAN)
+        return spec->method;
+    return pb_formulation_record(spec->method);
+}
+
+void *pb_case_alloc(const pb_case_spec *spec)
+{
+    const pb_problem *p = &spec->problem;
+    if (p->formulation == PB_FORMULATION_CARTESIAN)
+        return spec->method->alloc(p->dim);
+    return pb_formulation_alloc(spec->method, p->formulation, p->dim);
+}
+
+/* A regularised formulation needs a central GM, a bound start (its Kepler
+ * period sets the s-step) and a method that integrates y' = f(s, y). */
+static int case_validate_formulation(const pb_case_spec *spec, char *err, size_t errlen)
+{
+    const pb_problem *p = &spec->problem;
+    const char *name = pb_formulation_name(p->formulation);
+    if (p->formulation == PB_FORMULATION_CARTESIAN)
+        return 0;
+    if (p->formulation < 0 || p->formulation >= PB_FORMULATION_COUNT) {
+        snprintf(err, errlen, "unknown formulation %d", (int)p->formulation);
+        return -1;
+    }
+    if (!(pb_problem_kepler_mu(p) > 0)) {
+        snprintf(err, errlen, "formulation '%s' needs a central body's GM, and problem '%s' "
+                 "has none (the CR3BP is integrated in its own rotating frame)", name, p->name);
+        return -1;
+    }
+    const char *why = pb_formulation_refusal(spec->method, p->formulation);
+    if (why) {
+        snprintf(err, errlen, "method '%s' cannot take formulation '%s': %s", spec->method->name,
+                 name, why);
+        return -1;
+    }
+    pb_form_eqs eq = {.form = p->formulation, .dim = p->dim, .mu = pb_problem_kepler_mu(p)};
+    double T, S;
+    if (pb_form_orbit(&eq, p->r0, p->v0, &T, &S)) {
+        snprintf(err, errlen, "formulation '%s' needs a bound initial orbit (its Kepler period "
+                 "sets the step in s), and problem '%s' starts on an unbound one", name, p->name);
+        return -1;
+    }
+    return 0;
+}
+
 void pb_case_spec_default(pb_case_spec *spec)
 {
     memset(spec, 0, sizeof *spec);
@@ -57,6 +106,8 @@ int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
     if (pb_method_check(m, err, errlen))
         return -1;
     if (pb_method_fit_error(m, p, err, errlen))
+        return -1;
+    if (case_validate_formulation(spec, err, errlen))
         return -1;
     if (!p->exact_q && !pb_forces_have_quad(p)) {
         snprintf(err, errlen, "problem '%s' has a force with no extended-precision form, so "
@@ -124,6 +175,10 @@ void pb_case_id(const pb_case_spec *spec, char *out, size_t outlen)
     if (spec->compensated) {
         size_t l = strlen(out);
         snprintf(out + l, outlen - l, "__comp");
+    }
+    if (spec->problem.formulation != PB_FORMULATION_CARTESIAN) {
+        size_t l = strlen(out);
+        snprintf(out + l, outlen - l, "__%s", pb_formulation_name(spec->problem.formulation));
     }
     if (spec->orbits > 0 && spec->problem.period > 0) {
         case_tag(spec->orbits, tag, sizeof tag);

@@ -365,7 +365,7 @@ static int harness_metric_pass(const pb_case_spec *spec, const pb_method_config 
                                double horizon, double t_int_end, pb_method_stats *st,
                                int *first_start, pb_case_result *res)
 {
-    w->m = spec->method;
+    w->m = pb_case_method(spec);
     w->ws = ws;
     w->plan = plan;
     w->truth = truth;
@@ -387,7 +387,7 @@ static void harness_ending(const pb_case_spec *spec, void *ws, const harness_wat
                            pb_case_result *res)
 {
     const pb_problem *p = &spec->problem;
-    const pb_method_type *m = spec->method;
+    const pb_method_type *m = pb_case_method(spec);
     double r[PB_DIM_MAX] = {0}, v[PB_DIM_MAX] = {0}, t;
     res->status = s;
     res->status_name = pb_case_status_name(s);
@@ -463,7 +463,7 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     memset(res, 0, sizeof *res);
     res->status_name = "crashed";
     const pb_problem *p = &spec->problem;
-    const pb_method_type *m = spec->method;
+    const pb_method_type *m = pb_case_method(spec);
     char err[256];
     if (pb_case_validate(spec, err, sizeof err))
         return PB_EINVAL;
@@ -485,7 +485,7 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     if (!res->samples)
         goto out;
     double t_int_end = harness_integration_end(spec, horizon, res->h);
-    if (!(ws = m->alloc(p->dim)))
+    if (!(ws = pb_case_alloc(spec)))
         goto out;
     harness_bound_plan(spec, &cfg, ws, t_int_end, &plan);
     /* the truth at the planned times, which do not depend on the step, so

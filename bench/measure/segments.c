@@ -38,7 +38,7 @@ int pb_case_integrate(const pb_case_spec *spec, const pb_method_config *cfg, voi
     if (!first_start)
         first_start = &dummy;
     const pb_problem *p = &spec->problem;
-    const pb_method_type *m = spec->method;
+    const pb_method_type *m = pb_case_method(spec);
     const pb_forces *fo = &p->forces;
     int fixed = (m->flags & PB_KIND_FIXED) != 0;
     memset(stats, 0, sizeof *stats);

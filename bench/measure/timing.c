@@ -104,7 +104,7 @@ void pb_case_time_with(const pb_case_spec *spec, const pb_method_config *cfg, do
                        long steps_done, const pb_timing_policy *pol, pb_case_result *res)
 {
     const pb_problem *p = &spec->problem;
-    const pb_method_type *m = spec->method;
+    const pb_method_type *m = pb_case_method(spec);
     res->ns_per_step_spread = (double)NAN;
     res->timing_repeats = 0;
     res->timing_cpu_s = 0;
@@ -114,7 +114,7 @@ void pb_case_time_with(const pb_case_spec *spec, const pb_method_config *cfg, do
         return;
     double t_stop = timing_stop(spec, cfg, t_end, steps_done);
     double *dt = malloc((size_t)pol->max_repeats * sizeof(double));
-    void *ws = m->alloc(p->dim);
+    void *ws = pb_case_alloc(spec);
     if (!dt || !ws)
         goto done;
     int ok = 0;

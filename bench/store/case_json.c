@@ -79,6 +79,11 @@ static void case_settings(json_t *o, const pb_case_spec *spec)
         json_object_set_new(o, "orbits", json_real(spec->orbits));
     json_object_set_new(o, "horizon_s", json_real(pb_case_horizon(spec)));
     json_object_set_new(o, "compensated", json_boolean(spec->compensated));
+    /* absent for Cartesian cases, so that baselines made before the key
+     * existed compare unchanged */
+    if (spec->problem.formulation != PB_FORMULATION_CARTESIAN)
+        json_object_set_new(o, "formulation",
+                            json_string(pb_formulation_name(spec->problem.formulation)));
     json_object_set_new(o, "scales", case_scales(&spec->problem));
 }
 

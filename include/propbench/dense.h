@@ -12,7 +12,7 @@
 extern "C" {
 #endif
 
-#define PB_DENSE_DIM_MAX 3
+#define PB_DENSE_DIM_MAX 6   /* PB_STATE_DIM_MAX (method.h) */
 
 /* The last step's two ends in two slots: slot `end` holds the newer one, so
  * a new end overwrites the older slot and nothing is shifted (this runs

@@ -18,7 +18,13 @@ extern "C" {
  * Raised whenever a field changes meaning or place, so that a record built
  * against another version is refused, not misread; the shared library's
  * soname (libpropbench.so.N) carries it. */
-#define PB_METHOD_ABI 3u
+#define PB_METHOD_ABI 4u
+
+/* The largest dim a method's alloc(dim) is asked for: 3 for a physical
+ * state, up to 6 for a regularised one (Kustaanheimo-Stiefel: u1..u4, t and
+ * a slot whose velocity carries the Kepler energy). A method that cannot
+ * take a dim returns NULL from alloc; the case is then refused. */
+#define PB_STATE_DIM_MAX 6
 
 /* Kind flags (capabilities are fields, never checks of a name). */
 enum {
