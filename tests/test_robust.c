@@ -352,3 +352,28 @@ Test(robust, output_link_is_written_through)
     cr_assert(t && strstr(t, "\"kind\""), "the target was not written: %s", t ? t : "(none)");
     free(t);
 }
+
+/* --tolerance 2.5e-308 recorded a non-finite state with exit 0 (the error
+ * ratio err/tol overflowed); --horizon-s had no upper bound while --orbits
+ * stops at 1e8. Both are refused with the bound and its reason, exit 2. */
+Test(robust, tolerance_and_horizon_bounds)
+{
+    char dir[256], out[300];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/run", dir);
+    const char *const tols[] = {"2.5e-308", "1e-21"};
+    for (int i = 0; i < 2; i++) {
+        int rc = cli((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rkf45",
+                                      "--tolerance", tols[i], "--orbits", "1", "--out", out, NULL});
+        cr_assert_eq(rc, 2, "--tolerance %s: exit %d: %s", tols[i], rc, err_buf);
+        cr_assert(strstr(err_buf, "1e-20") && strstr(err_buf, "round-off"), "%s", err_buf);
+        cr_assert(!pbt_exists(out));
+    }
+    /* kepler-e0.6's period is 2 pi (normalized units): 1e9 TU is 1.6e8 periods */
+    int rc = cli((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rkf45",
+                                  "--tolerance", "1e-9", "--horizon-s", "1e9", "--out", out, NULL});
+    cr_assert_eq(rc, 2, "exit %d: %s", rc, err_buf);
+    cr_assert(strstr(err_buf, "at most 1e+08") && strstr(err_buf, "--orbits"), "%s", err_buf);
+    cr_assert(!pbt_exists(out));
+    rmdir(dir);
+}

@@ -7,6 +7,16 @@
 
 #define PB_CASE_ID_MAX 160
 
+/* The longest horizon: 1e8 periods (the problem's, or without one the time
+ * to cross its starting distance at its starting speed), as --orbits. */
+#define PB_CASE_PERIODS_MAX 1e8
+/* The tightest tolerance: 1e-20, four decades below double's unit
+ * round-off (2^-53 = 1.1e-16), where a tighter one only asks the step
+ * control for round-off: on kepler-e0.6, rkf45 at 1e-30 stops at the
+ * minimum step on its first step, and at 2.5e-308 (atol near DBL_MIN) the
+ * error ratio err/tol overflows and the state goes non-finite. */
+#define PB_CASE_TOLERANCE_MIN 1e-20
+
 typedef struct pb_case_spec {
     pb_problem problem;             /* copied */
     const pb_method_type *method;   /* borrowed from the method table */

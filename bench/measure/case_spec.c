@@ -94,6 +94,24 @@ void pb_case_spec_default(pb_case_spec *spec)
     spec->cache_dir = PB_CACHE_DIR_DEFAULT;
 }
 
+/* A horizon of more than PB_CASE_PERIODS_MAX periods is refused, as
+ * --orbits is: --horizon-s 1e300 would build its reference for ever. */
+static int case_validate_horizon(const pb_case_spec *spec, double hz, char *err, size_t errlen)
+{
+    const pb_problem *p = &spec->problem;
+    double r = 0, v = 0;
+    for (int i = 0; i < p->dim && i < PB_DIM_MAX; i++)
+        r += p->r0[i] * p->r0[i], v += p->v0[i] * p->v0[i];
+    double per = p->period > 0 ? p->period : v > 0 ? sqrt(r / v) : 0;
+    if (per > 0 && hz / per > PB_CASE_PERIODS_MAX) {
+        snprintf(err, errlen, "the horizon %.6g is %.3g times the problem's %s %.6g; at most %g "
+                 "(as --orbits)", hz, hz / per, p->period > 0 ? "period" : "time scale |r0|/|v0|",
+                 per, PB_CASE_PERIODS_MAX);
+        return -1;
+    }
+    return 0;
+}
+
 int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
 {
     const pb_method_type *m = spec->method;
@@ -120,6 +138,8 @@ int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
                  p->period > 0 ? "takes --orbits" : "has no period: give --horizon-s");
         return -1;
     }
+    if (case_validate_horizon(spec, hz, err, errlen))
+        return -1;
     if (m->flags & PB_KIND_FIXED) {
         double h = pb_case_step(spec);
         if (!(h > 0) || !isfinite(h)) {
@@ -135,8 +155,10 @@ int pb_case_validate(const pb_case_spec *spec, char *err, size_t errlen)
             snprintf(err, errlen, "%.3g steps are too many for one case", hz / h);
             return -1;
         }
-    } else if (!(spec->tolerance > 0) || !(spec->tolerance < 1)) {
-        snprintf(err, errlen, "adaptive method '%s' needs --tolerance in (0, 1)", m->name);
+    } else if (!(spec->tolerance >= PB_CASE_TOLERANCE_MIN) || !(spec->tolerance < 1)) {
+        snprintf(err, errlen, "adaptive method '%s' needs --tolerance in [%g, 1) (%g given; "
+                 "tighter than %g asks double precision for less than its round-off)", m->name,
+                 PB_CASE_TOLERANCE_MIN, spec->tolerance, PB_CASE_TOLERANCE_MIN);
         return -1;
     }
     if (spec->compensated && !(m->flags & PB_KIND_COMPENSABLE)) {
