@@ -354,8 +354,9 @@ static int cli_has_entry(const char *dir, const char *prefix)
 
 /* An interrupted sweep stops its workers, exits 128+signal as a shell
  * reports it, and leaves the run directory as it was: the earlier summary
- * untouched, no work files. The signal is sent the moment the work
- * directory appears, the earliest instant a user could see the sweep. */
+ * untouched, no work files. The signal is sent the moment the staging
+ * folder beside it appears (.NAME.new.<pid>, run_swap.h), the earliest
+ * instant a user could see the sweep. */
 static void cli_interrupt_sweep(int sig)
 {
     char dir[256], path[400];
@@ -379,16 +380,20 @@ static void cli_interrupt_sweep(int sig)
               "--out", dir, (char *)NULL);
         _exit(127);
     }
-    for (int i = 0; i < 5000 && !cli_has_entry(dir, ".work."); i++)
+    char parent[256], stage[300];
+    snprintf(parent, sizeof parent, "%s", dir);
+    *strrchr(parent, '/') = 0;
+    snprintf(stage, sizeof stage, ".%s.new.", strrchr(dir, '/') + 1);
+    for (int i = 0; i < 5000 && !cli_has_entry(parent, stage); i++)
         nanosleep(&(struct timespec){0, 1000000}, NULL);
-    int started = cli_has_entry(dir, ".work.");
+    int started = cli_has_entry(parent, stage);
     kill(pid, sig);
     int st;
     cr_assert_eq(waitpid(pid, &st, 0), pid);
     cr_assert(started, "the sweep never started");
     cr_assert(WIFEXITED(st) && WEXITSTATUS(st) == 128 + sig, "signal %d: status %s %d", sig,
               WIFEXITED(st) ? "exit" : "killed by", WIFEXITED(st) ? WEXITSTATUS(st) : WTERMSIG(st));
-    cr_assert(!cli_has_entry(dir, ".work."), "work files left behind");
+    cr_assert(!cli_has_entry(dir, ".work.") && !cli_has_entry(parent, stage), "work files left behind");
     char *after = pbt_slurp_file(path, NULL);
     cr_assert(after && !strcmp(before, after), "the earlier summary changed");
     free(before);

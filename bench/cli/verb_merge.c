@@ -12,6 +12,7 @@
 #include "bench/store/summary_read.h"
 #include "bench/store/case_json.h"
 #include "bench/store/run_dir.h"
+#include "bench/store/run_swap.h"
 #include "bench/study/sweep.h"
 
 static void merge_help(FILE *f)
@@ -184,9 +185,9 @@ static int merge_check_series(const merge_args *a, const merge_set *set)
     return 0;
 }
 
-/* Copy each case's series into a->out and gather the cases, untagged;
- * the cases, or NULL (message printed, copies taken back). */
-static json_t *merge_copy_series(const merge_args *a, const merge_set *set)
+/* Copy each case's series into the staging folder `to` and gather the
+ * cases, untagged; the cases, or NULL (message printed). */
+static json_t *merge_copy_series(const merge_args *a, const merge_set *set, const char *to)
 {
     json_t *cases = json_array();
     for (size_t k = 0; k < set->n; k++) {
@@ -197,10 +198,11 @@ static json_t *merge_copy_series(const merge_args *a, const merge_set *set)
         if (series) {
             char src[8400], dst[8400];
             snprintf(src, sizeof src, "%s/%s", a->shards[from], series);
-            snprintf(dst, sizeof dst, "%s/%s", a->out, series);
+            snprintf(dst, sizeof dst, "%s/%s", to, series);
+            errno = 0;
             if (pb_copy_file(src, dst)) {
-                pb_cli_error("merge", "cannot copy %s to %s", src, dst);
-                pb_run_dir_unwrite(a->out, cases);
+                pb_cli_error("merge", "cannot copy %s into %s: %s", src, a->out,
+                             errno ? strerror(errno) : "out of memory");
                 json_decref(cases);
                 return NULL;
             }
@@ -210,18 +212,23 @@ static json_t *merge_copy_series(const merge_args *a, const merge_set *set)
     return cases;
 }
 
-/* Fill a->out: its series, then its summary; 0, or -1 with the message
- * printed and nothing of this merge left in a->out. */
+/* Fill a->out: its series, then its summary, staged beside it and swapped
+ * in (a->out may be one of the shards: it is read whole before the swap);
+ * 0, or -1 with the message printed and a->out as it was. */
 static int merge_write(const merge_args *a, const merge_set *set)
 {
     char why[4400];
-    if (pb_run_dir_prepare(a->out, why, sizeof why)) {
+    pb_run_out out;
+    if (pb_run_out_open(&out, a->out, why, sizeof why) || pb_run_out_stage(&out, why, sizeof why)) {
+        pb_run_out_close(&out);
         pb_cli_error("merge", "%s", why);
         return -1;
     }
-    json_t *cases = merge_copy_series(a, set);
-    if (!cases)
+    json_t *cases = merge_copy_series(a, set, out.stage);
+    if (!cases) {
+        pb_run_out_close(&out);
         return -1;
+    }
     if ((json_int_t)set->n < set->total)
         fprintf(stderr, "propbench merge: warning: %lld of %lld cases are missing\n",
                 (long long)(set->total - (json_int_t)set->n), (long long)set->total);
@@ -229,16 +236,21 @@ static int merge_write(const merge_args *a, const merge_set *set)
     json_object_set_new(doc, "sweep", json_string(set->label ? set->label : "grid"));
     json_object_set_new(doc, "sweep_id", json_string(set->ident));
     json_object_set_new(doc, "total_cases", json_integer(set->total));
-    char path[4200];
-    snprintf(path, sizeof path, "%s/summary.json", a->out);
+    char path[4400];
+    snprintf(path, sizeof path, "%s/summary.json", out.stage);
+    errno = 0;
     int w = pb_json_write_atomic(path, doc);
-    if (w)
-        pb_run_dir_unwrite(a->out, json_object_get(doc, "cases"));
     json_decref(doc);
-    if (w) {
-        pb_cli_error("merge", "cannot write %s", path);
+    if (w)
+        snprintf(why, sizeof why, "cannot write %s/summary.json: %s", a->out,
+                 errno ? strerror(errno) : "out of memory");
+    if (w || pb_run_out_commit(&out, why, sizeof why)) {
+        pb_run_out_close(&out);
+        pb_cli_error("merge", "%s; %s was left as it was", why, a->out);
         return -1;
     }
+    pb_run_out_close(&out);
+    snprintf(path, sizeof path, "%s/summary.json", a->out);
     printf("merged %zu cases from %d shards into %s\n", set->n, a->nshards, path);
     return 0;
 }

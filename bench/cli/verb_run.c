@@ -2,6 +2,7 @@
  * checked before anything is written, so bad input leaves no files. */
 #include <errno.h>
 #include <getopt.h>
+#include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -9,6 +10,7 @@
 #include "bench/store/case_json.h"
 #include "bench/measure/harness.h"
 #include "bench/store/run_dir.h"
+#include "bench/store/run_swap.h"
 #include "bench/cli/run_options.h"
 #include "bench/store/oem_write.h"
 #include <unistd.h>
@@ -63,6 +65,77 @@ static int run_write_oems(const pb_run_options *o, const pb_case_spec *spec, con
     return 0;
 }
 
+/* The lock file to remove when a stop comes while the case runs (set only
+ * while the lock is held; signals are blocked whenever it changes). */
+static const char *volatile run_lock_path;
+
+static void run_on_stop(int sig)
+{
+    if (run_lock_path)
+        unlink(run_lock_path);
+    _exit(128 + sig);
+}
+
+/* block = 1: hold SIGINT and SIGTERM back; 0: let them in, to run_on_stop. */
+static void run_stops(int block)
+{
+    sigset_t set;
+    sigemptyset(&set);
+    sigaddset(&set, SIGINT);
+    sigaddset(&set, SIGTERM);
+    if (block) {
+        sigprocmask(SIG_BLOCK, &set, NULL);
+        return;
+    }
+    struct sigaction sa;
+    memset(&sa, 0, sizeof sa);
+    sa.sa_handler = run_on_stop;
+    sigemptyset(&sa.sa_mask);
+    sigaction(SIGINT, &sa, NULL);
+    sigaction(SIGTERM, &sa, NULL);
+    sigprocmask(SIG_UNBLOCK, &set, NULL);
+}
+
+/* The lock given back and the stops let in again (a stop that waited ends
+ * the process now, with nothing left behind). */
+static void run_release(pb_run_out *out)
+{
+    pb_run_out_close(out);
+    run_lock_path = NULL;
+    run_stops(0);
+}
+
+/* The OEM files, then the run staged (series, summary) and swapped in.
+ * 0; 1 with the reason in why (the run folder as it was, no OEM file);
+ * 2 when an OEM file could not be written (message printed). */
+static int run_write(const pb_run_options *o, pb_run_out *out, const pb_case_spec *spec,
+                     const pb_case_result *res, char *why, size_t whylen)
+{
+    if (run_write_oems(o, spec, res))
+        return 2;
+    json_t *cases = json_array();
+    json_array_append_new(cases, pb_case_to_json(spec, res));
+    json_t *doc = pb_summary_new(cases);
+    char path[4400];
+    snprintf(path, sizeof path, "%s/summary.json", out->stage);
+    int bad = pb_run_out_stage(out, why, whylen);
+    if (!bad && (pb_series_write_states(out->stage, spec, res, o->series_states) ||
+                 pb_json_write_atomic(path, doc))) {
+        snprintf(why, whylen, "cannot write the run: %s", strerror(errno));
+        bad = 1;
+    }
+    if (!bad && pb_run_out_commit(out, why, whylen))
+        bad = 1;
+    json_decref(doc);
+    if (bad) {
+        pb_run_out_discard(out);
+        if (o->ephemeris_out) unlink(o->ephemeris_out);
+        if (o->truth_out) unlink(o->truth_out);
+        return 1;
+    }
+    return 0;
+}
+
 static void run_help(FILE *f)
 {
     fprintf(f,
@@ -97,48 +170,37 @@ int pb_cli_run(int argc, char **argv)
     else
         snprintf(dir, sizeof dir, "results/runs/%s", id);
 
-    if (pb_run_dir_prepare(dir, err, sizeof err))
-        return pb_cli_error("run", "%s", err);
+    pb_run_out out;
+    char why[4400];
+    run_stops(1);
+    int lk = pb_run_out_open(&out, dir, why, sizeof why);
+    if (lk) {
+        pb_run_out_close(&out);
+        run_stops(0);
+        return pb_cli_error("run", "%s", why);
+    }
+    run_lock_path = out.lock;
+    run_stops(0); /* a stop while the case runs removes the lock file and exits */
     pb_cli_warn_long("run", pb_case_fixed_steps(&spec));
-    json_t *previous = pb_run_dir_previous(dir); /* before this run writes anything */
     pb_case_result res;
     int s = pb_case_run(&spec, &res);
+    run_stops(1); /* from here to the swap, a stop waits */
     if (s) {
-        json_decref(previous);
-        pb_run_dir_unprepare(dir);
+        run_release(&out);
         return pb_cli_error("run", "case %s could not be run: %s", id, pb_strerror(s));
     }
     if (!o.quiet)
         pb_cli_print_case(&spec, &res);
-    json_t *cases = json_array();
-    json_array_append_new(cases, pb_case_to_json(&spec, &res));
-    json_t *doc = pb_summary_new(cases);
-    char path[4200];
-    snprintf(path, sizeof path, "%s/summary.json", dir);
-    int bad = run_write_oems(&o, &spec, &res) ? 2
-            : pb_series_write_states(dir, &spec, &res, o.series_states) ? 1 : 0;
-    int e = errno;
-    if (!bad && pb_json_write_atomic(path, doc)) {
-        e = errno;
-        pb_run_dir_unwrite(dir, cases); /* no series without its summary */
-        bad = 1;
-    }
-    int pruned = bad ? 0 : pb_run_dir_prune(dir, previous, doc);
-    json_decref(previous);
-    if (pruned && !o.quiet)
-        fprintf(stderr, "propbench run: removed %d files an earlier run left in %s\n", pruned, dir);
-    json_decref(doc);
+    int bad = run_write(&o, &out, &spec, &res, why, sizeof why);
+    run_release(&out);
     if (bad) {
         pb_case_result_free(&res);
-        pb_run_dir_unprepare(dir);
-        if (bad == 1) {
-            fprintf(stderr, "propbench run: error: cannot write the run directory %s: %s\n", dir,
-                    strerror(e));
-            if (o.ephemeris_out) unlink(o.ephemeris_out);
-            if (o.truth_out) unlink(o.truth_out);
-        }
+        if (bad == 1)
+            fprintf(stderr, "propbench run: error: %s; %s was left as it was\n", why, dir);
         return PB_EXIT_USAGE;
     }
+    char path[4200];
+    snprintf(path, sizeof path, "%s/summary.json", dir);
     if (!o.quiet)
         printf("wrote %s and %s/series/%s.csv\n", path, dir, res.id);
     if (res.status)

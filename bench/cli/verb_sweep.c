@@ -361,17 +361,22 @@ static int sweep_execute(const sweep_options *o, const pb_case_list *list, const
         if (o->shard_n <= 1 || i % o->shard_n == o->shard_k - 1)
             fixed_steps += pb_case_fixed_steps(&list->cases[i]);
     pb_cli_warn_long("sweep", fixed_steps);
-    /* the output folder is checked before the banner, so a refusal is one line */
+    /* the output folder is checked and locked before the banner, so a
+     * refusal is one line */
     char why[4400];
-    if (pb_run_dir_prepare(dir, why, sizeof why))
+    pb_run_out out;
+    if (pb_run_out_open(&out, dir, why, sizeof why)) {
+        pb_run_out_close(&out);
         return pb_cli_error("sweep", "%s", why);
+    }
     pb_sweep_options so = {(int)o->jobs, o->shard_k, o->shard_n, pb_cli_progress_wanted(o->quiet),
                            o->suite ? o->suite : "grid", o->quiet};
     if (!o->quiet)
         fprintf(stderr, "propbench sweep: %d cases%s into %s with %ld worker%s\n",
                 o->shard_n > 1 ? (list->n + o->shard_n - o->shard_k) / o->shard_n : list->n,
                 o->shard_n > 1 ? " (this shard)" : "", dir, o->jobs, o->jobs > 1 ? "s" : "");
-    int sr = pb_sweep_run(list, dir, &so);
+    int sr = pb_sweep_run(list, &out, &so);
+    pb_run_out_close(&out);
     if (sr == -2)
         return 128 + pb_sweep_stop_signal();
     if (sr)

@@ -88,11 +88,18 @@ int pb_write_atomic(const char *path, const char *data, size_t len)
     FILE *f = fopen(tmp, "wb");
     if (!f)
         return -1;
-    size_t w = fwrite(data, 1, len, f);
-    int bad = (w != len) | (fflush(f) != 0) | (fsync(fileno(f)) != 0);
-    bad |= fclose(f) != 0;
-    if (bad || rename(tmp, path)) {
+    /* errno keeps the first failure's reason (ENOSPC on a full disk) */
+    int e = 0;
+    errno = 0;
+    if (fwrite(data, 1, len, f) != len || fflush(f) || fsync(fileno(f)))
+        e = errno ? errno : EIO;
+    if (fclose(f) && !e)
+        e = errno;
+    if (!e && rename(tmp, path))
+        e = errno;
+    if (e) {
         unlink(tmp);
+        errno = e;
         return -1;
     }
     return 0;

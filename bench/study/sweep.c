@@ -1,17 +1,21 @@
 /* sweep.c - the worker pool of a sweep (see sweep.h).
  * Invariant: the parent never runs a case itself; it forks one child per
  * case (at most `jobs` at a time) and each child writes its case object and
- * series into a work directory private to this sweep (dir/.work.<pid>). A
- * case counts only if its worker exited 0 and its object names the case that
- * was asked for; anything else is "crashed". The series move into dir and
- * the summary is written only when every worker is done, so an interrupted
- * sweep leaves the run directory as it was. */
+ * series into a work directory private to this sweep (.work.<pid> in the
+ * staging folder of run_swap.h). A case counts only if its worker exited 0
+ * and its object names the case that was asked for; anything else is
+ * "crashed", except a worker that could not write (a full disk), which fails
+ * the sweep. The series move into the staging folder and the summary is
+ * written there when every worker is done, and the whole run is swapped in,
+ * so an interrupted or killed sweep leaves the run directory as it was.
+ * Workers die with the sweep (PR_SET_PDEATHSIG). */
 #include <errno.h>
 #include <signal.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/prctl.h>
 #include <sys/wait.h>
 #include <unistd.h>
 #include <dirent.h>
@@ -20,6 +24,7 @@
 #include "bench/measure/fingerprint.h"
 #include "bench/measure/harness.h"
 #include "bench/store/run_dir.h"
+#include "bench/store/run_swap.h"
 #include "bench/study/progress.h"
 #include "integrators/method.h"
 
@@ -49,11 +54,27 @@ static void sweep_maybe_crash(const char *id)
         abort();
 }
 
+/* A worker that cannot write its results exits SWEEP_EXIT_WRITE + errno
+ * (or plain SWEEP_EXIT_WRITE when errno says nothing), so the sweep can
+ * give the system's reason. */
+enum { SWEEP_EXIT_WRITE = 64, SWEEP_ERRNO_MAX = 190 };
+
+static void sweep_child_write_failed(void)
+{
+    int e = errno;
+    _exit(e > 0 && e <= SWEEP_ERRNO_MAX ? SWEEP_EXIT_WRITE + e : SWEEP_EXIT_WRITE);
+}
+
 /* The worker starts with SIGINT and SIGTERM blocked (see sweep_spawn) and
  * takes the default actions before unblocking them, so a stop the parent
- * sends in the first instant of the worker's life still ends it. */
-static void sweep_child(const pb_case_spec *spec, int index, const char *work, const sigset_t *unblocked)
+ * sends in the first instant of the worker's life still ends it. It is
+ * killed when the sweep dies, however the sweep dies (kill -9 included),
+ * and ends at once if the sweep was gone before that was set. */
+static void sweep_child(const pb_case_spec *spec, int index, const char *work, const sigset_t *unblocked,
+                        pid_t parent)
 {
+    if (prctl(PR_SET_PDEATHSIG, SIGKILL) || getppid() != parent)
+        _exit(1);
     signal(SIGINT, SIG_DFL);
     signal(SIGTERM, SIG_DFL);
     signal(SIGCHLD, SIG_DFL);
@@ -69,14 +90,15 @@ static void sweep_child(const pb_case_spec *spec, int index, const char *work, c
     } else {
         o = pb_case_to_json(spec, &res);
         if (pb_series_write(work, spec, &res))
-            _exit(3);
+            sweep_child_write_failed();
         pb_case_result_free(&res);
     }
     json_object_set_new(o, "index", json_integer(index));
     snprintf(path, sizeof path, "%s/%06d.json", work, index);
-    int rc = pb_json_write_atomic(path, o);
+    if (pb_json_write_atomic(path, o))
+        sweep_child_write_failed();
     json_decref(o);
-    _exit(rc ? 3 : 0);
+    _exit(0);
 }
 
 void pb_sweep_identity(const pb_case_list *list, char *out, size_t outlen)
@@ -137,7 +159,7 @@ static json_t *sweep_collect(const char *work, int i, const pb_case_spec *spec, 
         char from[8400], to[8400];
         snprintf(from, sizeof from, "%s/%s", work, series);
         snprintf(to, sizeof to, "%s/%s", dir, series);
-        if (rename(from, to)) {
+        if (rename(from, to)) { /* within the staging folder: only a bug gets here */
             fprintf(stderr, "propbench sweep: warning: cannot move %s to %s: %s; the case has no series\n",
                     from, to, strerror(errno));
             json_object_del(o, "series");
@@ -176,13 +198,13 @@ static void sweep_clean(const char *work)
  * put back, the work directory, and which worker runs which case. */
 typedef struct sweep_state {
     const pb_case_list *list;
-    const char *dir;
+    pb_run_out *out;     /* the run folder, locked; the run is written to out->stage */
+    const char *dir;     /* out->stage */
     const pb_sweep_options *opt;
     struct sigaction old_int, old_term, old_chld;
     sigset_t stops;      /* blocked in the loop, taken only in sigsuspend */
     sigset_t unblocked;  /* the caller's mask, restored after the loop and in workers */
     sigset_t waiting;    /* the caller's mask with the stops let through */
-    json_t *previous;    /* the run directory's summary before this sweep */
     char work[4200];
     int *mine, nmine;    /* this shard's case indices */
     /* by case index: 1 finished; 0 unknown; -N killed by signal N; 100+K exit status K */
@@ -190,6 +212,7 @@ typedef struct sweep_state {
     pid_t *pids;         /* by worker slot; 0 when the slot is free */
     int *slot_case;      /* by worker slot: the case index it runs */
     int next, running, done;
+    pid_t parent;        /* this process, for the workers' check */
 } sweep_state;
 
 /* The handlers go in before the work directory exists: whoever sees it may
@@ -231,13 +254,14 @@ static int sweep_prepare(sweep_state *s)
 {
     const pb_sweep_options *opt = s->opt;
     char why[4400];
-    if (pb_run_dir_prepare(s->dir, why, sizeof why)) {
+    if (pb_run_out_stage(s->out, why, sizeof why)) {
         fprintf(stderr, "propbench sweep: error: %s\n", why);
         return -1;
     }
     if (pb_mkdirs(s->work)) {
         fprintf(stderr, "propbench sweep: error: cannot create the folder %s: %s\n", s->work,
                 strerror(errno));
+        pb_run_out_discard(s->out);
         return -1;
     }
     size_t cap = (size_t)(s->list->n > 0 ? s->list->n : 1);
@@ -247,7 +271,7 @@ static int sweep_prepare(sweep_state *s)
     s->pids = calloc(slots, sizeof(pid_t));
     s->slot_case = calloc(slots, sizeof(int));
     if (!s->mine || !s->exited_ok || !s->pids || !s->slot_case) {
-        sweep_clean(s->work);
+        pb_run_out_discard(s->out);
         return -1;
     }
     s->nmine = 0;
@@ -266,7 +290,7 @@ static void sweep_spawn(sweep_state *s)
         int ci = s->mine[s->next];
         pid_t pid = fork();
         if (pid == 0)
-            sweep_child(&s->list->cases[ci], ci, s->work, &s->unblocked);
+            sweep_child(&s->list->cases[ci], ci, s->work, &s->unblocked, s->parent);
         if (pid < 0) {
             /* no process to be had: run nothing more, record the rest as crashed */
             s->next = s->nmine;
@@ -345,24 +369,32 @@ static int sweep_abandon(sweep_state *s)
             kill(s->pids[j], SIGTERM);
     while (wait(NULL) > 0 || errno == EINTR)
         ;
-    sweep_clean(s->work);
-    pb_run_dir_unprepare(s->dir);
-    fprintf(stderr, "propbench sweep: interrupted; %s was left as it was\n", s->dir);
+    pb_run_out_discard(s->out);
+    fprintf(stderr, "propbench sweep: interrupted; %s was left as it was\n", s->out->dir);
     return -2;
 }
 
-/* Every worker done: gather the cases in order, write the summary, and
- * remove what an earlier run left that this one did not rewrite. */
-static int sweep_finish(sweep_state *s)
+/* Workers that could not write their results (a full disk, say) fail the
+ * sweep: count them and keep the first one's reason; 0 when there are none. */
+static int sweep_write_failures(const sweep_state *s, int *err)
+{
+    int n = 0;
+    *err = 0;
+    for (int k = 0; k < s->nmine; k++) {
+        int st = s->exited_ok[s->mine[k]] - 100;
+        if (st >= SWEEP_EXIT_WRITE && st <= SWEEP_EXIT_WRITE + SWEEP_ERRNO_MAX) {
+            if (!n++)
+                *err = st - SWEEP_EXIT_WRITE;
+        }
+    }
+    return n;
+}
+
+/* The summary of the gathered cases, written into the staging folder;
+ * 0, or -1 with the message printed. */
+static int sweep_write_summary(sweep_state *s, json_t *cases)
 {
     const pb_sweep_options *opt = s->opt;
-    json_t *cases = json_array();
-    for (int k = 0; k < s->nmine; k++) {
-        int ci = s->mine[k];
-        json_array_append_new(cases, sweep_collect(s->work, ci, &s->list->cases[ci],
-                                                   s->exited_ok[ci], s->dir));
-    }
-    sweep_clean(s->work);
     json_t *doc = pb_summary_new(cases);
     char ident[64];
     pb_sweep_identity(s->list, ident, sizeof ident);
@@ -376,38 +408,63 @@ static int sweep_finish(sweep_state *s)
     }
     char path[4300];
     snprintf(path, sizeof path, "%s/summary.json", s->dir);
+    errno = 0;
     int rc = pb_json_write_atomic(path, doc) ? -1 : 0;
     if (rc)
-        pb_run_dir_unwrite(s->dir, cases);
-    if (rc == 0 && s->previous) {
-        int pruned = pb_run_dir_prune(s->dir, s->previous, doc);
-        if (pruned && !opt->quiet)
-            fprintf(stderr, "propbench sweep: removed %d files an earlier run left in %s\n", pruned,
-                    s->dir);
-    }
+        fprintf(stderr, "propbench sweep: error: cannot write the summary of %s: %s; %s was left as it was\n",
+                s->out->dir, errno ? strerror(errno) : "out of memory", s->out->dir);
     json_decref(doc);
-    if (rc)
-        fprintf(stderr, "propbench sweep: error: cannot write %s\n", path);
     return rc;
 }
 
-int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt)
+/* Every worker done: gather the cases in order, write the summary into the
+ * staging folder and swap the run in; -1 (message printed, the run folder
+ * as it was) when anything could not be written. */
+static int sweep_finish(sweep_state *s)
+{
+    int e, nw = sweep_write_failures(s, &e);
+    if (nw) {
+        fprintf(stderr, "propbench sweep: error: %d of %d workers could not write their results: %s; "
+                "%s was left as it was\n", nw, s->nmine,
+                e ? strerror(e) : "reason unknown", s->out->dir);
+        pb_run_out_discard(s->out);
+        return -1;
+    }
+    json_t *cases = json_array();
+    for (int k = 0; k < s->nmine; k++) {
+        int ci = s->mine[k];
+        json_array_append_new(cases, sweep_collect(s->work, ci, &s->list->cases[ci],
+                                                   s->exited_ok[ci], s->dir));
+    }
+    sweep_clean(s->work);
+    int rc = sweep_write_summary(s, cases);
+    char why[4400];
+    if (rc == 0 && pb_run_out_commit(s->out, why, sizeof why)) {
+        fprintf(stderr, "propbench sweep: error: %s; %s was left as it was\n", why, s->out->dir);
+        rc = -1;
+    }
+    if (rc)
+        pb_run_out_discard(s->out);
+    return rc;
+}
+
+int pb_sweep_run(const pb_case_list *list, pb_run_out *out, const pb_sweep_options *opt)
 {
     sweep_state s;
     memset(&s, 0, sizeof s);
     s.list = list;
-    s.dir = dir;
+    s.out = out;
+    s.dir = out->stage;
     s.opt = opt;
+    s.parent = getpid();
     sweep_signals_install(&s);
-    s.previous = pb_run_dir_previous(dir); /* before this sweep writes anything */
-    snprintf(s.work, sizeof s.work, "%s/.work.%ld", dir, (long)getpid());
+    snprintf(s.work, sizeof s.work, "%s/.work.%ld", s.dir, (long)s.parent);
     int rc = -1;
     if (sweep_prepare(&s) == 0) {
         sweep_loop(&s);
         rc = sweep_stop ? sweep_abandon(&s) : sweep_finish(&s);
     }
     sweep_signals_restore(&s);
-    json_decref(s.previous);
     free(s.mine);
     free(s.exited_ok);
     free(s.pids);

@@ -7,6 +7,7 @@
 
 #include <jansson.h>
 #include "bench/study/suites.h"
+#include "bench/store/run_swap.h"
 
 typedef struct pb_sweep_options {
     int jobs;              /* worker processes (>= 1) */
@@ -16,10 +17,12 @@ typedef struct pb_sweep_options {
     int quiet;             /* no notes on stderr */
 } pb_sweep_options;
 
-/* Run the cases into dir (summary.json, series/). Returns 0, -1 when the
- * directory cannot be written (message printed), or -2 when interrupted by
- * SIGINT or SIGTERM (workers stopped, dir left as it was). */
-int pb_sweep_run(const pb_case_list *list, const char *dir, const pb_sweep_options *opt);
+/* Run the cases into the run folder out (opened and locked by the caller:
+ * summary.json, series/), staged whole and swapped in at the end. Returns
+ * 0, -1 when the run cannot be written, a worker among them (message
+ * printed with the system's reason, the folder as it was), or -2 when
+ * interrupted by SIGINT or SIGTERM (workers stopped, the folder as it was). */
+int pb_sweep_run(const pb_case_list *list, pb_run_out *out, const pb_sweep_options *opt);
 
 /* The signal that interrupted the last pb_sweep_run (SIGINT or SIGTERM). */
 int pb_sweep_stop_signal(void);
