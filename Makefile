@@ -90,16 +90,18 @@ test-layout: | deps
 	python3 scripts/check-layout.py --self-test
 	python3 scripts/check-layout.py $(CURDIR)
 
+# Both passes share one reference cache (build/test-cache: references built
+# by the plain pass serve the sanitizer pass), never the user's own.
 # Each run's scratch is its own (test-scratch.<pid>), so two runs in one tree
 # never share it; it is removed after a passing run, kept after a failing one.
 test-plain: $(B)/run_tests $(BIN) $(B)/plugins/ralston3.so
 	PB_WITH_BROWSER=1 sh scripts/install-deps.sh
 	d=$(CURDIR)/$(B)/test-scratch.$$$$ && \
-	PB_TMP=$$d PB_BIN=$(CURDIR)/$(BIN) PB_ROOT=$(CURDIR) ./$(B)/run_tests --jobs 2 && rm -rf $$d
+	PB_TMP=$$d PB_CACHE_DIR=$(CURDIR)/$(B)/test-cache PB_BIN=$(CURDIR)/$(BIN) PB_ROOT=$(CURDIR) ./$(B)/run_tests --jobs 2 && rm -rf $$d
 
 test-asan: $(BA)/run_tests $(BIN_A) $(B)/plugins/ralston3.so
 	d=$(CURDIR)/$(BA)/test-scratch.$$$$ && \
-	PB_TMP=$$d LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
+	PB_TMP=$$d PB_CACHE_DIR=$(CURDIR)/$(B)/test-cache LSAN_OPTIONS=suppressions=$(CURDIR)/tests/lsan.supp ASAN_OPTIONS=detect_leaks=1:abort_on_error=0 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
 	PB_SANITIZED=1 PB_BIN=$(CURDIR)/$(BIN_A) PB_ROOT=$(CURDIR) ./$(BA)/run_tests --jobs 2 && rm -rf $$d
 
 demo: $(BIN)

@@ -8,10 +8,9 @@
 #include <stdlib.h>
 #include <string.h>
 #include <pthread.h>
-#include <unistd.h>
 #include <quadmath.h>
 #include "problems/reference.h"
-#include "problems/files.h"
+#include "problems/reference_cache.h"
 #include "problems/hash.h"
 #include "problems/force_terms.h"
 #include "problems/ephemeris_fit.h"
@@ -475,56 +474,6 @@ uint64_t pb_reference_key(const pb_problem *p, const double *times, int n)
     return h;
 }
 
-/* ---- cache: <dir>/ref-<key>.bin = magic, key, n, then r, v, floor ---- */
-static const char ref_magic[8] = "PBREF01";
-
-static void ref_cache_path(char *buf, size_t len, const char *dir, uint64_t key)
-{
-    snprintf(buf, len, "%s/ref-%016llx.bin", dir, (unsigned long long)key);
-}
-
-static int ref_cache_read(const char *path, uint64_t key, int n, long double *r,
-                          long double *v, double *floor)
-{
-    FILE *f = fopen(path, "rb");
-    if (!f)
-        return 0;
-    char magic[8];
-    uint64_t k;
-    int nn;
-    size_t m = (size_t)n * PB_DIM_MAX;
-    int ok = fread(magic, 1, 8, f) == 8 && memcmp(magic, ref_magic, 8) == 0
-             && fread(&k, sizeof k, 1, f) == 1 && k == key
-             && fread(&nn, sizeof nn, 1, f) == 1 && nn == n
-             && fread(r, sizeof *r, m, f) == m && fread(v, sizeof *v, m, f) == m
-             && fread(floor, sizeof *floor, (size_t)n, f) == (size_t)n;
-    fclose(f);
-    return ok;
-}
-
-/* Temp file + rename so an interrupted run never leaves a half-written entry.
- * A failed write only loses the cache entry, never the result. */
-static void ref_cache_write(const char *dir, const char *path, uint64_t key, int n,
-                            const long double *r, const long double *v,
-                            const double *floor)
-{
-    if (pb_mkdirs(dir))
-        return;
-    char tmp[4200];
-    snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid());
-    FILE *f = fopen(tmp, "wb");
-    if (!f)
-        return;
-    size_t m = (size_t)n * PB_DIM_MAX;
-    int ok = fwrite(ref_magic, 1, 8, f) == 8 && fwrite(&key, sizeof key, 1, f) == 1
-             && fwrite(&n, sizeof n, 1, f) == 1 && fwrite(r, sizeof *r, m, f) == m
-             && fwrite(v, sizeof *v, m, f) == m
-             && fwrite(floor, sizeof *floor, (size_t)n, f) == (size_t)n;
-    ok = (fclose(f) == 0) && ok;
-    if (!ok || rename(tmp, path))
-        remove(tmp);
-}
-
 /* One of the two builds (coarse or fine), as a thread's job. */
 typedef struct ref_job {
     const pb_problem *p;
@@ -550,12 +499,8 @@ int pb_reference_build(const pb_problem *p, const double *times, int n,
     if (!p || n < 0 || (n > 0 && (!times || !r || !v || !floor)) || !pb_forces_have_quad(p))
         return PB_EINVAL;
     uint64_t key = pb_reference_key(p, times, n);
-    char path[4096];
-    if (cache_dir) {
-        ref_cache_path(path, sizeof path, cache_dir, key);
-        if (ref_cache_read(path, key, n, r, v, floor))
-            return PB_OK;
-    }
+    if (pb_ref_cache_read(cache_dir, key, n, r, v, floor))
+        return PB_OK;
     size_t m = (size_t)(n > 0 ? n : 1) * PB_DIM_MAX;
     long double *rc = malloc(2 * m * sizeof *rc);
     if (!rc)
@@ -586,8 +531,7 @@ int pb_reference_build(const pb_problem *p, const double *times, int n,
             double fl = (double)sqrtq(d2), ro = 1e-18 * (double)sqrtq(r2);
             floor[k] = fl > ro ? fl : ro;
         }
-        if (cache_dir)
-            ref_cache_write(cache_dir, path, key, n, r, v, floor);
+        pb_ref_cache_write(cache_dir, key, n, r, v, floor);
     }
     free(rc);
     return s;

@@ -1,7 +1,8 @@
 /* reference.h - reference trajectories for problems without an exact
  * solution: an extrapolation integrator (Gragg-Bulirsch-Stoer) in __float128,
  * independent of the methods under test, run at two tolerances whose difference
- * is the reference's own error estimate; results cached on disk by a key. */
+ * is the reference's own error estimate; results cached on disk by a key
+ * (reference_cache.h). */
 #ifndef PB_REFERENCE_H
 #define PB_REFERENCE_H
 

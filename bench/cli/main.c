@@ -3,6 +3,7 @@
 #include <string.h>
 #include <gsl/gsl_errno.h>
 #include "bench/cli/cli.h"
+#include "bench/cli/cache_option.h"
 #include "bench/cli/plugins.h"
 #include "propbench/propbench.h"
 
@@ -63,6 +64,8 @@ int main(int argc, char **argv)
     for (size_t i = 0; i < sizeof with_plugins / sizeof with_plugins[0]; i++)
         if (!strcmp(argv[1], with_plugins[i]) && pb_plugins_load_args(argv[1], &argc, argv))
             return PB_EXIT_USAGE;
+    if (pb_cache_option_take(argv[1], &argc, argv))
+        return PB_EXIT_USAGE;
     for (const main_verb *v = main_verbs; v->name; v++)
         if (!strcmp(argv[1], v->name))
             return v->fn(argc - 1, argv + 1);

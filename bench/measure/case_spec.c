@@ -7,6 +7,7 @@
 #include "bench/measure/harness.h"
 #include "integrators/formulation.h"
 #include "problems/force_terms.h"
+#include "problems/reference_cache.h"
 
 double pb_case_horizon(const pb_case_spec *spec)
 {
@@ -91,7 +92,7 @@ void pb_case_spec_default(pb_case_spec *spec)
     memset(spec, 0, sizeof *spec);
     spec->repeats = 3;
     spec->linear_samples = 100;
-    spec->cache_dir = PB_CACHE_DIR_DEFAULT;
+    spec->cache_dir = pb_cache_dir_default();
 }
 
 /* A horizon of more than PB_CASE_PERIODS_MAX periods is refused, as

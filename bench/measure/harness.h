@@ -4,14 +4,11 @@
 
 #include "bench/measure/case.h"
 
-/* Where reference trajectories are kept between runs unless told otherwise
- * (relative to the working folder). */
-#define PB_CACHE_DIR_DEFAULT "results/cache"
-
 /* The settings every case starts from, for run, select, sweep, the suites
  * and the public driver alike: 3 timing repeats (the median of three ignores
  * one outlier), 100 linear samples, automatic step budget, reference
- * trajectories cached in PB_CACHE_DIR_DEFAULT; the rest (problem, method,
+ * trajectories cached in pb_cache_dir_default() (PB_CACHE_DIR, else the
+ * user's XDG cache folder); the rest (problem, method,
  * step or tolerance, horizon, cost) is zero for the caller to fill. */
 void pb_case_spec_default(pb_case_spec *spec);
 

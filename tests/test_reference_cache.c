@@ -1,0 +1,110 @@
+/* test_reference_cache.c - where the reference cache lives (PB_CACHE_DIR,
+ * the XDG base-directory rule, --cache on the command line) and its size
+ * cap: the least recently used entries go first, the one just written and
+ * one just read stay. The XDG rule: $XDG_CACHE_HOME if absolute, else
+ * $HOME/.cache (XDG Base Directory Specification; common practice). */
+#include <criterion/criterion.h>
+#include <fcntl.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <time.h>
+#include "test_support.h"
+#include "problems/reference_cache.h"
+
+Test(reference_cache, folder_from_environment)
+{
+    setenv("PB_CACHE_DIR", "/some/where", 1);
+    cr_expect_str_eq(pb_cache_dir_default(), "/some/where");
+    unsetenv("PB_CACHE_DIR");
+    setenv("XDG_CACHE_HOME", "/xdg/cache", 1);
+    setenv("HOME", "/home/analyst", 1);
+    cr_expect_str_eq(pb_cache_dir_default(), "/xdg/cache/propbench");
+    setenv("XDG_CACHE_HOME", "relative/cache", 1); /* invalid by the rule: ignored */
+    cr_expect_str_eq(pb_cache_dir_default(), "/home/analyst/.cache/propbench");
+    unsetenv("XDG_CACHE_HOME");
+    unsetenv("HOME");
+    cr_expect_null(pb_cache_dir_default(), "no folder to use: no cache, never the working one");
+}
+
+#define RC_N 4000 /* states per entry: 8 + 8 + 4 + 104 n bytes, 416,020 bytes */
+
+static void rc_entry(const char *dir, uint64_t key, time_t used)
+{
+    static long double r[RC_N * 3], v[RC_N * 3];
+    static double fl[RC_N];
+    for (int i = 0; i < RC_N * 3; i++)
+        r[i] = (long double)key + i, v[i] = -(long double)i;
+    pb_ref_cache_write(dir, key, RC_N, r, v, fl);
+    char path[4200];
+    snprintf(path, sizeof path, "%s/ref-%016llx.bin", dir, (unsigned long long)key);
+    struct timespec ts[2] = {{used, 0}, {used, 0}};
+    cr_assert_eq(utimensat(AT_FDCWD, path, ts, 0), 0, "%s", path);
+}
+
+static int rc_has(const char *dir, uint64_t key)
+{
+    char path[4200];
+    snprintf(path, sizeof path, "%s/ref-%016llx.bin", dir, (unsigned long long)key);
+    return pbt_exists(path);
+}
+
+Test(reference_cache, least_recently_used_pruned_to_the_cap)
+{
+    char dir[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    setenv("PB_CACHE_MAX_MB", "1", 1); /* room for two entries, not three */
+    time_t now = time(NULL);
+    rc_entry(dir, 1, now - 300);
+    rc_entry(dir, 2, now - 200);
+    /* reading entry 1 makes it the most recently used */
+    static long double r[RC_N * 3], v[RC_N * 3];
+    static double fl[RC_N];
+    cr_assert_eq(pb_ref_cache_read(dir, 1, RC_N, r, v, fl), 1);
+    cr_expect_eq(r[5], 6.0L);
+    rc_entry(dir, 3, now);  /* over the cap: entry 2, the least recently used, goes */
+    cr_expect(rc_has(dir, 1), "entry 1 was just read");
+    cr_expect(!rc_has(dir, 2), "entry 2 was the least recently used");
+    cr_expect(rc_has(dir, 3), "entry 3 was just written");
+    /* a wrong key or count is a miss, never a misread */
+    cr_expect_eq(pb_ref_cache_read(dir, 3, RC_N - 1, r, v, fl), 0);
+    cr_expect_eq(pb_ref_cache_read(dir, 4, RC_N, r, v, fl), 0);
+}
+
+static long rc_count(const char *dir)
+{
+    char cmd[4300], out[64] = "";
+    snprintf(cmd, sizeof cmd, "ls %s 2>/dev/null | grep -c '^ref-.*\\.bin$'", dir);
+    FILE *f = popen(cmd, "r");
+    cr_assert_not_null(f);
+    if (!fgets(out, sizeof out, f))
+        out[0] = 0;
+    pclose(f);
+    return atol(out);
+}
+
+/* --cache DIR and PB_CACHE_DIR through the command line: the reference of a
+ * J2 problem lands in the folder named, and nowhere in the working one. */
+Test(reference_cache, cli_option_and_environment, .timeout = 120)
+{
+    char dir[4096], a[4200], b[4200], out[4096], err[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(a, sizeof a, "%s/by-option", dir);
+    snprintf(b, sizeof b, "%s/by-env", dir);
+    const char *run[] = {"run", "--problem", "leo-j2", "--method", "rk4", "--steps-per-orbit",
+                         "64", "--orbits", "1", "--repeats", "0", "--cache", a, "--out", dir, NULL};
+    cr_assert_eq(pbt_run_cli(run, out, sizeof out, err, sizeof err), 0, "%s", err);
+    cr_expect_eq(rc_count(a), 1);
+    setenv("PB_CACHE_DIR", b, 1);
+    const char *run2[] = {"run", "--problem", "leo-j2", "--method", "rk4", "--steps-per-orbit",
+                          "64", "--orbits", "1", "--repeats", "0", "--out", dir, NULL};
+    cr_assert_eq(pbt_run_cli(run2, out, sizeof out, err, sizeof err), 0, "%s", err);
+    cr_expect_eq(rc_count(b), 1);
+    const char *twice[] = {"run", "--cache", a, "--problem", "leo-j2", "--cache", b, NULL};
+    cr_expect_eq(pbt_run_cli(twice, out, sizeof out, err, sizeof err), 2);
+    cr_expect(strstr(err, "--cache is given twice"), "%s", err);
+    const char *none[] = {"run", "--problem", "leo-j2", "--cache", NULL};
+    cr_expect_eq(pbt_run_cli(none, out, sizeof out, err, sizeof err), 2);
+    cr_expect(strstr(err, "--cache expects a folder"), "%s", err);
+}
