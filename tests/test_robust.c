@@ -6,13 +6,16 @@
 #include <criterion/criterion.h>
 #include <dirent.h>
 #include <errno.h>
+#include <fcntl.h>
 #include <jansson.h>
+#include <signal.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/resource.h>
 #include <sys/stat.h>
+#include <sys/wait.h>
 #include <unistd.h>
 #include "bench/measure/harness.h"
 #include "integrators/method.h"
@@ -376,4 +379,130 @@ Test(robust, tolerance_and_horizon_bounds)
     cr_assert(strstr(err_buf, "at most 1e+08") && strstr(err_buf, "--orbits"), "%s", err_buf);
     cr_assert(!pbt_exists(out));
     rmdir(dir);
+}
+
+/* A stand-in for gnuplot that exits 0 after writing each `set output`
+ * file of its script: whole images (good = 1: PNG signature ... IEND chunk,
+ * an <svg> element) or what a full disk left (good = 0: 4096 zero bytes). */
+static void fake_gnuplot(const char *path, int good)
+{
+    FILE *f = fopen(path, "w");
+    cr_assert_not_null(f);
+    fprintf(f, "#!/bin/sh\n"
+               "sed -n \"s/^set output '\\(.*\\)'$/\\1/p\" \"$1\" | while read -r out; do\n");
+    if (good)
+        fprintf(f, "  case \"$out\" in\n"
+                   "  *.png.tmp) printf '\\211PNG\\r\\n\\032\\n%%060d\\000\\000\\000\\000IEND\\256B`\\202' 0 > \"$out\";;\n"
+                   "  *) printf '<?xml version=\"1.0\"?>\\n<svg>%%060d</svg>\\n' 0 > \"$out\";;\n"
+                   "  esac\n");
+    else
+        fprintf(f, "  head -c 4096 /dev/zero > \"$out\"\n");
+    fprintf(f, "done\nexit 0\n");
+    fclose(f);
+    cr_assert_eq(chmod(path, 0755), 0);
+}
+
+static int count_names(const char *dir, const char *suffix)
+{
+    DIR *d = opendir(dir);
+    if (!d)
+        return 0;
+    int n = 0;
+    size_t ls = strlen(suffix);
+    struct dirent *e;
+    while ((e = readdir(d))) {
+        size_t l = strlen(e->d_name);
+        n += l >= ls && !strcmp(e->d_name + l - ls, suffix);
+    }
+    closedir(d);
+    return n;
+}
+
+/* gnuplot exits 0 when its writes fail: on a full disk, 0-byte and
+ * 4096-byte images were installed under their final names. Each image is
+ * now checked first; a bad one is not installed, its temporary goes, and
+ * the figure counts as failed (exit 1, as any gnuplot failure). */
+Test(robust, truncated_images_never_installed)
+{
+    char dir[256], run[300], base[300], gp[320], plots[320];
+    pbt_tmpdir(dir, sizeof dir);
+    make_run(dir, run, base, sizeof run);
+    snprintf(gp, sizeof gp, "%s/gnuplot", dir);
+    snprintf(plots, sizeof plots, "%s/plots", run);
+    fake_gnuplot(gp, 0);
+    int rc = cli((const char *[]){"report", run, "--gnuplot", gp, "--quiet", NULL});
+    cr_assert_eq(rc, 1, "exit %d: %s", rc, err_buf);
+    cr_assert(strstr(err_buf, "not a complete PNG"), "%s", err_buf);
+    cr_assert_eq(count_names(plots, ".png"), 0);
+    cr_assert_eq(count_names(plots, ".svg"), 0);
+    cr_assert_eq(count_names(plots, ".tmp"), 0);
+    /* the same stand-in writing whole images: every figure installed */
+    fake_gnuplot(gp, 1);
+    rc = cli((const char *[]){"report", run, "--gnuplot", gp, "--quiet", NULL});
+    cr_assert_eq(rc, 0, "exit %d: %s", rc, err_buf);
+    int ngp = count_names(plots, ".gp") - 1; /* style.gp draws nothing */
+    cr_assert_gt(ngp, 0);
+    cr_assert_eq(count_names(plots, ".png"), ngp);
+    cr_assert_eq(count_names(plots, ".svg"), ngp);
+    cr_assert_eq(count_names(plots, ".tmp"), 0);
+}
+
+/* `report --no-plots` that could not write report.html (here a 3000-byte
+ * file-size limit: the scripts fit, report.html does not) exited 2 and left
+ * its .gp scripts; now it takes them back, and the empty plots/ with them. */
+Test(robust, failed_report_leaves_no_scripts)
+{
+    char dir[256], run[300], base[300], plots[320];
+    pbt_tmpdir(dir, sizeof dir);
+    make_run(dir, run, base, sizeof run);
+    snprintf(plots, sizeof plots, "%s/plots", run);
+    signal(SIGXFSZ, SIG_IGN);  /* the write fails with EFBIG instead of a signal */
+    struct rlimit fs = {3000, 3000};
+    cr_assert_eq(setrlimit(RLIMIT_FSIZE, &fs), 0);
+    int rc = cli((const char *[]){"report", run, "--no-plots", NULL});
+    cr_assert_eq(rc, 2, "exit %d: %s", rc, err_buf);
+    cr_assert(strstr(err_buf, "cannot write") && strstr(err_buf, "too large"), "%s", err_buf);
+    cr_assert_eq(count_names(plots, ".gp"), 0);
+    cr_assert(!pbt_exists(plots), "plots/ was left");
+}
+
+/* A report stopped while gnuplot draws left *.png.tmp / *.svg.tmp behind.
+ * The stand-in here writes its first image's temporary file and waits; the
+ * report is sent SIGTERM the moment that file appears: it ends 128 + 15,
+ * its gnuplot is gone, and no temporary image stays. */
+Test(robust, interrupted_report_leaves_no_temporary_images)
+{
+    char dir[256], run[300], base[300], gp[320], plots[320];
+    pbt_tmpdir(dir, sizeof dir);
+    make_run(dir, run, base, sizeof run);
+    snprintf(gp, sizeof gp, "%s/gnuplot", dir);
+    snprintf(plots, sizeof plots, "%s/plots", run);
+    FILE *f = fopen(gp, "w");
+    cr_assert_not_null(f);
+    fprintf(f, "#!/bin/sh\nout=$(sed -n \"s/^set output '\\(.*\\)'$/\\1/p\" \"$1\" | head -n 1)\n"
+               "printf 'partial' > \"$out\"\nexec sleep 60\n");
+    fclose(f);
+    cr_assert_eq(chmod(gp, 0755), 0);
+    const char *bin = getenv("PB_BIN") ? getenv("PB_BIN") : "build/propbench";
+    pid_t pid = fork();
+    if (pid == 0) {
+        int nul = open("/dev/null", O_WRONLY);
+        dup2(nul, 1);
+        dup2(nul, 2);
+        execl(bin, bin, "report", run, "--gnuplot", gp, "--quiet", (char *)NULL);
+        _exit(127);
+    }
+    cr_assert_gt(pid, 0);
+    int seen = 0;
+    for (int i = 0; i < 20000 && !seen; i++) {  /* up to 20 s: a hang guard, not a timing */
+        seen = count_names(plots, ".tmp") > 0;
+        if (!seen)
+            usleep(1000);
+    }
+    cr_assert(seen, "no temporary image appeared");
+    kill(pid, SIGTERM);
+    int st = 0;
+    cr_assert_eq(waitpid(pid, &st, 0), pid);
+    cr_assert(WIFEXITED(st) && WEXITSTATUS(st) == 128 + SIGTERM, "status %d", st);
+    cr_assert_eq(count_names(plots, ".tmp"), 0, "temporary images left");
 }

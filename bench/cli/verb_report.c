@@ -4,6 +4,7 @@
 #include <errno.h>
 #include <getopt.h>
 #include <limits.h>
+#include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -181,6 +182,50 @@ static int report_write(const report_opts *o, const pb_report_view *v)
     return 0;
 }
 
+/* A stop while gnuplot draws: its process and the temporary images go, so
+ * no *.png.tmp or *.svg.tmp stays in plots/. */
+static void report_on_stop(int sig)
+{
+    pb_report_gnuplot_abort();
+    _exit(128 + sig);
+}
+
+static void report_catch_stops(void)
+{
+    struct sigaction sa;
+    memset(&sa, 0, sizeof sa);
+    sa.sa_handler = report_on_stop;
+    sigemptyset(&sa.sa_mask);
+    static const int sigs[] = {SIGINT, SIGTERM, SIGHUP, SIGQUIT};
+    for (size_t i = 0; i < sizeof sigs / sizeof *sigs; i++)
+        sigaction(sigs[i], &sa, NULL);
+}
+
+/* A report that failed (exit 2) takes back the scripts it wrote: a .gp
+ * whose report was never written is a half-written result. The plots
+ * folder goes too when that leaves it empty. */
+static void report_unwrite_scripts(const pb_report_run *run, const char *plots,
+                                   const unsigned char *made)
+{
+    char f[PATH_MAX + PB_FIG_BASE_MAX + 32];
+    int any = 0;
+    for (int pi = 0; made && pi < run->nproblems; pi++)
+        for (int k = 0; k < PB_FIG_COUNT; k++) {
+            if (!made[pi * PB_FIG_COUNT + k])
+                continue;
+            char base[PB_FIG_BASE_MAX];
+            pb_fig_base(run->problems[pi].name, k, base, sizeof base);
+            snprintf(f, sizeof f, "%s/%s.gp", plots, base);
+            unlink(f);
+            any = 1;
+        }
+    if (!any)
+        return;
+    snprintf(f, sizeof f, "%s/style.gp", plots);
+    unlink(f);
+    rmdir(plots);
+}
+
 int pb_cli_report(int argc, char **argv)
 {
     report_opts o;
@@ -197,10 +242,12 @@ int pb_cli_report(int argc, char **argv)
     unsigned char *drawn = calloc((size_t)run.nproblems * PB_FIG_COUNT, 1);
     char plots[PATH_MAX + 16], title[512], whybuf[PATH_MAX + 64];
     const char *why = NULL;
+    plots[0] = 0;
     if (!made || !drawn) {
         pb_cli_error("report", "out of memory");
         goto done;
     }
+    report_catch_stops();
     if (report_prepare(&o, &run, plots, sizeof plots, made))
         goto done;
     int drew = report_draw(&o, &run, plots, made, drawn, &why, whybuf, sizeof whybuf);
@@ -211,6 +258,8 @@ int pb_cli_report(int argc, char **argv)
     if (!o.quiet)
         printf("wrote %s/report.html\n", o.out);
 done:
+    if (rc == PB_EXIT_USAGE && plots[0])
+        report_unwrite_scripts(&run, plots, made);
     free(made);
     free(drawn);
     pb_report_free(&run);

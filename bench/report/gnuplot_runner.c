@@ -2,6 +2,7 @@
  * fork + chdir + execv with an argument vector, so no path ever passes
  * through a shell. */
 #include <errno.h>
+#include <signal.h>
 #include <fcntl.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -58,6 +59,126 @@ static void gnuplot_last_line(const char *log, char *buf, size_t len)
     fclose(f);
 }
 
+/* The figure being drawn, for pb_report_gnuplot_abort (a signal handler):
+ * its gnuplot and the two temporary images it may be writing. */
+static volatile pid_t gnuplot_child;
+static char gnuplot_tmp[2][5000];
+static volatile sig_atomic_t gnuplot_have_tmp;
+static const char *const gnuplot_ext[] = {"png", "svg"};
+
+void pb_report_gnuplot_abort(void)
+{
+    pid_t pid = gnuplot_child;
+    if (pid > 0) {
+        kill(pid, SIGKILL);
+        waitpid(pid, NULL, 0);  /* dead before its files go: it cannot write one again */
+    }
+    if (gnuplot_have_tmp)
+        for (int i = 0; i < 2; i++)
+            unlink(gnuplot_tmp[i]);
+}
+
+/* Is the file at path a whole image of its kind? gnuplot exits 0 when its
+ * writes fail (a full disk left 0-byte and 4096-byte images), so the file
+ * itself is checked: a PNG begins with its 8-byte signature and ends with
+ * the IEND chunk (00 00 00 00 "IEND" AE 42 60 82; PNG specification,
+ * ISO/IEC 15948, 5.2 and 11.2.5); an SVG begins with "<?xml" or "<svg"
+ * and ends with "</svg>". NULL, or what is wrong. */
+static const char *gnuplot_image_bad(const char *path, int svg)
+{
+    static const unsigned char sig[8] = {0x89, 'P', 'N', 'G', '\r', '\n', 0x1a, '\n'};
+    static const unsigned char iend[12] = {0, 0, 0, 0, 'I', 'E', 'N', 'D', 0xae, 0x42, 0x60, 0x82};
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return "it is missing";
+    unsigned char head[8] = {0}, tail[64] = {0};
+    size_t nh = fread(head, 1, sizeof head, f);
+    long size = (fseek(f, 0, SEEK_END) == 0) ? ftell(f) : -1;
+    size_t nt = 0;
+    if (size >= (long)sizeof tail && fseek(f, -(long)sizeof tail, SEEK_END) == 0)
+        nt = fread(tail, 1, sizeof tail, f);
+    fclose(f);
+    if (size <= 0)
+        return "it is empty";
+    if (!svg)
+        return nh == 8 && !memcmp(head, sig, 8) && nt == sizeof tail &&
+               !memcmp(tail + sizeof tail - 12, iend, 12) ? NULL : "it is not a complete PNG";
+    size_t e = nt;
+    while (e > 0 && (tail[e - 1] == '\n' || tail[e - 1] == '\r' || tail[e - 1] == ' '))
+        e--;
+    int starts = nh >= 5 && (!memcmp(head, "<?xml", 5) || !memcmp(head, "<svg", 4));
+    return starts && e >= 6 && !memcmp(tail + e - 6, "</svg>", 6) ? NULL
+           : "it is not a complete SVG";
+}
+
+/* Both images whole, then under their final names; else neither is
+ * installed and both temporary files go. 0, or -1 with the reason. */
+static int gnuplot_install(const char *exe, const char *plots_dir, const char *base, char *err,
+                           size_t errlen)
+{
+    for (int i = 0; i < 2; i++) {
+        const char *bad = gnuplot_image_bad(gnuplot_tmp[i], i == 1);
+        if (bad) {
+            snprintf(err, errlen, "%s exited 0 but its %s.%s is unusable (%s; is the disk full?)",
+                     exe, base, gnuplot_ext[i], bad);
+            return -1;
+        }
+    }
+    for (int i = 0; i < 2; i++) {
+        char fin[5000];
+        snprintf(fin, sizeof fin, "%s/%s.%s", plots_dir, base, gnuplot_ext[i]);
+        if (rename(gnuplot_tmp[i], fin) != 0) {
+            snprintf(err, errlen, "cannot install %s: %s", fin, strerror(errno));
+            return -1;
+        }
+    }
+    return 0;
+}
+
+/* Wait for gnuplot; 0 when it exited 0, else -1 with the reason. */
+static int gnuplot_wait(pid_t pid, const char *exe, const char *script, const char *log,
+                        char *err, size_t errlen)
+{
+    int st;
+    while (waitpid(pid, &st, 0) < 0)
+        if (errno != EINTR) {
+            snprintf(err, errlen, "waiting for %s: %s", exe, strerror(errno));
+            return -1;
+        }
+    if (WIFEXITED(st) && WEXITSTATUS(st) == 0)
+        return 0;
+    char last[512];
+    gnuplot_last_line(log, last, sizeof last);
+    if (WIFEXITED(st))
+        snprintf(err, errlen, "%s %s exited with status %d%s%s (see %s)", exe, script,
+                 WEXITSTATUS(st), last[0] ? ": " : "", last, log);
+    else
+        snprintf(err, errlen, "%s %s was killed by signal %d (see %s)", exe, script, WTERMSIG(st),
+                 log);
+    return -1;
+}
+
+static void gnuplot_child_run(const char *exe, const char *plots_dir, const char *script,
+                              const char *log)
+{
+    int fd = open(log, O_WRONLY | O_CREAT | O_TRUNC, 0644);
+    if (fd >= 0) {
+        dup2(fd, STDOUT_FILENO);
+        dup2(fd, STDERR_FILENO);
+        close(fd);
+    }
+    int nul = open("/dev/null", O_RDONLY);
+    if (nul >= 0) {
+        dup2(nul, STDIN_FILENO);
+        close(nul);
+    }
+    if (chdir(plots_dir) != 0)
+        _exit(126);
+    char *const argv[] = {(char *)exe, (char *)script, NULL};
+    execv(exe, argv);
+    _exit(127);
+}
+
 int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *base, char *err,
                           size_t errlen)
 {
@@ -67,55 +188,26 @@ int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *ba
      * starts with one */
     snprintf(script, sizeof script, "./%s.gp", base);
     snprintf(log, sizeof log, "%s/%s.log", plots_dir, base);
+    gnuplot_have_tmp = 0;
+    for (int i = 0; i < 2; i++)
+        snprintf(gnuplot_tmp[i], sizeof gnuplot_tmp[i], "%s/%s.%s.tmp", plots_dir, base,
+                 gnuplot_ext[i]);
+    gnuplot_have_tmp = 1;
     fflush(NULL);
     pid_t pid = fork();
     if (pid < 0) {
         snprintf(err, errlen, "cannot start %s: %s", exe, strerror(errno));
         return -1;
     }
-    if (pid == 0) {
-        int fd = open(log, O_WRONLY | O_CREAT | O_TRUNC, 0644);
-        if (fd >= 0) {
-            dup2(fd, STDOUT_FILENO);
-            dup2(fd, STDERR_FILENO);
-            close(fd);
-        }
-        int nul = open("/dev/null", O_RDONLY);
-        if (nul >= 0) {
-            dup2(nul, STDIN_FILENO);
-            close(nul);
-        }
-        if (chdir(plots_dir) != 0)
-            _exit(126);
-        char *const argv[] = {(char *)exe, script, NULL};
-        execv(exe, argv);
-        _exit(127);
-    }
-    int st;
-    while (waitpid(pid, &st, 0) < 0)
-        if (errno != EINTR) {
-            snprintf(err, errlen, "waiting for %s: %s", exe, strerror(errno));
-            return -1;
-        }
-    if (!WIFEXITED(st) || WEXITSTATUS(st) != 0) {
-        char last[512];
-        gnuplot_last_line(log, last, sizeof last);
-        if (WIFEXITED(st))
-            snprintf(err, errlen, "%s %s exited with status %d%s%s (see %s)", exe, script, WEXITSTATUS(st),
-                     last[0] ? ": " : "", last, log);
-        else
-            snprintf(err, errlen, "%s %s was killed by signal %d (see %s)", exe, script, WTERMSIG(st), log);
-        return -1;
-    }
-    static const char *const ext[] = {"png", "svg"};
-    for (int i = 0; i < 2; i++) {
-        char tmp[5000], fin[5000];
-        snprintf(tmp, sizeof tmp, "%s/%s.%s.tmp", plots_dir, base, ext[i]);
-        snprintf(fin, sizeof fin, "%s/%s.%s", plots_dir, base, ext[i]);
-        if (rename(tmp, fin) != 0) {
-            snprintf(err, errlen, "%s ran but did not write %s: %s", exe, tmp, strerror(errno));
-            return -1;
-        }
-    }
-    return 0;
+    if (pid == 0)
+        gnuplot_child_run(exe, plots_dir, script, log);
+    gnuplot_child = pid;
+    int rc = gnuplot_wait(pid, exe, script, log, err, errlen);
+    gnuplot_child = 0;
+    if (!rc)
+        rc = gnuplot_install(exe, plots_dir, base, err, errlen);
+    for (int i = 0; rc && i < 2; i++)
+        unlink(gnuplot_tmp[i]);  /* no temporary image stays behind */
+    gnuplot_have_tmp = 0;
+    return rc;
 }

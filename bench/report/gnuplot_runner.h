@@ -11,10 +11,15 @@ int pb_report_gnuplot_find(const char *prog, char *out, size_t len);
 
 /* Run `exe ./<base>.gp` (a path, so no base is taken for an option) with
  * plots_dir as working directory, stdout and stderr into
- * plots_dir/<base>.log; on success rename <base>.png.tmp and
- * <base>.svg.tmp to their final names. 0, or -1 with the reason in err
+ * plots_dir/<base>.log; on success check that <base>.png.tmp and
+ * <base>.svg.tmp are whole images (gnuplot exits 0 when its writes fail)
+ * and rename them to their final names; on any failure remove both. 0, or -1 with the reason in err
  * (the log's last line when gnuplot reported an error). */
 int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *base, char *err,
                           size_t errlen);
+
+/* For a signal handler (async-signal-safe): kill the gnuplot being run, if
+ * any, and remove the temporary images of its figure. */
+void pb_report_gnuplot_abort(void);
 
 #endif

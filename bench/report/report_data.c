@@ -261,6 +261,22 @@ void pb_report_series_free(pb_report_series *s)
     memset(s, 0, sizeof *s);
 }
 
+/* The header row's column names (units in [] dropped); -1 out of memory. */
+static int series_header(pb_report_series *s, char *line)
+{
+    for (char *tok = strtok(line, ","); tok; tok = strtok(NULL, ",")) {
+        char **nn = realloc(s->names, (size_t)(s->ncols + 1) * sizeof *nn);
+        if (!nn)
+            return -1;
+        s->names = nn;
+        tok[strcspn(tok, "[")] = 0;
+        if (!(s->names[s->ncols] = strdup(tok)))
+            return -1;
+        s->ncols++;
+    }
+    return 0;
+}
+
 int pb_report_series_read(const char *path, pb_report_series *s, char *err, size_t errlen)
 {
     memset(s, 0, sizeof *s);
@@ -283,14 +299,8 @@ int pb_report_series_read(const char *path, pb_report_series *s, char *err, size
         }
         line[strcspn(line, "\r\n")] = 0;
         if (lineno == 1) {
-            for (char *tok = strtok(line, ","); tok; tok = strtok(NULL, ",")) {
-                char **nn = realloc(s->names, (size_t)(s->ncols + 1) * sizeof *nn);
-                if (!nn) goto out;
-                s->names = nn;
-                tok[strcspn(tok, "[")] = 0;
-                if (!(s->names[s->ncols] = strdup(tok))) goto out;
-                s->ncols++;
-            }
+            if (series_header(s, line))
+                goto out;
             if (s->ncols == 0) {
                 snprintf(err, errlen, "%s:1: no header row", path);
                 goto out;
