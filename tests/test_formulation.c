@@ -223,6 +223,49 @@ Test(formulation, gauss_jackson8_s_order_and_error)
     cr_assert(r128.evals <= 3 * r128.steps, "%ld evaluations", r128.evals);
 }
 
+/* Output times never change the integration: the same run in one advance
+ * and in 7 (each output reached on the inner dense output) ends in the same
+ * bits, for a fixed-step and an adaptive inner method; and the 7 outputs
+ * are at their times exactly. */
+Test(formulation, output_times_leave_the_integration_alone)
+{
+    pb_problem p;
+    pbt_kepler(&p, 0.9);
+    const pb_method_type *inner[] = {&pb_method_rk4, &pb_method_dop853};
+    for (int k = 0; k < 2; k++) {
+        pb_method_config cfg = form_fixed_cfg(300);
+        if (k) {
+            cfg.h = 0;
+            cfg.rtol = cfg.atol = 1e-10;
+        }
+        pbt_result one[2], seven[2];
+        for (int f = 0; f < 2; f++) {
+            pb_formulation form = f ? PB_FORMULATION_SUNDMAN : PB_FORMULATION_KS;
+            const pb_method_type *rec = pb_formulation_record(inner[k]);
+            for (int pieces = 1; pieces <= 7; pieces += 6) {
+                pb_force_counter c;
+                pb_force fo;
+                pb_force_counter_init(&c, &p, &fo);
+                void *ws = pb_formulation_alloc(inner[k], form, p.dim);
+                cr_assert_not_null(ws);
+                cr_assert_eq(rec->start(ws, &fo, &cfg, p.t0, p.r0, p.v0), PB_OK);
+                pbt_result *res = pieces == 1 ? &one[f] : &seven[f];
+                for (int j = 1; j <= pieces; j++) {
+                    double t_out = 3.3 * 2 * M_PI * j / pieces;
+                    cr_assert_eq(rec->advance(ws, t_out, NULL, NULL), PB_OK);
+                    rec->get_state(ws, &res->t, res->r, res->v);
+                    cr_assert_eq(res->t, t_out);
+                }
+                rec->free(ws);
+            }
+            for (int i = 0; i < 2; i++)
+                cr_assert(one[f].r[i] == seven[f].r[i] && one[f].v[i] == seven[f].v[i],
+                          "%s %s: component %d differs", inner[k]->name,
+                          pb_formulation_name(form), i);
+        }
+    }
+}
+
 /* The case's energy error is the Cartesian one: recomputed here from the
  * final Cartesian state (E = v^2/2 - mu/r, two-body energy, REFERENCES.md)
  * it equals the summary's to round-off. */
