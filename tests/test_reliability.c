@@ -153,6 +153,13 @@ Test(reliability, second_writer_is_refused_naming_the_first)
                               "--orbits", "2", "--quiet", "--out", d, NULL});
     cr_assert_eq(rc, 2, "a run into the folder being swept: exit %d, %s", rc, err_buf);
     cr_assert(strstr(err_buf, want), "the holder is not named %s: %s", want, err_buf);
+    char shard[300];
+    snprintf(shard, sizeof shard, "%s/S", dir);
+    rel_shard("1/2", shard);
+    rc = cli((const char *[]){"merge", "--allow-partial", "--out", d, shard, NULL});
+    cr_assert_eq(rc, 2, "a merge into the folder being swept: exit %d, %s", rc, err_buf);
+    cr_assert(strstr(err_buf, want), "the holder is not named %s: %s", want, err_buf);
+    cr_assert_eq(rel_sh("rm -rf '%s'", shard), 0);
     kill(first, SIGTERM);
     int st;
     cr_assert_eq(waitpid(first, &st, 0), first);
