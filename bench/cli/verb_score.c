@@ -18,6 +18,7 @@
 #include "bench/store/oem_read.h"
 #include "bench/store/oem_write.h"
 #include "bench/store/run_dir.h"
+#include "bench/store/run_swap.h"
 
 typedef struct score_opts {
     const char *problem, *problem_file, *case_name, *ephemeris, *label, *out;
@@ -198,21 +199,23 @@ static void score_print(const pb_case_spec *spec, const pb_case_result *r, const
                r->energy_rel_max, r->energy_rel_final);
 }
 
-/* Run the replay and write the folder; an exit status. */
+/* Run the replay and write the folder (locked, staged beside it and
+ * swapped in: bench/store/run_swap.h); an exit status. */
 static int score_write(const score_opts *o, const pb_case_spec *spec, const pb_oem *oem,
                        const char *label, const char *id, const char *dir)
 {
-    char err[512];
-    if (pb_run_dir_prepare(dir, err, sizeof err))
+    char err[4400];
+    pb_run_out out;
+    if (pb_run_out_open(&out, dir, err, sizeof err)) {
+        pb_run_out_close(&out);
         return pb_cli_error("score", "%s", err);
-    json_t *previous = pb_run_dir_previous(dir);
+    }
     pb_case_result res;
     pb_ephemeris_bind(&oem->eph);
     int s = pb_case_run(spec, &res);
     pb_ephemeris_bind(NULL);
     if (s) {
-        json_decref(previous);
-        pb_run_dir_unprepare(dir);
+        pb_run_out_close(&out);
         return pb_cli_error("score", "%s could not be scored: %s", o->ephemeris, pb_strerror(s));
     }
     snprintf(res.id, sizeof res.id, "%s", id);
@@ -222,25 +225,22 @@ static int score_write(const score_opts *o, const pb_case_spec *spec, const pb_o
     score_json(c, o, label, oem, id);
     json_array_append_new(cases, c);
     json_t *doc = pb_summary_new(cases);
-    char path[4200];
-    snprintf(path, sizeof path, "%s/summary.json", dir);
-    int bad = pb_series_write(dir, spec, &res) != 0, e = errno;
-    if (!bad && pb_json_write_atomic(path, doc)) {
-        e = errno;
-        pb_run_dir_unwrite(dir, cases);
+    char path[4400];
+    snprintf(path, sizeof path, "%s/summary.json", out.stage);
+    int bad = pb_run_out_stage(&out, err, sizeof err);
+    if (!bad && (pb_series_write(out.stage, spec, &res) || pb_json_write_atomic(path, doc))) {
+        snprintf(err, sizeof err, "cannot write the run directory %s: %s", dir, strerror(errno));
         bad = 1;
     }
     if (!bad)
-        pb_run_dir_prune(dir, previous, doc);
-    json_decref(previous);
+        bad = pb_run_out_commit(&out, err, sizeof err);
+    pb_run_out_close(&out);
     json_decref(doc);
     pb_case_result_free(&res);
-    if (bad) {
-        pb_run_dir_unprepare(dir);
-        return pb_cli_error("score", "cannot write the run directory %s: %s", dir, strerror(e));
-    }
+    if (bad)
+        return pb_cli_error("score", "%s", err);
     if (!o->quiet)
-        printf("wrote %s and %s/series/%s.csv\n", path, dir, id);
+        printf("wrote %s/summary.json and %s/series/%s.csv\n", dir, dir, id);
     return PB_EXIT_OK;
 }
 

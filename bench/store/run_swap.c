@@ -339,6 +339,10 @@ int pb_run_out_commit(pb_run_out *o, char *err, size_t errlen)
      * exchange, so that whatever sits under that name after a kill is
      * either a whole run or the earlier folder, never a half-written one. */
     const char *old = o->old;
+    /* a writer asked to write the folder it stands in (--out .) follows it */
+    struct stat here, there;
+    int in_it = stat(".", &here) == 0 && stat(o->path, &there) == 0 && here.st_dev == there.st_dev &&
+                here.st_ino == there.st_ino;
     int e = 0;
     if (rename(o->stage, old))
         e = errno;
@@ -359,6 +363,8 @@ int pb_run_out_commit(pb_run_out *o, char *err, size_t errlen)
     }
     o->staged = 0;
     swap_sync_parent(o);
+    if (in_it && chdir(o->path))
+        (void)0; /* the new folder is there: only a race could remove it */
     swap_carry(old, o->path);
     return 0;
 }
