@@ -20,54 +20,6 @@ int pb_path_blocked(const char *path)
     return !stat(path, &st) && !S_ISREG(st.st_mode);
 }
 
-int pb_run_dir_prepare(const char *dir, char *err, size_t errlen)
-{
-    char sdir[4200], sum[4200];
-    snprintf(sdir, sizeof sdir, "%s/series", dir);
-    snprintf(sum, sizeof sum, "%s/summary.json", dir);
-    const char *bad = pb_mkdirs(dir) ? dir : pb_mkdirs(sdir) ? sdir : NULL;
-    if (bad) {
-        snprintf(err, errlen, "cannot create the folder %s: %s", bad, strerror(errno));
-        return -1;
-    }
-    if (pb_path_blocked(sum)) {
-        snprintf(err, errlen, "%s is there and is not a file: the summary could not be written", sum);
-        pb_run_dir_unprepare(dir);
-        return -1;
-    }
-    if (access(dir, W_OK | X_OK) || access(sdir, W_OK | X_OK)) {
-        snprintf(err, errlen, "cannot write in %s: %s", access(dir, W_OK | X_OK) ? dir : sdir,
-                 strerror(errno));
-        pb_run_dir_unprepare(dir);
-        return -1;
-    }
-    return 0;
-}
-
-void pb_run_dir_unprepare(const char *dir)
-{
-    if (!dir)
-        return;
-    char sdir[4200];
-    snprintf(sdir, sizeof sdir, "%s/series", dir);
-    rmdir(sdir);
-    rmdir(dir);
-}
-
-void pb_run_dir_unwrite(const char *dir, const json_t *cases)
-{
-    size_t i;
-    const json_t *c;
-    json_array_foreach(cases, i, c) {
-        const char *sr = json_string_value(json_object_get(c, "series"));
-        char f[8400];
-        snprintf(f, sizeof f, "%s/%s", dir, sr ? sr : "");
-        if (pb_series_path_ok(sr))
-            unlink(f);
-    }
-    pb_run_dir_unprepare(dir);
-}
-
 int pb_write_atomic(const char *path, const char *data, size_t len)
 {
     /* an output that is a symbolic link is written through: the file it

@@ -15,22 +15,6 @@
  * so no file can be written there; 0 if it is absent or a plain file. */
 int pb_path_blocked(const char *path);
 
-/* Before any case runs: make dir and dir/series, and check that
- * dir/summary.json is absent or a plain file and that dir can be written,
- * so a run never computes for minutes and then fails to write, or leaves
- * series behind a summary it could not write. 0, or -1 with a one-line
- * reason (naming the path) in err. */
-int pb_run_dir_prepare(const char *dir, char *err, size_t errlen);
-
-/* Undo pb_run_dir_prepare where nothing was written: remove dir/series and
- * dir if they are empty (a folder that holds anything is left alone). */
-void pb_run_dir_unprepare(const char *dir);
-
-/* Take back a run that could not be finished: remove the series the cases
- * name (only paths pb_series_path_ok accepts), then the folders if that
- * leaves them empty, so no series is left without its summary. */
-void pb_run_dir_unwrite(const char *dir, const json_t *cases);
-
 /* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1. */
 int pb_write_atomic(const char *path, const char *data, size_t len);
 
@@ -56,15 +40,18 @@ int pb_series_write_states(const char *dir, const pb_case_spec *spec, const pb_c
  * at another file. */
 int pb_series_path_ok(const char *rel);
 
-/* The summary.json already in dir if propbench wrote it (new reference),
- * else NULL: read before a run writes, so that only an earlier propbench
- * run is ever cleaned up and a user's own folder given as --out never is. */
+/* The summary.json in dir if propbench wrote it (new reference), else NULL:
+ * only an earlier propbench run's files are ever removed, and a user's own
+ * folder given as --out keeps everything but its summary.json. */
 json_t *pb_run_dir_previous(const char *dir);
 
-/* After a new summary.json is written to dir: remove what the earlier run
- * (old, from pb_run_dir_previous; NULL: nothing) wrote and the new one does
- * not own: its series that the new summary does not name, its figures (by
- * pb_fig_base, the names the report gave them) and its report. Returns how many files were removed. */
+/* Remove from dir what the earlier run (old, from pb_run_dir_previous;
+ * NULL: nothing) wrote and the new one (summary; NULL: none) does not own:
+ * its series that the new summary does not name, its figures (by
+ * pb_fig_base, the names the report gave them) and its report. run_swap.c
+ * calls it on the earlier folder after a swap, so that what is left there is
+ * not propbench's and moves into the new folder. Returns how many files
+ * were removed. */
 int pb_run_dir_prune(const char *dir, const json_t *old, const json_t *summary);
 
 #endif

@@ -343,6 +343,8 @@ int pb_run_out_commit(pb_run_out *o, char *err, size_t errlen)
     struct stat here, there;
     int in_it = stat(".", &here) == 0 && stat(o->path, &there) == 0 && here.st_dev == there.st_dev &&
                 here.st_ino == there.st_ino;
+    if (stat(o->path, &there) == 0 && S_ISDIR(there.st_mode))
+        chmod(o->stage, there.st_mode & 07777); /* the folder keeps its permissions */
     int e = 0;
     if (rename(o->stage, old))
         e = errno;
