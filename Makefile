@@ -33,7 +33,7 @@ TEST_OBJ_A := $(TEST_SRC:%.c=$(BA)/%.o)
 BIN   := $(B)/propbench
 BIN_A := $(BA)/propbench
 
-.PHONY: all deps demo fuzz test test-layout test-plain test-asan test-install bench clean install uninstall
+.PHONY: all deps demo fuzz fuzz-deps test test-layout test-plain test-asan test-install bench clean install uninstall
 all: $(BIN) $(B)/plugins/ralston3.so
 
 deps:
@@ -142,18 +142,43 @@ clean:
 
 -include $(LIB_OBJ:.o=.d) $(TEST_OBJ:.o=.d) $(LIB_OBJ_A:.o=.d) $(TEST_OBJ_A:.o=.d) $(B)/bench/cli/main.d $(B)/bench/perf/bench_main.d
 
-# Fuzz the readers of outside input (OEM, problem files, summary.json,
-# baselines) with libFuzzer under ASan + UBSan; FUZZ_SECONDS each run (not
-# part of make test: it needs clang and takes minutes). Seeds: tests/data
-# and the example problem file.
+# Fuzz the readers of outside input with libFuzzer under ASan + UBSan
+# (clang's -fsanitize=undefined includes float-cast-overflow): one target per
+# reader (tests/fuzz/fuzz_*.c), each run FUZZ_SECONDS from its seed corpus
+# committed in tests/fuzz/corpus/<target>/ (copied to build/fuzz/corpus/, where
+# libFuzzer adds what it finds). A crash, a leak, a sanitizer report or an input
+# taking over 10 s stops it with a non-zero status and the input in
+# build/fuzz/<target>-crash-*. Not part of make test (it needs clang); .ci/run
+# runs it with FUZZ_SECONDS=20.
 FUZZ_SECONDS ?= 60
-fuzz: | deps
+FUZZ_TARGETS := problem_file oem summary baseline series
+FUZZ_SAN  := -fsanitize=address,undefined -fno-sanitize-recover=undefined -fno-omit-frame-pointer
+FUZZ_CC    = clang $(CSTD) -g -O1 -I. -Iinclude -I$(B)/fuzz/inc $(shell pkg-config --cflags $(PKGS))
+# the library below the command line (the readers live in store/, report/,
+# gate/ and problems/)
+FUZZ_OBJ  := $(patsubst %.c,$(B)/fuzz/obj/%.o,$(filter-out bench/cli/%,$(LIB_SRC)))
+
+fuzz-deps: | deps
 	PB_WITH_FUZZ=1 sh scripts/install-deps.sh
-	@mkdir -p $(B)/fuzz/corpus $(B)/fuzz/inc
+	@mkdir -p $(B)/fuzz/inc
 	@# clang reads GCC's quadmath.h (only that header, not GCC's others)
 	ln -sf $$(gcc -print-file-name=include)/quadmath.h $$(gcc -print-file-name=include)/quadmath_weak.h $(B)/fuzz/inc/
-	clang $(CSTD) -g -O1 -I. -Iinclude -I$(B)/fuzz/inc $(shell pkg-config --cflags $(PKGS)) \
-	    -fsanitize=fuzzer,address,undefined -fno-sanitize-recover=undefined \
-	    tests/fuzz/fuzz_readers.c $(LIB_SRC) -o $(B)/fuzz/fuzz_readers $(PB_LDLIBS)
-	sh tests/fuzz/seed.sh $(B)/fuzz/corpus
-	./$(B)/fuzz/fuzz_readers -max_total_time=$(FUZZ_SECONDS) -max_len=8192 $(B)/fuzz/corpus
+
+$(B)/fuzz/obj/%.o: %.c Makefile | fuzz-deps
+	@mkdir -p $(dir $@)
+	$(FUZZ_CC) $(FUZZ_SAN) -fsanitize=fuzzer-no-link -MMD -MP -c $< -o $@
+$(B)/fuzz/libpropbench.a: $(FUZZ_OBJ)
+	@rm -f $@; ar rcs $@ $^
+$(B)/fuzz/fuzz_%: tests/fuzz/fuzz_%.c tests/fuzz/fuzz_common.h $(B)/fuzz/libpropbench.a | fuzz-deps
+	$(FUZZ_CC) $(FUZZ_SAN) -fsanitize=fuzzer $< $(B)/fuzz/libpropbench.a -o $@ $(PB_LDLIBS)
+-include $(FUZZ_OBJ:.o=.d)
+
+fuzz: $(FUZZ_TARGETS:%=$(B)/fuzz/fuzz_%)
+	@set -e; for t in $(FUZZ_TARGETS); do \
+	    mkdir -p $(B)/fuzz/corpus/$$t; cp tests/fuzz/corpus/$$t/* $(B)/fuzz/corpus/$$t/; \
+	    echo "fuzz: $$t for $(FUZZ_SECONDS) s"; \
+	    ./$(B)/fuzz/fuzz_$$t -max_total_time=$(FUZZ_SECONDS) -max_len=8192 -timeout=10 \
+	        -print_final_stats=1 -artifact_prefix=$(B)/fuzz/$$t- $(B)/fuzz/corpus/$$t 2>$(B)/fuzz/$$t.log \
+	        || { tail -n 60 $(B)/fuzz/$$t.log; echo "fuzz: $$t found a defect (log: $(B)/fuzz/$$t.log)"; exit 1; }; \
+	    grep -h "^stat::number_of_executed_units\|^Done" $(B)/fuzz/$$t.log; \
+	done
