@@ -210,6 +210,54 @@ Test(reliability, run_interrupted_by_sigint_leaves_nothing)
     rel_stop_run(SIGINT);
 }
 
+Test(reliability, run_stopped_by_sighup_leaves_nothing)
+{
+    rel_stop_run(SIGHUP);
+}
+
+/* A closed terminal (SIGHUP) or ^\ (SIGQUIT) stops a sweep as ^C does:
+ * exit 128+signal, the earlier run as it was, no worker, nothing beside. */
+static void rel_stop_sweep(int sig)
+{
+    char dir[256], d[300], parent[300], stage[300], left[1024], f[400];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(d, sizeof d, "%s/D", dir);
+    rel_beside(d, "new.", parent, sizeof parent, stage, sizeof stage);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit",
+                                      "100", "--orbits", "2", "--quiet", "--out", d, NULL}), 0, "%s", err_buf);
+    snprintf(f, sizeof f, "%s/summary.json", d);
+    char *before = pbt_slurp_file(f, NULL);
+    pid_t pid = rel_long_sweep(d);
+    /* its staging folder, or the work folder inside D of an older propbench */
+    for (int i = 0; i < 20000 && !rel_has_entry(parent, stage) && !rel_has_entry(d, ".work."); i++)
+        rel_sleep_ms(1);
+    int started = rel_has_entry(parent, stage) || rel_has_entry(d, ".work.");
+    kill(pid, sig);
+    int st;
+    cr_assert_eq(waitpid(pid, &st, 0), pid);
+    cr_assert(started, "the sweep never started");
+    cr_assert(WIFEXITED(st) && WEXITSTATUS(st) == 128 + sig, "signal %d: status %s %d", sig,
+              WIFEXITED(st) ? "exit" : "killed by", WIFEXITED(st) ? WEXITSTATUS(st) : WTERMSIG(st));
+    cr_assert_eq(rel_alive_in_group(pid), 0, "workers outlived their sweep");
+    char *after = pbt_slurp_file(f, NULL);
+    cr_assert(before && after && !strcmp(before, after), "the earlier summary changed");
+    free(before);
+    free(after);
+    rel_list(dir, left, sizeof left);
+    cr_assert_str_eq(left, "D ", "left beside the run folder: %s", left);
+    cr_assert_eq(rel_sh("rm -rf '%s'", dir), 0);
+}
+
+Test(reliability, sweep_stopped_by_sighup_leaves_the_folder_as_it_was)
+{
+    rel_stop_sweep(SIGHUP);
+}
+
+Test(reliability, sweep_stopped_by_sigquit_leaves_the_folder_as_it_was)
+{
+    rel_stop_sweep(SIGQUIT);
+}
+
 /* ---- 5. workers die with their sweep; the next sweep clears up ---- */
 
 Test(reliability, workers_die_with_a_killed_sweep_and_the_next_sweep_clears_up)

@@ -76,13 +76,16 @@ static void run_on_stop(int sig)
     _exit(128 + sig);
 }
 
-/* block = 1: hold SIGINT and SIGTERM back; 0: let them in, to run_on_stop. */
+/* The signals that stop a run in order: ^C, kill, a closed terminal, ^\. */
+static const int run_stop_sigs[] = {SIGINT, SIGTERM, SIGHUP, SIGQUIT};
+
+/* block = 1: hold the stop signals back; 0: let them in, to run_on_stop. */
 static void run_stops(int block)
 {
     sigset_t set;
     sigemptyset(&set);
-    sigaddset(&set, SIGINT);
-    sigaddset(&set, SIGTERM);
+    for (size_t k = 0; k < sizeof run_stop_sigs / sizeof *run_stop_sigs; k++)
+        sigaddset(&set, run_stop_sigs[k]);
     if (block) {
         sigprocmask(SIG_BLOCK, &set, NULL);
         return;
@@ -91,8 +94,8 @@ static void run_stops(int block)
     memset(&sa, 0, sizeof sa);
     sa.sa_handler = run_on_stop;
     sigemptyset(&sa.sa_mask);
-    sigaction(SIGINT, &sa, NULL);
-    sigaction(SIGTERM, &sa, NULL);
+    for (size_t k = 0; k < sizeof run_stop_sigs / sizeof *run_stop_sigs; k++)
+        sigaction(run_stop_sigs[k], &sa, NULL);
     sigprocmask(SIG_UNBLOCK, &set, NULL);
 }
 

@@ -30,6 +30,10 @@
 
 static volatile sig_atomic_t sweep_stop;
 
+/* The signals that stop a sweep in order: ^C, kill, a closed terminal, ^\. */
+static const int sweep_stop_sigs[] = {SIGINT, SIGTERM, SIGHUP, SIGQUIT};
+enum { SWEEP_NSTOPS = sizeof sweep_stop_sigs / sizeof *sweep_stop_sigs };
+
 static void sweep_on_signal(int sig)
 {
     sweep_stop = sig;
@@ -65,7 +69,7 @@ static void sweep_child_write_failed(void)
     _exit(e > 0 && e <= SWEEP_ERRNO_MAX ? SWEEP_EXIT_WRITE + e : SWEEP_EXIT_WRITE);
 }
 
-/* The worker starts with SIGINT and SIGTERM blocked (see sweep_spawn) and
+/* The worker starts with the stop signals blocked (see sweep_spawn) and
  * takes the default actions before unblocking them, so a stop the parent
  * sends in the first instant of the worker's life still ends it. It is
  * killed when the sweep dies, however the sweep dies (kill -9 included),
@@ -75,8 +79,8 @@ static void sweep_child(const pb_case_spec *spec, int index, const char *work, c
 {
     if (prctl(PR_SET_PDEATHSIG, SIGKILL) || getppid() != parent)
         _exit(1);
-    signal(SIGINT, SIG_DFL);
-    signal(SIGTERM, SIG_DFL);
+    for (int k = 0; k < SWEEP_NSTOPS; k++)
+        signal(sweep_stop_sigs[k], SIG_DFL);
     signal(SIGCHLD, SIG_DFL);
     sigprocmask(SIG_SETMASK, unblocked, NULL);
     char id[PB_CASE_ID_MAX], path[4300];
@@ -201,7 +205,7 @@ typedef struct sweep_state {
     pb_run_out *out;     /* the run folder, locked; the run is written to out->stage */
     const char *dir;     /* out->stage */
     const pb_sweep_options *opt;
-    struct sigaction old_int, old_term, old_chld;
+    struct sigaction old_stop[SWEEP_NSTOPS], old_chld;
     sigset_t stops;      /* blocked in the loop, taken only in sigsuspend */
     sigset_t unblocked;  /* the caller's mask, restored after the loop and in workers */
     sigset_t waiting;    /* the caller's mask with the stops let through */
@@ -227,24 +231,23 @@ static void sweep_signals_install(sweep_state *s)
     memset(&on_chld, 0, sizeof on_chld);
     on_chld.sa_handler = sweep_on_child; /* only to wake sigsuspend */
     sigemptyset(&on_chld.sa_mask);
-    sigaction(SIGINT, &sa, &s->old_int);
-    sigaction(SIGTERM, &sa, &s->old_term);
     sigaction(SIGCHLD, &on_chld, &s->old_chld);
     sigemptyset(&s->stops);
-    sigaddset(&s->stops, SIGINT);
-    sigaddset(&s->stops, SIGTERM);
     sigaddset(&s->stops, SIGCHLD);
     sigprocmask(SIG_SETMASK, NULL, &s->unblocked);
     s->waiting = s->unblocked;
-    sigdelset(&s->waiting, SIGINT);
-    sigdelset(&s->waiting, SIGTERM);
     sigdelset(&s->waiting, SIGCHLD);
+    for (int k = 0; k < SWEEP_NSTOPS; k++) {
+        sigaction(sweep_stop_sigs[k], &sa, &s->old_stop[k]);
+        sigaddset(&s->stops, sweep_stop_sigs[k]);
+        sigdelset(&s->waiting, sweep_stop_sigs[k]);
+    }
 }
 
 static void sweep_signals_restore(const sweep_state *s)
 {
-    sigaction(SIGINT, &s->old_int, NULL);
-    sigaction(SIGTERM, &s->old_term, NULL);
+    for (int k = 0; k < SWEEP_NSTOPS; k++)
+        sigaction(sweep_stop_sigs[k], &s->old_stop[k], NULL);
     sigaction(SIGCHLD, &s->old_chld, NULL);
 }
 

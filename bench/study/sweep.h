@@ -21,10 +21,11 @@ typedef struct pb_sweep_options {
  * summary.json, series/), staged whole and swapped in at the end. Returns
  * 0, -1 when the run cannot be written, a worker among them (message
  * printed with the system's reason, the folder as it was), or -2 when
- * interrupted by SIGINT or SIGTERM (workers stopped, the folder as it was). */
+ * interrupted by SIGINT, SIGTERM, SIGHUP or SIGQUIT (workers stopped, the
+ * folder as it was). */
 int pb_sweep_run(const pb_case_list *list, pb_run_out *out, const pb_sweep_options *opt);
 
-/* The signal that interrupted the last pb_sweep_run (SIGINT or SIGTERM). */
+/* The signal that interrupted the last pb_sweep_run. */
 int pb_sweep_stop_signal(void);
 
 /* The identity of a sweep: its case count and a hash of its ordered case
