@@ -21,46 +21,98 @@ static void select_help(FILE *f)
 {
     fprintf(f,
 "usage: propbench select (--problem NAME | --problem-file FILE [--case NAME])\n"
-"                        (--orbits N | --horizon-s S)\n"
-"                        [--max-pos-err X | --max-pos-err-m M] [--max-energy-err E]\n"
+"                        [--orbits N | --horizon-s S] REQUIREMENT.. [--margin F]\n"
 "                        [--methods M,..] [--formulation F] [--eval-cost-us C]\n"
-"                        [--out FILE] [--quiet]\n\n"
+"                        [-j N] [--out FILE] [--quiet]\n\n"
 "Find, for each method, the largest step (fixed-step methods, as steps per\n"
-"orbit) or loosest tolerance (adaptive ones) whose run meets the requirement\n"
-"over the horizon: a coarse sweep, bisection in log space, then confirmation\n"
-"(the answer and a 10%% finer neighbour must pass). Ranked by evaluations; the\n"
-"projected cost is evaluations x C microseconds + steps x measured ns/step.\n"
-"  --max-pos-err X     maximum position error, problem length units\n"
-"  --max-pos-err-m M   the same in metres (km-s problems)\n"
-"  --max-energy-err E  maximum relative energy error\n"
+"orbit and seconds) or loosest tolerance (adaptive ones) whose run meets every\n"
+"requirement over the horizon (default: the problem's own). A coarse ladder\n"
+"that follows the observed order, a secant in log error against log step\n"
+"between its bracketing rungs, then confirmation (the answer and a 10%%\n"
+"finer neighbour must pass). Ranked by projected cost when --eval-cost-us is\n"
+"given, by evaluations otherwise; the projected cost is evaluations x C\n"
+"microseconds + steps x measured ns/step.\n"
+"Requirements (any combination; X in problem units, M in metres and m/s for\n"
+"km-s problems); radial, along- and cross-track in the true orbit's frame:\n"
+"  --max-pos-err X | --max-pos-err-m M        largest position error\n"
+"  --max-vel-err X | --max-vel-err-m M        largest velocity error\n"
+"  --max-radial-err X | --max-radial-err-m M  largest |radial| error\n"
+"  --max-along-err X | --max-along-err-m M    largest |along-track| error\n"
+"  --max-cross-err X | --max-cross-err-m M    largest |cross-track| error\n"
+"  --max-energy-err E  largest relative energy error\n"
+"  --max-angmom-err E  largest relative angular-momentum error\n"
+"  --margin F          each bound must be met divided by 1 + F (default 0)\n"
 "  --formulation F     cartesian, sundman or ks: the equations the methods\n"
 "                      integrate (methods that cannot take it are not searched)\n"
 "  --eval-cost-us C    cost of one evaluation of YOUR force model (default 1)\n"
+"  -j N                methods searched at once (default: the cores, %ld)\n"
 "  --out FILE          selection JSON (default results/runs/select-<problem>.json)\n"
-"Exit status 1 when no method meets the requirement.\n");
+"Exit status 1 when no method meets the requirement.\n", sysconf(_SC_NPROCESSORS_ONLN));
 }
 
-enum { SE_PROBLEM = 400, SE_FILE, SE_CASE, SE_ORBITS, SE_HORIZON, SE_POS, SE_POSM, SE_EN,
-       SE_METHODS, SE_COST, SE_OUT, SE_QUIET, SE_HELP, SE_FORM };
+/* The requirements with a metre form: position, velocity, RIC parts. */
+enum { RQ_POS, RQ_VEL, RQ_RAD, RQ_ALONG, RQ_CROSS, RQ_N };
+static const char *const rq_opt[RQ_N] = {"--max-pos-err", "--max-vel-err", "--max-radial-err",
+                                         "--max-along-err", "--max-cross-err"};
+static const char *const rq_words[RQ_N] = {"position", "velocity", "radial", "along-track",
+                                           "cross-track"};
 
-static int select_cmp(const void *a, const void *b)
-{
-    const pb_selection *x = a, *y = b;
-    if (x->found != y->found)
-        return y->found - x->found;
-    if (!x->found)
-        return 0;
-    return (x->confirmed.evals > y->confirmed.evals) - (x->confirmed.evals < y->confirmed.evals);
-}
+enum { SE_PROBLEM = 400, SE_FILE, SE_CASE, SE_ORBITS, SE_HORIZON, SE_EN, SE_ANG, SE_MARGIN,
+       SE_METHODS, SE_COST, SE_OUT, SE_QUIET, SE_HELP, SE_FORM, SE_JOBS, SE_RQ };
 
 /* What the command line asks for; numbers left 0 were not given. */
 typedef struct select_options {
     const char *problem, *file, *case_name, *out;
     char *methods;
-    double orbits, horizon, pos, pos_m, en, cost;
+    double orbits, horizon, en, ang, margin, cost;
+    double bound[RQ_N], bound_m[RQ_N];  /* X forms, -m forms */
+    int cost_given;
+    long jobs;
     int quiet;
     int form;                 /* -1: the problem's own */
 } select_options;
+
+/* A number option's value into *dst: positive, or (cost, margin) >= 0;
+ * 0, or the exit status of the error it printed. */
+static int select_number(const char *name, const char *arg, double *dst, int zero_ok)
+{
+    if (pb_cli_double("select", name, arg, dst))
+        return PB_EXIT_USAGE;
+    if (zero_ok ? !(*dst >= 0) : !(*dst > 0))
+        return pb_cli_error("select", "%s must be %s, got '%s'", name, zero_ok ? ">= 0" : "positive", arg);
+    return 0;
+}
+
+/* One option that is not a requirement bound; -1 when it was not one. */
+static int select_option(int c, select_options *o)
+{
+    switch (c) {
+    case SE_PROBLEM: o->problem = optarg; return 0;
+    case SE_FILE: o->file = optarg; return 0;
+    case SE_CASE: o->case_name = optarg; return 0;
+    case SE_METHODS: o->methods = optarg; return 0;
+    case SE_OUT: o->out = optarg; return 0;
+    case SE_QUIET: o->quiet = 1; return 0;
+    case SE_FORM: return pb_cli_formulation("select", optarg, &o->form) ? PB_EXIT_USAGE : 0;
+    case SE_JOBS:
+        if (pb_cli_long("select", "-j", optarg, &o->jobs)) return PB_EXIT_USAGE;
+        if (o->jobs < 1 || o->jobs > 64) return pb_cli_error("select", "-j must be in 1..64, got '%s'", optarg);
+        return 0;
+    case SE_ORBITS: return select_number("--orbits", optarg, &o->orbits, 0);
+    case SE_HORIZON: return select_number("--horizon-s", optarg, &o->horizon, 0);
+    case SE_EN: return select_number("--max-energy-err", optarg, &o->en, 0);
+    case SE_ANG: return select_number("--max-angmom-err", optarg, &o->ang, 0);
+    case SE_MARGIN: return select_number("--margin", optarg, &o->margin, 1);
+    case SE_COST: o->cost_given = 1; return select_number("--eval-cost-us", optarg, &o->cost, 1);
+    }
+    if (c >= SE_RQ && c < SE_RQ + 2 * RQ_N) {
+        int k = (c - SE_RQ) / 2, metres = (c - SE_RQ) % 2;
+        char name[40];
+        snprintf(name, sizeof name, "%s%s", rq_opt[k], metres ? "-m" : "");
+        return select_number(name, optarg, metres ? &o->bound_m[k] : &o->bound[k], 0);
+    }
+    return -1;
+}
 
 /* Parse argv into o. Returns -1 to go on, or an exit status to return at
  * once (0 after --help, 2 after an error, which it has printed). */
@@ -69,57 +121,52 @@ static int select_parse(int argc, char **argv, select_options *o)
     static const struct option opts[] = {
         {"problem", required_argument, 0, SE_PROBLEM}, {"problem-file", required_argument, 0, SE_FILE},
         {"case", required_argument, 0, SE_CASE}, {"orbits", required_argument, 0, SE_ORBITS},
-        {"horizon-s", required_argument, 0, SE_HORIZON}, {"max-pos-err", required_argument, 0, SE_POS},
-        {"max-pos-err-m", required_argument, 0, SE_POSM}, {"max-energy-err", required_argument, 0, SE_EN},
+        {"horizon-s", required_argument, 0, SE_HORIZON},
+        {"max-pos-err", required_argument, 0, SE_RQ + 2 * RQ_POS},
+        {"max-pos-err-m", required_argument, 0, SE_RQ + 2 * RQ_POS + 1},
+        {"max-vel-err", required_argument, 0, SE_RQ + 2 * RQ_VEL},
+        {"max-vel-err-m", required_argument, 0, SE_RQ + 2 * RQ_VEL + 1},
+        {"max-radial-err", required_argument, 0, SE_RQ + 2 * RQ_RAD},
+        {"max-radial-err-m", required_argument, 0, SE_RQ + 2 * RQ_RAD + 1},
+        {"max-along-err", required_argument, 0, SE_RQ + 2 * RQ_ALONG},
+        {"max-along-err-m", required_argument, 0, SE_RQ + 2 * RQ_ALONG + 1},
+        {"max-cross-err", required_argument, 0, SE_RQ + 2 * RQ_CROSS},
+        {"max-cross-err-m", required_argument, 0, SE_RQ + 2 * RQ_CROSS + 1},
+        {"max-energy-err", required_argument, 0, SE_EN}, {"max-angmom-err", required_argument, 0, SE_ANG},
+        {"margin", required_argument, 0, SE_MARGIN},
         {"methods", required_argument, 0, SE_METHODS}, {"eval-cost-us", required_argument, 0, SE_COST},
         {"out", required_argument, 0, SE_OUT}, {"quiet", no_argument, 0, SE_QUIET},
-        {"formulation", required_argument, 0, SE_FORM},
+        {"formulation", required_argument, 0, SE_FORM}, {"jobs", required_argument, 0, SE_JOBS},
         {"help", no_argument, 0, SE_HELP}, {0, 0, 0, 0}};
     memset(o, 0, sizeof *o);
     o->cost = 1;
     o->form = -1;
+    o->jobs = sysconf(_SC_NPROCESSORS_ONLN);
+    if (o->jobs < 1)
+        o->jobs = 1;
     optind = 1;
     opterr = 0;
     int c;
-    while ((c = getopt_long(argc, argv, ":", opts, NULL)) != -1) {
-        double *dst = NULL;
-        const char *name = NULL;
-        switch (c) {
-        case SE_PROBLEM: o->problem = optarg; break;
-        case SE_FILE: o->file = optarg; break;
-        case SE_CASE: o->case_name = optarg; break;
-        case SE_METHODS: o->methods = optarg; break;
-        case SE_OUT: o->out = optarg; break;
-        case SE_QUIET: o->quiet = 1; break;
-        case SE_FORM:
-            if (pb_cli_formulation("select", optarg, &o->form)) return PB_EXIT_USAGE;
+    while ((c = getopt_long(argc, argv, ":j:", opts, NULL)) != -1) {
+        int rc = select_option(c == 'j' ? SE_JOBS : c, o);
+        if (rc > 0)
+            return rc;
+        if (rc == 0)
             continue;
-        case SE_ORBITS: dst = &o->orbits; name = "--orbits"; break;
-        case SE_HORIZON: dst = &o->horizon; name = "--horizon-s"; break;
-        case SE_POS: dst = &o->pos; name = "--max-pos-err"; break;
-        case SE_POSM: dst = &o->pos_m; name = "--max-pos-err-m"; break;
-        case SE_EN: dst = &o->en; name = "--max-energy-err"; break;
-        case SE_COST: dst = &o->cost; name = "--eval-cost-us"; break;
-        case SE_HELP: select_help(stdout); return PB_EXIT_OK;
-        case ':': return pb_cli_error("select", "option %s needs a value", argv[optind - 1]);
-        default: return pb_cli_error("select", "unknown option '%s' (see propbench select --help)", argv[optind - 1]);
+        if (c == SE_HELP) {
+            select_help(stdout);
+            return PB_EXIT_OK;
         }
-        if (dst) {
-            if (pb_cli_double("select", name, optarg, dst))
-                return PB_EXIT_USAGE;
-            /* a cost may be 0 (no force-model cost in the projection); nothing else may */
-            if (!(*dst > 0) && dst != &o->cost)
-                return pb_cli_error("select", "%s must be positive, got '%s'", name, optarg);
-            if (!(*dst >= 0))
-                return pb_cli_error("select", "%s must be >= 0, got '%s'", name, optarg);
-        }
+        if (c == ':')
+            return pb_cli_error("select", "option %s needs a value", argv[optind - 1]);
+        return pb_cli_error("select", "unknown option '%s' (see propbench select --help)", argv[optind - 1]);
     }
     if (optind < argc)
         return pb_cli_error("select", "unexpected argument '%s'", argv[optind]);
     return -1;
 }
 
-/* The horizon option as given, for messages and the reproducing command. */
+/* The horizon option, for messages and the reproducing command. */
 static const char *select_horizon_option(const select_options *o)
 {
     return o->orbits > 0 ? "--orbits" : "--horizon-s";
@@ -130,11 +177,64 @@ static double select_horizon_value(const select_options *o)
     return o->orbits > 0 ? o->orbits : o->horizon;
 }
 
+/* The horizon: as given, or the problem's own (a problem file's orbits or
+ * horizon_s); 0, or the exit status of the error it printed. */
+static int select_horizon(select_options *o, const pb_problem *p)
+{
+    if (o->orbits > 0 && o->horizon > 0)
+        return pb_cli_error("select", "give --orbits N or --horizon-s S, not both");
+    if (!(o->orbits > 0) && !(o->horizon > 0)) {
+        if (p->default_horizon_s > 0)
+            o->horizon = p->default_horizon_s;
+        else if (p->period > 0 && p->default_orbits > 0)
+            o->orbits = p->default_orbits;
+        else
+            return pb_cli_error("select", "problem '%s' sets no horizon: give --orbits N or --horizon-s S",
+                                p->name);
+    }
+    if (o->orbits > PB_CLI_ORBITS_MAX)
+        return pb_cli_error("select", "--orbits must be in (0, %g], got '%.6g'", PB_CLI_ORBITS_MAX, o->orbits);
+    if (o->orbits > 0 && !(p->period > 0))
+        return pb_cli_error("select", "problem '%s' has no period: give --horizon-s", p->name);
+    return 0;
+}
+
+/* The bounds into req, in problem units; 0, or the exit status of the
+ * error it printed. */
+static int select_bounds(const select_options *o, const pb_problem *p, pb_requirement *req)
+{
+    double *dst[RQ_N] = {&req->max_pos_err, &req->max_vel_err, &req->max_radial, &req->max_along,
+                         &req->max_cross};
+    int any = 0;
+    for (int k = 0; k < RQ_N; k++) {
+        if (o->bound[k] > 0 && o->bound_m[k] > 0)
+            return pb_cli_error("select", "give %s or %s-m, not both", rq_opt[k], rq_opt[k]);
+        if (o->bound_m[k] > 0 && p->units != PB_UNITS_KM_S)
+            return pb_cli_error("select", "%s-m needs a problem in km (problem '%s' is normalized)",
+                                rq_opt[k], p->name);
+        *dst[k] = o->bound[k] > 0 ? o->bound[k] : o->bound_m[k] * 1e-3;
+        any |= *dst[k] > 0;
+    }
+    req->max_energy_rel = o->en;
+    req->max_angmom_rel = o->ang;
+    req->margin = o->margin;
+    if (!any && !(o->en > 0) && !(o->ang > 0))
+        return pb_cli_error("select", "give a requirement: --max-pos-err[-m], --max-vel-err[-m], "
+                            "--max-radial-err[-m], --max-along-err[-m], --max-cross-err[-m], "
+                            "--max-energy-err or --max-angmom-err");
+    if (o->en > 0 && !p->energy)
+        return pb_cli_error("select", "problem '%s' has no energy integral", p->name);
+    if (o->ang > 0 && !p->angmom)
+        return pb_cli_error("select", "problem '%s' has no angular-momentum integral", p->name);
+    return 0;
+}
+
 /* The problem, horizon and requirement into base and req, each checked
  * against the others; 0, or the exit status of the error it printed. */
-static int select_setup(const select_options *o, pb_case_spec *base, pb_requirement *req)
+static int select_setup(select_options *o, pb_case_spec *base, pb_requirement *req)
 {
     pb_case_spec_default(base);
+    memset(req, 0, sizeof *req);
     if (!o->problem == !o->file)
         return pb_cli_error("select", "give exactly one of --problem NAME or --problem-file FILE");
     if (o->problem ? pb_cli_problem("select", o->problem, &base->problem)
@@ -142,25 +242,11 @@ static int select_setup(const select_options *o, pb_case_spec *base, pb_requirem
         return PB_EXIT_USAGE;
     if (o->form >= 0)
         base->problem.formulation = (pb_formulation)o->form;
-    const pb_problem *p = &base->problem;
-    if (!o->orbits == !o->horizon)
-        return pb_cli_error("select", "give exactly one of --orbits N or --horizon-s S");
-    if (o->orbits > PB_CLI_ORBITS_MAX)
-        return pb_cli_error("select", "--orbits must be in (0, %g], got '%.6g'", PB_CLI_ORBITS_MAX, o->orbits);
-    if (o->orbits > 0 && !(p->period > 0))
-        return pb_cli_error("select", "problem '%s' has no period: give --horizon-s", p->name);
-    if (o->pos > 0 && o->pos_m > 0)
-        return pb_cli_error("select", "give --max-pos-err or --max-pos-err-m, not both");
-    if (o->pos_m > 0 && p->units != PB_UNITS_KM_S)
-        return pb_cli_error("select", "--max-pos-err-m needs a problem in km (problem '%s' is normalized)", p->name);
-    req->max_pos_err = o->pos > 0 ? o->pos : o->pos_m * 1e-3;
-    req->max_energy_rel = o->en;
-    if (!(req->max_pos_err > 0) && !(req->max_energy_rel > 0))
-        return pb_cli_error("select", "give a requirement: --max-pos-err, --max-pos-err-m or --max-energy-err");
-    if (req->max_energy_rel > 0 && !p->energy)
-        return pb_cli_error("select", "problem '%s' has no energy integral", p->name);
+    int rc;
+    if ((rc = select_horizon(o, &base->problem)) || (rc = select_bounds(o, &base->problem, req)))
+        return rc;
     base->orbits = o->orbits;
-    base->horizon_s = o->horizon;
+    base->horizon_s = o->orbits > 0 ? 0 : o->horizon;
     base->eval_cost_us = o->cost;
     /* linear samples stay at the default `run` takes, so the printed run
      * command reproduces the answer */
@@ -187,9 +273,21 @@ static int select_check_horizon(const select_options *o, const pb_case_spec *bas
     return 0;
 }
 
+/* A method left out of the search, for the JSON: reason "refused". */
+static void select_refuse(pb_selection *r, const pb_method_type *m, const char *why)
+{
+    memset(r, 0, sizeof *r);
+    r->method = m;
+    r->order = NAN;
+    r->reason = "refused";
+    snprintf(r->note, sizeof r->note, "%s", why);
+}
+
 /* The methods to search into list (at most 64): those named, or every one
- * that can run the problem. Returns how many, or -1 after a message. */
-static int select_methods(const select_options *o, const pb_problem *p, const pb_method_type **list)
+ * that can run the problem; the others into refused[*nref]. Returns how
+ * many to search, or -1 after a message. */
+static int select_methods(const select_options *o, const pb_problem *p, const pb_method_type **list,
+                          pb_selection *refused, int *nref)
 {
     int n = 0;
     if (o->methods) {
@@ -212,10 +310,12 @@ static int select_methods(const select_options *o, const pb_problem *p, const pb
                          pb_formulation_name(p->formulation), nf);
             return -1;
         }
+        char why[256];
         if (nf) {
+            snprintf(why, sizeof why, "cannot take formulation '%s'", pb_formulation_name(p->formulation));
+            select_refuse(&refused[(*nref)++], list[i], why);
             if (!o->quiet)
-                printf("not searched: %s (cannot take formulation '%s')\n", list[i]->name,
-                       pb_formulation_name(p->formulation));
+                printf("not searched: %s (%s)\n", list[i]->name, why);
             continue;
         }
         if (pb_method_fits(list[i], p)) {
@@ -223,12 +323,12 @@ static int select_methods(const select_options *o, const pb_problem *p, const pb
             continue;
         }
         /* a method asked for by name that cannot run here is bad input */
+        pb_method_fit_error(list[i], p, why, sizeof why);
         if (o->methods) {
-            char why[256];
-            pb_method_fit_error(list[i], p, why, sizeof why);
             pb_cli_error("select", "%s", why);
             return -1;
         }
+        select_refuse(&refused[(*nref)++], list[i], why);
         /* one the search leaves out is said, so a short table is not a surprise */
         if (!o->quiet)
             printf("not searched: %s (written for r'' = a(r); problem '%s' depends on velocity)\n",
@@ -286,34 +386,72 @@ static void select_commands(const select_options *o, const pb_problem *p, pb_sel
     }
 }
 
-/* The ranking table: one row a method, found ones ranked first. */
-static void select_print_rows(const pb_selection *sel, int m, int km)
+/* The columns beyond position and energy error: the other bounds asked for. */
+typedef struct select_cols {
+    int n, km;
+    const char *head[6];
+    int which[6];   /* 0 vel, 1 radial, 2 along, 3 cross, 4 angmom */
+} select_cols;
+
+static void select_columns(const pb_requirement *req, int km, select_cols *c)
 {
-    printf("%4s %-15s %-18s %10s %12s %12s %10s %12s\n", "rank", "method", "setting", "evals",
-           km ? "pos err [m]" : "pos err", "energy err", "ns/step", "projected s");
+    c->n = 0;
+    c->km = km;
+    const double b[5] = {req->max_vel_err, req->max_radial, req->max_along, req->max_cross, req->max_angmom_rel};
+    const char *h[5] = {km ? "vel [m/s]" : "vel err", km ? "radial [m]" : "radial err",
+                        km ? "along [m]" : "along err", km ? "cross [m]" : "cross err", "angmom err"};
+    for (int k = 0; k < 5; k++)
+        if (b[k] > 0) {
+            c->head[c->n] = h[k];
+            c->which[c->n++] = k;
+        }
+}
+
+static double select_col_value(const select_cols *c, int k, const pb_select_answer *r)
+{
+    double u = c->km ? 1e3 : 1, v[5] = {u * r->vel_err_max, u * r->radial_max, u * r->along_max,
+                                        u * r->cross_max, r->angmom_rel_max};
+    if (r->below_floor && c->which[k] >= 1 && c->which[k] <= 3)
+        return NAN;
+    return v[c->which[k]];
+}
+
+/* The ranking table: one row a method, found ones ranked first. */
+static void select_print_rows(const pb_selection *sel, int m, const select_cols *c)
+{
+    int km = c->km;
+    printf("%4s %-16s %-18s %10s %10s %12s", "rank", "method", "setting", km ? "step [s]" : "step",
+           "evals", km ? "pos err [m]" : "pos err");
+    for (int k = 0; k < c->n; k++)
+        printf(" %12s", c->head[k]);
+    printf(" %12s %10s %12s\n", "energy err", "ns/step", "projected s");
     int rank = 0;
     for (int i = 0; i < m; i++) {
         const pb_selection *s = &sel[i];
-        char setting[40];
+        char setting[40], step[24] = "-";
         if (!s->found) {
-            printf("   - %-15s %s\n", s->method->name, s->note[0] ? s->note : "requirement not met");
+            printf("   - %-16s %s\n", s->method->name, s->note[0] ? s->note : "requirement not met");
             continue;
         }
-        if (s->method->flags & PB_KIND_FIXED)
+        const pb_select_answer *r = &s->confirmed;
+        if (s->method->flags & PB_KIND_FIXED) {
             snprintf(setting, sizeof setting, "%d steps/orbit", s->steps_per_orbit);
-        else
+            snprintf(step, sizeof step, "%.4g", r->step_s);
+        } else {
             snprintf(setting, sizeof setting, "tol %.3g", s->tolerance);
-        const pb_case_result *r = &s->confirmed;
+        }
         double pe = r->below_floor ? (double)NAN : (km ? 1e3 * r->pos_err_max : r->pos_err_max);
         char mname[40];
         snprintf(mname, sizeof mname, "%s%s", s->method->name, (s->method->flags & PB_FROM_GSL) ? "*" : "");
-        printf("%4d %-15s %-18s %10ld %12.3e %12.3e %10.1f %12.4g\n", ++rank, mname,
-               setting, r->evals, pe, r->energy_rel_max, r->ns_per_step, s->projected_s);
+        printf("%4d %-16s %-18s %10s %10ld %12.3e", ++rank, mname, setting, step, r->evals, pe);
+        for (int k = 0; k < c->n; k++)
+            printf(" %12.3e", select_col_value(c, k, r));
+        printf(" %12.3e %10.1f %12.4g\n", r->energy_rel_max, r->ns_per_step, s->projected_s);
     }
 }
 
 /* The notes under the table: GSL marks, the verdict. */
-static void select_print_notes(const pb_selection *sel, int m, int found)
+static void select_print_notes(const pb_selection *sel, int m, int found, int by_cost)
 {
     int gsl_shown = 0;
     for (int i = 0; i < m; i++)
@@ -323,55 +461,74 @@ static void select_print_notes(const pb_selection *sel, int m, int found)
     if (!found)
         printf("NO METHOD meets the requirement over this horizon.\n");
     else
-        printf("cheapest by evaluations: %s; reproduce it with\n  %s\n"
+        printf("cheapest by %s: %s; reproduce it with\n  %s\n"
                "Benchmarks on idealised problems do not validate an operational propagator;\n"
                "confirm with the mission's own verification.\n",
-               sel[0].method->name, sel[0].command);
+               by_cost ? "projected cost" : "evaluations", sel[0].method->name, sel[0].command);
+}
+
+/* The requirement as one line: every bound, the margin, the cost. */
+static void select_print_head(const select_options *o, const pb_problem *p, const pb_requirement *req)
+{
+    int km = p->units == PB_UNITS_KM_S;
+    printf("selection for %s over %.6g %s", p->name, select_horizon_value(o),
+           o->orbits > 0 ? "orbits" : km ? "s" : "TU");
+    const double b[RQ_N] = {req->max_pos_err, req->max_vel_err, req->max_radial, req->max_along,
+                            req->max_cross};
+    for (int k = 0; k < RQ_N; k++)
+        if (b[k] > 0)
+            printf(", %s error <= %.3g %s", rq_words[k], km ? 1e3 * b[k] : b[k],
+                   k == RQ_VEL ? (km ? "m/s" : "DU/TU") : (km ? "m" : "DU"));
+    if (req->max_energy_rel > 0)
+        printf(", energy error <= %.3g", req->max_energy_rel);
+    if (req->max_angmom_rel > 0)
+        printf(", angular-momentum error <= %.3g", req->max_angmom_rel);
+    if (req->margin > 0)
+        printf(", margin %.3g (each bound / %.4g)", req->margin, 1 + req->margin);
+    printf(", evaluation cost %.3g us\n", o->cost);
 }
 
 static void select_print(const select_options *o, const pb_problem *p, const pb_requirement *req,
                          const pb_selection *sel, int m, int found)
 {
-    int km = p->units == PB_UNITS_KM_S;
-    printf("selection for %s over %.6g %s", p->name, select_horizon_value(o),
-           o->orbits > 0 ? "orbits" : km ? "s" : "TU");
-    if (req->max_pos_err > 0)
-        printf(", position error <= %.3g %s", km ? 1e3 * req->max_pos_err : req->max_pos_err, km ? "m" : "DU");
-    if (req->max_energy_rel > 0)
-        printf(", energy error <= %.3g", req->max_energy_rel);
-    printf(", evaluation cost %.3g us\n", o->cost);
-    select_print_rows(sel, m, km);
-    select_print_notes(sel, m, found);
+    select_cols c;
+    select_columns(req, p->units == PB_UNITS_KM_S, &c);
+    select_print_head(o, p, req);
+    select_print_rows(sel, m, &c);
+    select_print_notes(sel, m, found, o->cost_given);
+}
+
+static void select_progress(void *ctx, int done, const char *name)
+{
+    pb_progress_update(ctx, done, name);
 }
 
 /* Search every method, rank, print and write the selection; the exit
- * status: 0 when a method meets the requirement, 1 when none does. */
+ * status: 0 when a method meets the requirement, 1 when none does. The
+ * methods refused for the problem (refused[0..nref)) go into the JSON. */
 static int select_run(const select_options *o, const pb_case_spec *base, const pb_requirement *req,
-                      const pb_method_type *const *list, int m, const char *path)
+                      const pb_method_type *const *list, int m, const pb_selection *refused, int nref,
+                      const char *path)
 {
-    pb_selection *sel = calloc((size_t)(m > 0 ? m : 1), sizeof *sel);
+    pb_selection *sel = calloc((size_t)(m + nref > 0 ? m + nref : 1), sizeof *sel);
     if (!sel)
         return pb_cli_error("select", "out of memory");
     pb_progress prog;
     pb_progress_start(&prog, pb_cli_progress_wanted(o->quiet), m, "methods");
-    for (int i = 0; i < m; i++) {
-        pb_progress_update(&prog, i, list[i]->name);
-        if (pb_select_method(base, list[i], req, &sel[i]) < 0)
-            snprintf(sel[i].note, sizeof sel[i].note, "the case could not be run");
-    }
+    pb_select_all(base, req, list, m, (int)o->jobs, sel, select_progress, &prog);
     pb_progress_end(&prog);
     select_commands(o, &base->problem, sel, m);
-    qsort(sel, (size_t)m, sizeof *sel, select_cmp);
+    pb_selection_rank(sel, m, o->cost_given);
     int found = 0;
     for (int i = 0; i < m; i++)
         found += sel[i].found;
     if (!o->quiet)
         select_print(o, &base->problem, req, sel, m, found);
-    json_t *doc = pb_selection_json(base, req, sel, m);
+    for (int i = 0; i < nref; i++)
+        sel[m + i] = refused[i];
+    json_t *doc = pb_selection_json(base, req, sel, m + nref, o->cost_given);
     int w = pb_json_write_atomic(path, doc), e = errno;
     json_decref(doc);
-    for (int i = 0; i < m; i++)
-        pb_selection_free(&sel[i]);
     free(sel);
     if (w)
         return pb_cli_error("select", "cannot write %s: %s", path, strerror(e));
@@ -391,11 +548,13 @@ int pb_cli_select(int argc, char **argv)
     if ((rc = select_setup(&o, &base, &req)) || (rc = select_check_horizon(&o, &base)))
         return rc;
     const pb_method_type *list[64];
-    int m = select_methods(&o, &base.problem, list);
+    pb_selection refused[64];
+    int nref = 0;
+    int m = select_methods(&o, &base.problem, list, refused, &nref);
     if (m < 0)
         return PB_EXIT_USAGE;
     char path[4096];
     if ((rc = select_out_path(&o, &base.problem, path, sizeof path)))
         return rc;
-    return select_run(&o, &base, &req, list, m, path);
+    return select_run(&o, &base, &req, list, m, refused, nref, path);
 }

@@ -1,36 +1,78 @@
 /* select.c - integrator selection by search and confirmation (see select.h).
- * Invariant of the search: lo is a setting known to fail (or none), hi one
- * known to pass; bisection narrows (lo, hi) in log space and the answer is
- * hi, which is then re-run with timing and checked against a neighbour. */
+ * The search runs on one axis of "fineness" x and keeps every run's outcome
+ * (memo), so no setting runs twice. Its answers are those of plain
+ * bisection whenever the error is monotone in x: the points it tests lie on
+ * the tree of settings bisection would test, and it stops only at a leaf
+ * of that tree whose coarser end fails and finer end passes; the observed
+ * order merely chooses which leaf to test first. */
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include "bench/study/select.h"
-#include "bench/study/suites.h"
-#include "bench/store/case_json.h"
 #include "bench/measure/harness.h"
 
 #define SELECT_MAX_SPO 1048576     /* 2^20 steps per orbit */
+#define SELECT_MEMO 128            /* settings one method's search may run */
+#define SELECT_STOP_FACTOR 2.0     /* stop when the order projects past 2x the last rung */
+#define SELECT_MAX_JUMP 3          /* rungs the ladder may skip at once */
+#define SELECT_MAX_MISSES 4        /* predictions that miss before plain bisection */
+
+/* One bound's ratio value / (bound / (1 + margin)); 0 when not required. */
+static double req_ratio(double value, double bound, double margin)
+{
+    if (!(bound > 0))
+        return 0;
+    double r = value / (bound / (1 + margin));
+    return isnan(r) ? (double)INFINITY : r;
+}
+
+/* The largest |radial|, |along| and |cross| over the metric grid. */
+static void select_components(const pb_case_result *res, double *rad, double *alo, double *crs)
+{
+    *rad = *alo = *crs = 0;
+    for (int k = 0; k < res->nsamples; k++) {
+        const pb_sample *s = &res->samples[k];
+        if (!s->in_metrics)
+            continue;
+        *rad = fmax(*rad, fabs(s->radial));
+        *alo = fmax(*alo, fabs(s->along));
+        *crs = fmax(*crs, fabs(s->cross));
+        if (isnan(s->radial) || isnan(s->along) || isnan(s->cross))
+            *rad = *alo = *crs = NAN;
+    }
+}
+
+double pb_requirement_ratio(const pb_requirement *req, const pb_case_result *res)
+{
+    if (res->status != PB_OK)
+        return INFINITY;
+    double F = req->margin, q = 0, rad, alo, crs;
+    /* below the reference floor a position error is known only to be under
+     * 10x the floor: that meets a bound at or above it, and no finer one */
+    double floor10 = 10 * res->truth_floor_max;
+    select_components(res, &rad, &alo, &crs);
+    if (res->below_floor) {
+        rad = alo = crs = floor10;
+    }
+    q = fmax(q, req_ratio(res->below_floor ? floor10 : res->pos_err_max, req->max_pos_err, F));
+    q = fmax(q, req_ratio(res->vel_err_max, req->max_vel_err, F));
+    q = fmax(q, req_ratio(rad, req->max_radial, F));
+    q = fmax(q, req_ratio(alo, req->max_along, F));
+    q = fmax(q, req_ratio(crs, req->max_cross, F));
+    q = fmax(q, req_ratio(res->energy_rel_max, req->max_energy_rel, F));
+    q = fmax(q, req_ratio(res->angmom_rel_max, req->max_angmom_rel, F));
+    return q;
+}
 
 int pb_requirement_met(const pb_requirement *req, const pb_case_result *res)
 {
-    if (res->status != PB_OK)
-        return 0;
-    /* below the reference floor the error is known only to be under 10x the
-     * floor: that meets a requirement at or above it, and no finer one */
-    if (req->max_pos_err > 0) {
-        if (res->below_floor ? !(req->max_pos_err >= 10 * res->truth_floor_max)
-                             : !(res->pos_err_max <= req->max_pos_err))
-            return 0;
-    }
-    if (req->max_energy_rel > 0 && !(res->energy_rel_max <= req->max_energy_rel))
-        return 0;
-    return 1;
+    return pb_requirement_ratio(req, res) <= 1;
 }
 
-/* The search runs on one axis for both kinds of method: "fineness" x grows
- * as the setting gets more accurate and more costly. Fixed-step methods:
- * x is the (whole) number of steps per orbit; adaptive ones: x = 1/tolerance. */
+/* The search's axis: fineness x grows as the setting gets more accurate and
+ * more costly. Fixed-step methods: x is the (whole) number of steps per
+ * orbit; adaptive ones: x = 1/tolerance. */
 typedef struct select_axis {
     int fixed;
     double first, grow, last;   /* coarse ladder: first, first*grow, ... <= last */
@@ -55,128 +97,409 @@ static double select_snap(const select_axis *ax, double x)
     return ax->fixed ? ceil(x - 1e-9) : 1.0 / select_tol(x);
 }
 
-/* Run one setting; 1 pass, 0 fail, -1 could not run. keep: hold the
- * result (with a timing pass) as the confirmed answer. */
-static int select_try(const pb_case_spec *base, const pb_method_type *m, const select_axis *ax,
-                      double x, const pb_requirement *req, pb_selection *out, int keep)
+/* One method's search: its settings run so far and their outcomes. */
+typedef struct select_state {
+    const pb_case_spec *base;
+    const pb_method_type *m;
+    const select_axis *ax;
+    const pb_requirement *req;
+    pb_selection *out;
+    int n;
+    double x[SELECT_MEMO], q[SELECT_MEMO];
+    signed char ok[SELECT_MEMO], usable[SELECT_MEMO]; /* usable: q measures the error */
+    double timed_x;            /* the setting out->confirmed holds (0: none) */
+} select_state;
+
+static int memo_find(const select_state *st, double x)
 {
-    pb_case_spec s = *base;
-    s.method = m;
+    for (int i = 0; i < st->n; i++)
+        if (st->x[i] == x)
+            return i;
+    return -1;
+}
+
+static void select_keep(select_state *st, double x, const pb_case_result *r)
+{
+    pb_select_answer *a = &st->out->confirmed;
+    memset(a, 0, sizeof *a);
+    a->steps = r->steps;
+    a->evals = r->evals;
+    a->pos_err_max = r->pos_err_max;
+    a->vel_err_max = r->vel_err_max;
+    select_components(r, &a->radial_max, &a->along_max, &a->cross_max);
+    a->energy_rel_max = r->energy_rel_max;
+    a->angmom_rel_max = r->angmom_rel_max;
+    a->truth_floor_max = r->truth_floor_max;
+    a->below_floor = r->below_floor;
+    a->ns_per_step = r->ns_per_step;
+    a->step_s = r->h;
+    snprintf(a->fingerprint, sizeof a->fingerprint, "%s", r->fingerprint);
+    st->timed_x = x;
+}
+
+/* Run setting x (once: later calls answer from the memo); 1 pass, 0 fail,
+ * -1 could not run. timed: run it with a timing pass and keep it as the
+ * answer's candidate (the answer's projected cost needs its ns per step). */
+static int select_try(select_state *st, double x, int timed)
+{
+    int i = memo_find(st, x);
+    if (i >= 0 && (!timed || st->timed_x == x))
+        return st->ok[i];
+    if (i < 0 && st->n == SELECT_MEMO)
+        return -1;
+    pb_case_spec s = *st->base;
+    s.method = st->m;
     s.repeats = 0; /* the search's trial runs need errors, not timings */
-    if (keep) {
-        /* the answer's projected cost needs its ns per step, so it is timed
-         * even when base asked for no timing pass */
+    if (timed) {
         pb_case_spec d;
         pb_case_spec_default(&d);
-        s.repeats = base->repeats > 0 ? base->repeats : d.repeats;
+        s.repeats = st->base->repeats > 0 ? st->base->repeats : d.repeats;
     }
-    if (ax->fixed)
+    if (st->ax->fixed)
         s.steps_per_orbit = (int)x;
     else
         s.tolerance = select_tol(x);
     pb_case_result r;
-    out->runs++;
+    st->out->runs++;
     if (pb_case_run(&s, &r))
         return -1;
-    int ok = pb_requirement_met(req, &r);
-    if (keep) {
-        pb_case_result_free(&out->confirmed);
-        out->confirmed = r;
-    } else {
-        pb_case_result_free(&r);
+    double q = pb_requirement_ratio(st->req, &r);
+    if (i < 0) {
+        i = st->n++;
+        st->x[i] = x;
+        st->q[i] = q;
+        st->ok[i] = q <= 1;
+        st->usable[i] = r.status == PB_OK && !r.saturated && !r.below_floor && isfinite(q) && q > 0;
     }
-    return ok;
+    if (timed)
+        select_keep(st, x, &r);
+    pb_case_result_free(&r);
+    return st->ok[i];
 }
 
-static int select_search(const pb_case_spec *base, const pb_method_type *m, const select_axis *ax,
-                         const pb_requirement *req, pb_selection *out)
+/* The observed order between settings x1 < x2 (memo entries i, j): the
+ * slope of -log q against log x; NaN when either ratio is not an error. */
+static double select_order(const select_state *st, int i, int j)
 {
-    double lo = 0, hi = 0; /* lo: coarser and failing (0: none), hi: passing */
-    int ok;
-    for (double x = ax->first; x <= ax->last * (1 + 1e-9); x *= ax->grow) {
-        if ((ok = select_try(base, m, ax, x, req, out, 0)) < 0)
-            return -1;
-        if (ok) {
-            hi = x;
-            break;
+    if (i < 0 || j < 0 || !st->usable[i] || !st->usable[j] || st->x[i] == st->x[j])
+        return NAN;
+    return -log(st->q[j] / st->q[i]) / log(st->x[j] / st->x[i]);
+}
+
+/* Where the ratio reaches 1 by the order between entries i and j, from j. */
+static double select_predict(const select_state *st, int i, int j, double *order)
+{
+    double p = select_order(st, i, j);
+    *order = p;
+    if (!(p > 0.25))
+        return NAN;
+    return st->x[j] * pow(st->q[j], 1.0 / p);
+}
+
+
+/* The rungs of the ladder: first * grow^k for k = 0 .. count - 1 (by
+ * repeated products, as the settings were always made). */
+static double select_rung(const select_axis *ax, int k)
+{
+    double x = ax->first;
+    while (k-- > 0)
+        x *= ax->grow;
+    return x;
+}
+
+static int select_rungs(const select_axis *ax)
+{
+    int n = 0;
+    for (double x = ax->first; x <= ax->last * (1 + 1e-9); x *= ax->grow)
+        n++;
+    return n;
+}
+
+/* After rung k failed: the rung to try next, or -1 when the observed order
+ * (over the last two usable failing rungs, not rising against the pair
+ * before) projects the answer past SELECT_STOP_FACTOR x the last rung. */
+static int select_next_rung(select_state *st, const int *at, int k, int nr)
+{
+    int j1 = -1, j2 = -1;
+    for (int j = k - 1; j >= 0 && j2 < 0; j--)
+        if (at[j] >= 0 && st->usable[at[j]]) {
+            if (j1 < 0) j1 = j; else j2 = j;
         }
-        lo = x;
+    double p, xs = j1 >= 0 ? select_predict(st, at[j1], at[k], &p) : (double)NAN;
+    if (!isfinite(xs)) /* an error that says nothing (saturated, failed): two rungs on */
+        return st->usable[at[k]] || k + 2 > nr - 1 ? k + 1 : k + 2;
+    double p_old = j2 >= 0 ? select_order(st, at[j2], at[j1]) : (double)NAN;
+    double top = select_rung(st->ax, nr - 1);
+    /* only a step budget stops the search: an adaptive method's error
+     * against its tolerance wanders too much to project (rkn12's slope is
+     * 0.5 at loose tolerances and near 1 at tight ones) */
+    if (st->ax->fixed && xs > SELECT_STOP_FACTOR * top && p <= 1.05 * p_old) {
+        st->out->order = p;
+        st->out->reason = "order_projection";
+        if (st->ax->fixed)
+            snprintf(st->out->note, sizeof st->out->note, "observed order %.2f projects %.3g steps per "
+                     "orbit, past the last rung the step budget allows (%.0f)", p, xs, top);
+        else
+            snprintf(st->out->note, sizeof st->out->note, "observed order %.2f projects tolerance %.2g, "
+                     "past the search's %.0e", p, 1 / xs, 1 / top);
+        return -1;
     }
-    if (!(hi > 0)) {
-        if (!(lo > 0))
-            snprintf(out->note, sizeof out->note, "the horizon is too long for the step budget "
-                     "(%.0g steps a case)", PB_SELECT_MAX_STEPS);
-        else if (ax->fixed)
+    int kj = k + 1;
+    while (kj < nr - 1 && kj < k + SELECT_MAX_JUMP && select_rung(st->ax, kj) < xs * (1 - 1e-9))
+        kj++;
+    return kj;
+}
+
+/* The coarse ladder: *lo the finest rung known to fail (0: none), *hi the
+ * coarsest known to pass (0: none), adjacent rungs when both are set.
+ * -1 when a case could not be run, 1 when it stopped on the order. */
+static int select_ladder(select_state *st, double *lo, double *hi)
+{
+    int nr = select_rungs(st->ax), at[64];
+    *lo = *hi = 0;
+    if (nr > 64)
+        nr = 64;
+    for (int j = 0; j < nr; j++)
+        at[j] = -1;
+    int k = 0;
+    while (k >= 0 && k < nr) {
+        double x = select_rung(st->ax, k);
+        int ok = select_try(st, x, 0);
+        if (ok < 0)
+            return -1;
+        at[k] = memo_find(st, x);
+        if (ok) {
+            *hi = x;
+            if (k == 0 || (at[k - 1] >= 0 && !st->ok[at[k - 1]])) {
+                *lo = k > 0 ? select_rung(st->ax, k - 1) : 0;
+                return 0;
+            }
+            k--; /* past the answer's rung: step back */
+            continue;
+        }
+        *lo = x;
+        if (k + 1 < nr && at[k + 1] >= 0) {
+            *hi = select_rung(st->ax, k + 1);
+            return 0;
+        }
+        if (k == nr - 1)
+            return 0;
+        if ((k = select_next_rung(st, at, k, nr)) < 0)
+            return 1;
+    }
+    return 0;
+}
+
+/* Descend the tree of settings bisection of (L, H) would test, taking a
+ * tested node by its outcome and an untested one by the prediction xs
+ * (passes when >= xs). probe: stop at the first untested node and return
+ * it (0 when the leaf is reached). The leaf is (*a, *b). */
+static double select_descend(const select_state *st, double L, double H, double xs, int probe,
+                             double *a, double *b)
+{
+    const select_axis *ax = st->ax;
+    double lo = L, hi = H;
+    while (hi > ax->close * lo) {
+        double mid = select_snap(ax, sqrt(lo * hi));
+        if (!(mid > lo && mid < hi))
+            break;
+        int i = memo_find(st, mid);
+        if (i < 0 && probe) {
+            *a = lo;
+            *b = hi;
+            return mid;
+        }
+        int pass = i >= 0 ? st->ok[i] : mid >= xs;
+        if (pass) hi = mid; else lo = mid;
+    }
+    *a = lo;
+    *b = hi;
+    return 0;
+}
+
+/* The tightest bracket the runs in [L, H] give: *ia the finest failing run
+ * below *ib, the coarsest passing one (memo indices, -1: none). */
+static void select_bracket(const select_state *st, double L, double H, int *ia, int *ib)
+{
+    *ia = *ib = -1;
+    for (int i = 0; i < st->n; i++)
+        if (st->ok[i] && st->x[i] >= L && st->x[i] <= H && (*ib < 0 || st->x[i] < st->x[*ib]))
+            *ib = i;
+    for (int i = 0; i < st->n && *ib >= 0; i++)
+        if (!st->ok[i] && st->x[i] >= L && st->x[i] < st->x[*ib] && (*ia < 0 || st->x[i] > st->x[*ia]))
+            *ia = i;
+}
+
+/* The secant's prediction over the bracket (ia, ib); when the same end
+ * has moved twice running, the other (stale) end's log ratio is halved
+ * (the Illinois rule), which keeps regula falsi from creeping. */
+static double select_secant(const select_state *st, int ia, int ib, int stale_a, int stale_b, double *p)
+{
+    *p = NAN;
+    if (ia < 0 || ib < 0 || !st->usable[ia] || !st->usable[ib])
+        return NAN;
+    double la = log(st->q[ia]) / (stale_a ? 2 : 1), lb = log(st->q[ib]) / (stale_b ? 2 : 1);
+    double order = -(lb - la) / log(st->x[ib] / st->x[ia]);
+    if (!(order > 0.25))
+        return NAN;
+    *p = order;
+    return st->x[ia] * exp(la / order);
+}
+
+/* Narrow (L, *hi) (L fails, *hi passes, both run) to a leaf of bisection's
+ * tree whose coarser end fails and finer end passes: the leaf the secant
+ * over the tightest bracket predicts is tested at its finer end, then at
+ * its coarser end;
+ * after SELECT_MAX_MISSES misses, plain bisection. *hi becomes the answer;
+ * -1 when a case could not be run. */
+static int select_narrow(select_state *st, double L, double *hi)
+{
+    double H = *hi, a, b, p;
+    int misses = 0, ia, ib, moved = 0, run = 0; /* moved: -1 the fail end, +1 the pass end */
+    for (;;) {
+        select_bracket(st, L, H, &ia, &ib);
+        double xs = select_secant(st, ia, ib, run >= 2 && moved > 0, run >= 2 && moved < 0, &p);
+        if (isfinite(p))
+            st->out->order = p;
+        if (misses >= SELECT_MAX_MISSES || !isfinite(xs)) {
+            double mid = select_descend(st, L, H, 0, 1, &a, &b);
+            if (!(mid > 0)) {
+                *hi = b; /* every node on the way run: bisection's own leaf */
+                return 0;
+            }
+            if (select_try(st, mid, 0) < 0)
+                return -1;
+            continue;
+        }
+        select_descend(st, L, H, xs, 0, &a, &b);
+        /* untimed: a timing pass costs far more than a metric pass (a floor
+         * of CPU time), so only the answer is timed, once it is known */
+        int ok = select_try(st, b, 0);
+        if (ok < 0 || (ok && (ok = select_try(st, a, 0)) < 0))
+            return -1;
+        int side = st->ok[memo_find(st, b)] ? (ok ? +1 : 0) : -1;
+        if (side == 0) {
+            *hi = b; /* the coarser end fails, the finer passes */
+            return 0;
+        }
+        run = side == moved ? run + 1 : 1;
+        moved = side;
+        misses++;
+    }
+}
+
+/* No answer: say why in out (note and reason). */
+static void select_not_met(select_state *st, double lo)
+{
+    pb_selection *out = st->out;
+    if (out->reason)
+        return;
+    if (!(lo > 0)) {
+        out->reason = "budget";
+        snprintf(out->note, sizeof out->note, "the horizon is too long for the step budget "
+                 "(%.0g steps a case)", PB_SELECT_MAX_STEPS);
+    } else {
+        out->reason = "not_met";
+        if (st->ax->fixed)
             snprintf(out->note, sizeof out->note, "no step up to %.0f per orbit meets it", lo);
         else
             snprintf(out->note, sizeof out->note, "no tolerance down to %.0e meets it", select_tol(lo));
-        return 0;
     }
-    int confirmed = 0;
-    for (int round = 0; round < 4 && !confirmed; round++) {
-        while (lo > 0 && hi > ax->close * lo) {
-            double mid = select_snap(ax, sqrt(lo * hi));
-            if (!(mid > lo && mid < hi))
-                break;
-            if ((ok = select_try(base, m, ax, mid, req, out, 0)) < 0)
-                return -1;
-            if (ok) hi = mid; else lo = mid;
-        }
-        /* confirm: a 10% finer setting must pass too, else move past the dip */
-        double nb = select_snap(ax, 1.1 * hi);
-        if ((ok = select_try(base, m, ax, nb, req, out, 0)) < 0)
+}
+
+/* Confirmation rounds: the answer's 10% finer neighbour must pass too; past
+ * a dip, a new bracket from the neighbour to jump x it. 1 confirmed, 0 not
+ * (note set), -1 a case could not be run. */
+static int select_confirm(select_state *st, double lo, double *hi)
+{
+    const select_axis *ax = st->ax;
+    int ok;
+    for (int round = 0; round < 4; round++) {
+        if (lo > 0 && select_narrow(st, lo, hi) < 0)
             return -1;
-        if (ok) {
-            confirmed = 1;
-            break;
-        }
+        double nb = select_snap(ax, 1.1 * *hi);
+        if ((ok = select_try(st, nb, 0)) < 0)
+            return -1;
+        if (ok)
+            return 1;
         lo = nb;
-        hi = select_snap(ax, fmin(ax->jump * nb, ax->last)); /* within the budget */
-        if (!(hi > lo))
+        *hi = select_snap(ax, fmin(ax->jump * nb, ax->last)); /* within the budget */
+        if (!(*hi > lo))
             break;
-        if ((ok = select_try(base, m, ax, hi, req, out, 0)) <= 0) {
-            snprintf(out->note, sizeof out->note, "errors are not monotone in the %s near %.3g",
-                     ax->fixed ? "step" : "tolerance", ax->fixed ? nb : 1.0 / nb);
+        if ((ok = select_try(st, *hi, 0)) <= 0) {
+            if (ok == 0) {
+                st->out->reason = "not_monotone";
+                snprintf(st->out->note, sizeof st->out->note, "errors are not monotone in the %s near %.3g",
+                         ax->fixed ? "step" : "tolerance", ax->fixed ? nb : 1.0 / nb);
+            }
             return ok;
         }
     }
-    if (!confirmed) {
-        snprintf(out->note, sizeof out->note, "no answer whose 10%%-finer neighbour also passes "
-                 "(errors not monotone in the %s)", ax->fixed ? "step" : "tolerance");
+    st->out->reason = "not_monotone";
+    snprintf(st->out->note, sizeof st->out->note, "no answer whose 10%%-finer neighbour also passes "
+             "(errors not monotone in the %s)", ax->fixed ? "step" : "tolerance");
+    return 0;
+}
+
+static int select_search(select_state *st)
+{
+    double lo, hi;
+    int rc = select_ladder(st, &lo, &hi);
+    if (rc < 0)
+        return -1;
+    if (!(hi > 0)) {
+        select_not_met(st, lo);
         return 0;
     }
-    if ((ok = select_try(base, m, ax, hi, req, out, 1)) < 0)
+    if ((rc = select_confirm(st, lo, &hi)) <= 0)
+        return rc;
+    int ok = select_try(st, hi, 1);
+    if (ok < 0)
         return -1;
     if (!ok) {
-        snprintf(out->note, sizeof out->note, "the answer failed its confirming run");
+        st->out->reason = "not_monotone";
+        snprintf(st->out->note, sizeof st->out->note, "the answer failed its confirming run");
         return 0;
     }
-    out->found = 1;
-    if (ax->fixed)
-        out->steps_per_orbit = (int)hi;
+    st->out->found = 1;
+    st->out->reason = NULL;
+    if (st->ax->fixed)
+        st->out->steps_per_orbit = (int)hi;
     else
-        out->tolerance = select_tol(hi);
+        st->out->tolerance = select_tol(hi);
     return 0;
 }
 
 int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
                      const pb_requirement *req, pb_selection *out)
 {
+    int index = out->index;
     memset(out, 0, sizeof *out);
     out->method = m;
-    int rc;
+    out->index = index;
+    out->order = NAN;
+    select_axis ax;
     if (m->flags & PB_KIND_FIXED) {
         /* doubling from 4 steps per orbit, within a budget of steps per case */
         double T = base->problem.period > 0 ? base->problem.period : pb_case_horizon(base);
         double last = fmin(SELECT_MAX_SPO, floor(PB_SELECT_MAX_STEPS * T / pb_case_horizon(base)));
-        select_axis ax = {1, 4, 2, last, 1.0, 2}; /* bisect to adjacent whole numbers */
-        rc = select_search(base, m, &ax, req, out);
+        ax = (select_axis){1, 4, 2, last, 1.0, 2}; /* bisect to adjacent whole numbers */
     } else {
-        select_axis ax = {0, 1e3, 10, 1e14, 1.1, 10};
-        rc = select_search(base, m, &ax, req, out);
+        ax = (select_axis){0, 1e3, 10, 1e14, 1.1, 10};
+    }
+    select_state *st = calloc(1, sizeof *st);
+    if (!st)
+        return -1;
+    *st = (select_state){.base = base, .m = m, .ax = &ax, .req = req, .out = out};
+    int rc = select_search(st);
+    free(st);
+    if (rc < 0) {
+        out->found = 0;
+        out->reason = "could_not_run";
+        snprintf(out->note, sizeof out->note, "the case could not be run");
     }
     if (out->found) {
-        const pb_case_result *r = &out->confirmed;
+        const pb_select_answer *r = &out->confirmed;
         double ns = isfinite(r->ns_per_step) ? r->ns_per_step : 0;
         out->projected_s = 1e-6 * base->eval_cost_us * (double)r->evals + 1e-9 * ns * (double)r->steps;
     }
@@ -185,59 +508,5 @@ int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
 
 void pb_selection_free(pb_selection *s)
 {
-    pb_case_result_free(&s->confirmed);
-}
-
-json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
-                          pb_selection *sel, int n)
-{
-    json_t *o = json_object();
-    json_object_set_new(o, "format", json_integer(PB_SUMMARY_FORMAT));
-    json_object_set_new(o, "tool", json_string(PB_TOOL_NAME));
-    json_object_set_new(o, "problem", json_string(base->problem.name));
-    json_object_set_new(o, "horizon_s", json_real(pb_case_horizon(base)));
-    if (base->orbits > 0)
-        json_object_set_new(o, "orbits", json_real(base->orbits));
-    json_t *rq = json_object();
-    if (req->max_pos_err > 0)
-        json_object_set_new(rq, "max_pos_err", json_real(req->max_pos_err));
-    if (req->max_energy_rel > 0)
-        json_object_set_new(rq, "max_energy_rel", json_real(req->max_energy_rel));
-    json_object_set_new(o, "requirement", rq);
-    json_object_set_new(o, "eval_cost_us", json_real(base->eval_cost_us));
-    json_t *arr = json_array();
-    int rank = 0;
-    for (int i = 0; i < n; i++) {
-        pb_selection *s = &sel[i];
-        json_t *e = json_object();
-        json_object_set_new(e, "method", json_string(s->method->name));
-        json_object_set_new(e, "from_gsl", json_boolean(s->method->flags & PB_FROM_GSL));
-        json_object_set_new(e, "meets_requirement", json_boolean(s->found));
-        json_object_set_new(e, "runs", json_integer(s->runs));
-        if (s->found) {
-            const pb_case_result *r = &s->confirmed;
-            json_object_set_new(e, "rank", json_integer(++rank));
-            if (s->method->flags & PB_KIND_FIXED)
-                json_object_set_new(e, "steps_per_orbit", json_integer(s->steps_per_orbit));
-            else
-                json_object_set_new(e, "tolerance", json_real(s->tolerance));
-            json_object_set_new(e, "evals", json_integer(r->evals));
-            json_object_set_new(e, "steps", json_integer(r->steps));
-            json_object_set_new(e, "pos_err_max", pb_json_real(r->below_floor ? (double)NAN : r->pos_err_max));
-            json_object_set_new(e, "energy_rel_max", pb_json_real(r->energy_rel_max));
-            json_object_set_new(e, "ns_per_step", pb_json_real(r->ns_per_step));
-            json_object_set_new(e, "projected_s", pb_json_real(s->projected_s));
-            json_object_set_new(e, "fingerprint", json_string(r->fingerprint));
-            if (s->command[0])
-                json_object_set_new(e, "run_command", json_string(s->command));
-        } else {
-            json_object_set_new(e, "note", json_string(s->note));
-        }
-        json_array_append_new(arr, e);
-    }
-    json_object_set_new(o, "ranking", arr);
-    json_object_set_new(o, "caution", json_string(
-        "Benchmarks on idealised problems do not validate an operational propagator; "
-        "defer to the mission's own verification and flight-dynamics practice."));
-    return o;
+    (void)s; /* the selection holds no memory today; kept for its callers */
 }

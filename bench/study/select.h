@@ -1,5 +1,6 @@
 /* select.h - the cheapest method and step (or tolerance) that meets an
- * accuracy requirement over a horizon. */
+ * accuracy requirement over a horizon: the search for one method, the
+ * requirement it must meet, the ranking and the selection's JSON. */
 #ifndef PB_SELECT_H
 #define PB_SELECT_H
 
@@ -9,38 +10,80 @@
 /* The most steps one case of the search may take (its budget). */
 #define PB_SELECT_MAX_STEPS 2e7
 
+/* Bounds in problem units (length, length/time); 0: not required. Several
+ * may be given; a run meets the requirement when it meets every one, each
+ * divided by 1 + margin. */
 typedef struct pb_requirement {
-    double max_pos_err;     /* problem length units; 0: not required */
-    double max_energy_rel;  /* 0: not required */
+    double max_pos_err;      /* largest |dr| */
+    double max_vel_err;      /* largest |dv| */
+    double max_radial, max_along, max_cross;  /* largest |dr| component in the true RIC frame */
+    double max_energy_rel;   /* largest relative energy error */
+    double max_angmom_rel;   /* largest relative angular-momentum error */
+    double margin;           /* F >= 0 */
 } pb_requirement;
+
+/* What the selection keeps of a run (plain data: it crosses a pipe from the
+ * worker process that searched). */
+typedef struct pb_select_answer {
+    long steps, evals;
+    double pos_err_max, vel_err_max, radial_max, along_max, cross_max;
+    double energy_rel_max, angmom_rel_max, truth_floor_max;
+    int below_floor;
+    double ns_per_step;
+    double step_s;           /* fixed-step methods: the step (period / steps per orbit) */
+    char fingerprint[40];
+} pb_select_answer;
 
 typedef struct pb_selection {
     const pb_method_type *method;
+    int index;               /* place in the list searched (ties rank in this order) */
     int found;               /* 1: a setting meets the requirement */
     int steps_per_orbit;     /* fixed-step answer */
     double tolerance;        /* adaptive answer */
     int runs;                /* cases run in the search */
-    pb_case_result confirmed;  /* the confirming run (owned; valid when found) */
+    double order;            /* observed order (log error / log fineness) near the answer, NaN: none */
+    pb_select_answer confirmed;  /* the confirming run (valid when found) */
     double projected_s;      /* evals x eval cost + steps x measured ns per step */
-    char note[160];
+    const char *reason;      /* no answer: "not_met", "budget", "order_projection",
+                              * "not_monotone", "refused", "could_not_run" */
+    char note[300];
     char command[768];       /* the `propbench run` that reproduces the answer */
 } pb_selection;
 
-/* 1 when res meets req (status ok and every given bound met). */
+/* 1 when res meets req (status ok and every given bound, divided by 1 +
+ * margin, met). */
 int pb_requirement_met(const pb_requirement *req, const pb_case_result *res);
 
-/* Search for method m on base (problem, horizon, eval cost): a coarse sweep
- * (doubling steps per orbit from 4, or tolerances 1e-3 .. 1e-14), then
- * bisection in log space between the last failing and first passing setting,
- * then confirmation: the answer and a 10% finer neighbour (step or
- * tolerance) must both pass,
- * since errors need not be monotone in the step. */
+/* How far res is from meeting req: the largest ratio of a value to its
+ * bound (divided by 1 + margin); <= 1 meets it, +inf when the run failed. */
+double pb_requirement_ratio(const pb_requirement *req, const pb_case_result *res);
+
+/* Search for method m on base (problem, horizon, eval cost). A coarse ladder
+ * (doubling steps per orbit from 4, or tolerances 1e-3 .. 1e-14) that jumps
+ * to the rung the observed order predicts and stops once that order projects
+ * past the step budget; inside the bracketing rungs, the setting a secant in
+ * log error against log fineness predicts, tested with its coarser
+ * neighbour on the bisection grid (falling back to bisection when a
+ * prediction misses twice); then confirmation: the answer and a 10% finer
+ * neighbour must both pass, since errors need not be monotone in the step.
+ * Returns 0, or -1 when a case could not be run. */
 int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
                      const pb_requirement *req, pb_selection *out);
 void pb_selection_free(pb_selection *s);
 
-/* The selections as JSON (ranked by evaluations); new reference. */
+/* Search every method of list into sel[0..n) with up to jobs worker
+ * processes (a method a worker); the same answers for every jobs. progress
+ * (may be NULL) is called as each method ends with how many have. */
+void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
+                   const pb_method_type *const *list, int n, int jobs, pb_selection *sel,
+                   void (*progress)(void *ctx, int done, const char *name), void *ctx);
+
+/* Order sel: methods with an answer first, by projected cost when by_cost,
+ * else by evaluations; ties and the rest in list order. */
+void pb_selection_rank(pb_selection *sel, int n, int by_cost);
+
+/* The selections as JSON, in the order given; new reference. */
 json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
-                          pb_selection *sel, int n);
+                          const pb_selection *sel, int n, int by_cost);
 
 #endif
