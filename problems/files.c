@@ -108,3 +108,11 @@ int pb_same_file(const char *a, const char *b)
         return !strcmp(a, b);
     return !strcmp(ca, cb);
 }
+
+const char *pb_link_target(const char *path, char *buf)
+{
+    struct stat st;
+    if (lstat(path, &st) || !S_ISLNK(st.st_mode))
+        return path;
+    return realpath(path, buf) ? buf : NULL;
+}

@@ -23,4 +23,10 @@ FILE *pb_open_input(const char *path, const char *mode, const char **why);
  * another output. */
 int pb_same_file(const char *a, const char *b);
 
+/* Where a write to path lands: path itself, or, when path is a symbolic
+ * link, the file it names (resolved into buf, PATH_MAX bytes), so that an
+ * output link is written through and stays a link. NULL with errno
+ * (ENOENT) for a link that names nothing. */
+const char *pb_link_target(const char *path, char *buf);
+
 #endif

@@ -354,6 +354,18 @@ Test(robust, output_link_is_written_through)
     char *t = pbt_slurp_file(target, &n);
     cr_assert(t && strstr(t, "\"kind\""), "the target was not written: %s", t ? t : "(none)");
     free(t);
+    /* check's reports too (renamed into place from a temporary file) */
+    char jt[320], jl[320];
+    snprintf(jt, sizeof jt, "%s/junit.xml", dir);
+    snprintf(jl, sizeof jl, "%s/junit-link.xml", dir);
+    write_bytes(jt, "old", 3);
+    cr_assert_eq(symlink("junit.xml", jl), 0);
+    rc = cli((const char *[]){"check", "--baseline", base, run, "--junit", jl, NULL});
+    cr_assert_eq(rc, 0, "exit %d: %s", rc, err_buf);
+    cr_assert(lstat(jl, &st) == 0 && S_ISLNK(st.st_mode), "the JUnit link was replaced");
+    t = pbt_slurp_file(jt, &n);
+    cr_assert(t && strstr(t, "<testsuites"), "the JUnit target was not written");
+    free(t);
 }
 
 /* --tolerance 2.5e-308 recorded a non-finite state with exit 0 (the error

@@ -2,6 +2,7 @@
  * with a baseline (rules in baseline.h), print a table, optionally write
  * JUnit XML and a Markdown summary. Exit 0 pass, 1 regression, 2 bad input. */
 #include <errno.h>
+#include <limits.h>
 #include <getopt.h>
 #include <math.h>
 #include <stdio.h>
@@ -347,6 +348,7 @@ static void check_print(const check_args *a, const char *run_path, const pb_chec
 typedef struct check_files {
     char jtmp[4200], mtmp[4200];
     const char *jdone;   /* a report already renamed into place */
+    char jlink[PATH_MAX], mlink[PATH_MAX];
 } check_files;
 
 /* Both reports go under temporary names first and are renamed only when
@@ -355,10 +357,19 @@ typedef struct check_files {
 static int check_write_reports(const check_args *a, const char *run_path, const pb_check_report *r,
                                check_files *fl)
 {
+    /* a report that is a symbolic link is written through (README,
+     * Reliability): the temporary file goes beside the file it names */
+    const char *jdst = a->junit ? pb_link_target(a->junit, fl->jlink) : NULL;
+    const char *mdst = a->md ? pb_link_target(a->md, fl->mlink) : NULL;
+    if ((a->junit && !jdst) || (a->md && !mdst)) {
+        pb_cli_error("check", "%s: a symbolic link to nothing: %s", !jdst && a->junit ? a->junit
+                     : a->md, strerror(errno));
+        return -1;
+    }
     if (a->junit)
-        snprintf(fl->jtmp, sizeof fl->jtmp, "%s.part.%ld", a->junit, (long)getpid());
+        snprintf(fl->jtmp, sizeof fl->jtmp, "%s.part.%ld", jdst, (long)getpid());
     if (a->md)
-        snprintf(fl->mtmp, sizeof fl->mtmp, "%s.part.%ld", a->md, (long)getpid());
+        snprintf(fl->mtmp, sizeof fl->mtmp, "%s.part.%ld", mdst, (long)getpid());
     if (a->junit && check_junit(fl->jtmp, r)) {
         pb_cli_error("check", "%s: cannot write the JUnit report: %s", a->junit, strerror(errno));
         return -1;
@@ -367,12 +378,12 @@ static int check_write_reports(const check_args *a, const char *run_path, const 
         pb_cli_error("check", "%s: cannot write the Markdown summary: %s", a->md, strerror(errno));
         return -1;
     }
-    if (a->junit && rename(fl->jtmp, a->junit)) {
+    if (a->junit && rename(fl->jtmp, jdst)) {
         pb_cli_error("check", "%s: cannot write the JUnit report: %s", a->junit, strerror(errno));
         return -1;
     }
-    fl->jdone = a->junit;
-    if (a->md && rename(fl->mtmp, a->md)) {
+    fl->jdone = jdst;
+    if (a->md && rename(fl->mtmp, mdst)) {
         pb_cli_error("check", "%s: cannot write the Markdown summary: %s", a->md, strerror(errno));
         return -1;
     }
@@ -421,7 +432,8 @@ int pb_cli_check(int argc, char **argv)
     if (check_outputs_clash(&a, run_path))
         return PB_EXIT_USAGE;
     check_inputs in = {0};
-    check_files fl = {"", "", NULL};
+    check_files fl;
+    memset(&fl, 0, sizeof fl);
     rc = PB_EXIT_USAGE;
     if (check_load(&a, run_path, &in))
         goto out;
