@@ -30,6 +30,8 @@ extern const pb_method_type pb_method_radau15;
 extern const pb_method_type pb_method_kepler_split2;
 extern const pb_method_type pb_method_kepler_split4;
 extern const pb_method_type pb_method_kepler_split8;
+extern const pb_method_type pb_method_kepler_split4c;
+extern const pb_method_type pb_method_kepler_split8c;
 
 const pb_method_type *const pb_method_table[] = {
     &pb_method_rk4,
@@ -58,6 +60,8 @@ const pb_method_type *const pb_method_table[] = {
     &pb_method_kepler_split2,
     &pb_method_kepler_split4,
     &pb_method_kepler_split8,
+    &pb_method_kepler_split4c,
+    &pb_method_kepler_split8c,
     NULL
 };
 

@@ -298,6 +298,6 @@ Test(fixed_step, every_fixed_method)
         m->free(ws);
     }
     /* rk4, leapfrog, yoshida4/6/8, gsl-rk4, gauss-jackson8, gauss-legendre(12),
-     * kepler-split2/4/8 */
-    cr_assert_eq(nfixed, 12);
+     * kepler-split2/4/8/4c/8c */
+    cr_assert_eq(nfixed, 14);
 }
