@@ -293,6 +293,35 @@ Test(reliability, workers_die_with_a_killed_sweep_and_the_next_sweep_clears_up)
     cr_assert_eq(rel_sh("rm -rf '%s'", dir), 0);
 }
 
+/* What a killed sweep left beside its folder is cleared by a sweep into
+ * another folder of the same parent too (its lock is free: no writer). */
+Test(reliability, a_sweep_clears_what_a_killed_one_left_beside_another_folder)
+{
+    char dir[256], d1[300], d2[300], parent[300], stage[300], left[1024];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(d1, sizeof d1, "%s/D1", dir);
+    snprintf(d2, sizeof d2, "%s/D2", dir);
+    rel_beside(d1, "new.", parent, sizeof parent, stage, sizeof stage);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit",
+                                      "100", "--orbits", "2", "--quiet", "--out", d1, NULL}), 0, "%s", err_buf);
+    pid_t pid = rel_long_sweep(d1);
+    cr_assert(rel_wait_entry(parent, stage), "the sweep never started");
+    kill(pid, SIGKILL);
+    int st;
+    cr_assert_eq(waitpid(pid, &st, 0), pid);
+    cr_assert_eq(rel_wait_group_gone(pid), 0, "workers outlived their sweep");
+    rel_list(dir, left, sizeof left);
+    cr_assert(strstr(left, ".D1.lock") && strstr(left, stage), "the killed sweep left %s", left);
+    cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "leapfrog",
+                                      "--steps-per-orbit", "100", "--orbits", "2", "--quiet", "--out", d2, NULL}),
+                 0, "%s", err_buf);
+    rel_list(dir, left, sizeof left);
+    cr_assert_str_eq(left, "D1 D2 ", "left beside the run folders: %s", left);
+    rel_list(d1, left, sizeof left);
+    cr_assert_str_eq(left, "series summary.json ", "in D1: %s", left);
+    cr_assert_eq(rel_sh("rm -rf '%s'", dir), 0);
+}
+
 /* ---- 3. a swap killed halfway is finished or undone by the next writer ---- */
 
 /* A pid that has ended (a child reaped at once). */

@@ -234,8 +234,9 @@ static void swap_carry(const char *from, const char *to)
     pb_rm_tree(from);
 }
 
-/* Clear what writers that were killed left beside or in the folder. */
-static void swap_clear_stale(const pb_run_out *o, const char *parent, const char *name)
+/* Clear what writers that were killed left beside the folder and, with
+ * inside = 1, in it. */
+static void swap_clear_stale(const pb_run_out *o, const char *parent, const char *name, int inside)
 {
     DIR *d = opendir(parent);
     if (d) {
@@ -256,7 +257,7 @@ static void swap_clear_stale(const pb_run_out *o, const char *parent, const char
         closedir(d);
     }
     /* the work folders an earlier propbench kept inside the run folder */
-    d = opendir(o->path);
+    d = inside ? opendir(o->path) : NULL;
     if (d) {
         struct dirent *e;
         char p[4400];
@@ -267,6 +268,61 @@ static void swap_clear_stale(const pb_run_out *o, const char *parent, const char
             }
         closedir(d);
     }
+}
+
+/* The run folder's name in a writer's entry beside it (".NAME.lock",
+ * ".NAME.new.<pid>", ".NAME.old.<pid>"), copied into name; 0 if the entry
+ * is not one. */
+static int swap_entry_name(const char *entry, char *name, size_t len)
+{
+    size_t n = strlen(entry);
+    const char *end;
+    if (entry[0] != '.')
+        return 0;
+    if (n > 6 && !strcmp(entry + n - 5, ".lock")) {
+        end = entry + n - 5;
+    } else {
+        const char *p = entry + n;
+        while (p > entry && p[-1] >= '0' && p[-1] <= '9')
+            p--;
+        if (p == entry + n || p - entry < 7 || (strncmp(p - 5, ".new.", 5) && strncmp(p - 5, ".old.", 5)))
+            return 0;
+        end = p - 5;
+    }
+    size_t k = (size_t)(end - entry - 1);
+    if (k == 0 || k >= len)
+        return 0;
+    memcpy(name, entry + 1, k);
+    name[k] = 0;
+    return 1;
+}
+
+/* What killed writers left beside the other run folders of the same parent
+ * (staging folders, half-done swaps, lock files), cleared for each folder
+ * whose lock can be had at once: no writer is at work there. */
+static void swap_clear_neighbours(const char *parent, const char *mine)
+{
+    DIR *d = opendir(parent);
+    if (!d)
+        return;
+    const char *sep = strcmp(parent, "/") ? "/" : "";
+    struct dirent *e;
+    char other[NAME_MAX + 1], err[64];
+    while ((e = readdir(d))) {
+        if (!swap_entry_name(e->d_name, other, sizeof other) || !strcmp(other, mine))
+            continue;
+        pb_run_out n;
+        memset(&n, 0, sizeof n);
+        n.dir = other;
+        n.lock_fd = -1;
+        snprintf(n.path, sizeof n.path, "%s%s%s", parent, sep, other);
+        snprintf(n.lock, sizeof n.lock, "%s%s.%s.lock", parent, sep, other);
+        if (swap_lock(&n, err, sizeof err) == 0) {
+            swap_clear_stale(&n, parent, other, 0);
+            pb_run_out_close(&n);
+        }
+    }
+    closedir(d);
 }
 
 int pb_run_out_open(pb_run_out *o, const char *dir, char *err, size_t errlen)
@@ -293,7 +349,8 @@ int pb_run_out_open(pb_run_out *o, const char *dir, char *err, size_t errlen)
     int rc = swap_lock(o, err, errlen);
     if (rc)
         return rc;
-    swap_clear_stale(o, parent, name);
+    swap_clear_stale(o, parent, name, 1);
+    swap_clear_neighbours(parent, name);
     return 0;
 }
 

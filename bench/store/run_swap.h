@@ -10,7 +10,9 @@
  * did not write (a user's notes, say) is moved into the new folder; the rest
  * of it, now at P/.NAME.old.<pid>/, is removed. The next writer to the same
  * folder clears what a killed one left: staging folders, a half-done swap,
- * and work folders (.work.<pid>) of an earlier propbench. */
+ * and work folders (.work.<pid>) of an earlier propbench; a writer to any
+ * folder of P does the same beside every other folder of P whose lock it can
+ * take at once (no writer is at work there). */
 #ifndef PB_RUN_SWAP_H
 #define PB_RUN_SWAP_H
 
