@@ -13,10 +13,19 @@
 /* Invariant of the summed accumulators: after every accepted step n,
  *   S_n, s_n are the second and first sums with
  *   s_n = s_{n-1} + (f_{n-1} + f_n)/2,  S_n = S_{n-1} + s_{n-1} + f_{n-1}/2,
- * and fw holds f_{n-8} .. f_n, so that r_n = h^2 (S_n + sum b[8][k] fw[k]) and
- * v_n = h (s_n + sum a[8][k] fw[k]). The sums carry the whole history; only the
- * last nine accelerations are kept. The integration constants s_0, S_0 are set
- * once, by the start-up, from the epoch state.
+ * and the window holds f_{n-8} .. f_n, so that r_n = h^2 (S_n + sum b[8][k] f[k])
+ * and v_n = h (s_n + sum a[8][k] f[k]). The sums carry the whole history; only
+ * the last nine accelerations are kept. The integration constants s_0, S_0 are
+ * set once, by the start-up, from the epoch state.
+ *
+ * The window lives in a ring of GJ_RING slots, each slot k < GJ_NB - 1 mirrored
+ * at k + GJ_RING, so that the window (head .. head+8) and the one a step is
+ * building (head+1 .. head+9) are each contiguous and nothing is shifted; the
+ * new acceleration goes to the slot outside the current window, so a failed
+ * step leaves the window whole. Of each 9-term sum the 8 terms over known
+ * accelerations are summed before the force call (in the same order, the new
+ * term last, as the full sum would be: the same bits), which takes them off
+ * the path from one force evaluation to the next.
  *
  * Fixed step: on an eccentric orbit the step is set by periapsis, where the
  * local time scale r/v is shortest; the multistep error constant is large when
@@ -24,6 +33,8 @@
  * (Sundman) form is the right tool, which this is not. */
 
 #define GJ_NB 9                 /* window: points -4..4 */
+#define GJ_RING (GJ_NB + 1)     /* the window and the slot a step writes */
+#define GJ_RING_SLOTS (GJ_RING + GJ_NB - 1) /* with the mirrors */
 #define GJ_START_TOL 1e-15      /* start-up: max position change / max |r| */
 #define GJ_START_MAXIT 60
 #define GJ_CORR_MAXIT_DEFAULT 10
@@ -33,21 +44,26 @@ static const int gj_gbs_seq[GJ_GBS_COLS] = {2, 4, 6, 8, 10, 12};
 
 typedef struct gj_ws {
     int dim;
+    double *block;              /* the one allocation all arrays below share */
     pb_force f;
     pb_method_config cfg;
     pb_fixed_grid grid;         /* t0, h, the index of the current state */
     int started;
     double *r, *v;              /* current state */
     double *s, *S;              /* sums at the newest point */
-    double *fw;                 /* [GJ_NB][dim] accelerations, oldest first */
+    double *ring;               /* [GJ_RING_SLOTS][dim] accelerations, see above */
+    int head;                   /* slot of the window's oldest point */
+    int have_part;              /* pa, pb hold the next predictor's partial sums */
+    double *pa, *pb;            /* sum over k < 8 of a[9][k], b[9][k] times window[k] */
+    double *pan, *pbn, *ca, *cb;/* the same for the next step; the corrector's */
+    double *fw;                 /* [GJ_NB][dim] start-up accelerations, oldest first */
     /* start-up and step scratch */
     double *rb, *vb;            /* [GJ_NB][dim] back points -4..4 */
     double *sb, *Sb;            /* [GJ_NB][dim] sums at the back points */
-    double *fn;                 /* [GJ_NB][dim] window for the step being taken */
-    double *rp, *vp, *rc, *vc, *Sn, *sn, *fa;
+    double *rp, *vp, *rc, *vc, *Sn, *sn;
     double *gdy, *gz0, *gz1, *gdz, *gtab; /* GBS scratch (2*dim each), table [cols][2*dim] */
     pb_method_stats st;
-    pb_dense_span span;         /* the last step's ends with their accelerations */
+    double *rq, *vq;            /* the state one step back, for the dense output */
 } gj_ws;
 
 static void *gj_alloc(int dim)
@@ -59,12 +75,14 @@ static void *gj_alloc(int dim)
         return NULL;
     w->dim = dim;
     size_t d = (size_t)dim;
-    size_t total = d * (4 + 6 * GJ_NB + 7) + 2 * d * (4 + GJ_GBS_COLS);
+    size_t total = d * (4 + 5 * GJ_NB + 6) + 2 * d * (4 + GJ_GBS_COLS) +
+                   d * (GJ_RING_SLOTS + 8);
     double *p = calloc(total, sizeof(double));
     if (!p) {
         free(w);
         return NULL;
     }
+    w->block = p;
     w->r = p; p += d;
     w->v = p; p += d;
     w->s = p; p += d;
@@ -74,19 +92,26 @@ static void *gj_alloc(int dim)
     w->vb = p; p += GJ_NB * d;
     w->sb = p; p += GJ_NB * d;
     w->Sb = p; p += GJ_NB * d;
-    w->fn = p; p += GJ_NB * d;
     w->rp = p; p += d;
     w->vp = p; p += d;
     w->rc = p; p += d;
     w->vc = p; p += d;
     w->Sn = p; p += d;
     w->sn = p; p += d;
-    w->fa = p; p += d;
     w->gdy = p; p += 2 * d;
     w->gz0 = p; p += 2 * d;
     w->gz1 = p; p += 2 * d;
     w->gdz = p; p += 2 * d;
-    w->gtab = p;
+    w->gtab = p; p += 2 * d * GJ_GBS_COLS;
+    w->ring = p; p += GJ_RING_SLOTS * d;
+    w->pa = p; p += d;
+    w->pb = p; p += d;
+    w->pan = p; p += d;
+    w->pbn = p; p += d;
+    w->ca = p; p += d;
+    w->cb = p; p += d;
+    w->rq = p; p += d;
+    w->vq = p;
     return w;
 }
 
@@ -95,7 +120,7 @@ static void gj_free(void *ws)
     gj_ws *w = ws;
     if (!w)
         return;
-    free(w->r);
+    free(w->block);
     free(w);
 }
 
@@ -110,12 +135,12 @@ static int gj_start(void *ws, const pb_force *f, const pb_method_config *cfg,
     w->f = *f;
     w->cfg = *cfg;
     w->started = 0;
+    w->have_part = 0;
     size_t sz = (size_t)w->dim * sizeof(double);
     memcpy(w->r, r0, sz);
     memcpy(w->v, v0, sz);
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
-    pb_dense_start(&w->span, w->dim, t0, r0, v0, NULL);
     pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->r, w->v, &w->st);
     return PB_OK;
 }
@@ -271,26 +296,121 @@ static int gj_startup(gj_ws *w)
             gj_back_sums(w, w->fw);
             memcpy(w->s, w->sb + 8 * d, sz);
             memcpy(w->S, w->Sb + 8 * d, sz);
+            memcpy(w->ring, w->fw, GJ_NB * sz);
+            memcpy(w->ring + GJ_RING * d, w->fw, (GJ_NB - 1) * sz);
+            w->head = 0;
             return PB_OK;
         }
     }
     return PB_ENOCONV;
 }
 
-/* corrected r, v at the newest point of window fn with sums Sn, sn */
-static void gj_correct(gj_ws *w, const double *fn, double *rc, double *vc)
+/* pa[i] = sum over k < 8 of ca[k] f[k][i], pb likewise with cb, and the
+ * same with ea, eb into qa, qb: each summed from 0 in k order, as the full
+ * 9-term sums begin. */
+static void gj_partials_d(int d, const double *f, const double *ca, const double *cb,
+                          double *pa, double *pb, const double *ea, const double *eb,
+                          double *qa, double *qb)
+{
+    /* 4 d independent chains side by side (k outer), on the stack: the
+     * outputs alias nothing the loop reads, but the compiler cannot know it */
+    double sa[PB_STATE_DIM_MAX], sb[PB_STATE_DIM_MAX], ta[PB_STATE_DIM_MAX], tb[PB_STATE_DIM_MAX];
+    for (int i = 0; i < d; i++)
+        sa[i] = sb[i] = ta[i] = tb[i] = 0;
+    for (int k = 0; k < GJ_NB - 1; k++)
+        for (int i = 0; i < d; i++) {
+            double x = f[k * d + i];
+            sa[i] += ca[k] * x;
+            sb[i] += cb[k] * x;
+            ta[i] += ea[k] * x;
+            tb[i] += eb[k] * x;
+        }
+    for (int i = 0; i < d; i++)
+        pa[i] = sa[i], pb[i] = sb[i], qa[i] = ta[i], qb[i] = tb[i];
+}
+
+static void gj_partials(int d, const double *f, const double *ca, const double *cb, double *pa,
+                        double *pb, const double *ea, const double *eb, double *qa, double *qb)
+{
+    if (d != 3) {
+        gj_partials_d(d, f, ca, cb, pa, pb, ea, eb, qa, qb);
+        return;
+    }
+    /* the common case written out: 12 independent chains side by side in
+     * registers */
+    double a0 = 0, a1 = 0, a2 = 0, b0 = 0, b1 = 0, b2 = 0;
+    double c0 = 0, c1 = 0, c2 = 0, e0 = 0, e1 = 0, e2 = 0;
+    for (int k = 0; k < GJ_NB - 1; k++) {
+        const double *x = f + 3 * k;
+        a0 += ca[k] * x[0], a1 += ca[k] * x[1], a2 += ca[k] * x[2];
+        b0 += cb[k] * x[0], b1 += cb[k] * x[1], b2 += cb[k] * x[2];
+        c0 += ea[k] * x[0], c1 += ea[k] * x[1], c2 += ea[k] * x[2];
+        e0 += eb[k] * x[0], e1 += eb[k] * x[1], e2 += eb[k] * x[2];
+    }
+    pa[0] = a0, pa[1] = a1, pa[2] = a2;
+    pb[0] = b0, pb[1] = b1, pb[2] = b2;
+    qa[0] = c0, qa[1] = c1, qa[2] = c2;
+    qb[0] = e0, qb[1] = e1, qb[2] = e2;
+}
+
+/* The acceleration at the new point: evaluated into the ring slot outside
+ * the window (and its mirror). */
+static int gj_eval_new(gj_ws *w, double t, const double *r, const double *v, double *fa)
+{
+    int s = gj_eval(w, t, r, v, fa);
+    int q = (w->head + GJ_NB) % GJ_RING;
+    if (!s && q < GJ_NB - 1) {
+        double *mirror = w->ring + (size_t)(q + GJ_RING) * w->dim;
+        for (int i = 0; i < w->dim; i++)
+            mirror[i] = fa[i];
+    }
+    return s;
+}
+
+/* corrected r, v at the new point from its acceleration fa, the corrector's
+ * partial sums and the sums Sn, sn (locals: the arrays alias nothing, which
+ * the compiler cannot see through w) */
+static void gj_correct(gj_ws *w, const double *fnow, const double *fa)
 {
     int d = w->dim;
-    double h = w->cfg.h;
+    double h = w->cfg.h, h2 = h * h;
+    const double *s = w->s, *Sn = w->Sn, *ca = w->ca, *cb = w->cb;
+    double *sn = w->sn, *rc = w->rc, *vc = w->vc;
+    const double a8 = gj_a[8][GJ_NB - 1], b8 = gj_b[8][GJ_NB - 1];
     for (int i = 0; i < d; i++) {
-        double sa = 0, sb = 0;
-        for (int k = 0; k < GJ_NB; k++) {
-            sa += gj_a[8][k] * fn[k * d + i];
-            sb += gj_b[8][k] * fn[k * d + i];
-        }
-        rc[i] = h * h * (w->Sn[i] + sb);
-        vc[i] = h * (w->sn[i] + sa);
+        double f = fa[i], sni = s[i] + 0.5 * (fnow[i] + f);
+        double r = h2 * (Sn[i] + (cb[i] + b8 * f)), v = h * (sni + (ca[i] + a8 * f));
+        sn[i] = sni, rc[i] = r, vc[i] = v;
     }
+}
+
+/* The corrector iterated to corrector_tol (re-evaluating at the corrected
+ * point), when asked. */
+static int gj_iterate(gj_ws *w, double t1, const double *fnow, double *fa)
+{
+    int d = w->dim, s, i, it;
+    int maxit = w->cfg.corrector_max_iter > 0 ? w->cfg.corrector_max_iter : GJ_CORR_MAXIT_DEFAULT;
+    for (it = 0; it < maxit; it++) {
+        if ((s = gj_eval_new(w, t1, w->rc, w->vc, fa)))
+            return s;
+        double rold[PB_STATE_DIM_MAX], change = 0, scale = 0;
+        memcpy(rold, w->rc, (size_t)d * sizeof(double));
+        gj_correct(w, fnow, fa);
+        for (i = 0; i < d; i++) {
+            change = fmax(change, fabs(w->rc[i] - rold[i]));
+            scale = fmax(scale, fabs(w->rc[i]));
+        }
+        if (change <= w->cfg.corrector_tol * scale)
+            return PB_OK;
+    }
+    return PB_ENOCONV;
+}
+
+static void gj_swap(double **a, double **b)
+{
+    double *t = *a;
+    *a = *b;
+    *b = t;
 }
 
 /* One step n -> n+1, ending at t1: predict, evaluate, correct (iterated if
@@ -299,55 +419,47 @@ static int gj_step(gj_ws *w, double t1)
 {
     int d = w->dim, s, i;
     double h = w->cfg.h, h2 = h * h;
-    const double *fnow = w->fw + 8 * d;
-    for (i = 0; i < d; i++) {
-        double sa = 0, sb = 0;
-        for (int k = 0; k < GJ_NB; k++) {
-            sa += gj_a[9][k] * w->fw[k * d + i];
-            sb += gj_b[9][k] * w->fw[k * d + i];
-        }
-        w->Sn[i] = w->S[i] + w->s[i] + 0.5 * fnow[i];
-        w->rp[i] = h2 * (w->Sn[i] + sb);
-        w->vp[i] = h * (w->s[i] + 0.5 * fnow[i] + sa);
+    const double *fw = w->ring + (size_t)w->head * d, *fnow = fw + 8 * d;
+    double *fa = w->ring + (size_t)((w->head + GJ_NB) % GJ_RING) * d;
+    if (!w->have_part) {
+        gj_partials(d, fw, gj_a[9], gj_b[9], w->pa, w->pb, gj_a[9], gj_b[9], w->pan, w->pbn);
+        w->have_part = 1;
     }
-    if ((s = gj_eval(w, t1, w->rp, w->vp, w->fa)))
+    {
+        const double *S = w->S, *sv = w->s, *pa = w->pa, *pb = w->pb;
+        double *Sn = w->Sn, *rp = w->rp, *vp = w->vp;
+        const double a9 = gj_a[9][GJ_NB - 1], b9 = gj_b[9][GJ_NB - 1];
+        for (i = 0; i < d; i++) {
+            double f = fnow[i], sa = pa[i] + a9 * f, sb = pb[i] + b9 * f;
+            double Sni = S[i] + sv[i] + 0.5 * f;
+            Sn[i] = Sni;
+            rp[i] = h2 * (Sni + sb);
+            vp[i] = h * (sv[i] + 0.5 * f + sa);
+        }
+    }
+    /* what the corrector and the next predictor sum over the window's
+     * newest 8 points, before the force call rather than after it */
+    gj_partials(d, fw + d, gj_a[8], gj_b[8], w->ca, w->cb, gj_a[9], gj_b[9], w->pan, w->pbn);
+    if ((s = gj_eval_new(w, t1, w->rp, w->vp, fa)))
         return s;
-    memcpy(w->fn, w->fw + d, (size_t)(8 * d) * sizeof(double));
-    memcpy(w->fn + 8 * d, w->fa, (size_t)d * sizeof(double));
-    for (i = 0; i < d; i++)
-        w->sn[i] = w->s[i] + 0.5 * (fnow[i] + w->fa[i]);
-    gj_correct(w, w->fn, w->rc, w->vc);
-    if (w->cfg.corrector_tol > 0) {
-        int maxit = w->cfg.corrector_max_iter > 0 ? w->cfg.corrector_max_iter
-                                                  : GJ_CORR_MAXIT_DEFAULT;
-        int it;
-        for (it = 0; it < maxit; it++) {
-            if ((s = gj_eval(w, t1, w->rc, w->vc, w->fa)))
-                return s;
-            memcpy(w->fn + 8 * d, w->fa, (size_t)d * sizeof(double));
-            for (i = 0; i < d; i++)
-                w->sn[i] = w->s[i] + 0.5 * (fnow[i] + w->fa[i]);
-            double rold[PB_STATE_DIM_MAX], change = 0, scale = 0;
-            memcpy(rold, w->rc, (size_t)d * sizeof(double));
-            gj_correct(w, w->fn, w->rc, w->vc);
-            for (i = 0; i < d; i++) {
-                change = fmax(change, fabs(w->rc[i] - rold[i]));
-                scale = fmax(scale, fabs(w->rc[i]));
-            }
-            if (change <= w->cfg.corrector_tol * scale)
-                break;
-        }
-        if (it == maxit)
-            return PB_ENOCONV;
-    }
+    gj_correct(w, fnow, fa);
+    if (w->cfg.corrector_tol > 0 && (s = gj_iterate(w, t1, fnow, fa)))
+        return s;
     for (i = 0; i < d; i++)
         if (!isfinite(w->rc[i]) || !isfinite(w->vc[i]))
             return PB_ENONFINITE;
-    memcpy(w->fw, w->fn, (size_t)(GJ_NB * d) * sizeof(double));
-    memcpy(w->s, w->sn, (size_t)d * sizeof(double));
-    memcpy(w->S, w->Sn, (size_t)d * sizeof(double));
-    memcpy(w->r, w->rc, (size_t)d * sizeof(double));
-    memcpy(w->v, w->vc, (size_t)d * sizeof(double));
+    w->head = (w->head + 1) % GJ_RING;
+    gj_swap(&w->s, &w->sn);
+    gj_swap(&w->S, &w->Sn);
+    /* state n becomes the one a step back, n+1 the current one */
+    gj_swap(&w->rq, &w->r);
+    gj_swap(&w->vq, &w->v);
+    gj_swap(&w->r, &w->rc);
+    gj_swap(&w->v, &w->vc);
+    gj_swap(&w->pa, &w->pan);
+    gj_swap(&w->pb, &w->pbn);
+    w->grid.r = w->r;
+    w->grid.v = w->v;
     return PB_OK;
 }
 
@@ -363,25 +475,41 @@ static int gj_fixed_step(void *ctx, long n, double t, double t1)
         if ((s = gj_startup(w)))
             return s;
         w->started = 1;
-        pb_dense_set_a(&w->span, w->fw + 4 * d);
     }
     if (n < 4) {
         /* the start-up already produced t0+h .. t0+4h */
         memcpy(w->r, w->rb + (5 + n) * d, (size_t)d * sizeof(double));
         memcpy(w->v, w->vb + (5 + n) * d, (size_t)d * sizeof(double));
-        pb_dense_push(&w->span, t1, w->r, w->v, w->fw + (5 + n) * d);
         return PB_OK;
     }
-    if ((s = gj_step(w, t1)))
-        return s;
-    /* the newest acceleration, evaluated at the predicted position (PEC) */
-    pb_dense_push(&w->span, t1, w->r, w->v, w->fw + 8 * d);
-    return PB_OK;
+    return gj_step(w, t1);
 }
 
+/* The last step's ends with their accelerations, put together only when
+ * asked (the span pb_dense_push would have kept after every step): the
+ * start-up's back points for the first four steps, then the state one step
+ * back and the current one with the window's two newest accelerations (each
+ * evaluated at the predicted position: PEC). */
 static int gj_dense(const void *ws, double t, double *r, double *v)
 {
-    return pb_dense_eval(&((const gj_ws *)ws)->span, t, r, v);
+    const gj_ws *w = ws;
+    const pb_fixed_grid *g = &w->grid;
+    long n = g->n;
+    int d = w->dim;
+    pb_dense_span sp;
+    double t0 = pb_fixed_grid_time(g, n - 1), t1 = pb_fixed_grid_time(g, n);
+    if (n == 0) {
+        pb_dense_start(&sp, d, g->t0, w->r, w->v, w->started ? w->fw + 4 * d : NULL);
+    } else if (n <= 4) {
+        size_t j = (size_t)(3 + n) * d;
+        pb_dense_start(&sp, d, t0, w->rb + j, w->vb + j, w->fw + j);
+        pb_dense_push(&sp, t1, w->rb + j + d, w->vb + j + d, w->fw + j + d);
+    } else {
+        const double *f = w->ring + (size_t)(w->head + GJ_NB - 2) * d;
+        pb_dense_start(&sp, d, t0, w->rq, w->vq, f);
+        pb_dense_push(&sp, t1, w->r, w->v, f + d);
+    }
+    return pb_dense_eval(&sp, t, r, v);
 }
 
 static int gj_advance(void *ws, double t_out, pb_step_observer obs, void *octx)

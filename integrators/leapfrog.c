@@ -18,6 +18,15 @@ typedef struct yoshida_scheme {
     double c[YOSHIDA_STAGES_MAX];
 } yoshida_scheme;
 
+/* A state with everything a step carries: position, velocity, a(r) and the
+ * Kahan compensations of r and v. */
+typedef struct yoshida_state {
+    double *r, *v, *a, *cr, *cv;
+} yoshida_state;
+
+/* Three states by pointer, rotated after each step instead of copied: a step
+ * reads `cur` and writes `next` (so a failure leaves the last good state),
+ * and the step before stays in `prev` for the dense output. */
 typedef struct yoshida_ws {
     int dim;
     pb_force f;
@@ -26,11 +35,10 @@ typedef struct yoshida_ws {
     double kick[YOSHIDA_STAGES_MAX + 1]; /* merged kick fractions b_0..b_s */
     double tfrac[YOSHIDA_STAGES_MAX];    /* time fraction reached by drift j */
     pb_fixed_grid grid;       /* t0, h, the index of the current state */
-    double *r, *v, *a, *cr, *cv;        /* state, a(r), Kahan compensations */
-    double *rn, *vn, *an, *crn, *cvn;   /* the step in progress */
+    yoshida_state buf[3];
+    yoshida_state *cur, *prev, *next;
     int have_a;
     pb_method_stats st;
-    pb_dense_span span;       /* the last step's ends with a(r): quintic dense output */
 } yoshida_ws;
 
 /* Build the sequence w_k..w_1, w0, w_1..w_k from w[1..k]; w0 = 1 - 2 sum. */
@@ -57,20 +65,13 @@ static void *yoshida_alloc(int dim)
     if (!w)
         return NULL;
     w->dim = dim;
-    w->r = calloc(10 * (size_t)dim, sizeof(double));
-    if (!w->r) {
+    double *p = calloc(15 * (size_t)dim, sizeof(double));
+    if (!p) {
         free(w);
         return NULL;
     }
-    w->v = w->r + dim;
-    w->a = w->v + dim;
-    w->cr = w->a + dim;
-    w->cv = w->cr + dim;
-    w->rn = w->cv + dim;
-    w->vn = w->rn + dim;
-    w->an = w->vn + dim;
-    w->crn = w->an + dim;
-    w->cvn = w->crn + dim;
+    for (int k = 0; k < 3; k++, p += 5 * dim)
+        w->buf[k] = (yoshida_state){p, p + dim, p + 2 * dim, p + 3 * dim, p + 4 * dim};
     return w;
 }
 
@@ -79,7 +80,7 @@ static void yoshida_free(void *ws)
     yoshida_ws *w = ws;
     if (!w)
         return;
-    free(w->r);
+    free(w->buf[0].r);
     free(w);
 }
 
@@ -105,15 +106,17 @@ static int yoshida_start_with(void *ws, int k, const double *wk, const pb_force 
         w->tfrac[j] = acc;
     }
     size_t sz = (size_t)w->dim * sizeof(double);
-    memcpy(w->r, r0, sz);
-    memcpy(w->v, v0, sz);
-    memset(w->cr, 0, sz);
-    memset(w->cv, 0, sz);
+    w->cur = &w->buf[0];
+    w->prev = &w->buf[1];
+    w->next = &w->buf[2];
+    memcpy(w->cur->r, r0, sz);
+    memcpy(w->cur->v, v0, sz);
+    memset(w->cur->cr, 0, sz);
+    memset(w->cur->cv, 0, sz);
     memset(&w->st, 0, sizeof w->st);
     w->st.t_fail = t0;
     w->have_a = 0;
-    pb_dense_start(&w->span, w->dim, t0, r0, v0, NULL);
-    pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->r, w->v, &w->st);
+    pb_fixed_grid_init(&w->grid, t0, cfg->h, cfg->max_steps, w->cur->r, w->cur->v, &w->st);
     return PB_OK;
 }
 
@@ -128,65 +131,88 @@ static inline double yoshida_add(double x, double inc, double *c, int compensate
     return s;
 }
 
-/* One composed step from the committed state into rn, vn, an (the committed
- * state is untouched, so a failure leaves the last good state). */
-static int yoshida_step(yoshida_ws *w, double t, double t1, double h)
+/* One composed step from `in` into `out` (in is only read, so a failure
+ * leaves the last good state). The first substep reads in, the others work
+ * in place on out: no copy of the state is made. */
+static int yoshida_step(const yoshida_ws *w, const yoshida_state *in, yoshida_state *out,
+                        double t, double t1, double h)
 {
-    int d = w->dim, s = w->sch.s, comp = w->cfg.compensated, i, j, st;
-    size_t sz = (size_t)d * sizeof(double);
-    memcpy(w->rn, w->r, sz);
-    memcpy(w->vn, w->v, sz);
-    memcpy(w->an, w->a, sz);
-    memcpy(w->crn, w->cr, sz);
-    memcpy(w->cvn, w->cv, sz);
+    int d = w->dim, s = w->sch.s, i, j, st;
+    const double *r = in->r, *v = in->v, *a = in->a;
+    double *rn = out->r, *vn = out->v;
+    if (w->cfg.compensated) {
+        for (i = 0; i < d; i++) {
+            out->cr[i] = in->cr[i];
+            out->cv[i] = in->cv[i];
+        }
+    }
     for (j = 0; j < s; j++) {
         double kh = w->kick[j] * h, dh = w->sch.c[j] * h;
-        for (i = 0; i < d; i++)
-            w->vn[i] = yoshida_add(w->vn[i], kh * w->an[i], &w->cvn[i], comp);
-        for (i = 0; i < d; i++)
-            w->rn[i] = yoshida_add(w->rn[i], dh * w->vn[i], &w->crn[i], comp);
+        if (w->cfg.compensated) {
+            for (i = 0; i < d; i++)
+                vn[i] = yoshida_add(v[i], kh * a[i], &out->cv[i], 1);
+            for (i = 0; i < d; i++)
+                rn[i] = yoshida_add(r[i], dh * vn[i], &out->cr[i], 1);
+        } else {
+            for (i = 0; i < d; i++)
+                vn[i] = v[i] + kh * a[i];
+            for (i = 0; i < d; i++)
+                rn[i] = r[i] + dh * vn[i];
+        }
         /* the last drift ends exactly on the grid time t1 */
         double tj = (j == s - 1) ? t1 : t + w->tfrac[j] * h;
-        if ((st = w->f.accel(w->f.ctx, tj, w->rn, w->vn, w->an)))
+        if ((st = w->f.accel(w->f.ctx, tj, rn, vn, out->a)))
             return st;
+        r = rn, v = vn, a = out->a;
     }
     double kh = w->kick[s] * h;
     for (i = 0; i < d; i++) {
-        w->vn[i] = yoshida_add(w->vn[i], kh * w->an[i], &w->cvn[i], comp);
-        if (!isfinite(w->vn[i]) || !isfinite(w->rn[i]))
+        vn[i] = yoshida_add(vn[i], kh * a[i], &out->cv[i], w->cfg.compensated);
+        if (!isfinite(vn[i]) || !isfinite(rn[i]))
             return PB_ENONFINITE;
     }
     return PB_OK;
 }
 
 /* pb_fixed_step_fn: a(r) at the first step of a run (each step's last force
- * is the next one's first), then one composed step, committed only whole. */
+ * is the next one's first), then one composed step, committed whole by
+ * rotating the three states. */
 static int yoshida_fixed_step(void *ctx, long n, double t, double t1)
 {
     yoshida_ws *w = ctx;
     int s;
     (void)n;
     if (!w->have_a) {
-        if ((s = w->f.accel(w->f.ctx, t, w->r, w->v, w->a)))
+        if ((s = w->f.accel(w->f.ctx, t, w->cur->r, w->cur->v, w->cur->a)))
             return s;
         w->have_a = 1;
-        pb_dense_set_a(&w->span, w->a);
     }
-    if ((s = yoshida_step(w, t, t1, w->grid.h)))
+    if ((s = yoshida_step(w, w->cur, w->next, t, t1, w->grid.h)))
         return s;
-    size_t sz = (size_t)w->dim * sizeof(double);
-    memcpy(w->r, w->rn, sz);
-    memcpy(w->v, w->vn, sz);
-    memcpy(w->a, w->an, sz);
-    memcpy(w->cr, w->crn, sz);
-    memcpy(w->cv, w->cvn, sz);
-    pb_dense_push(&w->span, t1, w->r, w->v, w->a);
+    yoshida_state *old = w->prev;
+    w->prev = w->cur;
+    w->cur = w->next;
+    w->next = old;
+    w->grid.r = w->cur->r;
+    w->grid.v = w->cur->v;
     return PB_OK;
 }
 
+/* The last step's ends with a(r) at both, put together only when asked
+ * (the same span pb_dense_push would have kept after every step). */
 static int yoshida_dense(const void *ws, double t, double *r, double *v)
 {
-    return pb_dense_eval(&((const yoshida_ws *)ws)->span, t, r, v);
+    const yoshida_ws *w = ws;
+    const pb_fixed_grid *g = &w->grid;
+    pb_dense_span sp;
+    if (g->n == 0) {
+        pb_dense_start(&sp, w->dim, g->t0, w->cur->r, w->cur->v, w->have_a ? w->cur->a : NULL);
+    } else {
+        pb_dense_start(&sp, w->dim, pb_fixed_grid_time(g, g->n - 1), w->prev->r, w->prev->v,
+                       w->prev->a);
+        pb_dense_push(&sp, pb_fixed_grid_time(g, g->n), w->cur->r, w->cur->v, w->cur->a);
+    }
+    return pb_dense_eval(&sp, t, r, v);
 }
 
 static int yoshida_advance(void *ws, double t_out, pb_step_observer obs, void *octx)
@@ -199,8 +225,8 @@ static void yoshida_get_state(const void *ws, double *t, double *r, double *v)
 {
     const yoshida_ws *w = ws;
     *t = pb_fixed_grid_time(&w->grid, w->grid.n);
-    memcpy(r, w->r, (size_t)w->dim * sizeof(double));
-    memcpy(v, w->v, (size_t)w->dim * sizeof(double));
+    memcpy(r, w->cur->r, (size_t)w->dim * sizeof(double));
+    memcpy(v, w->cur->v, (size_t)w->dim * sizeof(double));
 }
 
 static void yoshida_get_stats(const void *ws, pb_method_stats *st)
