@@ -355,7 +355,7 @@ static int cli_has_entry(const char *dir, const char *prefix)
 /* An interrupted sweep stops its workers, exits 128+signal as a shell
  * reports it, and leaves the run directory as it was: the earlier summary
  * untouched, no work files. The signal is sent the moment the staging
- * folder beside it appears (.NAME.new.<pid>, run_swap.h), the earliest
+ * folder beside it appears (.NAME.pb-new.<pid>, run_swap.h), the earliest
  * instant a user could see the sweep. */
 static void cli_interrupt_sweep(int sig)
 {
@@ -383,7 +383,7 @@ static void cli_interrupt_sweep(int sig)
     char parent[256], stage[300];
     snprintf(parent, sizeof parent, "%s", dir);
     *strrchr(parent, '/') = 0;
-    snprintf(stage, sizeof stage, ".%s.new.", strrchr(dir, '/') + 1);
+    snprintf(stage, sizeof stage, ".%s.pb-new.", strrchr(dir, '/') + 1);
     for (int i = 0; i < 5000 && !cli_has_entry(parent, stage); i++)
         nanosleep(&(struct timespec){0, 1000000}, NULL);
     int started = cli_has_entry(parent, stage);

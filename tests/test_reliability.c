@@ -141,7 +141,7 @@ Test(reliability, second_writer_is_refused_naming_the_first)
     char dir[256], d[300], parent[300], stage[300], want[64], left[1024];
     pbt_tmpdir(dir, sizeof dir);
     snprintf(d, sizeof d, "%s/D", dir);
-    rel_beside(d, "new.", parent, sizeof parent, stage, sizeof stage);
+    rel_beside(d, "pb-new.", parent, sizeof parent, stage, sizeof stage);
     pid_t first = rel_long_sweep(d);
     cr_assert(rel_wait_entry(parent, stage) || rel_has_entry(dir, ""), "the first sweep never started");
     snprintf(want, sizeof want, "(process %ld)", (long)first);
@@ -181,7 +181,7 @@ static void rel_stop_run(int sig)
     char dir[256], d[300], parent[300], lock[300], left[1024];
     pbt_tmpdir(dir, sizeof dir);
     snprintf(d, sizeof d, "%s/D", dir);
-    rel_beside(d, "lock", parent, sizeof parent, lock, sizeof lock);
+    rel_beside(d, "pb-lock", parent, sizeof parent, lock, sizeof lock);
     pid_t pid = rel_spawn((const char *[]){"run", "--problem", "kepler-e0.6", "--method", "rk4",
                                            "--steps-per-orbit", "40000", "--orbits", "20000", "--quiet",
                                            "--out", d, NULL});
@@ -222,7 +222,7 @@ static void rel_stop_sweep(int sig)
     char dir[256], d[300], parent[300], stage[300], left[1024], f[400];
     pbt_tmpdir(dir, sizeof dir);
     snprintf(d, sizeof d, "%s/D", dir);
-    rel_beside(d, "new.", parent, sizeof parent, stage, sizeof stage);
+    rel_beside(d, "pb-new.", parent, sizeof parent, stage, sizeof stage);
     cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit",
                                       "100", "--orbits", "2", "--quiet", "--out", d, NULL}), 0, "%s", err_buf);
     snprintf(f, sizeof f, "%s/summary.json", d);
@@ -265,7 +265,7 @@ Test(reliability, workers_die_with_a_killed_sweep_and_the_next_sweep_clears_up)
     char dir[256], d[300], parent[300], stage[300], left[1024], f[400];
     pbt_tmpdir(dir, sizeof dir);
     snprintf(d, sizeof d, "%s/D", dir);
-    rel_beside(d, "new.", parent, sizeof parent, stage, sizeof stage);
+    rel_beside(d, "pb-new.", parent, sizeof parent, stage, sizeof stage);
     cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit",
                                       "100", "--orbits", "2", "--quiet", "--out", d, NULL}), 0, "%s", err_buf);
     /* what an earlier propbench left in the folder when it was killed */
@@ -301,7 +301,7 @@ Test(reliability, a_sweep_clears_what_a_killed_one_left_beside_another_folder)
     pbt_tmpdir(dir, sizeof dir);
     snprintf(d1, sizeof d1, "%s/D1", dir);
     snprintf(d2, sizeof d2, "%s/D2", dir);
-    rel_beside(d1, "new.", parent, sizeof parent, stage, sizeof stage);
+    rel_beside(d1, "pb-new.", parent, sizeof parent, stage, sizeof stage);
     cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "rk4", "--steps-per-orbit",
                                       "100", "--orbits", "2", "--quiet", "--out", d1, NULL}), 0, "%s", err_buf);
     pid_t pid = rel_long_sweep(d1);
@@ -311,7 +311,7 @@ Test(reliability, a_sweep_clears_what_a_killed_one_left_beside_another_folder)
     cr_assert_eq(waitpid(pid, &st, 0), pid);
     cr_assert_eq(rel_wait_group_gone(pid), 0, "workers outlived their sweep");
     rel_list(dir, left, sizeof left);
-    cr_assert(strstr(left, ".D1.lock") && strstr(left, stage), "the killed sweep left %s", left);
+    cr_assert(strstr(left, ".D1.pb-lock") && strstr(left, stage), "the killed sweep left %s", left);
     cr_assert_eq(cli((const char *[]){"sweep", "--problems", "kepler-e0", "--methods", "leapfrog",
                                       "--steps-per-orbit", "100", "--orbits", "2", "--quiet", "--out", d2, NULL}),
                  0, "%s", err_buf);
@@ -348,14 +348,14 @@ static void rel_small_sweep(const char *method, const char *out)
 }
 
 /* Killed just after the exchange: the new run in place, the earlier folder
- * (with a user's note among its run's files) under .D.old.<pid>. The next
+ * (with a user's note among its run's files) under .D.pb-old.<pid>. The next
  * writer keeps the note and removes the rest. */
 Test(reliability, next_writer_finishes_a_swap_killed_after_the_exchange)
 {
     char dir[256], d[300], old[400], left[1024];
     pbt_tmpdir(dir, sizeof dir);
     snprintf(d, sizeof d, "%s/D", dir);
-    snprintf(old, sizeof old, "%s/.D.old.%ld", dir, rel_dead_pid());
+    snprintf(old, sizeof old, "%s/.D.pb-old.%ld", dir, rel_dead_pid());
     rel_small_sweep("rk4", old);
     cr_assert_eq(rel_sh("echo mine > '%s/notes.txt' && echo mine > '%s/series/notes.csv'", old, old), 0);
     rel_small_sweep("leapfrog", d);
@@ -371,8 +371,8 @@ Test(reliability, next_writer_finishes_a_swap_killed_after_the_exchange)
 }
 
 /* Killed between the two renames of a swap on a file system without
- * exchange: no D, the earlier run under .D.old.<pid> and the new one under
- * .D.new.<pid>. The next writer puts the earlier run back first: stopped
+ * exchange: no D, the earlier run under .D.pb-old.<pid> and the new one under
+ * .D.pb-new.<pid>. The next writer puts the earlier run back first: stopped
  * before it writes anything itself, it leaves the earlier run in D. */
 Test(reliability, next_writer_undoes_a_swap_killed_between_two_renames)
 {
@@ -380,14 +380,14 @@ Test(reliability, next_writer_undoes_a_swap_killed_between_two_renames)
     pbt_tmpdir(dir, sizeof dir);
     snprintf(d, sizeof d, "%s/D", dir);
     long dead = rel_dead_pid();
-    snprintf(old, sizeof old, "%s/.D.old.%ld", dir, dead);
-    snprintf(stage, sizeof stage, "%s/.D.new.%ld", dir, dead);
+    snprintf(old, sizeof old, "%s/.D.pb-old.%ld", dir, dead);
+    snprintf(stage, sizeof stage, "%s/.D.pb-new.%ld", dir, dead);
     rel_small_sweep("rk4", old);
     cr_assert_eq(rel_sh("echo mine > '%s/notes.txt'", old), 0);
     rel_small_sweep("leapfrog", stage);
     pid_t pid = rel_long_sweep(d);
     char parent[300], mine[300];
-    snprintf(mine, sizeof mine, ".D.new.%ld", (long)pid);
+    snprintf(mine, sizeof mine, ".D.pb-new.%ld", (long)pid);
     rel_beside(d, "", parent, sizeof parent, sum, sizeof sum);
     cr_assert(rel_wait_entry(parent, mine), "the sweep never started");
     kill(pid, SIGTERM);

@@ -147,7 +147,7 @@ Test(reliability, kill_9_at_random_moments_leaves_the_old_run_or_the_new_one)
              * series reaches the staging folder (the cases are all done then,
              * and the summary, the swap and the clean-up follow) */
             char staged[400];
-            snprintf(staged, sizeof staged, "%s/.D.new.%ld/series", dir, (long)pid);
+            snprintf(staged, sizeof staged, "%s/.D.pb-new.%ld/series", dir, (long)pid);
             double t0 = rel_now();
             while (!rel_has_entry(staged, "kepler") && rel_now() - t0 < 20 * took[!cur] + 5)
                 nanosleep(&(struct timespec){0, 50000}, NULL);

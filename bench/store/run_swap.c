@@ -234,21 +234,25 @@ static void swap_carry(const char *from, const char *to)
     pb_rm_tree(from);
 }
 
-/* Clear what writers that were killed left beside the folder and, with
- * inside = 1, in it. */
-static void swap_clear_stale(const pb_run_out *o, const char *parent, const char *name, int inside)
+/* Clear what writers that were killed left beside the folder: staging
+ * folders, and with own = 1 (the writer's own folder) half-done swaps and
+ * the work folders inside it too. */
+static void swap_clear_stale(const pb_run_out *o, const char *parent, const char *name, int own)
 {
     DIR *d = opendir(parent);
     if (d) {
         struct dirent *e;
         char p[4400];
         while ((e = readdir(d))) {
-            long np = swap_owner(e->d_name, name, "new"), op = swap_owner(e->d_name, name, "old");
+            long np = swap_owner(e->d_name, name, "pb-new"), op = own ? swap_owner(e->d_name, name, "pb-old") : 0;
             if ((!np && !op) || np == (long)getpid() || op == (long)getpid())
                 continue;
             snprintf(p, sizeof p, "%s/%s", parent, e->d_name);
-            if (np)
+            struct stat st;
+            if (np && lstat(p, &st) == 0 && S_ISDIR(st.st_mode))
                 pb_rm_tree(p);
+            else if (np)
+                continue; /* not a folder: not one of ours */
             else if (!swap_exists(o->path) && rename(p, o->path) == 0)
                 continue; /* a swap without exchange, killed between its renames */
             else
@@ -257,7 +261,7 @@ static void swap_clear_stale(const pb_run_out *o, const char *parent, const char
         closedir(d);
     }
     /* the work folders an earlier propbench kept inside the run folder */
-    d = inside ? opendir(o->path) : NULL;
+    d = own ? opendir(o->path) : NULL;
     if (d) {
         struct dirent *e;
         char p[4400];
@@ -270,24 +274,25 @@ static void swap_clear_stale(const pb_run_out *o, const char *parent, const char
     }
 }
 
-/* The run folder's name in a writer's entry beside it (".NAME.lock",
- * ".NAME.new.<pid>", ".NAME.old.<pid>"), copied into name; 0 if the entry
- * is not one. */
+/* The run folder's name in a writer's lock file or staging folder beside
+ * it (".NAME.pb-lock", ".NAME.pb-new.<pid>"), copied into name; 0 if the
+ * entry is neither. */
 static int swap_entry_name(const char *entry, char *name, size_t len)
 {
-    size_t n = strlen(entry);
+    static const char lock[] = ".pb-lock", stage[] = ".pb-new.";
+    size_t n = strlen(entry), nl = sizeof lock - 1, ns = sizeof stage - 1;
     const char *end;
     if (entry[0] != '.')
         return 0;
-    if (n > 6 && !strcmp(entry + n - 5, ".lock")) {
-        end = entry + n - 5;
+    if (n > nl + 1 && !strcmp(entry + n - nl, lock)) {
+        end = entry + n - nl;
     } else {
         const char *p = entry + n;
         while (p > entry && p[-1] >= '0' && p[-1] <= '9')
             p--;
-        if (p == entry + n || p - entry < 7 || (strncmp(p - 5, ".new.", 5) && strncmp(p - 5, ".old.", 5)))
+        if (p == entry + n || (size_t)(p - entry) < ns + 2 || strncmp(p - ns, stage, ns))
             return 0;
-        end = p - 5;
+        end = p - ns;
     }
     size_t k = (size_t)(end - entry - 1);
     if (k == 0 || k >= len)
@@ -295,6 +300,21 @@ static int swap_entry_name(const char *entry, char *name, size_t len)
     memcpy(name, entry + 1, k);
     name[k] = 0;
     return 1;
+}
+
+/* 1 if path is a plain file holding nothing or a pid, as a lock file does. */
+static int swap_is_lock_file(const char *path)
+{
+    struct stat st;
+    if (lstat(path, &st) || !S_ISREG(st.st_mode) || st.st_size > 24)
+        return 0;
+    char buf[32] = "";
+    FILE *f = fopen(path, "r");
+    size_t n = f ? fread(buf, 1, sizeof buf - 1, f) : 0;
+    if (f)
+        fclose(f);
+    buf[n] = 0;
+    return strspn(buf, "0123456789\n") == n;
 }
 
 /* What killed writers left beside the other run folders of the same parent
@@ -315,9 +335,10 @@ static void swap_clear_neighbours(const char *parent, const char *mine)
         memset(&n, 0, sizeof n);
         n.dir = other;
         n.lock_fd = -1;
-        snprintf(n.path, sizeof n.path, "%s%s%s", parent, sep, other);
-        snprintf(n.lock, sizeof n.lock, "%s%s.%s.lock", parent, sep, other);
-        if (swap_lock(&n, err, sizeof err) == 0) {
+        if (snprintf(n.path, sizeof n.path, "%s%s%s", parent, sep, other) >= (int)sizeof n.path ||
+            snprintf(n.lock, sizeof n.lock, "%s%s.%s.pb-lock", parent, sep, other) >= (int)sizeof n.lock)
+            continue;
+        if ((!swap_exists(n.lock) || swap_is_lock_file(n.lock)) && swap_lock(&n, err, sizeof err) == 0) {
             swap_clear_stale(&n, parent, other, 0);
             pb_run_out_close(&n);
         }
@@ -336,10 +357,10 @@ int pb_run_out_open(pb_run_out *o, const char *dir, char *err, size_t errlen)
     const char *name;
     swap_split(o, parent, sizeof parent, &name);
     const char *sep = strcmp(parent, "/") ? "/" : "";
-    if (snprintf(o->lock, sizeof o->lock, "%s%s.%s.lock", parent, sep, name) >= (int)sizeof o->lock ||
-        snprintf(o->stage, sizeof o->stage, "%s%s.%s.new.%ld", parent, sep, name, (long)getpid()) >=
+    if (snprintf(o->lock, sizeof o->lock, "%s%s.%s.pb-lock", parent, sep, name) >= (int)sizeof o->lock ||
+        snprintf(o->stage, sizeof o->stage, "%s%s.%s.pb-new.%ld", parent, sep, name, (long)getpid()) >=
             (int)sizeof o->stage ||
-        snprintf(o->old, sizeof o->old, "%s%s.%s.old.%ld", parent, sep, name, (long)getpid()) >=
+        snprintf(o->old, sizeof o->old, "%s%s.%s.pb-old.%ld", parent, sep, name, (long)getpid()) >=
             (int)sizeof o->old) {
         snprintf(err, errlen, "the folder name '%.200s...' is too long", dir);
         return -1;
@@ -392,7 +413,7 @@ int pb_run_out_commit(pb_run_out *o, char *err, size_t errlen)
         swap_sync_parent(o);
         return 0;
     }
-    /* The new run takes the name .NAME.old.<pid> for the instant before the
+    /* The new run takes the name .NAME.pb-old.<pid> for the instant before the
      * exchange, so that whatever sits under that name after a kill is
      * either a whole run or the earlier folder, never a half-written one. */
     const char *old = o->old;

@@ -2,13 +2,13 @@
  * whole beside it and swapped in, so that a kill at any moment leaves the
  * folder holding either the earlier run or the new one, never a mix.
  *
- * For a run folder P/NAME the writer holds a lock on P/.NAME.lock (a POSIX
+ * For a run folder P/NAME the writer holds a lock on P/.NAME.pb-lock (a POSIX
  * record lock, so the refusal can name the holder's pid), writes the new run
- * into P/.NAME.new.<pid>/ and exchanges it with P/NAME in one rename
+ * into P/.NAME.pb-new.<pid>/ and exchanges it with P/NAME in one rename
  * (renameat2 RENAME_EXCHANGE; on a file system without it, two renames and
  * a recovery by the next writer). What the earlier folder held that its run
  * did not write (a user's notes, say) is moved into the new folder; the rest
- * of it, now at P/.NAME.old.<pid>/, is removed. The next writer to the same
+ * of it, now at P/.NAME.pb-old.<pid>/, is removed. The next writer to the same
  * folder clears what a killed one left: staging folders, a half-done swap,
  * and work folders (.work.<pid>) of an earlier propbench; a writer to any
  * folder of P does the same beside every other folder of P whose lock it can
@@ -21,9 +21,9 @@
 typedef struct pb_run_out {
     const char *dir;     /* the folder as the user named it (messages) */
     char path[4096];     /* the same, resolved: parent/name, no symbolic link */
-    char lock[4200];     /* parent/.name.lock */
-    char stage[4200];    /* parent/.name.new.<pid>: where the new run is written */
-    char old[4200];      /* parent/.name.old.<pid>: the swap's other name */
+    char lock[4200];     /* parent/.name.pb-lock */
+    char stage[4200];    /* parent/.name.pb-new.<pid>: where the new run is written */
+    char old[4200];      /* parent/.name.pb-old.<pid>: the swap's other name */
     int lock_fd;         /* -1 when no lock is held */
     int staged;          /* 1 while the staging folder exists */
 } pb_run_out;
