@@ -99,12 +99,17 @@ Test(robust, shard_out_of_range_refused)
 {
     const char *bad[] = {"1/4294967297", "4294967297/4294967297", "1/2x", "1/", "/2", "0/2", "3/2",
                          "1/-2", "+1/2 ", "1 /2"};
+    char dir[256], out[300];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/run", dir);
     for (size_t i = 0; i < sizeof bad / sizeof *bad; i++) {
         int rc = cli((const char *[]){"sweep", "--suite", "quick", "--shard", bad[i], "--out",
-                                      "/nonexistent/never", NULL});
+                                      out, NULL});
         cr_assert_eq(rc, 2, "--shard %s: exit %d", bad[i], rc);
         cr_assert(strstr(err_buf, "--shard"), "--shard %s: %s", bad[i], err_buf);
+        cr_assert(!pbt_exists(out));
     }
+    rmdir(dir);
 }
 
 /* The count of reference states in the one cache entry below dir (the
