@@ -4,6 +4,7 @@
 #include <errno.h>
 #include <getopt.h>
 #include <limits.h>
+#include <math.h>
 #include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -15,12 +16,15 @@
 #include "bench/report/figure_scripts.h"
 #include "bench/report/html.h"
 #include "bench/report/markdown.h"
+#include "bench/report/context.h"
 #include "bench/store/run_dir.h"
 
 static void report_help(FILE *f)
 {
     fprintf(f,
-"usage: propbench report RUN_DIR [--out DIR] [--gnuplot PROG] [--no-plots] [--quiet]\n\n"
+"usage: propbench report RUN_DIR [--out DIR] [--methods M,..] [--problems P,..]\n"
+"                       [--max-pos-err E] [--external-figures] [--gnuplot PROG]\n"
+"                       [--no-plots] [--quiet]\n\n"
 "Draw the figures of a run and write DIR/report.html (self-contained: inline\n"
 "SVG, no scripts, no network) and DIR/report.md (tables, links to the PNGs).\n"
 "Per problem: energy and angular-momentum error against time, position error\n"
@@ -31,11 +35,17 @@ static void report_help(FILE *f)
 "  --out DIR       where report.* and plots/ go (default RUN_DIR)\n"
 "  --gnuplot PROG  gnuplot program (default $PB_GNUPLOT or gnuplot in PATH)\n"
 "  --no-plots      write scripts, tables and report without running gnuplot\n"
+"  --methods M,..  --problems P,..  report only these methods and problems of the run\n"
+"  --max-pos-err E draw the requirement E (the problem's length unit) on the\n"
+"                  work-precision figures (else a select answer's, if any)\n"
+"  --external-figures  link the SVG figures from report.html instead of\n"
+"                  inlining them (a smaller page; keep plots/ beside it)\n"
+"  --quiet         no progress on stderr, no closing line\n"
 "exit status: 0 written (a missing gnuplot is a warning), 1 gnuplot failed on\n"
 "a figure, 2 bad input (unreadable or invalid summary.json)\n");
 }
 
-enum { RP_OUT = 400, RP_GNUPLOT, RP_NOPLOTS, RP_QUIET, RP_HELP };
+enum { RP_OUT = 400, RP_GNUPLOT, RP_NOPLOTS, RP_QUIET, RP_HELP, RP_METHODS, RP_PROBLEMS, RP_EXT, RP_REQ };
 
 /* The run's name for titles: its summary's sweep name, else the folder name. */
 static const char *report_title(const pb_report_run *run, const char *dir, char *buf, size_t len)
@@ -52,8 +62,9 @@ static const char *report_title(const pb_report_run *run, const char *dir, char 
 }
 
 typedef struct report_opts {
-    const char *dir, *out, *prog;
-    int quiet, noplots;
+    const char *dir, *out, *prog, *methods, *problems;
+    int quiet, noplots, external;
+    double max_pos_err;           /* 0: none given */
 } report_opts;
 
 /* Options into o; -1 (help printed, o->dir NULL) or PB_EXIT_USAGE on a bad
@@ -63,6 +74,8 @@ static int report_parse(int argc, char **argv, report_opts *o)
     static const struct option opts[] = {
         {"out", required_argument, 0, RP_OUT}, {"gnuplot", required_argument, 0, RP_GNUPLOT},
         {"no-plots", no_argument, 0, RP_NOPLOTS}, {"quiet", no_argument, 0, RP_QUIET},
+        {"methods", required_argument, 0, RP_METHODS}, {"problems", required_argument, 0, RP_PROBLEMS},
+        {"external-figures", no_argument, 0, RP_EXT}, {"max-pos-err", required_argument, 0, RP_REQ},
         {"help", no_argument, 0, RP_HELP}, {0, 0, 0, 0}};
     memset(o, 0, sizeof *o);
     o->prog = getenv("PB_GNUPLOT");
@@ -76,6 +89,14 @@ static int report_parse(int argc, char **argv, report_opts *o)
         case RP_NOPLOTS: o->noplots = 1; break;
         case RP_QUIET: o->quiet = 1; break;
         case RP_HELP: report_help(stdout); return -1;
+        case RP_METHODS: o->methods = optarg; break;
+        case RP_PROBLEMS: o->problems = optarg; break;
+        case RP_EXT: o->external = 1; break;
+        case RP_REQ:
+            if (pb_cli_double("report", "--max-pos-err", optarg, &o->max_pos_err)) return PB_EXIT_USAGE;
+            if (!(o->max_pos_err > 0))
+                return pb_cli_error("report", "--max-pos-err must be positive, got '%s'", optarg);
+            break;
         case ':': return pb_cli_error("report", "option %s needs a value", argv[optind - 1]);
         default: return pb_cli_error("report", "unknown option '%s' (see propbench report --help)", argv[optind - 1]);
         }
@@ -144,13 +165,17 @@ static int report_draw(const report_opts *o, const pb_report_run *run, const cha
                 "or run propbench report again.\n", *why, plots);
         return 0;
     }
-    int failed = 0;
+    int failed = 0, total = 0, done = 0;
+    for (int i = 0; i < run->nproblems * PB_FIG_COUNT; i++)
+        total += made[i];
     for (int pi = 0; pi < run->nproblems; pi++)
         for (int k = 0; k < PB_FIG_COUNT; k++) {
             if (!made[pi * PB_FIG_COUNT + k])
                 continue;
             char base[PB_FIG_BASE_MAX];
             pb_fig_base(run->problems[pi].name, k, base, sizeof base);
+            if (!o->quiet)
+                fprintf(stderr, "propbench report: figure %d of %d: %s\n", ++done, total, base);
             if (pb_report_gnuplot_run(exe, plots, base, err, sizeof err)) {
                 fprintf(stderr, "propbench report: warning: %s\n", err);
                 failed++;
@@ -234,9 +259,15 @@ int pb_cli_report(int argc, char **argv)
         return rc < 0 ? PB_EXIT_OK : rc;
     pb_report_run run;
     char err[1024] = "";
-    if (pb_report_load(o.dir, &run, err, sizeof err))
+    if (pb_report_load_subset(o.dir, o.methods, o.problems, &run, err, sizeof err))
         return pb_cli_error("report", "%s", err);
 
+    for (int pi = 0; pi < run.nproblems; pi++) {
+        pb_report_select sel;
+        pb_report_select_find(o.dir, run.problems[pi].name, &sel);
+        run.problems[pi].req_pos = o.max_pos_err > 0 ? o.max_pos_err
+                                 : sel.found && isfinite(sel.max_pos_err) ? sel.max_pos_err : 0;
+    }
     rc = PB_EXIT_USAGE;
     unsigned char *made = calloc((size_t)run.nproblems * PB_FIG_COUNT, 1);
     unsigned char *drawn = calloc((size_t)run.nproblems * PB_FIG_COUNT, 1);
@@ -251,7 +282,8 @@ int pb_cli_report(int argc, char **argv)
     if (report_prepare(&o, &run, plots, sizeof plots, made))
         goto done;
     int drew = report_draw(&o, &run, plots, made, drawn, &why, whybuf, sizeof whybuf);
-    pb_report_view v = {&run, o.out, report_title(&run, o.dir, title, sizeof title), made, drawn, why};
+    pb_report_view v = {&run, o.out, report_title(&run, o.dir, title, sizeof title), made, drawn, why,
+                        o.dir, o.external};
     if (report_write(&o, &v))
         goto done;
     rc = drew;

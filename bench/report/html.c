@@ -8,9 +8,10 @@
 #include "bench/report/figure_scripts.h"
 #include "bench/report/table.h"
 #include "bench/report/html.h"
+#include "bench/report/context.h"
 #include "bench/store/run_dir.h"
 
-static void html_text(FILE *f, const char *s)
+void pb_report_html_text(FILE *f, const char *s)
 {
     for (; s && *s; s++) {
         switch (*s) {
@@ -84,7 +85,8 @@ static const char html_css[] =
     "th,td{border:1px solid #d9d2c3;padding:.25em .6em;text-align:right;}\n"
     "th{background:#efe9dc;} td.l,th.l{text-align:left;}\n"
     "td.best{background:#d8efe9;font-weight:bold;} td.best::after{content:' \\2605';}\n"
-    "tr.bad td{color:#a11;}\n"
+    "tr.bad td{color:#a11;} tr.sat td{color:#8a5a00;} p.note{font-size:.85em;color:#444;}\n"
+    "figure img{max-width:100%;height:auto;border:1px solid #e4dece;}\n"
     "figure{margin:1.4em 0;} figure svg{max-width:100%;height:auto;border:1px solid #e4dece;}\n"
     "figcaption{font-size:.9em;color:#444;margin-top:.3em;}\n"
     ".missing{color:#7a4a00;font-style:italic;}\n"
@@ -94,33 +96,23 @@ static void html_kv(FILE *f, const char *k, const char *v)
 {
     if (!v)
         return;
-    fputs("<dt>", f); html_text(f, k); fputs("</dt><dd>", f); html_text(f, v); fputs("</dd>\n", f);
+    fputs("<dt>", f); pb_report_html_text(f, k); fputs("</dt><dd>", f); pb_report_html_text(f, v); fputs("</dd>\n", f);
+}
+
+static void html_dl(FILE *f, const pb_report_kv *kv, int n)
+{
+    fputs("<dl class=\"kv\">\n", f);
+    for (int i = 0; i < n; i++)
+        html_kv(f, kv[i].key, kv[i].val);
+    fputs("</dl>\n", f);
 }
 
 static void html_settings(FILE *f, const pb_report_view *v)
 {
-    const json_t *doc = v->run->doc;
-    const json_t *m = json_object_get(doc, "machine"), *b = json_object_get(doc, "build");
-    char buf[256];
-    fputs("<h2 id=\"settings\">Run settings, machine and build</h2>\n<dl class=\"kv\">\n", f);
-    html_kv(f, "run", v->title);
-    html_kv(f, "tool", json_string_value(json_object_get(doc, "tool")));
-    snprintf(buf, sizeof buf, "%lld", (long long)json_integer_value(json_object_get(doc, "format")));
-    html_kv(f, "summary format", buf);
-    html_kv(f, "sweep", json_string_value(json_object_get(doc, "sweep")));
-    snprintf(buf, sizeof buf, "%d cases on %d problem%s", v->run->ncases, v->run->nproblems,
-             v->run->nproblems == 1 ? "" : "s");
-    html_kv(f, "cases", buf);
-    const char *mk[] = {"system", "release", "arch", "cpu"};
-    for (int i = 0; i < 4; i++)
-        html_kv(f, mk[i], json_string_value(json_object_get(m, mk[i])));
-    if (json_is_integer(json_object_get(m, "cores"))) {
-        snprintf(buf, sizeof buf, "%lld", (long long)json_integer_value(json_object_get(m, "cores")));
-        html_kv(f, "cores", buf);
-    }
-    html_kv(f, "compiler", json_string_value(json_object_get(b, "compiler")));
-    html_kv(f, "build flags", json_string_value(json_object_get(b, "flags")));
-    fputs("</dl>\n", f);
+    pb_report_kv kv[PB_KV_MAX];
+    int n = pb_report_run_facts(v->run, v->title, kv, PB_KV_MAX);
+    fputs("<h2 id=\"settings\">The run: command, tool, machine and build</h2>\n", f);
+    html_dl(f, kv, n);
 }
 
 static void html_table(FILE *f, const pb_report_view *v, const pb_report_problem *p, const int *best)
@@ -128,9 +120,11 @@ static void html_table(FILE *f, const pb_report_view *v, const pb_report_problem
     fputs("<table class=\"summary\">\n<tr>", f);
     for (int c = 0; c < PB_RT_NCOLS; c++) {
         char h[96];
+        if (!pb_report_table_shown(c, p))
+            continue;
         pb_report_table_heading(c, p, h, sizeof h);
         fputs(c <= PB_RT_STATUS ? "<th class=\"l\">" : "<th>", f);
-        html_text(f, h);
+        pb_report_html_text(f, h);
         fputs("</th>", f);
     }
     fputs("</tr>\n", f);
@@ -138,17 +132,89 @@ static void html_table(FILE *f, const pb_report_view *v, const pb_report_problem
         const pb_report_case *c = &v->run->cases[p->first + i];
         char cells[PB_RT_NCOLS][PB_RT_CELL];
         pb_report_table_cells(c, cells);
-        fprintf(f, "<tr class=\"%s\">", strcmp(c->status, "ok") ? "case bad" : "case");
+        fprintf(f, "<tr class=\"%s\">", !strcmp(c->status, "ok") ? (c->saturated ? "case sat" : "case")
+                                                               : "case bad");
         for (int k = 0; k < PB_RT_NCOLS; k++) {
+            if (!pb_report_table_shown(k, p))
+                continue;
             int b = best && best[i * PB_RT_NCOLS + k];
-            fprintf(f, "<td class=\"%s%s\">", k <= PB_RT_STATUS ? "l" : "", b ? " best" : "");
-            html_text(f, cells[k]);
+            fprintf(f, "<td class=\"%s%s\"", k <= PB_RT_STATUS ? "l" : "", b ? " best" : "");
+            if (k == PB_RT_STATUS && c->status_detail) {
+                fputs(" title=\"", f);
+                pb_report_html_text(f, c->status_detail);
+                fputs("\"", f);
+            }
+            fputc('>', f);
+            pb_report_html_text(f, cells[k]);
+            if (k == PB_RT_STATUS && c->status_detail && strcmp(c->status, "ok")) {
+                fputs(": ", f);
+                pb_report_html_text(f, c->status_detail);
+            }
             fputs("</td>", f);
         }
         fputs("</tr>\n", f);
     }
-    fputs("</table>\n<p>&#9733; marks the best value of each column among cases that finished "
-          "(lowest error, growth exponent nearest zero, fewest evaluations, least time per step).</p>\n", f);
+    fputs("</table>\n<p class=\"note\">&#9733; ", f);
+    pb_report_html_text(f, pb_report_table_marks);
+    fputs(" ok(sat): finished, but the position error passed a tenth of the orbit's size: the run "
+          "follows another orbit.</p>\n", f);
+}
+
+/* One figure: inline SVG (ids prefixed), or a link to the file. */
+static void html_figure(FILE *f, const pb_report_view *v, int pi, int k)
+{
+    const pb_report_problem *p = &v->run->problems[pi];
+    char base[PB_FIG_BASE_MAX], path[5000], pfx[32];
+    pb_fig_base(p->name, k, base, sizeof base);
+    snprintf(path, sizeof path, "%s/plots/%s.svg", v->out_dir, base);
+    snprintf(pfx, sizeof pfx, "f%d-%d", pi, k);
+    fprintf(f, "<figure class=\"fig-%s\">\n", pb_fig_kind(k));
+    size_t n = 0;
+    int drawn = v->drawn[pi * PB_FIG_COUNT + k];
+    char *svg = drawn && !v->external_figures ? html_slurp(path, &n) : NULL;
+    if (svg) {
+        html_svg(f, svg, pfx);
+        free(svg);
+    } else if (drawn) {
+        fputs("<img src=\"plots/", f);
+        pb_report_html_text(f, base);
+        fputs(".svg\" alt=\"", f);
+        pb_report_html_text(f, pb_fig_kind(k));
+        fputs("\" loading=\"lazy\">\n", f);
+    } else {
+        fputs("<p class=\"missing\">Not drawn; script: plots/", f);
+        pb_report_html_text(f, base);
+        fputs(".gp</p>\n", f);
+    }
+    fputs("<figcaption>", f);
+    pb_report_html_text(f, pb_report_fig_caption(k));
+    fputs("</figcaption>\n</figure>\n", f);
+}
+
+static int html_problem(FILE *f, const pb_report_view *v, int pi)
+{
+    const pb_report_problem *p = &v->run->problems[pi];
+    fprintf(f, "<section class=\"problem\" id=\"problem-%d\">\n<h2>", pi);
+    pb_report_html_text(f, p->name);
+    if (p->orbits_max > 0)
+        fprintf(f, " &mdash; horizon %g orbits (%.4g %s)</h2>\n", p->orbits_max, p->horizon_max, p->time_unit);
+    else
+        fprintf(f, " &mdash; horizon %.4g %s</h2>\n", p->horizon_max, p->time_unit);
+    pb_report_kv kv[PB_KV_MAX];
+    int n = pb_report_problem_def(v->run, p, kv, PB_KV_MAX);
+    fputs("<h3>The problem</h3>\n<div class=\"orbit-definition\">\n", f);
+    html_dl(f, kv, n);
+    fputs("</div>\n<h3>Cases</h3>\n", f);
+    int *best = pb_report_table_best(v->run, p);
+    if (!best)
+        return -1;
+    html_table(f, v, p, best);
+    free(best);
+    for (int k = 0; k < PB_FIG_COUNT; k++)
+        if (v->made[pi * PB_FIG_COUNT + k])
+            html_figure(f, v, pi, k);
+    fputs("</section>\n", f);
+    return 0;
 }
 
 static int html_body(FILE *f, const pb_report_view *v)
@@ -159,59 +225,22 @@ static int html_body(FILE *f, const pb_report_view *v)
         caution = "Benchmarks on idealised problems do not validate an operational propagator; "
                   "defer to the mission's own verification and flight-dynamics practice.";
     fputs("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>propbench report: ", f);
-    html_text(f, v->title);
+    pb_report_html_text(f, v->title);
     fprintf(f, "</title>\n<style>\n%s</style>\n</head>\n<body>\n<main>\n<h1>propbench report: ", html_css);
-    html_text(f, v->title);
-    fputs("</h1>\n<p class=\"caution\"><strong>Caution.</strong> ", f);
-    html_text(f, caution);
-    fputs("</p>\n", f);
+    pb_report_html_text(f, v->title);
+    fputs("</h1>\n", f);
+    pb_report_html_summary(f, v, caution);
     if (v->why_not_drawn) {
         fputs("<p class=\"missing\">Figures were not drawn: ", f);
-        html_text(f, v->why_not_drawn);
+        pb_report_html_text(f, v->why_not_drawn);
         fputs(". The data and gnuplot scripts are in plots/; run <code>gnuplot ./NAME.gp</code> there.</p>\n", f);
     }
     html_settings(f, v);
-    for (int pi = 0; pi < run->nproblems; pi++) {
-        const pb_report_problem *p = &run->problems[pi];
-        fprintf(f, "<section class=\"problem\" id=\"problem-%d\">\n<h2>", pi);
-        html_text(f, p->name);
-        char hz[128];
-        if (p->orbits_max > 0)
-            snprintf(hz, sizeof hz, " &mdash; horizon %g periods (%.4g %s)", p->orbits_max, p->horizon_max, p->time_unit);
-        else
-            snprintf(hz, sizeof hz, " &mdash; horizon %.4g %s", p->horizon_max, p->time_unit);
-        fprintf(f, "%s</h2>\n", hz);
-        int *best = pb_report_table_best(run, p);
-        if (!best)
+    for (int pi = 0; pi < run->nproblems; pi++)
+        if (html_problem(f, v, pi))
             return -1;
-        html_table(f, v, p, best);
-        free(best);
-        for (int k = 0; k < PB_FIG_COUNT; k++) {
-            if (!v->made[pi * PB_FIG_COUNT + k])
-                continue;
-            char base[PB_FIG_BASE_MAX], path[5000], pfx[32];
-            pb_fig_base(p->name, k, base, sizeof base);
-            snprintf(path, sizeof path, "%s/plots/%s.svg", v->out_dir, base);
-            snprintf(pfx, sizeof pfx, "f%d-%d", pi, k);
-            fprintf(f, "<figure class=\"fig-%s\">\n", pb_fig_kind(k));
-            size_t n = 0;
-            char *svg = v->drawn[pi * PB_FIG_COUNT + k] ? html_slurp(path, &n) : NULL;
-            if (svg) {
-                html_svg(f, svg, pfx);
-                free(svg);
-            } else {
-                fputs("<p class=\"missing\">Not drawn; script: plots/", f);
-                html_text(f, base);
-                fputs(".gp</p>\n", f);
-            }
-            fputs("<figcaption>", f);
-            html_text(f, pb_report_fig_caption(k));
-            fputs("</figcaption>\n</figure>\n", f);
-        }
-        fputs("</section>\n", f);
-    }
     fputs("<p class=\"caution\"><strong>Caution.</strong> ", f);
-    html_text(f, caution);
+    pb_report_html_text(f, caution);
     fputs("</p>\n</main>\n</body>\n</html>\n", f);
     return 0;
 }

@@ -7,6 +7,7 @@
 #include "bench/report/figure_scripts.h"
 #include "bench/report/table.h"
 #include "bench/report/markdown.h"
+#include "bench/report/context.h"
 #include "bench/store/run_dir.h"
 
 /* Markdown table cells: pipes and line breaks would end the cell. */
@@ -19,84 +20,118 @@ static void md_cell(FILE *f, const char *s)
     }
 }
 
-static void md_kv(FILE *f, const char *k, const json_t *v)
+static void md_dl(FILE *f, const pb_report_kv *kv, int n)
 {
-    if (json_is_string(v))
-        fprintf(f, "- %s: %s\n", k, json_string_value(v));
-    else if (json_is_integer(v))
-        fprintf(f, "- %s: %lld\n", k, (long long)json_integer_value(v));
+    for (int i = 0; i < n; i++)
+        fprintf(f, "- %s: %s\n", kv[i].key, kv[i].val);
+}
+
+/* The summary: cheapest plain-ok case per error level, select's answer. */
+static void md_summary(FILE *f, const pb_report_view *v)
+{
+    fputs("## Summary\n\nFewest evaluations among cases that ended plain ok:\n\n", f);
+    for (int pi = 0; pi < v->run->nproblems; pi++) {
+        const pb_report_problem *p = &v->run->problems[pi];
+        double lv[PB_REPORT_NLEVELS];
+        const char *names[PB_REPORT_NLEVELS];
+        pb_report_levels(p, lv, names);
+        fputs("- **", f);
+        md_cell(f, p->name);
+        fputs("**:", f);
+        for (int l = 0; l < PB_REPORT_NLEVELS; l++) {
+            int i = pb_report_cheapest(v->run, p, lv[l]);
+            fprintf(f, "%s %s: ", l ? ";" : "", names[l]);
+            if (i < 0) {
+                fputs("none", f);
+                continue;
+            }
+            char set[64];
+            pb_report_case_setting(&v->run->cases[i], set, sizeof set);
+            md_cell(f, v->run->cases[i].method);
+            fprintf(f, " %s (%ld evaluations)", set, v->run->cases[i].evals);
+        }
+        pb_report_select sel;
+        pb_report_select_find(v->run_dir, p->name, &sel);
+        if (sel.found)
+            fprintf(f, "; select's answer: %s", sel.answer);
+        fputc('\n', f);
+    }
+}
+
+static int md_problem(FILE *f, const pb_report_view *v, int pi)
+{
+    const pb_report_run *run = v->run;
+    const pb_report_problem *p = &run->problems[pi];
+    fputs("\n## ", f);
+    md_cell(f, p->name);
+    fputs("\n\n", f);
+    pb_report_kv kv[PB_KV_MAX];
+    md_dl(f, kv, pb_report_problem_def(run, p, kv, PB_KV_MAX));
+    fputs("\n|", f);
+    for (int c = 0; c < PB_RT_NCOLS; c++) {
+        char h[96];
+        if (!pb_report_table_shown(c, p))
+            continue;
+        pb_report_table_heading(c, p, h, sizeof h);
+        fputc(' ', f);
+        md_cell(f, h);
+        fputs(" |", f);
+    }
+    fputs("\n|", f);
+    for (int c = 0; c < PB_RT_NCOLS; c++)
+        if (pb_report_table_shown(c, p))
+            fputs(c <= PB_RT_STATUS ? " :--- |" : " ---: |", f);
+    fputc('\n', f);
+    int *best = pb_report_table_best(run, p);
+    if (!best)
+        return -1;
+    for (int i = 0; i < p->n; i++) {
+        char cells[PB_RT_NCOLS][PB_RT_CELL];
+        pb_report_table_cells(&run->cases[p->first + i], cells);
+        fputc('|', f);
+        for (int k = 0; k < PB_RT_NCOLS; k++) {
+            if (!pb_report_table_shown(k, p))
+                continue;
+            int bb = best[i * PB_RT_NCOLS + k];
+            fputs(bb ? " **" : " ", f);
+            md_cell(f, cells[k]);
+            fputs(bb ? "** |" : " |", f);
+        }
+        fputc('\n', f);
+    }
+    free(best);
+    fprintf(f, "\nBold %s\n\n", pb_report_table_marks);
+    for (int k = 0; k < PB_FIG_COUNT; k++) {
+        if (!v->made[pi * PB_FIG_COUNT + k])
+            continue;
+        char base[PB_FIG_BASE_MAX];
+        pb_fig_base(p->name, k, base, sizeof base);
+        if (v->drawn[pi * PB_FIG_COUNT + k])
+            fprintf(f, "![%s](plots/%s.png)\n\n", pb_fig_kind(k), base);
+        else
+            fprintf(f, "(%s: not drawn; script plots/%s.gp)\n\n", pb_fig_kind(k), base);
+        fprintf(f, "*%s*\n\n", pb_report_fig_caption(k));
+    }
+    return 0;
 }
 
 static int md_body(FILE *f, const pb_report_view *v)
 {
     const pb_report_run *run = v->run;
-    const json_t *doc = run->doc, *m = json_object_get(doc, "machine"), *b = json_object_get(doc, "build");
-    const char *caution = json_string_value(json_object_get(doc, "caution"));
+    const char *caution = json_string_value(json_object_get(run->doc, "caution"));
     if (!caution)
         caution = "Benchmarks on idealised problems do not validate an operational propagator; "
                   "defer to the mission's own verification and flight-dynamics practice.";
     fprintf(f, "# propbench report: %s\n\n> **Caution.** %s\n\n", v->title, caution);
     if (v->why_not_drawn)
         fprintf(f, "Figures were not drawn: %s. The data and gnuplot scripts are in plots/.\n\n", v->why_not_drawn);
-    fputs("## Run settings, machine and build\n\n", f);
-    md_kv(f, "tool", json_object_get(doc, "tool"));
-    md_kv(f, "summary format", json_object_get(doc, "format"));
-    md_kv(f, "sweep", json_object_get(doc, "sweep"));
-    fprintf(f, "- cases: %d on %d problem%s\n", run->ncases, run->nproblems, run->nproblems == 1 ? "" : "s");
-    const char *mk[] = {"system", "release", "arch", "cpu", "cores"};
-    for (int i = 0; i < 5; i++)
-        md_kv(f, mk[i], json_object_get(m, mk[i]));
-    md_kv(f, "compiler", json_object_get(b, "compiler"));
-    md_kv(f, "build flags", json_object_get(b, "flags"));
-    for (int pi = 0; pi < run->nproblems; pi++) {
-        const pb_report_problem *p = &run->problems[pi];
-        fputs("\n## ", f);
-        md_cell(f, p->name);
-        if (p->orbits_max > 0)
-            fprintf(f, ": horizon %g periods (%.4g %s)\n\n", p->orbits_max, p->horizon_max, p->time_unit);
-        else
-            fprintf(f, ": horizon %.4g %s\n\n", p->horizon_max, p->time_unit);
-        fputc('|', f);
-        for (int c = 0; c < PB_RT_NCOLS; c++) {
-            char h[96];
-            pb_report_table_heading(c, p, h, sizeof h);
-            fputc(' ', f);
-            md_cell(f, h);
-            fputs(" |", f);
-        }
-        fputs("\n|", f);
-        for (int c = 0; c < PB_RT_NCOLS; c++)
-            fputs(c <= PB_RT_STATUS ? " :--- |" : " ---: |", f);
-        fputc('\n', f);
-        int *best = pb_report_table_best(run, p);
-        if (!best)
+    md_summary(f, v);
+    fputs("\n## The run: command, tool, machine and build\n\n", f);
+    pb_report_kv kv[PB_KV_MAX];
+    md_dl(f, kv, pb_report_run_facts(run, v->title, kv, PB_KV_MAX));
+    for (int pi = 0; pi < run->nproblems; pi++)
+        if (md_problem(f, v, pi))
             return -1;
-        for (int i = 0; i < p->n; i++) {
-            char cells[PB_RT_NCOLS][PB_RT_CELL];
-            pb_report_table_cells(&run->cases[p->first + i], cells);
-            fputc('|', f);
-            for (int k = 0; k < PB_RT_NCOLS; k++) {
-                int bb = best[i * PB_RT_NCOLS + k];
-                fputs(bb ? " **" : " ", f);
-                md_cell(f, cells[k]);
-                fputs(bb ? "** |" : " |", f);
-            }
-            fputc('\n', f);
-        }
-        free(best);
-        fputs("\nBold marks the best value of each column among cases that finished.\n\n", f);
-        for (int k = 0; k < PB_FIG_COUNT; k++) {
-            if (!v->made[pi * PB_FIG_COUNT + k])
-                continue;
-            char base[PB_FIG_BASE_MAX];
-            pb_fig_base(p->name, k, base, sizeof base);
-            if (v->drawn[pi * PB_FIG_COUNT + k])
-                fprintf(f, "![%s](plots/%s.png)\n\n", pb_fig_kind(k), base);
-            else
-                fprintf(f, "(%s: not drawn; script plots/%s.gp)\n\n", pb_fig_kind(k), base);
-            fprintf(f, "*%s*\n\n", pb_report_fig_caption(k));
-        }
-    }
     fprintf(f, "---\n\n**Caution.** %s\n", caution);
     return 0;
 }

@@ -95,6 +95,12 @@ static int data_case(const json_t *o, pb_report_case *c, char *err, size_t errle
     c->evals = data_long(k, "evals");
     c->steps = data_long(k, "steps");
     c->ns_per_step = data_num(k, "ns_per_step");
+    c->cpu_s = c->steps >= 0 ? 1e-9 * c->ns_per_step * (double)c->steps : (double)NAN;
+    c->saturated = json_is_true(json_object_get(m, "error_saturated"));
+    c->diverged_at = data_num(o, "diverged_at");
+    c->diverged_orbits = data_num(o, "diverged_at_orbits");
+    c->status_detail = data_str(o, "status_detail", NULL);
+    c->floor_max = data_num(m, "reference_floor_max");
     if (!(c->h > 0) && c->fixed && c->steps > 0 && c->horizon_s > 0)
         c->h = c->horizon_s / (double)c->steps;
     return 0;
@@ -161,7 +167,50 @@ static int data_stems_distinct(const pb_report_run *run, const char *path, char 
     return 0;
 }
 
+/* 1 when name is one of the comma-separated list's items (NULL: any). */
+static int data_listed(const char *list, const char *name)
+{
+    if (!list)
+        return 1;
+    size_t n = strlen(name);
+    for (const char *s = list; *s;) {
+        size_t k = strcspn(s, ",");
+        if (k == n && !strncmp(s, name, n))
+            return 1;
+        s += k + (s[k] == ',');
+    }
+    return 0;
+}
+
+/* Every item of list must name a case's field key (method or problem). */
+static int data_list_known(const json_t *cases, const char *list, const char *key, const char *opt,
+                           char *err, size_t errlen)
+{
+    for (const char *s = list; s && *s;) {
+        size_t k = strcspn(s, ","), i;
+        int hit = 0;
+        const json_t *c;
+        json_array_foreach(cases, i, c) {
+            const char *v = json_string_value(json_object_get(c, key));
+            if (v && strlen(v) == k && !strncmp(v, s, k))
+                hit = 1;
+        }
+        if (!hit) {
+            snprintf(err, errlen, "%s: '%.*s' is no %s of this run", opt, (int)(k > 200 ? 200 : k), s, key);
+            return -1;
+        }
+        s += k + (s[k] == ',');
+    }
+    return 0;
+}
+
 int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen)
+{
+    return pb_report_load_subset(dir, NULL, NULL, run, err, errlen);
+}
+
+int pb_report_load_subset(const char *dir, const char *methods, const char *problems,
+                          pb_report_run *run, char *err, size_t errlen)
 {
     memset(run, 0, sizeof *run);
     char path[4200];
@@ -183,6 +232,9 @@ int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen
         snprintf(err, errlen, "%s: \"cases\" must be a non-empty list", path);
         goto fail;
     }
+    if (data_list_known(cases, methods, "method", "--methods", err, errlen) ||
+        data_list_known(cases, problems, "problem", "--problems", err, errlen))
+        goto fail;
     int n = (int)json_array_size(cases);
     data_item *items = calloc((size_t)n, sizeof *items);
     const char **pnames = calloc((size_t)n, sizeof *pnames);
@@ -194,16 +246,19 @@ int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen
         free(items); free(pnames); free(nm);
         goto fail;
     }
-    int np = 0, bad = 0;
+    int np = 0, bad = 0, kept = 0;
     for (int i = 0; i < n && !bad; i++) {
-        data_item *it = &items[i];
+        data_item *it = &items[kept];
         if (data_case(json_array_get(cases, (size_t)i), &it->c, err, errlen, path, i)) {
             bad = 1;
             break;
         }
+        if (!data_listed(methods, it->c.method) || !data_listed(problems, it->c.problem))
+            continue;
+        kept++;
         it->pslot = data_slot(pnames, &np, it->c.problem);
         it->c.method_slot = -1;
-        for (int j = 0; j < i && it->c.method_slot < 0; j++)
+        for (int j = 0; j < kept - 1 && it->c.method_slot < 0; j++)
             if (items[j].pslot == it->pslot && !strcmp(items[j].c.method, it->c.method))
                 it->c.method_slot = items[j].c.method_slot;
         if (it->c.method_slot < 0)
@@ -213,8 +268,12 @@ int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen
                                : -log(it->c.tolerance);
         it->seq = i;
     }
+    if (!bad && kept == 0) {
+        snprintf(err, errlen, "%s: no case of the run is both in --methods and in --problems", path);
+        bad = 1;
+    }
     if (!bad) {
-        data_group(run, items, n, np, nm);
+        data_group(run, items, kept, np, nm);
         bad = data_stems_distinct(run, path, err, errlen);
     }
     free(items); free(pnames); free(nm);
@@ -238,6 +297,26 @@ void pb_report_free(pb_report_run *run)
     free(run->problems);
     json_decref(run->doc);
     memset(run, 0, sizeof *run);
+}
+
+int pb_report_case_plain_ok(const pb_report_case *c)
+{
+    return !strcmp(c->status, "ok") && !c->saturated;
+}
+
+void pb_report_case_status(const pb_report_case *c, char *buf, size_t len)
+{
+    if (!strcmp(c->status, "ok")) {
+        snprintf(buf, len, "%s", c->saturated ? "ok(sat)" : "ok");
+        return;
+    }
+    int n = snprintf(buf, len, "%s", c->status);
+    if (n < 0 || (size_t)n >= len || !isfinite(c->diverged_at))
+        return;
+    n += snprintf(buf + n, len - (size_t)n, " at t = %.6g %s", c->diverged_at,
+                  strcmp(c->units, "km-s") ? "TU" : "s");
+    if ((size_t)n < len && isfinite(c->diverged_orbits))
+        snprintf(buf + n, len - (size_t)n, " (%.4g orbits)", c->diverged_orbits);
 }
 
 void pb_report_case_setting(const pb_report_case *c, char *buf, size_t len)

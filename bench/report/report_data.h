@@ -17,6 +17,11 @@ typedef struct pb_report_case {
     double energy_max, angmom_max, pos_max, k_pos;   /* NaN when absent or null */
     long evals, steps;            /* -1 when absent */
     double ns_per_step;
+    double cpu_s;                 /* ns_per_step * steps: CPU time over the horizon; NaN if untimed */
+    int saturated;                /* finished, but the error passed a tenth of the orbit's size */
+    double diverged_at, diverged_orbits;   /* NaN when absent */
+    const char *status_detail;    /* NULL when absent */
+    double floor_max;             /* the reference's floor (0 for a closed form) */
     int method_slot;              /* 0.. per problem, in order of first appearance */
     int variant;                  /* 0 = coarsest step / loosest tolerance of its method */
 } pb_report_case;
@@ -27,6 +32,7 @@ typedef struct pb_report_problem {
     int nmethods;
     const char *len_unit, *time_unit;   /* "km"/"s" or "DU"/"TU" */
     double orbits_max, horizon_max;     /* longest horizon among its cases */
+    double req_pos;               /* a position-error requirement to draw; 0: none */
 } pb_report_problem;
 
 typedef struct pb_report_run {
@@ -41,7 +47,20 @@ typedef struct pb_report_run {
  * and what is wrong in err (also when two problems would get the same
  * figure files, pb_fig_stem). On failure run holds nothing to free. */
 int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen);
+/* The same for a subset: methods and problems are comma-separated lists
+ * (NULL: all). A name in a list that no case of the run has is refused
+ * with a message naming it and the option. */
+int pb_report_load_subset(const char *dir, const char *methods, const char *problems,
+                          pb_report_run *run, char *err, size_t errlen);
 void pb_report_free(pb_report_run *run);
+
+/* 1 when the case ended plain "ok": finished and not saturated. Only these
+ * take part in best-value marks and recommendations. */
+int pb_report_case_plain_ok(const pb_report_case *c);
+
+/* The status as the console prints it: "ok", "ok(sat)", "diverged at t =
+ * 3.33 TU (0.53 orbits)", "max_steps at ...", "crashed". */
+void pb_report_case_status(const pb_report_case *c, char *buf, size_t len);
 
 /* "n=200", "h=60 s" or "tol=1e-08" into buf. */
 void pb_report_case_setting(const pb_report_case *c, char *buf, size_t len);

@@ -12,6 +12,8 @@ typedef struct pb_report_view {
     const unsigned char *made;      /* [problem * PB_FIG_COUNT + kind] */
     const unsigned char *drawn;
     const char *why_not_drawn;      /* NULL, or e.g. "gnuplot was not found" */
+    const char *run_dir;            /* summary.json's folder (select-*.json looked for there) */
+    int external_figures;           /* 1: img elements link plots/NAME.svg, not inline SVG */
 } pb_report_view;
 
 #endif

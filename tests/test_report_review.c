@@ -1,0 +1,154 @@
+/* test_report_review.c - the report as a method review reads it: the
+ * status column says what the console says (ok(sat), diverged at ...), no
+ * best mark goes to a case that did not end plain ok, evaluations and CPU
+ * time are marked on the work-precision front only, km problems get a
+ * metres column, each problem's definition and the run's command are
+ * stated, the summary names the cheapest case per error level, and
+ * --methods/--problems report a subset. */
+#include <criterion/criterion.h>
+#include <jansson.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include "test_support.h"
+#include "bench/report/table.h"
+#include "bench/report/context.h"
+
+TestSuite(review, .timeout = 240);
+
+/* The front of cost against error (Pareto optimality, common practice):
+ * a row is marked when no other counted row is no worse on both and better
+ * on one. Row 2 is dominated by row 1, row 4 is not counted, row 5 ties
+ * row 0 exactly (both kept: neither is better on either). */
+Test(review, front_marks_cost_at_accuracy)
+{
+    const double cost[] = {10, 20, 30, 40, 1, 10};
+    const double err[] = {1e-3, 1e-6, 1e-5, 1e-9, 1e-12, 1e-3};
+    const int ok[] = {1, 1, 1, 1, 0, 1};
+    int front[6];
+    cr_assert_eq(pb_report_front(cost, err, ok, 6, front), 4);
+    const int want[] = {1, 1, 0, 1, 0, 1};
+    for (int i = 0; i < 6; i++)
+        cr_assert_eq(front[i], want[i], "row %d", i);
+    const int none[6] = {0};
+    cr_assert_eq(pb_report_front(cost, err, none, 6, front), 0);
+}
+
+/* One line of s that starts with prefix (copied into line); 0 if none. */
+static int rv_line(const char *s, const char *prefix, char *line, size_t len)
+{
+    for (const char *p = s; p && *p; p = strchr(p, '\n') ? strchr(p, '\n') + 1 : NULL)
+        if (!strncmp(p, prefix, strlen(prefix))) {
+            size_t n = strcspn(p, "\n");
+            snprintf(line, len, "%.*s", (int)n, p);
+            return 1;
+        }
+    return 0;
+}
+
+/* Leapfrog and RK4 on kepler-e0.9 (e = 0.9: the periapsis passage needs
+ * far more than 1000 steps per orbit, so both saturate, and 200 steps
+ * diverge in the first orbit; the run's own console table says so) and on
+ * the km-s LEO problem, 20 orbits. */
+static void rv_run(char *dir, size_t len)
+{
+    pbt_tmpdir(dir, len);
+    char out[16384], err[8192];
+    const char *args[] = {"sweep", "--problems", "kepler-e0.9,leo-near-circular", "--methods", "leapfrog,rk4",
+                          "--steps-per-orbit", "200,1000", "--orbits", "20", "--repeats", "1",
+                          "--out", dir, NULL};
+    int rc = pbt_run_cli(args, out, sizeof out, err, sizeof err);
+    cr_assert_eq(rc, 0, "sweep failed (%d): %s", rc, err);
+    /* the console's wording is what the report must repeat */
+    cr_assert(strstr(out, "kepler-e0.9        leapfrog        n=1000       ok(sat)"), "%s", out);
+    cr_assert(strstr(out, "kepler-e0.9__rk4__n200__o20: diverged at t = 3.33009 TU (0.53 orbits)"), "%s", out);
+}
+
+Test(review, tables_say_what_the_console_says)
+{
+    char dir[256], out[4096], err[8192], path[600], line[2048];
+    rv_run(dir, sizeof dir);
+    const char *args[] = {"report", dir, "--no-plots", "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(args, out, sizeof out, err, sizeof err), 0, "%s", err);
+    snprintf(path, sizeof path, "%s/report.md", dir);
+    char *md = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(md);
+    cr_assert(rv_line(md, "| leapfrog | n=1000 |", line, sizeof line));
+    cr_assert(strstr(line, "| ok(sat) |"), "%s", line);
+    /* a saturated case is never marked, whatever its numbers */
+    cr_assert_null(strstr(line, "**"), "a saturated case carries a best mark: %s", line);
+    cr_assert(rv_line(md, "| rk4 | n=200 |", line, sizeof line));
+    cr_assert(strstr(line, "| diverged at t = 3.33009 TU (0.53 orbits) |"), "%s", line);
+    cr_assert_null(strstr(line, "**"), "%s", line);
+    /* kepler-e0.9 has no case that ended plain ok: no mark in its table */
+    char *leo = strstr(md, "\n## leo-near-circular");
+    cr_assert_not_null(leo);
+    char *kep = strstr(md, "\n## kepler-e0.9");
+    cr_assert_not_null(kep);
+    *leo = 0;
+    cr_assert_null(strstr(kep, "| **"), "a mark in a table without a plain-ok case");
+    *leo = '\n';
+    /* metres where lengths are km; RK4 n=1000 has the lowest error (marked);
+     * leapfrog n=200 is the cheapest (4001 evaluations): on the front */
+    cr_assert(strstr(leo, "max position error [m] |"));
+    cr_assert(rv_line(leo + 1, "| rk4 | n=1000 |", line, sizeof line));
+    cr_assert(strstr(line, "| ok | "), "%s", line);
+    double en = 0, km = 0, m = 0;
+    char *c = strstr(line, "| ok | ");
+    cr_assert_eq(sscanf(c, "| ok | **%lf** | **%lf** | **%lf** |", &en, &km, &m), 3, "%s", line);
+    cr_assert_float_eq(m, 1e3 * km, 1e-3 * m, "metres %g against km %g", m, km);
+    cr_assert(rv_line(leo + 1, "| leapfrog | n=200 |", line, sizeof line));
+    cr_assert(strstr(line, "| **4001** |"), "%s", line);
+    cr_assert(strstr(md, "no other case beats on both cost and position error"));
+    free(md);
+}
+
+Test(review, orbit_run_and_summary_stated)
+{
+    char dir[256], out[4096], err[8192], path[600];
+    rv_run(dir, sizeof dir);
+    const char *args[] = {"report", dir, "--no-plots", "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(args, out, sizeof out, err, sizeof err), 0, "%s", err);
+    snprintf(path, sizeof path, "%s/report.html", dir);
+    char *html = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(html);
+    /* kepler-e0.9's catalogue entry: a = 1, e = 0.9 from periapsis, mu = 1
+     * (Hairer, Lubich & Wanner 2006, Ch. I's Kepler problem, normalized) */
+    cr_assert(strstr(html, "a = 1 DU, e = 0.9, i = 0 deg"), "kepler-e0.9 elements missing");
+    cr_assert(strstr(html, "r0 = (0.1, 0, 0) DU"));
+    /* the LEO problem's mu: Earth's GM, 398600.4418 km^3/s^2 (IERS/WGS 84) */
+    cr_assert(strstr(html, "<dt>mu</dt><dd>398600.4418</dd>"));
+    cr_assert(strstr(html, "<dt>reference floor</dt>"));
+    cr_assert(strstr(html, "class=\"orbit-definition\""));
+    cr_assert(strstr(html, "<dt>command</dt><dd>") &&
+              strstr(html, "sweep --problems kepler-e0.9,leo-near-circular --methods leapfrog,rk4"),
+              "the sweep's command is not stated");
+    cr_assert(strstr(html, "<dt>tool version</dt><dd>propbench "));
+    /* the summary comes before the tables and only names plain-ok cases:
+     * nothing reaches 1e-2 DU on kepler-e0.9; RK4 n=1000 (5.2e-5 km over
+     * 20 orbits, printed by the sweep) is the cheapest at 1 m on LEO */
+    char *sum = strstr(html, "<section id=\"summary\">"), *first = strstr(html, "<table class=\"summary\">");
+    cr_assert(sum && first && sum < first);
+    cr_assert(strstr(sum, "<tr><td class=\"l\">1e-2 DU</td><td class=\"l\" colspan=\"3\">no case"));
+    cr_assert(strstr(sum, "<tr><td class=\"l\">1 m</td><td class=\"l\">rk4 n=1000</td><td>80001</td>"));
+    free(html);
+
+    /* a subset: only rk4 on LEO */
+    const char *a2[] = {"report", dir, "--no-plots", "--quiet", "--methods", "rk4", "--problems",
+                        "leo-near-circular", "--out", NULL, NULL};
+    char sub[400];
+    snprintf(sub, sizeof sub, "%s/sub", dir);
+    a2[9] = sub;
+    cr_assert_eq(pbt_run_cli(a2, out, sizeof out, err, sizeof err), 0, "%s", err);
+    snprintf(path, sizeof path, "%s/report.md", sub);
+    char *md = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(md);
+    cr_assert_null(strstr(md, "## kepler-e0.9"));
+    cr_assert_null(strstr(md, "| leapfrog |"));
+    cr_assert(strstr(md, "| rk4 | n=200 |"));
+    free(md);
+    const char *a3[] = {"report", dir, "--no-plots", "--methods", "rk4,nosuch", NULL};
+    cr_assert_eq(pbt_run_cli(a3, out, sizeof out, err, sizeof err), 2);
+    cr_assert(strstr(err, "--methods: 'nosuch' is no method of this run"), "%s", err);
+}
