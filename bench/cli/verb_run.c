@@ -31,7 +31,8 @@ static int run_check_out(const char *opt, const char *path)
         return -1;
     }
     if (access(dir, W_OK | X_OK)) {
-        pb_cli_error("run", "%s '%s': cannot write in the folder %s", opt, path, dir);
+        pb_cli_error("run", "%s '%s': cannot write in the folder %s: %s", opt, path, dir,
+                     strerror(errno));
         return -1;
     }
     return 0;
