@@ -56,7 +56,8 @@ typedef struct rkf45_ws {
     pb_method_config cfg;
     double t;
     double h;              /* the controller's proposal for the next step (0: none yet) */
-    double err_prev;       /* PI memory: error norm of the last accepted unclamped step */
+    double log_err_prev;   /* PI memory: log of the error norm of the last accepted unclamped
+                            * step (held as a log: one log and one exp a step, not two pow) */
     double hmin;
     double *atol;          /* effective absolute tolerance per component */
     int have_k1;           /* k[0] holds f(t, y) */
@@ -110,7 +111,7 @@ static int rkf45_start(void *ws, const pb_force *f, const pb_method_config *cfg,
     w->hmin = cfg->min_step > 0 ? cfg->min_step : 1e-12 * scale;
     w->t = t0;
     w->h = cfg->h;
-    w->err_prev = 1.0;
+    w->log_err_prev = 0.0; /* error norm 1 */
     w->have_k1 = 0;
     w->last_rejected = 0;
     memcpy(w->y, r0, (size_t)w->dim * sizeof(double));
@@ -246,13 +247,15 @@ static int rkf45_advance(void *ws, double t_out, pb_step_observer obs, void *oct
              * step the solution allows, so the proposal and the PI memory are
              * kept for the next call. */
             if (!last || h >= w->h) {
-                double e = fmax(err, 1e-10);
-                double fac = RKF45_SAFETY * pow(e, -RKF45_ALPHA) * pow(w->err_prev, RKF45_BETA);
+                /* log is increasing, so log(max(err, c)) = max(log err, log c) */
+                double lerr = log(err);
+                double fac = RKF45_SAFETY * exp(-RKF45_ALPHA * fmax(lerr, log(1e-10)) +
+                                                RKF45_BETA * w->log_err_prev);
                 fac = fmin(RKF45_GROW_MAX, fmax(RKF45_SHRINK_MIN, fac));
                 if (w->last_rejected)
                     fac = fmin(fac, 1.0);
                 w->h = h * fac;
-                w->err_prev = fmax(err, 1e-4);
+                w->log_err_prev = fmax(lerr, log(1e-4));
             }
             w->t = last ? t_out : w->t + h;
             memcpy(w->y, w->ynew, (size_t)w->n * sizeof(double));
@@ -265,7 +268,7 @@ static int rkf45_advance(void *ws, double t_out, pb_step_observer obs, void *oct
             if (obs && (s = obs(octx, w->t, w->y, w->y + w->dim)))
                 return s;
         } else {
-            double fac = RKF45_SAFETY * pow(err, -1.0 / RKF45_K);
+            double fac = RKF45_SAFETY * exp(-log(err) / RKF45_K);
             w->h = h * fmax(RKF45_SHRINK_MIN, fac);
             w->last_rejected = 1;
             w->st.rejected++;

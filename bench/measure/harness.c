@@ -27,8 +27,14 @@
 typedef struct harness_watch {
     const pb_problem *p;
     double E0, E_scale, H0, H_scale, r_limit;
-    double e_win, h_win, e_max, h_max;
-    double e_fit, h_fit;      /* since the last log-grid sample: the fits' windows */
+    double E_diverged;        /* |E - E0| past which the case has diverged */
+    double r2_limit;          /* r_limit squared: the escape test on |r|^2 */
+    /* running maxima of |E - E0| and |H - H0|, unscaled: dividing by a positive
+     * scale is monotonic in correctly rounded arithmetic, so the scaled maximum
+     * is the maximum scaled, and the division is made once, at a sample */
+    double de_win, dh_win;    /* since the last sample */
+    double de_fit, dh_fit;    /* since the last log-grid sample: the fits' windows */
+    double e_max, h_max;      /* scaled, over the samples' windows so far */
     double t_escape;
     const char *why;          /* which divergence test stopped the run */
     /* sampling: after every step, the samples inside it from dense output */
@@ -47,11 +53,13 @@ typedef struct harness_watch {
 
 static int harness_take_samples(harness_watch *w, double t);
 
+/* After every step: no square root and no division (the bounds are
+ * squared or scaled once, in harness_watch_init). */
 static int harness_observe(void *ctx, double t, const double *r, const double *v)
 {
     harness_watch *w = ctx;
     const pb_problem *p = w->p;
-    double e = 0;
+    double de = 0;
     /* a fixed-step method's last step may end past the horizon: that state
      * is not part of the case (the horizon's own sample, on dense output, is) */
     int inside = !w->plan || w->plan->n < 1 || t <= w->plan->t[w->plan->n - 1];
@@ -59,18 +67,18 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
      * against the truth, at the samples (harness_take_samples) */
     int own = !p->invariants_from_truth;
     if (own && p->energy) {
-        e = fabs(p->energy(p, t, r, v) - w->E0) / w->E_scale;
-        if (inside && e > w->e_win) w->e_win = e;
-        if (inside && e > w->e_fit) w->e_fit = e;
+        de = fabs(p->energy(p, t, r, v) - w->E0);
+        if (inside && de > w->de_win) w->de_win = de;
+        if (inside && de > w->de_fit) w->de_fit = de;
     }
     if (own && p->angmom) {
-        double h = fabs(p->angmom(p, r, v) - w->H0) / w->H_scale;
-        if (inside && h > w->h_win) w->h_win = h;
-        if (inside && h > w->h_fit) w->h_fit = h;
+        double dh = fabs(p->angmom(p, r, v) - w->H0);
+        if (inside && dh > w->dh_win) w->dh_win = dh;
+        if (inside && dh > w->dh_fit) w->dh_fit = dh;
     }
     /* an energy error of 100% means the orbit is no longer the problem's
      * (a bound orbit has become unbound, or the reverse) */
-    if (own && p->energy && !(e <= HARNESS_ENERGY_DIVERGED)) {
+    if (own && p->energy && !(de <= w->E_diverged)) {
         w->t_escape = t;
         w->why = "relative energy error passed 100%";
         return PB_EDIVERGED;
@@ -78,7 +86,7 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
     double r2 = 0;
     for (int i = 0; i < p->dim; i++)
         r2 += r[i] * r[i];
-    if (!(sqrt(r2) <= w->r_limit)) {
+    if (!(r2 <= w->r2_limit)) {
         w->t_escape = t;
         w->why = "the orbit escaped to 1000 times its initial size";
         return PB_EDIVERGED;
@@ -246,6 +254,10 @@ static void harness_watch_init(harness_watch *w, const pb_problem *p, double hor
     /* a hyperbolic orbit recedes by itself: allow for its speed over the horizon */
     if (p->energy && w->E0 >= 0)
         w->r_limit += HARNESS_ESCAPE_FACTOR * horizon * sqrt(2 * fabs(w->E0) + 2 * p->mu / r0n);
+    /* the same tests as e <= 1 and |r| <= r_limit but for the last bit of the
+     * bound's rounding, a factor 1e3 from anything a run meets */
+    w->E_diverged = HARNESS_ENERGY_DIVERGED * w->E_scale;
+    w->r2_limit = w->r_limit * w->r_limit;
 }
 
 /* The apsidal angle accumulates: unwrap it from sample to sample so a
@@ -267,29 +279,32 @@ static void harness_unwrap(harness_watch *w, pb_sample *smp)
  * the window it closes. */
 static void harness_close_window(harness_watch *w, const pb_problem *p, pb_sample *smp)
 {
-    smp->energy_rel_window = fmax(w->e_win, isfinite(smp->energy_rel) ? smp->energy_rel : 0);
-    smp->angmom_rel_window = fmax(w->h_win, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
+    double e_win = p->energy ? w->de_win / w->E_scale : 0, h_win = w->dh_win / w->H_scale;
+    smp->energy_rel_window = fmax(e_win, isfinite(smp->energy_rel) ? smp->energy_rel : 0);
+    smp->angmom_rel_window = fmax(h_win, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
     if (!p->energy) smp->energy_rel_window = NAN;
     if (!p->angmom) smp->angmom_rel_window = NAN;
     /* the running maxima cover every step and every metric-grid sample (a
      * sample on dense output lies between steps), so a maximum is never below
      * a final; plot-only samples stay out, as everywhere */
-    w->e_max = fmax(w->e_max, w->e_win);
-    w->h_max = fmax(w->h_max, w->h_win);
+    w->e_max = fmax(w->e_max, e_win);
+    w->h_max = fmax(w->h_max, h_win);
     if (smp->in_metrics && isfinite(smp->energy_rel))
         w->e_max = fmax(w->e_max, smp->energy_rel);
     if (smp->in_metrics && isfinite(smp->angmom_rel))
         w->h_max = fmax(w->h_max, smp->angmom_rel);
-    w->e_win = w->h_win = 0;
+    w->de_win = w->dh_win = 0;
     /* the fits' windows run from one log-grid sample to the next over every
      * step, so extra plot samples cannot change a growth class */
     smp->energy_rel_fitwin = smp->angmom_rel_fitwin = NAN;
     if (smp->on_log_grid) {
         if (p->energy)
-            smp->energy_rel_fitwin = fmax(w->e_fit, isfinite(smp->energy_rel) ? smp->energy_rel : 0);
+            smp->energy_rel_fitwin =
+                fmax(w->de_fit / w->E_scale, isfinite(smp->energy_rel) ? smp->energy_rel : 0);
         if (p->angmom)
-            smp->angmom_rel_fitwin = fmax(w->h_fit, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
-        w->e_fit = w->h_fit = 0;
+            smp->angmom_rel_fitwin =
+                fmax(w->dh_fit / w->H_scale, isfinite(smp->angmom_rel) ? smp->angmom_rel : 0);
+        w->de_fit = w->dh_fit = 0;
     }
 }
 
@@ -405,8 +420,8 @@ static void harness_ending(const pb_case_spec *spec, void *ws, const harness_wat
     } else {
         res->status_detail = "ok";
     }
-    res->energy_rel_max = p->energy ? fmax(w->e_max, w->e_win) : (double)NAN;
-    res->angmom_rel_max = p->angmom ? fmax(w->h_max, w->h_win) : (double)NAN;
+    res->energy_rel_max = p->energy ? fmax(w->e_max, w->de_win / w->E_scale) : (double)NAN;
+    res->angmom_rel_max = p->angmom ? fmax(w->h_max, w->dh_win / w->H_scale) : (double)NAN;
     memcpy(res->final_r, r, sizeof r);
     memcpy(res->final_v, v, sizeof v);
     pb_fingerprint_state(t, r, v, p->dim, res->fingerprint, sizeof res->fingerprint);

@@ -21,6 +21,8 @@
 #define BENCH_LOAD_RERUNS 5       /* reruns of the timing pass under load */
 #define BENCH_LOAD_ORBITS 100.0   /* 1e5 steps a repeat (some ms, longer than a time slice) */
 #define BENCH_LOAD_GOAL 10.0      /* percent: (max - min) / median over the reruns */
+#define BENCH_GJ_FLOOR_GOAL 2.0   /* gauss-jackson8: x its one-evaluation floor a step */
+#define BENCH_LF_HAND_GOAL 1.15   /* leapfrog: x a hand loop calling the force by pointer */
 
 /* Inline, so that reading the clock costs the same in every part. Wall
  * time, for what a user waits (the whole bench, a forked child's run). */
@@ -107,5 +109,10 @@ int bench_reference(double *worst_s);
  * error on p; and the share of each job's time per step beyond the force. */
 void bench_precision(const pb_problem *p);
 void bench_overhead_beyond_force(const pb_problem *p, const bench_job *jobs, int n);
+
+/* bench_hotpaths.c: gauss-jackson8 against its one-evaluation floor and
+ * leapfrog against a hand loop calling the force through a pointer (median
+ * ratios into *gj_x, *lf_x). 0, or -1 when a run failed. */
+int bench_hotpaths(const pb_problem *p, double *gj_x, double *lf_x);
 
 #endif

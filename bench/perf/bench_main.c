@@ -3,8 +3,10 @@
  * RK4 against GSL's rk4 (bench_gsl.c), the harness's overhead against
  * hand-written RK4 loops (bench_overhead.c), peak memory
  * against horizon (bench_memory.c), the timing pass's spread under load
- * (bench_load.c) and reference builds with mission-like forces
- * (bench_reference.c); this file runs them in order and prints the goals.
+ * (bench_load.c), reference builds with mission-like forces
+ * (bench_reference.c) and the hot paths of gauss-jackson8 and leapfrog
+ * against hand loops (bench_hotpaths.c); this file runs them in order and
+ * prints the goals.
  * Reporting only: nothing here asserts a timing. */
 #include <gsl/gsl_errno.h>
 #include <stdio.h>
@@ -41,6 +43,8 @@ int main(void)
     int load_ok = bench_load(&p, &load_pct) == 0;
     double ref_s = nan;
     int ref_ok = bench_reference(&ref_s) == 0;
+    double gj_x = nan, lf_x = nan;
+    int hot_ok = bench_hotpaths(&p, &gj_x, &lf_x) == 0;
     printf("== Goals ==\n");
     printf("   harness overhead <= %.0f%% against a hand-written RK4 loop calling the same force\n"
            "   function:                              %s (measured %+.1f%%, median of paired rounds;"
@@ -57,6 +61,12 @@ int main(void)
     printf("   full-force one-day LEO reference built in < %.0f s (both tolerances, the coarse one on a\n"
            "   second thread; slowest shadow model):  %s (measured %.2f s)\n",
            BENCH_REF_GOAL_S, ref_ok && ref_s < BENCH_REF_GOAL_S ? "PASS" : "MISS", ref_s);
+    printf("   gauss-jackson8 per step <= %.1fx its one-evaluation floor (one force call a step through\n"
+           "   the same pointer):                     %s (measured %.2fx, median of paired rounds)\n",
+           BENCH_GJ_FLOOR_GOAL, hot_ok && gj_x <= BENCH_GJ_FLOOR_GOAL ? "PASS" : "MISS", gj_x);
+    printf("   leapfrog per step <= %.2fx a hand loop calling the force through a pointer:\n"
+           "                                          %s (measured %.3fx, median of paired rounds)\n",
+           BENCH_LF_HAND_GOAL, hot_ok && lf_x <= BENCH_LF_HAND_GOAL ? "PASS" : "MISS", lf_x);
     printf("   total bench time %.1f s\n", bench_now() - t_start);
     return 0;
 }
