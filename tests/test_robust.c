@@ -406,7 +406,8 @@ static void fake_gnuplot(const char *path, int good)
     FILE *f = fopen(path, "w");
     cr_assert_not_null(f);
     fprintf(f, "#!/bin/sh\n"
-               "sed -n \"s/^set output '\\(.*\\)'$/\\1/p\" \"$1\" | while read -r out; do\n");
+               "for a; do script=$a; done\n"   /* the script comes last, after -e "pb_tmp = '.tmp'" */
+               "sed -n \"s/^set output '\\(.*\\)'\\.pb_tmp$/\\1.tmp/p\" \"$script\" | while read -r out; do\n");
     if (good)
         fprintf(f, "  case \"$out\" in\n"
                    "  *.png.tmp) printf '\\211PNG\\r\\n\\032\\n%%060d\\000\\000\\000\\000IEND\\256B`\\202' 0 > \"$out\";;\n"
@@ -496,7 +497,8 @@ Test(robust, interrupted_report_leaves_no_temporary_images)
     snprintf(plots, sizeof plots, "%s/plots", run);
     FILE *f = fopen(gp, "w");
     cr_assert_not_null(f);
-    fprintf(f, "#!/bin/sh\nout=$(sed -n \"s/^set output '\\(.*\\)'$/\\1/p\" \"$1\" | head -n 1)\n"
+    fprintf(f, "#!/bin/sh\nfor a; do script=$a; done\n"
+               "out=$(sed -n \"s/^set output '\\(.*\\)'\\.pb_tmp$/\\1.tmp/p\" \"$script\" | head -n 1)\n"
                "printf 'partial' > \"$out\"\nexec sleep 60\n");
     fclose(f);
     cr_assert_eq(chmod(gp, 0755), 0);

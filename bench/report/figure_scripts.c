@@ -36,12 +36,29 @@ static void gp_quote(FILE *f, const char *s)
     fputc('\'', f);
 }
 
+/* The time axis: orbits for a problem with a period; else days, hours or
+ * minutes by the horizon (at least two of the unit), seconds below. */
+typedef struct { double div; const char *name; } gp_tscale;
+
+static gp_tscale gp_time_scale(const pb_report_problem *p)
+{
+    gp_tscale t = {1.0, p->time_unit};
+    if (p->orbits_max > 0 || strcmp(p->time_unit, "s"))
+        return t;
+    static const gp_tscale units[] = {{86400.0, "days"}, {3600.0, "hours"}, {60.0, "minutes"}};
+    for (size_t i = 0; i < sizeof units / sizeof *units; i++)
+        if (p->horizon_max >= 2 * units[i].div)
+            return units[i];
+    return t;
+}
+
 static void gp_horizon(const pb_report_problem *p, char *buf, size_t len)
 {
+    gp_tscale t = gp_time_scale(p);
     if (p->orbits_max > 0)
-        snprintf(buf, len, "%g periods (%.4g %s)", p->orbits_max, p->horizon_max, p->time_unit);
+        snprintf(buf, len, "%g orbits (%.4g %s)", p->orbits_max, p->horizon_max, p->time_unit);
     else
-        snprintf(buf, len, "%.4g %s", p->horizon_max, p->time_unit);
+        snprintf(buf, len, "%.4g %s", p->horizon_max / t.div, t.name);
 }
 
 /* What one case contributes to the time plots. */
@@ -137,11 +154,12 @@ static void gp_axes_log(FILE *f)
 
 /* Time plot of one column set (energy, angmom, pos or one RIC part). */
 static int gp_time_plot(FILE *f, const pb_report_run *run, const pb_report_problem *p,
-                        const gp_case *g, int which, const char *prefix, int with_fits, int key)
+                        const gp_case *g, int which, const char *prefix, int with_fits, int key,
+                        const unsigned char *pick)
 {
     int any = 0;
     for (int i = 0; i < p->n; i++)
-        any |= g[i].ok && g[i].has[which];
+        any |= g[i].ok && g[i].has[which] && pick[i];
     if (!any) {
         fputs("unset logscale\nunset key\nset format x ''\nset format y ''\n"
               "set label 1 'no non-zero values to draw (exactly zero for this problem)' at graph 0.5,0.5 center\n"
@@ -157,7 +175,7 @@ static int gp_time_plot(FILE *f, const pb_report_run *run, const pb_report_probl
     int first = 1;
     for (int i = 0; i < p->n; i++) {
         const pb_report_case *c = &run->cases[p->first + i];
-        if (!g[i].ok || !g[i].has[which])
+        if (!g[i].ok || !g[i].has[which] || !pick[i])
             continue;
         int col = which == GP_E ? g[i].cenergy : which == GP_H ? g[i].cangmom : which == GP_P ? g[i].cpos
                 : which == GP_R ? g[i].cr : which == GP_A ? g[i].ca : g[i].cc;
@@ -171,14 +189,14 @@ static int gp_time_plot(FILE *f, const pb_report_run *run, const pb_report_probl
         fputs(first ? "" : ", \\\n     ", f);
         first = 0;
         gp_quote(f, path);
-        fprintf(f, " skip 1 using (pbpos($%d)):(pbpos(abs($%d))) with linespoints pi 5 lt %d dt %d title ",
-                g[i].cx, col, c->method_slot + 1, gp_dash[c->variant % 5]);
+        fprintf(f, " skip 1 using (pbpos($%d/%.10g)):(pbpos(abs($%d))) with linespoints pi 5 lt %d dt %d title ",
+                g[i].cx, gp_time_scale(p).div, col, c->method_slot + 1, gp_dash[c->variant % 5]);
         gp_quote(f, label);
     }
     if (with_fits) {
         int titled = 0;
         for (int i = 0; i < p->n; i++)
-            if (g[i].ok && g[i].has[which] && g[i].nfit >= 2) {
+            if (g[i].ok && g[i].has[which] && g[i].nfit >= 2 && pick[i]) {
                 fprintf(f, ", \\\n     $fit%d using 1:2 with lines ls 100 %s", i,
                         titled ? "notitle" : "title 'fitted C t^k'");
                 titled = 1;
@@ -201,17 +219,135 @@ static void gp_title(FILE *f, const pb_report_problem *p, const char *what)
 static void gp_xtime(FILE *f, const pb_report_problem *p)
 {
     if (p->orbits_max > 0)
-        fputs("set xlabel 'time [orbital periods]'\n", f);
+        fputs("set xlabel 'time [orbits]'\n", f);
     else
-        fprintf(f, "set xlabel 'time [%s]'\n", p->time_unit);
+        fprintf(f, "set xlabel 'time [%s]'\n", gp_time_scale(p).name);
 }
 
-/* Work-precision (conv = 0: error against evaluations) or convergence
- * (conv = 1: error against step, with each order's reference slope), one
- * curve per method; the points go to pre as data blocks. 1 drawn, 0 no
- * point to draw, -1 out of memory. */
-static int gp_cost_plot(FILE *f, FILE *pre, int conv, const pb_report_problem *p,
-                        const pb_report_case *cs)
+/* Margins so that no point sits on the frame. */
+static void gp_offsets(FILE *f)
+{
+    fputs("set offsets graph 0.03, graph 0.03, graph 0.08, graph 0.08\n", f);
+}
+
+/* Radial, along-track and cross-track error in three panels; each
+ * method's finest finished case only (the legend on the first panel). */
+static int gp_ric(FILE *f, const pb_report_run *run, const pb_report_problem *p, const gp_case *g,
+                  const char *prefix)
+{
+    static const char *const part[3] = {"radial", "along-track", "cross-track"};
+    unsigned char *pick = calloc((size_t)p->n, 1);
+    if (!pick)
+        return -1;
+    int any = 0;
+    for (int i = 0; i < p->n; i++) {
+        const pb_report_case *c = &run->cases[p->first + i];
+        int last = i + 1 == p->n || run->cases[p->first + i + 1].method_slot != c->method_slot;
+        pick[i] = last && g[i].ok && (g[i].has[GP_R] || g[i].has[GP_A] || g[i].has[GP_C]);
+        any |= pick[i];
+    }
+    if (!any) {
+        free(pick);
+        return 0;
+    }
+    char hz[96], t[512];
+    gp_horizon(p, hz, sizeof hz);
+    snprintf(t, sizeof t, "%s: radial, along-track and cross-track error (finest case of each method), horizon %s",
+             p->name, hz);
+    fputs("set multiplot layout 3,1 title ", f);
+    gp_quote(f, t);
+    /* the same plot width in every panel, the first one's legend in the margin */
+    fputs(" font ',12'\nunset title\nset lmargin at screen 0.10\nset rmargin at screen 0.74\n", f);
+    gp_offsets(f);
+    for (int k = 0; k < 3; k++) {
+        if (k == 2) gp_xtime(f, p);
+        else fputs("unset xlabel\n", f);
+        fprintf(f, "set ylabel '|%s error| [%s]'\n", part[k], p->len_unit);
+        gp_time_plot(f, run, p, g, GP_R + k, prefix, 0, k == 0, pick);
+    }
+    fputs("unset multiplot\n", f);
+    free(pick);
+    return 1;
+}
+
+/* Curves at most per panel: beyond it a figure becomes small multiples,
+ * one panel per group of whole methods, each panel with its own legend. */
+#define GP_PANEL_CURVES 8
+#define GP_PANEL_H 420
+
+/* panel[i] for each case of p (-1: nothing to draw); returns the count. */
+static int gp_panels(const pb_report_run *run, const pb_report_problem *p, const gp_case *g,
+                     int which, int *panel)
+{
+    int np = 0, used = 0;
+    for (int i = 0; i < p->n; i++)
+        panel[i] = -1;
+    for (int m = 0; m < p->nmethods; m++) {
+        int k = 0;
+        for (int i = 0; i < p->n; i++)
+            k += g[i].ok && g[i].has[which] && run->cases[p->first + i].method_slot == m;
+        if (!k)
+            continue;
+        if (np == 0 || used + k > GP_PANEL_CURVES) {
+            np++;
+            used = 0;
+        }
+        used += k;
+        for (int i = 0; i < p->n; i++)
+            if (g[i].ok && g[i].has[which] && run->cases[p->first + i].method_slot == m)
+                panel[i] = np - 1;
+    }
+    return np;
+}
+
+/* A time figure (energy, angular momentum or position growth): one plot,
+ * or small multiples stacked when it has more than GP_PANEL_CURVES curves.
+ * *height is the image height. 1 drawn, 0 nothing to draw, -1 no memory. */
+static int gp_time_figure(FILE *f, const pb_report_run *run, const pb_report_problem *p,
+                          const gp_case *g, int which, const char *prefix, const char *what,
+                          const char *ylabel, int *height)
+{
+    int *panel = malloc((size_t)p->n * sizeof *panel);
+    unsigned char *pick = malloc((size_t)p->n);
+    if (!panel || !pick) {
+        free(panel); free(pick);
+        return -1;
+    }
+    int np = gp_panels(run, p, g, which, panel);
+    gp_offsets(f);
+    fputs(ylabel, f);
+    if (np <= 1) {
+        gp_title(f, p, what);
+        gp_xtime(f, p);
+        memset(pick, 1, (size_t)p->n);
+        int rc = gp_time_plot(f, run, p, g, which, prefix, which == GP_P, 1, pick);
+        free(panel); free(pick);
+        return rc;
+    }
+    char hz[96], t[512];
+    gp_horizon(p, hz, sizeof hz);
+    snprintf(t, sizeof t, "%s: %s, horizon %s (%d panels of at most %d curves)", p->name, what, hz, np,
+             GP_PANEL_CURVES);
+    fprintf(f, "set multiplot layout %d,1 title ", np);
+    gp_quote(f, t);
+    fputs(" font ',12'\nunset title\n", f);
+    gp_xtime(f, p);
+    for (int k = 0; k < np; k++) {
+        for (int i = 0; i < p->n; i++)
+            pick[i] = panel[i] == k;
+        gp_time_plot(f, run, p, g, which, prefix, which == GP_P, 1, pick);
+    }
+    fputs("unset multiplot\n", f);
+    *height = 60 + GP_PANEL_H * np;
+    free(panel); free(pick);
+    return 1;
+}
+
+/* One cost panel: error against x (0 evaluations, 1 step, 2 CPU time),
+ * a curve per method with each point labelled by its step or tolerance;
+ * data blocks go to pre. Returns the curves drawn, -1 out of memory. */
+static int gp_cost_panel(FILE *f, FILE *pre, int xk, const pb_report_problem *p, const pb_report_case *cs,
+                         int id)
 {
     int nplot = 0;
     char *list = NULL;
@@ -222,28 +358,33 @@ static int gp_cost_plot(FILE *f, FILE *pre, int conv, const pb_report_problem *p
     for (int m = 0; m < p->nmethods; m++) {
         int npts = 0, mi = -1;
         double h0 = INFINITY, e0 = NAN, h1 = 0;
-        fprintf(pre, "$%s%d << EOD\n", conv ? "conv" : "work", m);
+        fprintf(pre, "$c%d_%d << EOD\n", id, m);
         for (int i = 0; i < p->n; i++) {
             const pb_report_case *c = &cs[i];
-            if (c->method_slot != m || strcmp(c->status, "ok") || !(c->pos_max > 0))
+            if (c->method_slot != m || !pb_report_case_plain_ok(c) || !(c->pos_max > 0))
                 continue;
-            if (conv ? !(c->fixed && c->h > 0) : c->evals <= 0)
+            double x = xk == 0 ? (double)c->evals : xk == 1 ? c->h : c->cpu_s;
+            if (!(x > 0) || !isfinite(x) || (xk == 1 && !c->fixed))
                 continue;
+            char set[64];
+            pb_report_case_setting(c, set, sizeof set);
             mi = i;
-            double x = conv ? c->h : (double)c->evals;
-            fprintf(pre, "%.9g,%.9g\n", x, c->pos_max);
+            fprintf(pre, "%.9g,%.9g,%s\n", x, c->pos_max, set);
             npts++;
-            if (conv && x < h0) { h0 = x; e0 = c->pos_max; }
-            if (conv && x > h1) h1 = x;
+            if (xk == 1 && x < h0) { h0 = x; e0 = c->pos_max; }
+            if (xk == 1 && x > h1) h1 = x;
         }
         fputs("EOD\n", pre);
         if (!npts)
             continue;
         const pb_report_case *c = &cs[mi];
-        fprintf(fl, "%s$%s%d using 1:2 with linespoints lt %d dt 1 title ", nplot ? ", \\\n     " : "",
-                conv ? "conv" : "work", m, c->method_slot + 1);
+        fprintf(fl, "%s$c%d_%d using 1:2 with linespoints lt %d dt %d title ", nplot ? ", \\\n     " : "",
+                id, m, c->method_slot + 1, 1 + c->method_slot / 12);
         gp_quote(fl, c->method);
-        if (conv && c->order > 0) {
+        if (xk != 1)
+            fprintf(fl, ", \\\n     $c%d_%d using 1:2:3 with labels offset char 0.6,0.6 left font ',7' "
+                    "tc lt %d notitle", id, m, c->method_slot + 1);
+        if (xk == 1 && c->order > 0) {
             /* anchored at the finest step, where the error is nearest its asymptote */
             if (!(h1 > h0)) h1 = 4 * h0;
             fprintf(pre, "$ref%d << EOD\n%.9g,%.9g\n%.9g,%.9g\nEOD\n", m, h0, e0, h1,
@@ -254,74 +395,95 @@ static int gp_cost_plot(FILE *f, FILE *pre, int conv, const pb_report_problem *p
         nplot++;
     }
     fclose(fl);
-    if (!nplot) {
-        free(list);
-        return 0;
+    if (nplot) {
+        static const char *const xl[3] = {"force evaluations over the horizon [-]", NULL,
+                                          "CPU time over the horizon [s] (thread CPU, timed repeats)"};
+        if (xl[xk])
+            fprintf(f, "set xlabel '%s'\n", xl[xk]);
+        else
+            fprintf(f, "set xlabel 'step h [%s]'\n", p->time_unit);
+        fprintf(f, "plot %s\n", list);
     }
-    gp_title(f, p, conv ? "convergence with step" : "work-precision");
-    if (conv)
-        fprintf(f, "set xlabel 'step h [%s]'\n", p->time_unit);
-    else
-        fputs("set xlabel 'force evaluations over the horizon [-]'\n", f);
-    fprintf(f, "set ylabel 'largest position error [%s]'\n", p->len_unit);
-    gp_axes_log(f);
-    fprintf(f, "set key\nplot %s\n", list);
     free(list);
-    return 1;
+    return nplot;
 }
 
-/* Body of one figure (everything after the terminal is set); datablocks go to pre. */
+/* Work-precision (error against evaluations and, beside it, against CPU
+ * time; the requirement as a line when there is one) or convergence (error
+ * against step with each order's reference slope). 1 drawn, 0 no point to
+ * draw, -1 out of memory. */
+static int gp_cost_plot(FILE *f, FILE *pre, int conv, const pb_report_problem *p,
+                        const pb_report_case *cs, int *width)
+{
+    char *body = NULL;
+    size_t nbody = 0;
+    FILE *fb = open_memstream(&body, &nbody);
+    if (!fb)
+        return -1;
+    fprintf(fb, "set ylabel 'largest position error [%s]'\n", p->len_unit);
+    gp_axes_log(fb);
+    gp_offsets(fb);
+    fputs("set key\n", fb);
+    if (p->req_pos > 0)
+        fprintf(fb, "set arrow 1 from graph 0, first %.9g to graph 1, first %.9g nohead dt 3 lw 1.6 lc rgb '#000000' front\n"
+                "set label 1 'requirement %.3g %s' at graph 0.02, first %.9g offset 0,0.7 front font ',9'\n",
+                p->req_pos, p->req_pos, p->req_pos, p->len_unit, p->req_pos);
+    if (p->req_pos > 0)   /* the requirement inside the y range, whatever the data */
+        fprintf(fb, "set yrange [*<%.9g:%.9g<*]\n", p->req_pos / 3, p->req_pos * 3);
+    int n1, n2 = 0;
+    if (conv) {
+        gp_title(fb, p, "convergence with step (cases that ended plain ok)");
+        n1 = gp_cost_panel(fb, pre, 1, p, cs, 0);
+    } else {
+        char hz[96], t[512];
+        gp_horizon(p, hz, sizeof hz);
+        snprintf(t, sizeof t, "%s: work-precision, horizon %s (cases that ended plain ok)", p->name, hz);
+        fputs("set multiplot layout 1,2 title ", fb);
+        gp_quote(fb, t);
+        fputs(" font ',12'\nunset title\n", fb);
+        n1 = gp_cost_panel(fb, pre, 0, p, cs, 0);
+        if (n1 > 0)
+            n2 = gp_cost_panel(fb, pre, 2, p, cs, 1);
+        fputs("unset multiplot\n", fb);
+        *width = 1500;
+    }
+    fclose(fb);
+    if (n1 > 0 && n2 >= 0)
+        fputs(body, f);
+    free(body);
+    return n1 < 0 || n2 < 0 ? -1 : n1 > 0;
+}
+
+/* Body of one figure (everything after the terminal is set); datablocks go
+ * to pre; *width and *height the image size. */
 static int gp_body(FILE *f, FILE *pre, int kind, const pb_report_run *run, const pb_report_problem *p,
-                   const gp_case *g, const char *prefix)
+                   const gp_case *g, const char *prefix, int *width, int *height)
 {
     const pb_report_case *cs = run->cases + p->first;
+    double div = gp_time_scale(p).div;
+    char yl[160];
     switch (kind) {
     case PB_FIG_ENERGY:
-        gp_title(f, p, "relative energy error");
-        gp_xtime(f, p);
-        fputs("set ylabel 'relative energy error |E - E_0| / |E_0| [-]'\n", f);
-        return gp_time_plot(f, run, p, g, GP_E, prefix, 0, 1);
+        return gp_time_figure(f, run, p, g, GP_E, prefix, "relative energy error",
+                              "set ylabel 'relative energy error |E - E_0| / |E_0| [-]'\n", height);
     case PB_FIG_ANGMOM:
-        gp_title(f, p, "relative angular-momentum error");
-        gp_xtime(f, p);
-        fputs("set ylabel 'relative angular-momentum error |h - h_0| / |h_0| [-]'\n", f);
-        return gp_time_plot(f, run, p, g, GP_H, prefix, 0, 1);
+        return gp_time_figure(f, run, p, g, GP_H, prefix, "relative angular-momentum error",
+                              "set ylabel 'relative angular-momentum error |h - h_0| / |h_0| [-]'\n", height);
     case PB_FIG_GROWTH:
         for (int i = 0; i < p->n; i++)
             if (g[i].ok && g[i].nfit >= 2) {
-                fprintf(pre, "$fit%d << EOD\n%.9g,%.9g\n%.9g,%.9g\nEOD\n", i, g[i].fit_x0,
-                        exp(g[i].fit_b + cs[i].k_pos * log(g[i].fit_x0)), g[i].fit_x1,
+                fprintf(pre, "$fit%d << EOD\n%.9g,%.9g\n%.9g,%.9g\nEOD\n", i, g[i].fit_x0 / div,
+                        exp(g[i].fit_b + cs[i].k_pos * log(g[i].fit_x0)), g[i].fit_x1 / div,
                         exp(g[i].fit_b + cs[i].k_pos * log(g[i].fit_x1)));
             }
-        gp_title(f, p, "position error growth");
-        gp_xtime(f, p);
-        fprintf(f, "set ylabel 'position error |r - r_{true}| [%s]'\n", p->len_unit);
-        return gp_time_plot(f, run, p, g, GP_P, prefix, 1, 1);
-    case PB_FIG_RIC: {
-        static const char *const part[3] = {"radial", "along-track", "cross-track"};
-        int any = 0;
-        for (int i = 0; i < p->n; i++)
-            any |= g[i].ok && (g[i].has[GP_R] || g[i].has[GP_A] || g[i].has[GP_C]);
-        if (!any)
-            return 0;
-        char hz[96], t[512];
-        gp_horizon(p, hz, sizeof hz);
-        snprintf(t, sizeof t, "%s: radial, along-track and cross-track error, horizon %s", p->name, hz);
-        fputs("set multiplot layout 3,1 title ", f);
-        gp_quote(f, t);
-        fputs(" font ',12'\nset lmargin at screen 0.10\nset rmargin at screen 0.97\nunset title\n", f);
-        for (int k = 0; k < 3; k++) {
-            if (k == 2) gp_xtime(f, p);
-            else fputs("unset xlabel\n", f);
-            fprintf(f, "set ylabel '|%s error| [%s]'\n", part[k], p->len_unit);
-            gp_time_plot(f, run, p, g, GP_R + k, prefix, 0, 0);
-        }
-        fputs("unset multiplot\n", f);
-        return 1;
-    }
+        snprintf(yl, sizeof yl, "set ylabel 'position error |r - r_{true}| [%s]'\n", p->len_unit);
+        return gp_time_figure(f, run, p, g, GP_P, prefix, "position error growth", yl, height);
+    case PB_FIG_RIC:
+        *height = 980;
+        return gp_ric(f, run, p, g, prefix);
     case PB_FIG_WORK:
     case PB_FIG_CONV:
-        return gp_cost_plot(f, pre, kind == PB_FIG_CONV, p, cs);
+        return gp_cost_plot(f, pre, kind == PB_FIG_CONV, p, cs, width);
     default:
         return 0;
     }
@@ -334,7 +496,8 @@ static int gp_write_figure(const pb_report_run *run, const pb_report_problem *p,
     char *pre = NULL, *body = NULL, *all = NULL;
     size_t npre = 0, nbody = 0, nall = 0;
     FILE *fp = open_memstream(&pre, &npre), *fb = open_memstream(&body, &nbody);
-    int drew = fp && fb ? gp_body(fb, fp, kind, run, p, g, prefix) : -1;
+    int width = 1000, height = 600;
+    int drew = fp && fb ? gp_body(fb, fp, kind, run, p, g, prefix, &width, &height) : -1;
     if (fp) fclose(fp);
     if (fb) fclose(fb);
     int rc = 0;
@@ -342,21 +505,22 @@ static int gp_write_figure(const pb_report_run *run, const pb_report_problem *p,
     if (drew > 0) {
         char base[PB_FIG_BASE_MAX], path[5000];
         pb_fig_base(p->name, kind, base, sizeof base);
-        int tall = kind == PB_FIG_RIC;
         FILE *fa = open_memstream(&all, &nall);
         if (!fa) {
             rc = -1;
         } else {
             fprintf(fa, "# %s.gp - propbench report figure; run `gnuplot ./%s.gp` in this folder.\n", base, base);
-            fputs("# Writes <name>.png.tmp and <name>.svg.tmp; propbench renames them when gnuplot succeeds.\n", fa);
+            fputs("# Writes <name>.png and <name>.svg; propbench runs it with -e \"pb_tmp = '.tmp'\" to\n"
+                  "# write temporary names it installs once both images are whole.\n", fa);
+            fputs("if (!exists('pb_tmp')) pb_tmp = ''\n", fa);
             fputs("load 'style.gp'\n", fa);
             fputs(pre ? pre : "", fa);
-            fprintf(fa, "set terminal pngcairo size 1000,%d font pb_font enhanced\n", tall ? 980 : 600);
-            fprintf(fa, "set output '%s.png.tmp'\n%s", base, body ? body : "");
-            fprintf(fa, "unset output\nreset session\nload 'style.gp'\n");
+            fprintf(fa, "set terminal pngcairo size %d,%d font pb_font enhanced\n", width, height);
+            fprintf(fa, "set output '%s.png'.pb_tmp\n%s", base, body ? body : "");
+            fprintf(fa, "unset output\nreset\nload 'style.gp'\n");
             fputs(pre ? pre : "", fa);
-            fprintf(fa, "set terminal svg size 1000,%d font pb_font enhanced background '#ffffff'\n", tall ? 980 : 600);
-            fprintf(fa, "set output '%s.svg.tmp'\n%s", base, body ? body : "");
+            fprintf(fa, "set terminal svg size %d,%d font pb_font enhanced background '#ffffff'\n", width, height);
+            fprintf(fa, "set output '%s.svg'.pb_tmp\n%s", base, body ? body : "");
             fputs("unset output\n", fa);
             fclose(fa);
             snprintf(path, sizeof path, "%s/%s.gp", plots_dir, base);

@@ -174,7 +174,9 @@ static void gnuplot_child_run(const char *exe, const char *plots_dir, const char
     }
     if (chdir(plots_dir) != 0)
         _exit(126);
-    char *const argv[] = {(char *)exe, (char *)script, NULL};
+    /* the script writes its images under their final names when a user runs
+     * it; propbench asks for temporary names and installs them when whole */
+    char *const argv[] = {(char *)exe, (char *)"-e", (char *)"pb_tmp = '.tmp'", (char *)script, NULL};
     execv(exe, argv);
     _exit(127);
 }
@@ -209,5 +211,8 @@ int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *ba
     for (int i = 0; rc && i < 2; i++)
         unlink(gnuplot_tmp[i]);  /* no temporary image stays behind */
     gnuplot_have_tmp = 0;
+    struct stat st;
+    if (!rc && stat(log, &st) == 0 && st.st_size == 0)
+        unlink(log);   /* a log with nothing in it says nothing */
     return rc;
 }
