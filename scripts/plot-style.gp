@@ -9,7 +9,8 @@ set border 3 lw 1.1 lc rgb '#3d3d3d'
 set tics nomirror out scale 0.7 textcolor rgb '#2b2b2b'
 set mxtics default
 set mytics default
-set grid xtics ytics mxtics mytics lw 0.7 lc rgb '#d9d2c3' dt 1, lw 0.4 lc rgb '#ebe6da' dt 1
+# major grid lines only: minor ones on log axes were most of each SVG's size
+set grid xtics ytics lw 0.7 lc rgb '#d9d2c3' dt 1
 set key outside right top vertical Left reverse noenhanced samplen 4 spacing 1.05 width 1
 set key box lw 0.6 lc rgb '#b9b1a0' opaque
 set title noenhanced font ',12' textcolor rgb '#1b1b1b'

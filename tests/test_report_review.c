@@ -16,6 +16,7 @@
 #include "bench/report/context.h"
 #include "bench/store/figure_names.h"
 #include <unistd.h>
+#include <sys/wait.h>
 
 TestSuite(review, .timeout = 240);
 
@@ -206,4 +207,97 @@ Test(review, figures_stand_alone)
              "! ls | grep -q '\\.tmp$'", dir);
     cr_assert_eq(system(cmd), 0, "gnuplot ./NAME.gp failed or left a temporary file");
     cr_assert(pbt_exists(png), "the redraw did not write %s", png);
+}
+
+/* Headless Chromium with args, stdout to out_path; the exit status. */
+static int rv_chromium(const char *const *extra, const char *out_path)
+{
+    const char *bin = getenv("PB_CHROMIUM") ? getenv("PB_CHROMIUM") : "chromium";
+    char prof[256], udd[300];
+    pbt_tmpdir(prof, sizeof prof);
+    snprintf(udd, sizeof udd, "--user-data-dir=%s", prof);
+    const char *argv[24] = {bin, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
+                            "--disable-background-networking", "--disable-component-update",
+                            "--disable-sync", "--disable-extensions", udd};
+    int n = 10;
+    for (int i = 0; extra[i] && n < 23; i++)
+        argv[n++] = extra[i];
+    argv[n] = NULL;
+    fflush(NULL);
+    pid_t pid = fork();
+    if (pid == 0) {
+        FILE *o = freopen(out_path, "w", stdout);
+        FILE *e = freopen("/dev/null", "w", stderr);
+        if (!o || !e)
+            _exit(127);
+        alarm(90);
+        execvp(bin, (char *const *)argv);
+        _exit(127);
+    }
+    int st = 0;
+    waitpid(pid, &st, 0);
+    char cmd[400];
+    snprintf(cmd, sizeof cmd, "rm -rf '%s'", prof);
+    cr_assert_eq(system(cmd), 0);
+    return WIFEXITED(st) ? WEXITSTATUS(st) : -1;
+}
+
+/* Run in the page after layout: per figure whether a legend entry (a text
+ * naming a method of the run) was rendered with a size; the saturated
+ * row's status text and whether it holds a best mark; the rendered orbit
+ * definitions. One line out through the DOM dump. */
+static const char rv_probe[] =
+    "<script>(function(){var figs=document.querySelectorAll('figure svg'),leg=0;"
+    "figs.forEach(function(g){var ok=0;g.querySelectorAll('text').forEach(function(t){"
+    "var b=t.getBBox();if(/^(rk4|leapfrog)( |$)/.test(t.textContent)&&b.width>0)ok=1;});leg+=ok;});"
+    "var st='none',best=-1;document.querySelectorAll('table.summary tr.case').forEach(function(r){"
+    "var c=r.querySelectorAll('td');if(c[0].textContent=='leapfrog'&&c[1].textContent=='n=1000'&&"
+    "r.closest('section').id=='problem-0'){st=c[2].textContent;best=r.querySelectorAll('td.best').length;}});"
+    "var defs=0;document.querySelectorAll('.orbit-definition').forEach(function(d){"
+    "if(d.getBoundingClientRect().height>0&&/elements \\(osculating/.test(d.textContent))defs++;});"
+    "var o=document.createElement('pre');o.id='rvcheck';"
+    "o.textContent='RV figs='+figs.length+' legends='+leg+' status='+st+' best='+best+' defs='+defs+' END';"
+    "document.body.appendChild(o);})();</script>";
+
+Test(review, browser_shows_status_legends_and_orbit)
+{
+    char dir[256], out[4096], err[8192], path[600], probe[600], url[700], dom[600];
+    rv_run(dir, sizeof dir);
+    const char *args[] = {"report", dir, "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(args, out, sizeof out, err, sizeof err), 0, "%s", err);
+    snprintf(path, sizeof path, "%s/report.html", dir);
+    size_t n = 0;
+    char *html = pbt_slurp_file(path, &n);
+    cr_assert_not_null(html);
+    /* the size limit the issue sets for report.html (3 MB) */
+    cr_assert_lt(n, 3000000, "report.html is %zu bytes", n);
+    char *end = strstr(html, "</body>");
+    cr_assert_not_null(end);
+    snprintf(probe, sizeof probe, "%s/probe.html", dir);
+    FILE *f = fopen(probe, "w");
+    cr_assert_not_null(f);
+    fwrite(html, 1, (size_t)(end - html), f);
+    fputs(rv_probe, f);
+    fputs(end, f);
+    fclose(f);
+    free(html);
+    snprintf(url, sizeof url, "file://%s", probe);
+    snprintf(dom, sizeof dom, "%s/probe.dom", dir);
+    const char *a1[] = {"--window-size=1200,900", "--dump-dom", url, NULL};
+    cr_assert_eq(rv_chromium(a1, dom), 0, "headless chromium failed (install Debian's chromium)");
+    char *d = pbt_slurp_file(dom, NULL);
+    cr_assert_not_null(d);
+    char *line = strstr(d, "<pre id=\"rvcheck\">");
+    cr_assert_not_null(line, "the probe did not run");
+    line += strlen("<pre id=\"rvcheck\">");
+    int figs = -1, legends = -1, best = -2, defs = -1;
+    char status[64] = "";
+    cr_assert_eq(sscanf(line, "RV figs=%d legends=%d status=%63s best=%d defs=%d", &figs, &legends, status,
+                        &best, &defs), 5, "%.200s", line);
+    cr_assert_geq(figs, 10, "%.200s", line);
+    cr_assert_eq(legends, figs, "figures with a rendered legend: %d of %d", legends, figs);
+    cr_assert_str_eq(status, "ok(sat)");
+    cr_assert_eq(best, 0, "the saturated case carries %d best marks", best);
+    cr_assert_eq(defs, 2, "rendered orbit definitions: %d of 2", defs);
+    free(d);
 }

@@ -301,11 +301,11 @@ static int gp_panels(const pb_report_run *run, const pb_report_problem *p, const
 }
 
 /* A time figure (energy, angular momentum or position growth): one plot,
- * or small multiples stacked when it has more than GP_PANEL_CURVES curves.
- * *height is the image height. 1 drawn, 0 nothing to draw, -1 no memory. */
+ * or small multiples (two columns past two panels) when it has more than
+ * GP_PANEL_CURVES curves. *width and *height: the image size. 1 drawn, 0 nothing to draw, -1 no memory. */
 static int gp_time_figure(FILE *f, const pb_report_run *run, const pb_report_problem *p,
                           const gp_case *g, int which, const char *prefix, const char *what,
-                          const char *ylabel, int *height)
+                          const char *ylabel, int *width, int *height)
 {
     int *panel = malloc((size_t)p->n * sizeof *panel);
     unsigned char *pick = malloc((size_t)p->n);
@@ -328,7 +328,8 @@ static int gp_time_figure(FILE *f, const pb_report_run *run, const pb_report_pro
     gp_horizon(p, hz, sizeof hz);
     snprintf(t, sizeof t, "%s: %s, horizon %s (%d panels of at most %d curves)", p->name, what, hz, np,
              GP_PANEL_CURVES);
-    fprintf(f, "set multiplot layout %d,1 title ", np);
+    int cols = np > 2 ? 2 : 1, rows = (np + cols - 1) / cols;
+    fprintf(f, "set multiplot layout %d,%d title ", rows, cols);
     gp_quote(f, t);
     fputs(" font ',12'\nunset title\n", f);
     gp_xtime(f, p);
@@ -338,7 +339,8 @@ static int gp_time_figure(FILE *f, const pb_report_run *run, const pb_report_pro
         gp_time_plot(f, run, p, g, which, prefix, which == GP_P, 1, pick);
     }
     fputs("unset multiplot\n", f);
-    *height = 60 + GP_PANEL_H * np;
+    *height = 60 + GP_PANEL_H * rows;
+    *width = cols == 2 ? 1600 : 1000;
     free(panel); free(pick);
     return 1;
 }
@@ -465,10 +467,10 @@ static int gp_body(FILE *f, FILE *pre, int kind, const pb_report_run *run, const
     switch (kind) {
     case PB_FIG_ENERGY:
         return gp_time_figure(f, run, p, g, GP_E, prefix, "relative energy error",
-                              "set ylabel 'relative energy error |E - E_0| / |E_0| [-]'\n", height);
+                              "set ylabel 'relative energy error |E - E_0| / |E_0| [-]'\n", width, height);
     case PB_FIG_ANGMOM:
         return gp_time_figure(f, run, p, g, GP_H, prefix, "relative angular-momentum error",
-                              "set ylabel 'relative angular-momentum error |h - h_0| / |h_0| [-]'\n", height);
+                              "set ylabel 'relative angular-momentum error |h - h_0| / |h_0| [-]'\n", width, height);
     case PB_FIG_GROWTH:
         for (int i = 0; i < p->n; i++)
             if (g[i].ok && g[i].nfit >= 2) {
@@ -477,7 +479,7 @@ static int gp_body(FILE *f, FILE *pre, int kind, const pb_report_run *run, const
                         exp(g[i].fit_b + cs[i].k_pos * log(g[i].fit_x1)));
             }
         snprintf(yl, sizeof yl, "set ylabel 'position error |r - r_{true}| [%s]'\n", p->len_unit);
-        return gp_time_figure(f, run, p, g, GP_P, prefix, "position error growth", yl, height);
+        return gp_time_figure(f, run, p, g, GP_P, prefix, "position error growth", yl, width, height);
     case PB_FIG_RIC:
         *height = 980;
         return gp_ric(f, run, p, g, prefix);

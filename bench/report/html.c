@@ -1,10 +1,13 @@
 /* html.c - report.html: settings, per-problem tables with the best
  * values marked, figures as inline SVG (ids made unique per figure), and the
- * caution. One file, no scripts, nothing fetched from the network. */
+ * caution. One file, no scripts, nothing fetched from the network; figures
+ * past HTML_INLINE_MAX bytes in all (or with --external-figures) are linked
+ * from plots/ instead. */
 #include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include "bench/report/figure_scripts.h"
 #include "bench/report/table.h"
 #include "bench/report/html.h"
@@ -160,8 +163,30 @@ static void html_table(FILE *f, const pb_report_view *v, const pb_report_problem
           "follows another orbit.</p>\n", f);
 }
 
+/* Inline figures up to this many bytes of SVG in all; past it every
+ * figure is linked, so that the page stays small enough to open and mail
+ * (the standard suite's figures come to tens of megabytes). */
+#define HTML_INLINE_MAX 2500000L
+
+static long html_svg_total(const pb_report_view *v)
+{
+    long total = 0;
+    for (int pi = 0; pi < v->run->nproblems; pi++)
+        for (int k = 0; k < PB_FIG_COUNT; k++) {
+            if (!v->drawn[pi * PB_FIG_COUNT + k])
+                continue;
+            char base[PB_FIG_BASE_MAX], path[5000];
+            struct stat st;
+            pb_fig_base(v->run->problems[pi].name, k, base, sizeof base);
+            snprintf(path, sizeof path, "%s/plots/%s.svg", v->out_dir, base);
+            if (stat(path, &st) == 0)
+                total += (long)st.st_size;
+        }
+    return total;
+}
+
 /* One figure: inline SVG (ids prefixed), or a link to the file. */
-static void html_figure(FILE *f, const pb_report_view *v, int pi, int k)
+static void html_figure(FILE *f, const pb_report_view *v, int pi, int k, int external)
 {
     const pb_report_problem *p = &v->run->problems[pi];
     char base[PB_FIG_BASE_MAX], path[5000], pfx[32];
@@ -171,7 +196,7 @@ static void html_figure(FILE *f, const pb_report_view *v, int pi, int k)
     fprintf(f, "<figure class=\"fig-%s\">\n", pb_fig_kind(k));
     size_t n = 0;
     int drawn = v->drawn[pi * PB_FIG_COUNT + k];
-    char *svg = drawn && !v->external_figures ? html_slurp(path, &n) : NULL;
+    char *svg = drawn && !external ? html_slurp(path, &n) : NULL;
     if (svg) {
         html_svg(f, svg, pfx);
         free(svg);
@@ -191,7 +216,7 @@ static void html_figure(FILE *f, const pb_report_view *v, int pi, int k)
     fputs("</figcaption>\n</figure>\n", f);
 }
 
-static int html_problem(FILE *f, const pb_report_view *v, int pi)
+static int html_problem(FILE *f, const pb_report_view *v, int pi, int external)
 {
     const pb_report_problem *p = &v->run->problems[pi];
     fprintf(f, "<section class=\"problem\" id=\"problem-%d\">\n<h2>", pi);
@@ -212,7 +237,7 @@ static int html_problem(FILE *f, const pb_report_view *v, int pi)
     free(best);
     for (int k = 0; k < PB_FIG_COUNT; k++)
         if (v->made[pi * PB_FIG_COUNT + k])
-            html_figure(f, v, pi, k);
+            html_figure(f, v, pi, k, external);
     fputs("</section>\n", f);
     return 0;
 }
@@ -235,9 +260,15 @@ static int html_body(FILE *f, const pb_report_view *v)
         pb_report_html_text(f, v->why_not_drawn);
         fputs(". The data and gnuplot scripts are in plots/; run <code>gnuplot ./NAME.gp</code> there.</p>\n", f);
     }
+    long svg_total = html_svg_total(v);
+    int external = v->external_figures || svg_total > HTML_INLINE_MAX;
+    if (external && !v->external_figures)
+        fprintf(f, "<p class=\"missing\">The figures (%.1f MB of SVG) are linked from plots/, not inlined "
+                "(more than %.1f MB): keep plots/ beside this page.</p>\n", svg_total / 1e6,
+                HTML_INLINE_MAX / 1e6);
     html_settings(f, v);
     for (int pi = 0; pi < run->nproblems; pi++)
-        if (html_problem(f, v, pi))
+        if (html_problem(f, v, pi, external))
             return -1;
     fputs("<p class=\"caution\"><strong>Caution.</strong> ", f);
     pb_report_html_text(f, caution);
