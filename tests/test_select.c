@@ -249,6 +249,11 @@ Test(select, secant_search_needs_fewer_runs, .timeout = 600)
     cr_assert_eq(sel_spo(d, "gauss-jackson8"), 326);
     cr_assert_float_eq(sel_num(d, "rkf45", "tolerance"), 3.91e-13, 1e-27);
     cr_assert(json_is_false(json_object_get(sel_entry(d, "leapfrog"), "meets_requirement")));
+    /* leapfrog is order 2 (Hairer, Lubich & Wanner, Geometric Numerical
+     * Integration, II.3): its order projects the answer past the budget,
+     * so the search stops before the last rung */
+    cr_assert_str_eq(json_string_value(json_object_get(sel_entry(d, "leapfrog"), "reason")), "order_projection");
+    cr_assert_float_eq(sel_num(d, "leapfrog", "observed_order"), 2.0, 0.05);
     const char *m[] = {"rk4", "gauss-jackson8", "rkf45", "leapfrog"};
     const int before[] = {23, 17, 18, 16};
     for (int i = 0; i < 4; i++) {

@@ -196,7 +196,6 @@ static double select_predict(const select_state *st, int i, int j, double *order
     return st->x[j] * pow(st->q[j], 1.0 / p);
 }
 
-
 /* The rungs of the ladder: first * grow^k for k = 0 .. count - 1 (by
  * repeated products, as the settings were always made). */
 static double select_rung(const select_axis *ax, int k)
@@ -236,12 +235,8 @@ static int select_next_rung(select_state *st, const int *at, int k, int nr)
     if (st->ax->fixed && xs > SELECT_STOP_FACTOR * top && p <= 1.05 * p_old) {
         st->out->order = p;
         st->out->reason = "order_projection";
-        if (st->ax->fixed)
-            snprintf(st->out->note, sizeof st->out->note, "observed order %.2f projects %.3g steps per "
-                     "orbit, past the last rung the step budget allows (%.0f)", p, xs, top);
-        else
-            snprintf(st->out->note, sizeof st->out->note, "observed order %.2f projects tolerance %.2g, "
-                     "past the search's %.0e", p, 1 / xs, 1 / top);
+        snprintf(st->out->note, sizeof st->out->note, "observed order %.2f projects %.3g steps per "
+                 "orbit, past the last rung the step budget allows (%.0f)", p, xs, top);
         return -1;
     }
     int kj = k + 1;
