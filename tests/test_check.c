@@ -260,7 +260,7 @@ Test(check, changed_fingerprint_reported_and_strict_fails)
     cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "fingerprint", "REGRESSION"), "%s", ctx.out);
 }
 
-static void edit_slow(json_t *cs) { pbc_scale(cs, "rkf45", "cost", "ns_per_step", 2.0); }
+static void edit_slow(json_t *cs) { pbc_scale(cs, "rkf45", "cost", "step_kernel_ratio", 2.0); }
 
 Test(check, timing_only_when_asked_as_a_ratio)
 {

@@ -1,6 +1,8 @@
-/* verb_check.c - `propbench check --baseline FILE RUN_DIR`: compare a run
- * with a baseline (rules in baseline.h), print a table, optionally write
- * JUnit XML and a Markdown summary. Exit 0 pass, 1 regression, 2 bad input. */
+/* verb_check.c - `propbench check [--baseline FILE] [--require EXPR ...]
+ * RUN_DIR`: compare a run with a baseline (rules in compare.h) and hold its
+ * cases to absolute requirements (require.h), print a table, optionally
+ * write JUnit XML and a Markdown summary. Exit 0 pass, 1 regression or
+ * requirement not met, 2 bad input. */
 #include <errno.h>
 #include <limits.h>
 #include <getopt.h>
@@ -12,41 +14,59 @@
 #include "bench/cli/cli.h"
 #include "bench/gate/baseline.h"
 #include "bench/gate/compare.h"
+#include "bench/gate/require.h"
 #include "bench/store/summary_read.h"
 #include "bench/gate/junit.h"
 #include "bench/store/run_dir.h"
 
 static void check_help(FILE *f)
 {
+    char names[400] = "";
+    size_t n = 0;
+    for (const char *const *k = pb_require_names; *k && n < sizeof names; k++)
+        n += (size_t)snprintf(names + n, sizeof names - n, "%s%s%s", *k, k[1] ? "," : "",
+                              k[1] && (k - pb_require_names) % 5 == 4 ? "\n                     " : k[1] ? " " : "");
     fprintf(f,
-"usage: propbench check --baseline FILE RUN_DIR [--tolerance REL]\n"
-"                       [--metric-tolerance NAME=REL ...] [--floor REL]\n"
+"usage: propbench check [--baseline FILE] [--require EXPR ...] RUN_DIR\n"
+"                       [--tolerance REL] [--metric-tolerance NAME=REL ...]\n"
+"                       [--count-tolerance NAME=REL[,NAME=REL...]] [--floor REL]\n"
 "                       [--timing [--timing-ratio R]] [--strict]\n"
+"                       [--methods LIST] [--problems LIST] [--only-failures]\n"
 "                       [--junit FILE] [--markdown FILE]\n\n"
-"Compare RUN_DIR/summary.json with a baseline made by 'propbench baseline'.\n"
+"Compare RUN_DIR/summary.json with a baseline made by 'propbench baseline',\n"
+"hold its cases to absolute requirements, or both (at least one of the two).\n"
 "  accuracy metrics   regression when worse by more than REL (default %g):\n"
 "                     run > (1 + REL) * baseline + floor; the floor (default\n"
 "                     %g, relative to the orbit's size or speed for positions\n"
 "                     and velocities) keeps round-off noise from flagging\n"
 "                     (REL from 0 to %g, the floor from 0 to %g)\n"
 "  --metric-tolerance NAME=REL  another tolerance for one metric (repeatable)\n"
-"  status, settings, steps, evals, rejected, startup_steps   must not change\n"
-"  --timing           also compare ns per step; regression when the run is\n"
-"                     slower by more than the ratio R (default %g, at most %g)\n"
+"  status, settings   must not change\n"
+"  steps, evals, rejected, startup_steps   must not change, unless\n"
+"  --count-tolerance NAME=REL,...  lets a count move by REL (e.g. steps=0.05)\n"
+"  --timing           also compare CPU time per step in units of a calibration\n"
+"                     kernel timed beside each case in the same run; regression\n"
+"                     when slower by more than the ratio R (default %g, at most %g)\n"
 "  fingerprints       bit changes are reported; --strict makes them fail\n"
 "  cases              missing from the run: regression; new ones: listed\n"
 "Compiler, build flags or machine differing from the baseline's: a warning.\n"
+"  --require EXPR     METRIC<=VALUE (or <, >=, >) that every case must meet,\n"
+"                     e.g. 'pos_err_max_m<=10' (repeatable); METRIC one of\n"
+"                     %s\n"
+"  --methods LIST, --problems LIST   the cases --require applies to\n"
+"  --only-failures    list only the cases that fail\n"
 "  --junit FILE       JUnit XML, one test case per case and metric\n"
 "  --markdown FILE    a summary for a CI page\n\n"
-"exit status: 0 no regression, 1 regression, 2 bad, corrupt or incompatible files\n",
+"exit status: 0 pass, 1 regression or requirement not met, 2 bad, corrupt or\n"
+"incompatible files, unknown metric names, malformed expressions\n",
             PB_CHECK_TOLERANCE, PB_CHECK_FLOOR, PB_CHECK_TOLERANCE_MAX, PB_CHECK_FLOOR_MAX,
-            PB_CHECK_TIMING_RATIO, PB_CHECK_TIMING_RATIO_MAX);
+            PB_CHECK_TIMING_RATIO, PB_CHECK_TIMING_RATIO_MAX, names);
 }
 
 static int check_rank(pb_check_verdict v)
 {
     switch (v) {
-    case PB_CHECK_REGRESSED: case PB_CHECK_MISSING: return 4;
+    case PB_CHECK_REGRESSED: case PB_CHECK_MISSING: case PB_CHECK_UNMET: return 4;
     case PB_CHECK_IMPROVED: return 3;
     case PB_CHECK_NEW: return 2;
     case PB_CHECK_CHANGED: return 1;
@@ -81,10 +101,11 @@ static check_case_sum check_summarise(const pb_check_row *a, const pb_check_row 
         else if (!strcmp(w->item, "steps") || !strcmp(w->item, "evals") ||
                  !strcmp(w->item, "rejected") || !strcmp(w->item, "startup_steps"))
             s.counts_same &= w->verdict == PB_CHECK_SAME;
-        /* the most severe verdict first, then the largest change */
-        if (check_is_metric(w->item) && w->rel != 0 &&
-            (!s.worst || check_rank(w->verdict) > check_rank(s.worst->verdict) ||
-             (check_rank(w->verdict) == check_rank(s.worst->verdict) && w->rel > s.worst->rel)))
+        /* the row that decides the verdict (the most severe; among equals
+         * the largest change); on a case that is ok, the metric that moved most */
+        int rk = check_rank(w->verdict), rs = s.worst ? check_rank(s.worst->verdict) : -1;
+        if ((rk > 0 || (check_is_metric(w->item) && w->rel != 0)) &&
+            (rk > rs || (rk == rs && w->rel > s.worst->rel)))
             s.worst = w;
         if (check_rank(w->verdict) > check_rank(s.verdict))
             s.verdict = w->verdict;
@@ -100,13 +121,22 @@ static size_t check_case_end(const pb_check_report *r, size_t i)
     return j;
 }
 
-static void check_print_table(FILE *f, const pb_check_report *r)
+static int check_fails(pb_check_verdict v)
+{
+    return v == PB_CHECK_REGRESSED || v == PB_CHECK_MISSING || v == PB_CHECK_UNMET;
+}
+
+static void check_print_table(FILE *f, const pb_check_report *r, int only_failures)
 {
     fprintf(f, "%-46s %-9s %-17s %9s %-6s %-8s %s\n", "case", "status", "worst metric", "change",
             "counts", "bits", "verdict");
     for (size_t i = 0; i < r->n;) {
         size_t j = check_case_end(r, i);
         check_case_sum s = check_summarise(&r->rows[i], &r->rows[j]);
+        if (only_failures && !check_fails(s.verdict)) {
+            i = j;
+            continue;
+        }
         const char *st = !s.status ? "-" : strcmp(s.status->item, "case") ? s.status->run
                          : s.status->verdict == PB_CHECK_MISSING ? "missing" : "new";
         fprintf(f, "%-46s %-9s %-17s %9s %-6s %-8s %s\n", r->rows[i].case_id, st,
@@ -118,12 +148,13 @@ static void check_print_table(FILE *f, const pb_check_report *r)
     }
 }
 
-static void check_print_details(FILE *f, const pb_check_report *r)
+static void check_print_details(FILE *f, const pb_check_report *r, int only_failures)
 {
     int any = 0;
     for (size_t i = 0; i < r->n; i++) {
         const pb_check_row *w = &r->rows[i];
-        if (w->verdict == PB_CHECK_SAME || w->verdict == PB_CHECK_NEW || w->verdict == PB_CHECK_MISSING)
+        if (w->verdict == PB_CHECK_SAME || w->verdict == PB_CHECK_NEW || w->verdict == PB_CHECK_MISSING ||
+            (only_failures && !check_fails(w->verdict)))
             continue;
         if (!any++)
             fprintf(f, "\ndifferences:\n%-46s %-20s %-24s %-24s %-14s %s\n", "case", "item",
@@ -140,9 +171,12 @@ static const char *check_outcome(const pb_check_report *r, const pb_check_option
 
 static void check_print_totals(FILE *f, const pb_check_report *r, const pb_check_options *o)
 {
-    fprintf(f, "%ld cases compared: %ld regressions, %ld improvements, %ld fingerprint changes%s, "
+    if (o->n_require)
+        fprintf(f, "%ld requirements checked: %ld unmet; ", r->required, r->unmet);
+    fprintf(f, "%ld cases %s: %ld regressions, %ld improvements, %ld fingerprint changes%s, "
                "%ld missing, %ld new: %s\n",
-            r->cases, r->regressions, r->improvements, r->fingerprints_changed,
+            r->cases, r->compared ? "compared" : "checked",
+            r->regressions, r->improvements, r->fingerprints_changed,
             o->strict ? " (strict)" : "", r->missing, r->added, check_outcome(r, o));
 }
 
@@ -156,7 +190,7 @@ static int check_junit(const char *path, const pb_check_report *r)
         snprintf(detail, sizeof detail, "baseline %s, run %s%s%s (%s)", w->base, w->run,
                  *w->change ? ", " : "", w->change, pb_check_verdict_name(w->verdict));
         snprintf(msg, sizeof msg, "%s %s: %s", w->case_id, w->item, detail);
-        int fails = w->verdict == PB_CHECK_REGRESSED || w->verdict == PB_CHECK_MISSING;
+        int fails = check_fails(w->verdict);
         bad = pb_junit_add(j, w->case_id, w->item, fails ? msg : NULL, fails ? NULL : detail) != 0;
     }
     for (int k = 0; !bad && k < r->n_warnings; k++)
@@ -187,13 +221,33 @@ static int check_markdown(const char *path, const pb_check_report *r, const pb_c
     fprintf(f, "## propbench check: %s\n\n", check_outcome(r, o));
     fprintf(f, "Run `");
     check_md_cell(f, run_path);
-    fprintf(f, "` against baseline `");
-    check_md_cell(f, base_path);
-    fprintf(f, "` (tolerance %g%%, round-off floor %g%s%s).\n\n", 100 * o->tolerance, o->floor,
-            o->timing ? ", timing compared" : "", o->strict ? ", strict fingerprints" : "");
-    fprintf(f, "| cases | regressions | improvements | fingerprint changes | missing | new |\n"
-               "|---:|---:|---:|---:|---:|---:|\n| %ld | %ld | %ld | %ld | %ld | %ld |\n\n",
-            r->cases, r->regressions, r->improvements, r->fingerprints_changed, r->missing, r->added);
+    if (!base_path) {
+        fprintf(f, "` (no baseline).\n\n");
+    } else {
+        fprintf(f, "` against baseline `");
+        check_md_cell(f, base_path);
+        fprintf(f, "` (tolerance %g%%, round-off floor %g%s%s).\n\n", 100 * o->tolerance,
+                o->floor, o->timing ? ", timing compared" : "", o->strict ? ", strict fingerprints" : "");
+    }
+    fprintf(f, "| cases | regressions | improvements | fingerprint changes | missing | new "
+               "| requirements unmet |\n|---:|---:|---:|---:|---:|---:|---:|\n"
+               "| %ld | %ld | %ld | %ld | %ld | %ld | %ld of %ld |\n\n",
+            r->cases, r->regressions, r->improvements, r->fingerprints_changed, r->missing, r->added,
+            r->unmet, r->required);
+    for (int q = 0; q < o->n_require; q++) {
+        fprintf(f, "%s `", q ? "," : "Requirements:");
+        check_md_cell(f, o->require[q].text);
+        fputc('`', f);
+    }
+    if (o->methods || o->problems) {
+        fprintf(f, " on methods `");
+        check_md_cell(f, o->methods ? o->methods : "all");
+        fprintf(f, "` and problems `");
+        check_md_cell(f, o->problems ? o->problems : "all");
+        fputc('`', f);
+    }
+    if (o->n_require)
+        fprintf(f, ".\n\n");
     for (int k = 0; k < r->n_warnings; k++) {
         fprintf(f, "- warning: ");
         check_md_cell(f, r->warnings[k]);
@@ -232,6 +286,7 @@ static int check_markdown(const char *path, const pb_check_report *r, const pb_c
 typedef struct check_args {
     pb_check_options o;
     const char *base_path, *junit, *md, *run_dir;
+    int only_failures;
 } check_args;
 
 /* check_parse's answer when the comparison should go ahead. */
@@ -247,11 +302,37 @@ static int check_ranged(const char *opt, const char *arg, double lo, double hi, 
     return 0;
 }
 
+enum { O_BASE = 256, O_TOL, O_MTOL, O_FLOOR, O_TIMING, O_RATIO, O_STRICT, O_JUNIT, O_MD,
+       O_CTOL, O_REQ, O_METHODS, O_PROBLEMS, O_ONLY };
+
+/* The gate's own options (counts, requirements, filters, output); 0, or
+ * PB_EXIT_USAGE after a message. */
+static int check_parse_gate(int c, const char *arg, check_args *a)
+{
+    char err[1024];
+    switch (c) {
+    case O_CTOL:
+        if (pb_check_options_counts(&a->o, arg, err, sizeof err))
+            return pb_cli_error("check", "%s", err);
+        break;
+    case O_REQ:
+        if (pb_require_parse(&a->o, arg, err, sizeof err))
+            return pb_cli_error("check", "%s", err);
+        break;
+    case O_METHODS: a->o.methods = arg; break;
+    case O_PROBLEMS: a->o.problems = arg; break;
+    case O_ONLY: a->only_failures = 1; break;
+    }
+    return 0;
+}
+
 /* CHECK_GO with *a filled in, or the exit status (--help, bad options). */
 static int check_parse(int argc, char **argv, check_args *a)
 {
-    enum { O_BASE = 256, O_TOL, O_MTOL, O_FLOOR, O_TIMING, O_RATIO, O_STRICT, O_JUNIT, O_MD };
     static const struct option opts[] = {
+        {"count-tolerance", required_argument, 0, O_CTOL}, {"require", required_argument, 0, O_REQ},
+        {"methods", required_argument, 0, O_METHODS}, {"problems", required_argument, 0, O_PROBLEMS},
+        {"only-failures", no_argument, 0, O_ONLY},
         {"baseline", required_argument, 0, O_BASE}, {"tolerance", required_argument, 0, O_TOL},
         {"metric-tolerance", required_argument, 0, O_MTOL}, {"floor", required_argument, 0, O_FLOOR},
         {"timing", no_argument, 0, O_TIMING}, {"timing-ratio", required_argument, 0, O_RATIO},
@@ -289,12 +370,20 @@ static int check_parse(int argc, char **argv, check_args *a)
         case O_JUNIT: a->junit = optarg; break;
         case O_MD: a->md = optarg; break;
         case 'h': check_help(stdout); return PB_EXIT_OK;
+        case O_CTOL: case O_REQ: case O_METHODS: case O_PROBLEMS: case O_ONLY:
+            if (check_parse_gate(c, optarg, a))
+                return PB_EXIT_USAGE;
+            break;
         default:
             return pb_cli_error("check", c == ':' ? "option %s needs a value" : "unknown option '%s'", argv[optind - 1]);
         }
     }
-    if (!a->base_path || optind != argc - 1)
-        return pb_cli_error("check", "give --baseline FILE and one RUN_DIR (see --help)");
+    if ((!a->base_path && !a->o.n_require) || optind != argc - 1)
+        return pb_cli_error("check", "give --baseline FILE or --require EXPR (or both) and one "
+                            "RUN_DIR (see --help)");
+    if ((a->o.methods || a->o.problems) && !a->o.n_require)
+        return pb_cli_error("check", "--methods and --problems choose the cases --require "
+                            "applies to: give --require too");
     a->run_dir = argv[optind];
     return CHECK_GO;
 }
@@ -309,18 +398,23 @@ typedef struct check_inputs {
 static int check_load(const check_args *a, const char *run_path, check_inputs *in)
 {
     char err[1024];
-    if (pb_baseline_load(a->base_path, &in->base, err, sizeof err) ||
+    if ((a->base_path && pb_baseline_load(a->base_path, &in->base, err, sizeof err)) ||
         pb_summary_load(run_path, &in->summary, err, sizeof err) ||
         pb_summary_complete(run_path, in->summary, err, sizeof err)) {
         pb_cli_error("check", "%s", err);
         return -1;
     }
     in->run = pb_baseline_from_summary(in->summary);
-    if (!in->run || pb_check_compare(in->base, in->run, &a->o, &in->r)) {
+    if (!in->run || (a->base_path && pb_check_compare(in->base, in->run, &a->o, &in->r))) {
         pb_cli_error("check", "out of memory comparing %s with %s", run_path, a->base_path);
         return -1;
     }
-    return 0;
+    int rq = pb_require_check(in->summary, &a->o, &in->r, err, sizeof err);
+    if (rq)
+        pb_cli_error("check", "%s", rq > 0 ? err : "out of memory checking the requirements");
+    if (!rq && !a->base_path)
+        in->r.cases = in->r.required / a->o.n_require;  /* the cases they applied to */
+    return rq ? -1 : 0;
 }
 
 static void check_inputs_free(check_inputs *in)
@@ -335,11 +429,21 @@ static void check_print(const check_args *a, const char *run_path, const pb_chec
 {
     for (int k = 0; k < r->n_warnings; k++)
         fprintf(stderr, "propbench check: warning: %s\n", r->warnings[k]);
-    printf("propbench check: %s against %s (tolerance %g%%, floor %g%s%s)\n\n", run_path,
-           a->base_path, 100 * a->o.tolerance, a->o.floor, a->o.timing ? ", timing" : "",
-           a->o.strict ? ", strict" : "");
-    check_print_table(stdout, r);
-    check_print_details(stdout, r);
+    if (a->base_path)
+        printf("propbench check: %s against %s (tolerance %g%%, floor %g%s%s)\n", run_path,
+               a->base_path, 100 * a->o.tolerance, a->o.floor, a->o.timing ? ", timing" : "",
+               a->o.strict ? ", strict" : "");
+    else
+        printf("propbench check: %s\n", run_path);
+    for (int q = 0; q < a->o.n_require; q++)
+        printf("%s %s", q ? "," : "required:", a->o.require[q].text);
+    printf("%s%s%s%s%s\n", a->o.n_require && a->o.methods ? " (methods " : "",
+           a->o.n_require && a->o.methods ? a->o.methods : "",
+           a->o.n_require && a->o.problems ? (a->o.methods ? "; problems " : " (problems ") : "",
+           a->o.n_require && a->o.problems ? a->o.problems : "",
+           a->o.n_require && (a->o.methods || a->o.problems) ? ")" : "");
+    check_print_table(stdout, r, a->only_failures);
+    check_print_details(stdout, r, a->only_failures);
     printf("\n");
     check_print_totals(stdout, r, &a->o);
 }
@@ -411,7 +515,7 @@ static int check_outputs_clash(const check_args *a, const char *run_path)
         if (out[i] && pb_cli_out_path("check", oname[i], out[i], PB_CLI_RESERVE_FILE))
             return 1;
         for (int k = 0; out[i] && k < 2; k++)
-            if (pb_same_file(out[i], in[k]))
+            if (in[k] && pb_same_file(out[i], in[k]))
                 return pb_cli_error("check", "%s %s is %s %s: an output may not replace an input",
                                     oname[i], out[i], iname[k], in[k]) != 0;
     }

@@ -10,7 +10,8 @@
 /* kept for people reading the baseline; not compared */
 static const char *const baseline_info[] = {"growth_exponent_energy", "growth_exponent_pos",
                                             "below_reference_floor", NULL};
-static const char *const baseline_timing[] = {"ns_per_step", "ns_per_eval", NULL};
+static const char *const baseline_timing[] = {"ns_per_step", "ns_per_eval", "calib_ns",
+                                              "step_kernel_ratio", NULL};
 const char *const pb_baseline_settings[] = {"problem", "method", "steps_per_orbit", "step",
                                            "tolerance", "orbits", "horizon_s", "compensated",
                                            "formulation", NULL};
@@ -93,7 +94,7 @@ json_t *pb_baseline_from_summary(const json_t *summary)
     json_t *b = json_object();
     json_object_set_new(b, "format", json_integer(PB_BASELINE_FORMAT));
     json_object_set_new(b, "kind", json_string(PB_BASELINE_KIND));
-    static const char *const top[] = {"tool", "sweep", "machine", "build", NULL};
+    static const char *const top[] = {"tool", "sweep", "machine", "build", "calibration", NULL};
     baseline_copy_keys(b, summary, top);
     json_t *cases = json_array();
     size_t i;

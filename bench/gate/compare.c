@@ -57,6 +57,51 @@ int pb_check_options_metric(pb_check_options *o, const char *arg, char *err, siz
     return 0;
 }
 
+int pb_check_options_counts(pb_check_options *o, const char *arg, char *err, size_t errlen)
+{
+    const char *p = arg;
+    while (*p) {
+        size_t len = strcspn(p, ",");
+        char item[64];
+        snprintf(item, sizeof item, "%.*s", (int)(len < sizeof item ? len : sizeof item - 1), p);
+        char *eq = strchr(item, '=');
+        const char *const *k = pb_summary_count_keys;
+        for (; eq && *k; k++)
+            if (strlen(*k) == (size_t)(eq - item) && !strncmp(*k, item, (size_t)(eq - item)))
+                break;
+        if (!eq || !*k || len >= sizeof item) {
+            snprintf(err, errlen, "--count-tolerance expects NAME=REL[,NAME=REL...] with NAME one "
+                     "of steps, evals, rejected, startup_steps; got '%.*s'", (int)len, p);
+            return -1;
+        }
+        char *end;
+        errno = 0;
+        double t = strtod(eq + 1, &end);
+        if (end == eq + 1 || *end || errno || !isfinite(t) || t < 0 || t > PB_CHECK_TOLERANCE_MAX) {
+            snprintf(err, errlen, "--count-tolerance %s: expects a relative tolerance from 0 to "
+                     "%g, got '%s'", *k, PB_CHECK_TOLERANCE_MAX, eq + 1);
+            return -1;
+        }
+        int i = 0;
+        while (i < o->n_count && strcmp(o->count_name[i], *k))
+            i++;
+        snprintf(o->count_name[i], sizeof o->count_name[i], "%s", *k);
+        o->count_tol[i] = t;
+        if (i == o->n_count)
+            o->n_count++;
+        p += len + (p[len] == ',');
+        if (p[-1] == ',' && !*p) {
+            snprintf(err, errlen, "--count-tolerance '%s': ends with a comma", arg);
+            return -1;
+        }
+    }
+    if (!*arg) {
+        snprintf(err, errlen, "--count-tolerance: an empty list");
+        return -1;
+    }
+    return 0;
+}
+
 static double check_tolerance(const pb_check_options *o, const char *metric)
 {
     for (int i = 0; i < o->n_metric; i++)
@@ -76,12 +121,13 @@ const char *pb_check_verdict_name(pb_check_verdict v)
     case PB_CHECK_NEW: return "new";
     case PB_CHECK_REGRESSED: return "REGRESSION";
     case PB_CHECK_MISSING: return "MISSING";
+    case PB_CHECK_UNMET: return "UNMET";
     }
     return "?";
 }
 
-static pb_check_row *check_row(pb_check_report *r, const char *id, const char *item,
-                               pb_check_verdict v)
+pb_check_row *pb_check_add_row(pb_check_report *r, const char *id, const char *item,
+                              pb_check_verdict v)
 {
     if (r->n == r->cap) {
         size_t cap = r->cap ? 2 * r->cap : 256;
@@ -100,6 +146,8 @@ static pb_check_row *check_row(pb_check_report *r, const char *id, const char *i
     snprintf(w->run, sizeof w->run, "-");
     if (v == PB_CHECK_REGRESSED || v == PB_CHECK_MISSING)
         r->regressions++;
+    if (v == PB_CHECK_UNMET)
+        r->unmet++;
     if (v == PB_CHECK_IMPROVED)
         r->improvements++;
     return w;
@@ -164,7 +212,7 @@ static int check_metrics(pb_check_report *r, const char *id, const json_t *bc, c
             v = PB_CHECK_REGRESSED;
         else if (cb == CHECK_NUMBER && b > (1 + t) * x + f)
             v = PB_CHECK_IMPROVED;
-        pb_check_row *w = check_row(r, id, *k, v);
+        pb_check_row *w = pb_check_add_row(r, id, *k, v);
         if (!w)
             return -1;
         if (cb == CHECK_NUMBER)
@@ -218,7 +266,7 @@ static int check_classes(pb_check_report *r, const char *id, const json_t *bc, c
                                                                                 : PB_CHECK_REGRESSED;
         } else if (rx < rb)
             v = PB_CHECK_IMPROVED;
-        pb_check_row *w = check_row(r, id, pb_summary_class_keys[i], v);
+        pb_check_row *w = pb_check_add_row(r, id, pb_summary_class_keys[i], v);
         if (!w)
             return -1;
         snprintf(w->base, sizeof w->base, "%s", b);
@@ -229,43 +277,76 @@ static int check_classes(pb_check_report *r, const char *id, const json_t *bc, c
     return 0;
 }
 
-static int check_counts(pb_check_report *r, const char *id, const json_t *bc, const json_t *rc)
+/* A count's tolerance: o's, or -1 (must be equal). */
+static double check_count_tolerance(const pb_check_options *o, const char *key)
+{
+    for (int i = 0; i < o->n_count; i++)
+        if (!strcmp(o->count_name[i], key))
+            return o->count_tol[i];
+    return -1;
+}
+
+static int check_counts(pb_check_report *r, const char *id, const json_t *bc, const json_t *rc,
+                        const pb_check_options *o)
 {
     const json_t *bn = json_object_get(bc, "counts"), *rn = json_object_get(rc, "counts");
     for (const char *const *k = pb_summary_count_keys; *k; k++) {
         json_t *b = json_object_get(bn, *k), *x = json_object_get(rn, *k);
         if (!b)
             continue;
-        int same = (json_is_integer(x) && json_integer_value(x) == json_integer_value(b)) ||
+        int ints = json_is_integer(x) && json_is_integer(b);
+        int same = (ints && json_integer_value(x) == json_integer_value(b)) ||
                    (json_is_null(x) && json_is_null(b)); /* both unknown (score) */
-        pb_check_row *w = check_row(r, id, *k, same ? PB_CHECK_SAME : PB_CHECK_REGRESSED);
+        double t = check_count_tolerance(o, *k);
+        double bv = ints ? (double)json_integer_value(b) : 0, xv = ints ? (double)json_integer_value(x) : 0;
+        pb_check_verdict v = same ? PB_CHECK_SAME : PB_CHECK_REGRESSED;
+        if (!same && ints && t >= 0)
+            v = xv > (1 + t) * bv ? PB_CHECK_REGRESSED
+                : bv > (1 + t) * xv ? PB_CHECK_IMPROVED : PB_CHECK_SAME;
+        pb_check_row *w = pb_check_add_row(r, id, *k, v);
         if (!w)
             return -1;
         check_text(b, w->base, sizeof w->base);
         check_text(x, w->run, sizeof w->run);
-        if (!same && json_is_integer(x))
+        if (!same && ints && bv > 0) {
+            w->rel = (xv - bv) / bv;
+            snprintf(w->change, sizeof w->change, "%+lld (%+.1f%%)",
+                     (long long)(json_integer_value(x) - json_integer_value(b)), 100 * w->rel);
+        } else if (!same && ints) {
+            w->rel = xv > bv ? INFINITY : -INFINITY;
             snprintf(w->change, sizeof w->change, "%+lld",
                      (long long)(json_integer_value(x) - json_integer_value(b)));
+        } else if (!same)
+            w->rel = INFINITY;
     }
     return 0;
 }
 
+/* A step's time in calibration-kernel chunks (timing.h) when both sides
+ * have it, which a loaded or slower machine moves far less than it moves
+ * nanoseconds; otherwise (a baseline made before the kernel) raw CPU time. */
 static int check_timing(pb_check_report *r, const char *id, const json_t *bc, const json_t *rc,
                         const pb_check_options *o)
 {
-    json_t *b = json_object_get(json_object_get(bc, "timing"), "ns_per_step");
-    json_t *x = json_object_get(json_object_get(rc, "timing"), "ns_per_step");
+    const json_t *bt = json_object_get(bc, "timing"), *rt = json_object_get(rc, "timing");
+    json_t *b = json_object_get(bt, "ns_per_step"), *x = json_object_get(rt, "ns_per_step");
+    json_t *bk = json_object_get(bt, "step_kernel_ratio"), *xk = json_object_get(rt, "step_kernel_ratio");
     if (!json_is_number(b) || !json_is_number(x) || json_number_value(b) <= 0)
         return 0;
-    double ratio = json_number_value(x) / json_number_value(b);
+    int cal = json_is_number(bk) && json_is_number(xk) && json_number_value(bk) > 0;
+    double ratio = cal ? json_number_value(xk) / json_number_value(bk)
+                       : json_number_value(x) / json_number_value(b);
     pb_check_verdict v = ratio > o->timing_ratio ? PB_CHECK_REGRESSED
                          : ratio < 1 / o->timing_ratio ? PB_CHECK_IMPROVED : PB_CHECK_SAME;
-    pb_check_row *w = check_row(r, id, "ns_per_step", v);
+    pb_check_row *w = pb_check_add_row(r, id, "ns_per_step", v);
     if (!w)
         return -1;
     snprintf(w->base, sizeof w->base, "%.1f", json_number_value(b));
     snprintf(w->run, sizeof w->run, "%.1f", json_number_value(x));
-    snprintf(w->change, sizeof w->change, "x%.2f", ratio);
+    snprintf(w->change, sizeof w->change, "x%.2f%s", ratio, cal ? " calibrated" : " raw CPU");
+    w->rel = ratio - 1;
+    if (!cal)
+        r->timing_raw++;
     return 0;
 }
 
@@ -275,7 +356,7 @@ static int check_case(pb_check_report *r, const json_t *bc, const json_t *rc,
     const char *id = json_string_value(json_object_get(bc, "id"));
     const char *bs = json_string_value(json_object_get(bc, "status"));
     const char *rs = json_string_value(json_object_get(rc, "status"));
-    pb_check_row *w = check_row(r, id, "status", strcmp(bs, rs) ? PB_CHECK_REGRESSED : PB_CHECK_SAME);
+    pb_check_row *w = pb_check_add_row(r, id, "status", strcmp(bs, rs) ? PB_CHECK_REGRESSED : PB_CHECK_SAME);
     if (!w)
         return -1;
     snprintf(w->base, sizeof w->base, "%s", bs);
@@ -288,7 +369,7 @@ static int check_case(pb_check_report *r, const json_t *bc, const json_t *rc,
         if ((b || x) && !(b && x && json_equal(b, x)))
             diff = *k;
     }
-    w = check_row(r, id, "settings", diff ? PB_CHECK_REGRESSED : PB_CHECK_SAME);
+    w = pb_check_add_row(r, id, "settings", diff ? PB_CHECK_REGRESSED : PB_CHECK_SAME);
     if (!w)
         return -1;
     if (diff) {
@@ -297,13 +378,13 @@ static int check_case(pb_check_report *r, const json_t *bc, const json_t *rc,
         check_text(json_object_get(rset, diff), w->run, sizeof w->run);
     }
     if (check_metrics(r, id, bc, rc, o) || check_classes(r, id, bc, rc, o) ||
-        check_counts(r, id, bc, rc) || (o->timing && check_timing(r, id, bc, rc, o)))
+        check_counts(r, id, bc, rc, o) || (o->timing && check_timing(r, id, bc, rc, o)))
         return -1;
 
     const char *bf = json_string_value(json_object_get(bc, "fingerprint"));
     const char *rf = json_string_value(json_object_get(rc, "fingerprint"));
     int same = rf && !strcmp(bf, rf);
-    w = check_row(r, id, "fingerprint",
+    w = pb_check_add_row(r, id, "fingerprint",
                   same ? PB_CHECK_SAME : o->strict ? PB_CHECK_REGRESSED : PB_CHECK_CHANGED);
     if (!w)
         return -1;
@@ -352,6 +433,7 @@ int pb_check_compare(const json_t *base, const json_t *run, const pb_check_optio
                      pb_check_report *r)
 {
     memset(r, 0, sizeof *r);
+    r->compared = 1;
     check_environment(r, base, run);
     json_t *by_id = json_object();
     size_t i;
@@ -367,7 +449,7 @@ int pb_check_compare(const json_t *base, const json_t *run, const pb_check_optio
             rc = check_case(r, c, x, o);
             json_object_del(by_id, id);
         } else {
-            pb_check_row *w = check_row(r, id, "case", PB_CHECK_MISSING);
+            pb_check_row *w = pb_check_add_row(r, id, "case", PB_CHECK_MISSING);
             rc = w ? 0 : -1;
             if (w) {
                 r->missing++;
@@ -384,7 +466,7 @@ int pb_check_compare(const json_t *base, const json_t *run, const pb_check_optio
         const char *id = json_string_value(json_object_get(c, "id"));
         if (rc || !json_object_get(by_id, id))
             continue;
-        pb_check_row *w = check_row(r, id, "case", PB_CHECK_NEW);
+        pb_check_row *w = pb_check_add_row(r, id, "case", PB_CHECK_NEW);
         if (!w) {
             rc = -1;
             break;
@@ -394,13 +476,17 @@ int pb_check_compare(const json_t *base, const json_t *run, const pb_check_optio
         snprintf(w->change, sizeof w->change, "not in the baseline");
     }
     json_decref(by_id);
+    if (r->timing_raw && r->n_warnings < 8)
+        snprintf(r->warnings[r->n_warnings++], sizeof r->warnings[0],
+                 "%ld cases compared on raw CPU time: the baseline (or the run) has no "
+                 "calibration kernel timing; make the baseline again", r->timing_raw);
     return rc;
 }
 
 int pb_check_failed(const pb_check_report *r, const pb_check_options *o)
 {
     (void)o; /* --strict already turned fingerprint changes into regressions */
-    return r->regressions > 0;
+    return r->regressions > 0 || r->unmet > 0;
 }
 
 void pb_check_report_free(pb_check_report *r)

@@ -112,6 +112,9 @@ typedef struct pb_case_result {
      * force evaluations of one repeat (those of the metric pass unless the
      * case was cut to the pass's first 200000 steps) */
     double ns_per_step_spread;
+    /* the calibration kernel beside the repeats (timing.h): ns per chunk and
+     * a step's time in chunks, medians (NaN when not timed) */
+    double calib_ns, step_kernel_ratio;
     int timing_repeats;
     double timing_cpu_s;
     long timing_steps, timing_evals;

@@ -20,6 +20,13 @@
  * are done and PB_TIMING_MIN_CPU_S is reached. */
 #define PB_TIMING_MAX_REPEATS 1000
 
+/* The calibration kernel timed after every repeat of a case (timing.c):
+ * its name as summary.json gives it (a fixed case: rk4 on leo-near-circular
+ * at 100 steps per orbit, 100 steps a chunk), and at most this many of its
+ * chunks after one repeat. */
+#define PB_CALIB_KERNEL "rk4-leo-near-circular-100x100"
+#define PB_CALIB_MAX_CHUNKS 20000L
+
 /* The name of the clock, as summary.json's "timing_clock" gives it. */
 #define PB_TIMING_CLOCK "thread-cpu"
 
@@ -39,7 +46,10 @@ pb_timing_policy pb_timing_policy_for(const pb_case_spec *spec);
  * CPU clock, under pol. Sets res->ns_per_step, ns_per_eval, timing_s (the
  * medians over repeats), ns_per_step_spread (the repeats' interquartile
  * range over their median), timing_repeats, timing_cpu_s, timing_steps and
- * timing_evals; with nothing timed (pol->min_repeats <= 0, nothing to
+ * timing_evals, and from the calibration kernel timed after each repeat,
+ * calib_ns (the median ns of one chunk) and step_kernel_ratio (the median
+ * over repeats of a step's time over a chunk's time just after it); with
+ * nothing timed (pol->min_repeats <= 0, nothing to
  * integrate, or a failure) the spread is NaN, timing_repeats 0 and the
  * medians are left as they are. */
 void pb_case_time_with(const pb_case_spec *spec, const pb_method_config *cfg, double t_end,

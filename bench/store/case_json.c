@@ -1,6 +1,7 @@
 /* case_json.c - case objects and the summary document (see case_json.h). */
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include <sys/utsname.h>
 #include <unistd.h>
@@ -121,6 +122,23 @@ static const char *case_energy_rel_to(const pb_case_spec *spec, const pb_case_re
     return NULL;
 }
 
+/* The timing pass's numbers into a case's "cost". */
+static void case_timing(json_t *c, const pb_case_result *res)
+{
+    json_object_set_new(c, "ns_per_step", pb_json_real(res->ns_per_step));
+    json_object_set_new(c, "ns_per_eval", pb_json_real(res->ns_per_eval));
+    /* how far to trust the two above: the timing pass's repeats, their
+     * relative interquartile range, and the clock (null: not timed) */
+    int timed = res->timing_repeats > 0;
+    json_object_set_new(c, "ns_per_step_spread", pb_json_real(timed ? res->ns_per_step_spread : (double)NAN));
+    json_object_set_new(c, "timing_repeats", json_integer(res->timing_repeats));
+    json_object_set_new(c, "timing_clock", timed ? json_string(PB_TIMING_CLOCK) : json_null());
+    /* the calibration kernel timed beside the repeats: what check --timing
+     * compares is step_kernel_ratio, a step's time in kernel chunks */
+    json_object_set_new(c, "calib_ns", pb_json_real(timed ? res->calib_ns : (double)NAN));
+    json_object_set_new(c, "step_kernel_ratio", pb_json_real(timed ? res->step_kernel_ratio : (double)NAN));
+}
+
 json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
 {
     json_t *o = json_object();
@@ -182,14 +200,7 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
     json_object_set_new(c, "startup_steps", json_integer(res->startup_steps));
     if (spec->method->flags & PB_KIND_ADAPTIVE)
         json_object_set_new(c, "output_cut_steps", json_integer(res->output_cut));
-    json_object_set_new(c, "ns_per_step", pb_json_real(res->ns_per_step));
-    json_object_set_new(c, "ns_per_eval", pb_json_real(res->ns_per_eval));
-    /* how far to trust the two above: the timing pass's repeats, their
-     * relative interquartile range, and the clock (null: not timed) */
-    int timed = res->timing_repeats > 0;
-    json_object_set_new(c, "ns_per_step_spread", pb_json_real(timed ? res->ns_per_step_spread : (double)NAN));
-    json_object_set_new(c, "timing_repeats", json_integer(res->timing_repeats));
-    json_object_set_new(c, "timing_clock", timed ? json_string(PB_TIMING_CLOCK) : json_null());
+    case_timing(c, res);
     if (spec->eval_cost_us > 0) {
         json_object_set_new(c, "eval_cost_us", json_real(spec->eval_cost_us));
         json_object_set_new(c, "projected_s", json_real(res->projected_s));
@@ -228,6 +239,36 @@ static json_t *summary_machine(void)
     }
     json_object_set_new(m, "cores", json_integer(sysconf(_SC_NPROCESSORS_ONLN)));
     return m;
+}
+
+static int summary_cmp_double(const void *a, const void *b)
+{
+    double d = *(const double *)a - *(const double *)b;
+    return (d > 0) - (d < 0);
+}
+
+/* The run's calibration: the kernel's name and the median over timed cases
+ * of its ns per chunk (null when nothing was timed), so a reader sees how
+ * fast the machine was during the run. */
+static json_t *summary_calibration(const json_t *cases)
+{
+    size_t n = json_array_size(cases), k = 0, i;
+    double *x = malloc((n ? n : 1) * sizeof(double));
+    json_t *c, *o = json_object();
+    json_array_foreach(cases, i, c) {
+        json_t *v = json_object_get(json_object_get(c, "cost"), "calib_ns");
+        if (x && json_is_number(v))
+            x[k++] = json_number_value(v);
+    }
+    if (x && k)
+        qsort(x, k, sizeof(double), summary_cmp_double);
+    json_object_set_new(o, "kernel", json_string(PB_CALIB_KERNEL));
+    json_object_set_new(o, "clock", json_string(PB_TIMING_CLOCK));
+    json_object_set_new(o, "ns", x && k ? json_real(k % 2 ? x[k / 2] : 0.5 * (x[k / 2 - 1] + x[k / 2]))
+                                        : json_null());
+    json_object_set_new(o, "cases_timed", json_integer((json_int_t)k));
+    free(x);
+    return o;
 }
 
 /* The command line that made this summary, as a shell would take it back
@@ -287,6 +328,7 @@ json_t *pb_summary_new(json_t *cases)
 #endif
     json_object_set_new(b, "flags", json_string(PB_BUILD_FLAGS));
     json_object_set_new(s, "build", b);
+    json_object_set_new(s, "calibration", summary_calibration(cases));
     json_object_set_new(s, "caution", json_string(
         "Benchmarks on idealised problems do not validate an operational propagator; "
         "defer to the mission's own verification and flight-dynamics practice."));
