@@ -301,3 +301,60 @@ Test(review, browser_shows_status_legends_and_orbit)
     cr_assert_eq(defs, 2, "rendered orbit definitions: %d of 2", defs);
     free(d);
 }
+
+/* Every built-in method at three steps or tolerances on kepler-e0.5 (84
+ * cases, 5 orbits, untimed): the time figures become small multiples of at
+ * most 8 curves with a legend each, and report.html stays under the issue's
+ * 3 MB by linking the figures once their SVG passes 2.5 MB in all (as here:
+ * 2.51 MB when written) or when --external-figures asks. */
+Test(review, many_methods_small_multiples_and_size)
+{
+    char dir[256], out[16384], err[8192], path[700], methods[2048] = "";
+    pbt_tmpdir(dir, sizeof dir);
+    const char *la[] = {"list", "methods", NULL};
+    cr_assert_eq(pbt_run_cli(la, out, sizeof out, err, sizeof err), 0, "%s", err);
+    for (char *l = strchr(out, '\n'); l && l[1]; l = strchr(l + 1, '\n')) {
+        size_t k = strcspn(l + 1, " \t\n");
+        if (k)
+            snprintf(methods + strlen(methods), sizeof methods - strlen(methods), "%s%.*s",
+                     methods[0] ? "," : "", (int)k, l + 1);
+    }
+    const char *sw[] = {"sweep", "--problems", "kepler-e0.5", "--methods", methods, "--steps-per-orbit",
+                        "200,400,800", "--tolerances", "1e-7,1e-9,1e-11", "--orbits", "5", "--repeats", "0",
+                        "--quiet", "--out", dir, NULL};
+    cr_assert_eq(pbt_run_cli(sw, out, sizeof out, err, sizeof err), 0, "%s", err);
+    const char *rp[] = {"report", dir, "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(rp, out, sizeof out, err, sizeof err), 0, "%s", err);
+    long svg_total = 0;
+    for (int k = 0; k < PB_FIG_COUNT; k++) {
+        size_t n = 0;
+        snprintf(path, sizeof path, "%s/plots/kepler-e0.5-%s.svg", dir, pb_fig_kind(k));
+        char *svg = pbt_slurp_file(path, &n);
+        cr_assert_not_null(svg, "%s missing", path);
+        svg_total += (long)n;
+        cr_assert(strstr(svg, ">rk4") && (k == PB_FIG_CONV || strstr(svg, ">dop853")), "%s lacks a legend entry", path);
+        if (k == PB_FIG_ENERGY)
+            cr_assert(strstr(svg, "panels of at most 8 curves"), "no small multiples in %s", path);
+        free(svg);
+    }
+    snprintf(path, sizeof path, "%s/report.html", dir);
+    size_t n = 0;
+    char *html = pbt_slurp_file(path, &n);
+    cr_assert_not_null(html);
+    cr_assert_lt(n, 3000000, "report.html is %zu bytes", n);
+    if (svg_total > 2500000) {
+        cr_assert(strstr(html, "are linked from plots/, not inlined"));
+        cr_assert_eq(strstr(html, "<svg") != NULL, 0);
+    }
+    free(html);
+    const char *ex[] = {"report", dir, "--quiet", "--external-figures", NULL};
+    cr_assert_eq(pbt_run_cli(ex, out, sizeof out, err, sizeof err), 0, "%s", err);
+    html = pbt_slurp_file(path, &n);
+    cr_assert_not_null(html);
+    cr_assert_null(strstr(html, "<svg"));
+    int imgs = 0;
+    for (const char *s = html; (s = strstr(s, "<img src=\"plots/kepler-e0.5-")); s++)
+        imgs++;
+    cr_assert_eq(imgs, PB_FIG_COUNT, "%d linked figures", imgs);
+    free(html);
+}
