@@ -27,6 +27,7 @@ typedef struct pb_case_spec {
     double horizon_s;               /* horizon in time units (used when orbits == 0) */
     int compensated;
     int repeats;                    /* timing repeats (0: no timing pass) */
+    double timing_min_cpu_s;        /* the timing pass's least CPU time (0: PB_TIMING_MIN_CPU_S) */
     double eval_cost_us;            /* user's cost of one force evaluation (0: none) */
     int linear_samples;             /* extra linear grid points for plots */
     long max_steps;                 /* 0: automatic budget */

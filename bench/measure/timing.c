@@ -102,7 +102,7 @@ pb_timing_policy pb_timing_policy_for(const pb_case_spec *spec)
     pb_timing_policy pol;
     pol.min_repeats = spec->repeats;
     pol.max_repeats = spec->repeats > PB_TIMING_MAX_REPEATS ? spec->repeats : PB_TIMING_MAX_REPEATS;
-    pol.min_cpu_s = PB_TIMING_MIN_CPU_S;
+    pol.min_cpu_s = spec->timing_min_cpu_s > 0 ? spec->timing_min_cpu_s : PB_TIMING_MIN_CPU_S;
     return pol;
 }
 
