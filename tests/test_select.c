@@ -295,3 +295,24 @@ Test(select, bad_requirement_options_exit_2)
     cr_assert_not_null(strstr(err_buf, "give a requirement"), "%s", err_buf);
     rmdir(dir);
 }
+
+/* --formulation: the selection records the equations it ran, and on an
+ * eccentric orbit the KS form (Stiefel & Scheifele 1971: the Kepler motion
+ * becomes a harmonic oscillator in s) needs fewer evaluations than the
+ * Cartesian one for the same method and bound: dop853 on kepler-e0.9 over
+ * 10 orbits to 1e-6 (measured here: tests/test_formulation.c's KS figures are
+ * the same kind). */
+Test(select, formulation_recorded_and_ks_cheaper_on_an_eccentric_orbit, .timeout = 120)
+{
+#define K09 "--problem", "kepler-e0.9", "--orbits", "10", "--max-pos-err", "1e-6", "--methods", "dop853"
+    json_t *c = sel_run((const char *[]){K09, NULL}, 0);
+    json_t *k = sel_run((const char *[]){K09, "--formulation", "ks", NULL}, 0);
+#undef K09
+    cr_expect_str_eq(json_string_value(json_object_get(c, "formulation")), "cartesian");
+    cr_expect_str_eq(json_string_value(json_object_get(k, "formulation")), "ks");
+    double ec = sel_num(c, "dop853", "evals"), ek = sel_num(k, "dop853", "evals");
+    cr_expect(json_is_true(json_object_get(sel_entry(k, "dop853"), "meets_requirement")));
+    cr_expect(ek > 0 && ek < ec, "ks %g evaluations, cartesian %g", ek, ec);
+    json_decref(c);
+    json_decref(k);
+}

@@ -83,6 +83,8 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
     json_object_set_new(o, "horizon_s", json_real(pb_case_horizon(base)));
     if (base->orbits > 0)
         json_object_set_new(o, "orbits", json_real(base->orbits));
+    /* the equations every method was run on (integrators/formulation.h) */
+    json_object_set_new(o, "formulation", json_string(pb_formulation_name(base->problem.formulation)));
     json_object_set_new(o, "requirement", requirement_json(req));
     json_object_set_new(o, "margin", json_real(req->margin));
     json_object_set_new(o, "eval_cost_us", json_real(base->eval_cost_us));
