@@ -110,8 +110,8 @@ demo: $(BIN)
 bench: $(B)/bench_main $(BIN)
 	./$(B)/bench_main
 
-# The program, the public headers (include/propbench/), both libraries and
-# propbench.pc, so that `pkg-config --cflags --libs propbench` builds a
+# The program, its manual page and bash completion, the public headers
+# (include/propbench/), both libraries and propbench.pc, so that `pkg-config --cflags --libs propbench` builds a
 # user's method or driver against the installed copy.
 LIBDIR ?= $(PREFIX)/lib
 install: $(BIN) $(B)/libpropbench.a $(B)/libpropbench.so
@@ -119,6 +119,9 @@ install: $(BIN) $(B)/libpropbench.a $(B)/libpropbench.so
 	    $(DESTDIR)$(PREFIX)/include/propbench $(DESTDIR)$(LIBDIR)/pkgconfig
 	install -m 755 $(BIN) $(DESTDIR)$(PREFIX)/bin/propbench
 	install -m 644 README.md $(DESTDIR)$(PREFIX)/share/propbench/README.md
+	install -d $(DESTDIR)$(PREFIX)/share/man/man1 $(DESTDIR)$(PREFIX)/share/bash-completion/completions
+	install -m 644 man/propbench.1 $(DESTDIR)$(PREFIX)/share/man/man1/propbench.1
+	install -m 644 scripts/propbench-completion.bash $(DESTDIR)$(PREFIX)/share/bash-completion/completions/propbench
 	install -m 644 $(PUBLIC_H) $(DESTDIR)$(PREFIX)/include/propbench/
 	install -m 644 $(B)/libpropbench.a $(DESTDIR)$(LIBDIR)/libpropbench.a
 	install -m 755 $(B)/libpropbench.so $(DESTDIR)$(LIBDIR)/libpropbench.so.$(VERSION)
@@ -131,6 +134,7 @@ uninstall:
 	rm -f $(DESTDIR)$(PREFIX)/bin/propbench $(DESTDIR)$(LIBDIR)/libpropbench.*
 	rm -f $(DESTDIR)$(LIBDIR)/pkgconfig/propbench.pc
 	rm -rf $(DESTDIR)$(PREFIX)/share/propbench $(DESTDIR)$(PREFIX)/include/propbench
+	rm -f $(DESTDIR)$(PREFIX)/share/man/man1/propbench.1 $(DESTDIR)$(PREFIX)/share/bash-completion/completions/propbench
 
 # An out-of-tree program (tests/install/) built against a staged install with
 # pkg-config alone, then run: the public headers and libraries are enough.

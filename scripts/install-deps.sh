@@ -5,7 +5,7 @@
 # PB_WITH_FUZZ=1 clang and its libFuzzer runtime (make fuzz).
 set -u
 
-pkgs="libgsl-dev libcriterion-dev gnuplot-nox libjansson-dev libinih-dev nettle-dev pkg-config parallel libxml2-utils"
+pkgs="libgsl-dev libcriterion-dev gnuplot-nox libjansson-dev libinih-dev nettle-dev pkg-config parallel libxml2-utils man-db groff-base"
 if [ "${PB_WITH_FUZZ:-0}" = 1 ]; then
     pkgs="$pkgs clang libclang-rt-14-dev"
 fi

@@ -23,9 +23,17 @@ static const main_verb main_verbs[] = {
     {NULL, NULL, NULL}
 };
 
+static const main_verb *main_find(const char *name)
+{
+    for (const main_verb *v = main_verbs; v->name; v++)
+        if (!strcmp(name, v->name))
+            return v;
+    return NULL;
+}
+
 static void main_usage(FILE *f)
 {
-    fprintf(f, "usage: propbench VERB [options]   (propbench VERB --help)\n\nverbs:\n");
+    fprintf(f, "usage: propbench VERB [options]   (propbench VERB --help, propbench help VERB)\n\nverbs:\n");
     for (const main_verb *v = main_verbs; v->name; v++)
         fprintf(f, "  %-9s %s\n", v->name, v->what);
     fprintf(f, "\n  propbench --version   the version (also summary.json's \"tool\")\n");
@@ -48,10 +56,22 @@ int main(int argc, char **argv)
         printf("propbench %s\n", pb_version());
         return PB_EXIT_OK;
     }
+    /* `propbench help VERB` is `propbench VERB --help` */
+    char help_opt[] = "--help";
+    if (!strcmp(argv[1], "help") && argc == 3 && main_find(argv[2])) {
+        char *hv[] = {argv[2], help_opt, NULL};
+        return main_find(argv[2])->fn(2, hv);
+    }
+    if (!strcmp(argv[1], "help") && argc > 2)
+        return pb_cli_error("help", "unknown verb '%s' (propbench --help lists them)", argv[2]);
     if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
         main_usage(stdout);
         return PB_EXIT_OK;
     }
+    /* -h is --help on every verb (no option takes "-h" as its value) */
+    for (int i = 2; i < argc; i++)
+        if (!strcmp(argv[i], "-h"))
+            argv[i] = help_opt;
     /* No option of any verb takes an empty value, and an empty path would
      * name the current folder's parent or the root ("" + "/plots"). */
     for (int i = 2; i < argc; i++)

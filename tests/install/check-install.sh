@@ -9,6 +9,14 @@ stage=$2
 rm -rf "$stage"
 make -s -C "$root" install DESTDIR="$stage" PREFIX=/usr >/dev/null
 export PKG_CONFIG_PATH="$stage/usr/lib/pkgconfig" PKG_CONFIG_SYSROOT_DIR="$stage"
+# the manual page renders without a warning, and the completion completes
+man_warn=$(MANWIDTH=80 man --warnings=all -l "$stage/usr/share/man/man1/propbench.1" 2>&1 >/dev/null)
+[ -z "$man_warn" ] || { echo "check-install: man -l propbench.1: $man_warn" >&2; exit 1; }
+MANWIDTH=80 man -l "$stage/usr/share/man/man1/propbench.1" 2>/dev/null | grep -q "EXIT STATUS"
+comp=$(bash -c '. "$1"; COMP_WORDS=("$2" che); COMP_CWORD=1; _propbench; echo "${COMPREPLY[*]}"' sh \
+    "$stage/usr/share/bash-completion/completions/propbench" "$stage/usr/bin/propbench")
+[ "$comp" = check ] || { echo "check-install: completion of 'propbench che' gave '$comp'" >&2; exit 1; }
+echo "check-install: the manual page renders (man -l) and bash completes verbs"
 work="$stage/work"
 mkdir -p "$work"
 cp "$root/tests/install/consumer.c" "$work/"
