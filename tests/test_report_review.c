@@ -358,3 +358,32 @@ Test(review, many_methods_small_multiples_and_size)
     cr_assert_eq(imgs, PB_FIG_COUNT, "%d linked figures", imgs);
     free(html);
 }
+
+/* A problem-file case is not in the catalogue: its definition travels in
+ * summary.json ("problem_def") and the report states it. The values are
+ * the file's own (a = 1, e = 0.1 written here), read back. */
+Test(review, problem_file_orbit_stated)
+{
+    char dir[256], ini[400], run[400], out[4096], err[8192], path[600];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(ini, sizeof ini, "%s/p.ini", dir);
+    FILE *f = fopen(ini, "w");
+    cr_assert_not_null(f);
+    fputs("[case own-ellipse]\ndescription = our own test ellipse\nunits = normalized\na = 1\ne = 0.1\n"
+          "orbits = 3\n", f);
+    fclose(f);
+    snprintf(run, sizeof run, "%s/run", dir);
+    const char *sw[] = {"sweep", "--problem-file", ini, "--methods", "rk4", "--steps-per-orbit", "100",
+                        "--repeats", "0", "--quiet", "--out", run, NULL};
+    cr_assert_eq(pbt_run_cli(sw, out, sizeof out, err, sizeof err), 0, "%s", err);
+    const char *rp[] = {"report", run, "--no-plots", "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(rp, out, sizeof out, err, sizeof err), 0, "%s", err);
+    snprintf(path, sizeof path, "%s/report.md", run);
+    char *md = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(md);
+    cr_assert(strstr(md, "- description: our own test ellipse\n"), "%s", md);
+    cr_assert(strstr(md, "- elements (osculating at t0): a = 1 DU, e = 0.1, i = 0 deg"), "%s", md);
+    cr_assert(strstr(md, "- horizon: 3 orbits"));
+    cr_assert_null(strstr(md, "does not carry its definition"));
+    free(md);
+}

@@ -42,8 +42,11 @@ static double ctx_floor(const pb_report_run *run, const pb_report_problem *p)
     return fl;
 }
 
-/* The facts the catalogue knows: constants, forces, elements, state, epoch. */
-static void ctx_builtin(const pb_problem *q, const char *L, pb_report_kv *kv, int *n, int max)
+/* The facts the catalogue (or a problem-file case's "problem_def", with
+ * its force text in force_text) gives: constants, forces, elements, state,
+ * epoch. */
+static void ctx_builtin(const pb_problem *q, const char *force_text, const char *L, pb_report_kv *kv,
+                        int *n, int max)
 {
     const char *T = q->units == PB_UNITS_KM_S ? "s" : "TU";
     kv_add(kv, n, max, "description", "%s", q->description);
@@ -52,7 +55,9 @@ static void ctx_builtin(const pb_problem *q, const char *L, pb_report_kv *kv, in
     if (q->body_radius > 0)
         kv_add(kv, n, max, "body radius", "%.10g %s", q->body_radius, L);
     char force[256];
-    if (q->force == PB_FORCE_CR3BP)
+    if (force_text)
+        snprintf(force, sizeof force, "%s", force_text);
+    else if (q->force == PB_FORCE_CR3BP)
         snprintf(force, sizeof force, "CR3BP, rotating frame");
     else
         pb_forces_describe(&q->forces, force, sizeof force);
@@ -74,8 +79,36 @@ static void ctx_builtin(const pb_problem *q, const char *L, pb_report_kv *kv, in
         kv_add(kv, n, max, "epoch", "t0 = %g %s = J2000.0 + %.10g d TT", q->t0, T, q->forces.epoch_days);
     else
         kv_add(kv, n, max, "epoch", "t0 = %g %s (no calendar epoch: the force does not depend on it)", q->t0, T);
-    kv_add(kv, n, max, "truth", "%s", q->exact ? "closed form" :
-           "reference trajectory integrated by propbench (see the floor)");
+    if (!force_text)
+        kv_add(kv, n, max, "truth", "%s", q->exact ? "closed form" :
+               "reference trajectory integrated by propbench (see the floor)");
+}
+
+/* A problem-file case's stored definition into q (what ctx_builtin reads);
+ * 0, or -1 when a field is missing. */
+static int ctx_from_def(const json_t *d, pb_problem *q)
+{
+    memset(q, 0, sizeof *q);
+    const json_t *r = json_object_get(d, "r0"), *v = json_object_get(d, "v0");
+    if (json_array_size(r) != 3 || json_array_size(v) != 3 || !json_is_number(json_object_get(d, "mu")))
+        return -1;
+    snprintf(q->description, sizeof q->description, "%s", json_string_value(json_object_get(d, "description"))
+             ? json_string_value(json_object_get(d, "description")) : "");
+    const char *u = json_string_value(json_object_get(d, "units"));
+    q->units = u && !strcmp(u, "km-s") ? PB_UNITS_KM_S : PB_UNITS_NORMALIZED;
+    q->mu = json_number_value(json_object_get(d, "mu"));
+    q->body_radius = json_number_value(json_object_get(d, "body_radius"));
+    q->period = json_number_value(json_object_get(d, "period"));
+    q->t0 = json_number_value(json_object_get(d, "t0"));
+    q->keplerian = json_is_true(json_object_get(d, "keplerian"));
+    const json_t *ep = json_object_get(d, "epoch_days");
+    q->forces.has_epoch = json_is_number(ep);
+    q->forces.epoch_days = json_number_value(ep);
+    for (int i = 0; i < 3; i++) {
+        q->r0[i] = json_number_value(json_array_get(r, (size_t)i));
+        q->v0[i] = json_number_value(json_array_get(v, (size_t)i));
+    }
+    return 0;
 }
 
 int pb_report_problem_def(const pb_report_run *run, const pb_report_problem *p,
@@ -83,11 +116,16 @@ int pb_report_problem_def(const pb_report_run *run, const pb_report_problem *p,
 {
     int n = 0;
     pb_problem q;
+    const json_t *def = NULL;
+    for (int i = 0; i < p->n && !def; i++)
+        def = run->cases[p->first + i].def;
     if (pb_problem_lookup(p->name, &q) == PB_OK)
-        ctx_builtin(&q, p->len_unit, kv, &n, max);
+        ctx_builtin(&q, NULL, p->len_unit, kv, &n, max);
+    else if (def && ctx_from_def(def, &q) == 0)
+        ctx_builtin(&q, json_string_value(json_object_get(def, "forces")), p->len_unit, kv, &n, max);
     else
-        kv_add(kv, &n, max, "definition", "a problem-file case (not a built-in problem): its "
-               "elements, forces and epoch are in the problem file given to the sweep (see the command)");
+        kv_add(kv, &n, max, "definition", "a problem-file case (not a built-in problem) whose summary "
+               "does not carry its definition: see the problem file in the command");
     if (p->orbits_max > 0)
         kv_add(kv, &n, max, "horizon", "%g orbits = %.6g %s", p->orbits_max, p->horizon_max, p->time_unit);
     else

@@ -101,6 +101,7 @@ static int data_case(const json_t *o, pb_report_case *c, char *err, size_t errle
     c->diverged_orbits = data_num(o, "diverged_at_orbits");
     c->status_detail = data_str(o, "status_detail", NULL);
     c->floor_max = data_num(m, "reference_floor_max");
+    c->def = json_object_get(o, "problem_def");
     if (!(c->h > 0) && c->fixed && c->steps > 0 && c->horizon_s > 0)
         c->h = c->horizon_s / (double)c->steps;
     return 0;

@@ -22,6 +22,7 @@ typedef struct pb_report_case {
     double diverged_at, diverged_orbits;   /* NaN when absent */
     const char *status_detail;    /* NULL when absent */
     double floor_max;             /* the reference's floor (0 for a closed form) */
+    const json_t *def;            /* "problem_def" of a problem-file case; NULL for built-ins */
     int method_slot;              /* 0.. per problem, in order of first appearance */
     int variant;                  /* 0 = coarsest step / loosest tolerance of its method */
 } pb_report_case;

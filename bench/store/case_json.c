@@ -6,6 +6,7 @@
 #include <sys/utsname.h>
 #include <unistd.h>
 #include "bench/store/case_json.h"
+#include "bench/store/problem_json.h"
 #include "bench/measure/harness.h"
 #include "bench/measure/timing.h"
 #include "integrators/method.h"
@@ -143,6 +144,9 @@ json_t *pb_case_to_json(const pb_case_spec *spec, const pb_case_result *res)
 {
     json_t *o = json_object();
     case_settings(o, spec);
+    json_t *def = pb_problem_def_json(&spec->problem);
+    if (def)
+        json_object_set_new(o, "problem_def", def);
     json_object_set_new(o, "status", json_string(res->status_name));
     json_object_set_new(o, "status_detail",
                         json_string(res->status_detail ? res->status_detail : pb_strerror(res->status)));
