@@ -378,3 +378,73 @@ Test(formulation, summary_records_it)
     cr_assert(!strstr(doc, "\"formulation\""), "a Cartesian case has the key");
     free(doc);
 }
+
+/* Dense output between step ends, as the harness samples it (from inside
+ * the observer, after each step): on kepler-e0.9 over 2 orbits, the largest
+ * error of the states at 1/4, 1/2 and 3/4 of every step against the exact
+ * solution stays within 10 times the largest error at the step ends (plus
+ * 1e-13 of round-off), for KS and Sundman around rk4 (300 s-steps an orbit),
+ * and within that plus 10 times the tolerance around dop853 (tolerance
+ * 1e-10; its continuous extension is accurate to about the tolerance, not
+ * to the step ends' global error: KS 2.6e-10 between, 2.2e-11 at the ends):
+ * the state at a sample time comes from the inner method's continuous
+ * extension at the s where t(s) equals it. */
+typedef struct form_dense_watch {
+    const pb_method_type *rec;
+    void *ws;
+    const pb_problem *p;
+    double t_prev, end_max, mid_max;
+} form_dense_watch;
+
+static double form_exact_dev(const pb_problem *p, double t, const double *r)
+{
+    double re[3], ve[3], d = 0;
+    cr_assert_eq(p->exact(p, t, re, ve), PB_OK);
+    for (int i = 0; i < p->dim; i++)
+        d = fmax(d, fabs(r[i] - re[i]));
+    return d;
+}
+
+static int form_dense_observe(void *ctx, double t, const double *r, const double *v)
+{
+    form_dense_watch *w = ctx;
+    (void)v;
+    w->end_max = fmax(w->end_max, form_exact_dev(w->p, t, r));
+    for (int k = 1; k <= 3; k++) {
+        double tm = w->t_prev + 0.25 * k * (t - w->t_prev), rm[3], vm[3];
+        cr_assert_eq(w->rec->dense(w->ws, tm, rm, vm), PB_OK, "dense at %.17g", tm);
+        w->mid_max = fmax(w->mid_max, form_exact_dev(w->p, tm, rm));
+    }
+    w->t_prev = t;
+    return 0;
+}
+
+Test(formulation, dense_output_between_step_ends)
+{
+    pb_problem p;
+    pbt_kepler(&p, 0.9);
+    const pb_method_type *inner[] = {&pb_method_rk4, &pb_method_dop853};
+    for (int k = 0; k < 2; k++)
+        for (int f = 0; f < 2; f++) {
+            pb_formulation form = f ? PB_FORMULATION_SUNDMAN : PB_FORMULATION_KS;
+            pb_method_config cfg = form_fixed_cfg(300);
+            if (k) {
+                cfg.h = 0;
+                cfg.rtol = cfg.atol = 1e-10;
+            }
+            pb_force_counter c;
+            pb_force fo;
+            pb_force_counter_init(&c, &p, &fo);
+            form_dense_watch w = {pb_formulation_record(inner[k]), NULL, &p, p.t0, 0, 0};
+            w.ws = pb_formulation_alloc(inner[k], form, p.dim);
+            cr_assert_not_null(w.ws);
+            cr_assert_eq(w.rec->start(w.ws, &fo, &cfg, p.t0, p.r0, p.v0), PB_OK);
+            cr_assert_eq(w.rec->advance(w.ws, 2 * 2 * M_PI, form_dense_observe, &w), PB_OK);
+            w.rec->free(w.ws);
+            cr_expect(w.mid_max <= 10 * w.end_max + 10 * cfg.rtol + 1e-13,
+                      "%s %s: between ends %.3e, at ends %.3e",
+                      inner[k]->name, pb_formulation_name(form), w.mid_max, w.end_max);
+            cr_expect(w.end_max > 0 && w.end_max < 1e-2, "%s %s: at ends %.3e", inner[k]->name,
+                      pb_formulation_name(form), w.end_max);
+        }
+}
