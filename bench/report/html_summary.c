@@ -17,7 +17,10 @@ static void sum_case(FILE *f, const pb_report_case *c, const char *len_unit)
     pb_report_html_text(f, c->method);
     fputs(" ", f);
     pb_report_html_text(f, set);
-    fprintf(f, "</td><td>%ld</td><td>%.3e %s</td>", c->evals, c->pos_max, len_unit);
+    fprintf(f, "</td><td>%ld</td><td>%.3e %s", c->evals, c->pos_max, len_unit);
+    if (!strcmp(len_unit, "km"))
+        fprintf(f, " (%.3g m)", 1e3 * c->pos_max);
+    fputs("</td>", f);
 }
 
 /* The levels table of one problem. */
