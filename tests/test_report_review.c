@@ -387,3 +387,36 @@ Test(review, problem_file_orbit_stated)
     cr_assert_null(strstr(md, "does not carry its definition"));
     free(md);
 }
+
+/* A select run for the same problem saved in the run folder: the summary
+ * quotes its first-ranked answer and the work-precision figure draws its
+ * requirement (1e-3 km here) without --max-pos-err. */
+Test(review, select_answer_and_requirement_from_the_folder)
+{
+    char dir[256], out[8192], err[8192], path[700], sel[600];
+    rv_run(dir, sizeof dir);
+    snprintf(sel, sizeof sel, "%s/select-leo.json", dir);
+    const char *se[] = {"select", "--problem", "leo-near-circular", "--orbits", "20", "--max-pos-err", "1e-3",
+                        "--methods", "rk4,leapfrog", "-j", "1", "--quiet", "--out", sel, NULL};
+    cr_assert_eq(pbt_run_cli(se, out, sizeof out, err, sizeof err), 0, "%s", err);
+    json_t *doc = json_load_file(sel, 0, NULL);
+    cr_assert_not_null(doc);
+    json_t *first = json_array_get(json_object_get(doc, "ranking"), 0);
+    char want[256];
+    snprintf(want, sizeof want, "%s n=%lld: %lld evaluations", json_string_value(json_object_get(first, "method")),
+             (long long)json_integer_value(json_object_get(first, "steps_per_orbit")),
+             (long long)json_integer_value(json_object_get(first, "evals")));
+    json_decref(doc);
+    const char *rp[] = {"report", dir, "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(rp, out, sizeof out, err, sizeof err), 0, "%s", err);
+    snprintf(path, sizeof path, "%s/report.html", dir);
+    char *html = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(html);
+    cr_assert(strstr(html, "select's answer for a largest position error of 0.001 km: "), "no select answer");
+    cr_assert(strstr(html, want), "the answer %s is not quoted", want);
+    free(html);
+    snprintf(path, sizeof path, "%s/plots/leo-near-circular-work.svg", dir);
+    char *w = pbt_slurp_file(path, NULL);
+    cr_assert(w && strstr(w, ">requirement 0.001 km<"), "the select requirement is not drawn");
+    free(w);
+}

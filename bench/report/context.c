@@ -192,9 +192,17 @@ static int ctx_select_doc(const char *path, const char *problem, pb_report_selec
                 snprintf(set, sizeof set, " n=%lld", (long long)json_integer_value(spo));
             else if (json_is_number(tol))
                 snprintf(set, sizeof set, " tol=%.0e", json_number_value(tol));
-            snprintf(out->answer, sizeof out->answer, "%s%s: %lld evaluations, largest position error %.3e",
-                     ctx_str(e, "method"), set, (long long)json_integer_value(json_object_get(e, "evals")),
-                     json_number_value(json_object_get(e, "pos_err_max")));
+            const json_t *orb = json_object_get(d, "orbits");
+            char hz[64];
+            if (json_is_number(orb))
+                snprintf(hz, sizeof hz, "%g orbits", json_number_value(orb));
+            else
+                snprintf(hz, sizeof hz, "%g time units", json_number_value(json_object_get(d, "horizon_s")));
+            /* select's own horizon: it may differ from this run's */
+            snprintf(out->answer, sizeof out->answer, "%s%s: %lld evaluations, largest position error %.3e "
+                     "over %s (%s)", ctx_str(e, "method"), set,
+                     (long long)json_integer_value(json_object_get(e, "evals")),
+                     json_number_value(json_object_get(e, "pos_err_max")), hz, ctx_str(e, "run_command"));
             break;
         }
         hit = 1;
