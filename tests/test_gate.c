@@ -11,6 +11,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <sys/wait.h>
 #include "test_support.h"
 
 typedef struct {
@@ -313,4 +314,56 @@ Test(gate, only_failures_and_the_deciding_item)
     const char *all[] = {"check", "--baseline", g.base, d, NULL};
     cr_assert_eq(gate_cli(all), 1);
     cr_assert(gate_line(g.out, "leo-near-circular__rkf45", "same", "ok"), "%s", g.out);
+}
+
+/* ---- item 6: the CI script a team runs (scripts/ci-gate.sh) ---- */
+
+/* exit status of scripts/ci-gate.sh with args, run in PB_ROOT */
+static int gate_script(const char *args)
+{
+    const char *root = getenv("PB_ROOT"), *bin = getenv("PB_BIN");
+    char cmd[2048];
+    snprintf(cmd, sizeof cmd, "cd '%s' && PB_INCLUDE=include scripts/ci-gate.sh --propbench '%s' "
+             "%s >'%s/ci.out' 2>&1", root ? root : ".", bin ? bin : "build/propbench", args, g.dir);
+    int st = system(cmd);
+    return WIFEXITED(st) ? WEXITSTATUS(st) : -1;
+}
+
+Test(gate, ci_script_builds_sweeps_checks_and_publishes)
+{
+    /* the example plug-in built from source, swept, held to requirements on
+     * either side of its measured error (ralston3, 200 steps per orbit, 5
+     * orbits of kepler-e0.6), checked against a baseline of its own first run */
+    char args[1500], out[300], path[400];
+    snprintf(out, sizeof out, "%s/ci", g.dir);
+    const char *common = "--plugin-source examples/plugins/ralston3.c --methods ralston3,rk4 "
+                         "--problems kepler-e0.6 --steps-per-orbit 200 --orbits 5";
+    snprintf(args, sizeof args, "%s --require 'evals>=1' --out '%s'", common, out);
+    cr_assert_eq(gate_script(args), 0);
+    snprintf(path, sizeof path, "%s/run/summary.json", out);
+    json_t *s = json_load_file(path, 0, NULL);
+    cr_assert_not_null(s);
+    double e = json_number_value(json_object_get(json_object_get(gate_case(s, "kepler-e0.6", "ralston3"), "metrics"), "pos_err_max"));
+    json_decref(s);
+    char base[300];
+    snprintf(base, sizeof base, "%s/ci-base.json", g.dir);
+    const char *mk[] = {"baseline", out, "--out", base, NULL};
+    char run_dir[320];
+    snprintf(run_dir, sizeof run_dir, "%s/run", out);
+    mk[1] = run_dir;
+    cr_assert_eq(gate_cli(mk), 0, "%s", g.err);
+    snprintf(args, sizeof args, "%s --baseline '%s' --require 'pos_err_max<=%.17g' "
+             "--out '%s'", common, base, 2 * e, out);
+    cr_assert_eq(gate_script(args), 0, "met at twice the error (%s/ci.out)", g.dir);
+    snprintf(path, sizeof path, "%s/check.xml", out);
+    cr_assert(pbt_exists(path));
+    snprintf(path, sizeof path, "%s/check.md", out);
+    char *md = pbt_slurp_file(path, NULL);
+    cr_assert(md && strstr(md, "PASS") && strstr(md, "0 of 2"), "%s", md);
+    free(md);
+    snprintf(args, sizeof args, "%s --baseline '%s' --require 'pos_err_max<=%.17g' --out '%s'",
+             common, base, 0.5 * e, out);
+    cr_assert_eq(gate_script(args), 1, "unmet at half the error");
+    cr_assert_eq(gate_script("--suite quick"), 2, "neither a baseline nor a requirement");
+    cr_assert_eq(gate_script("--bogus"), 2);
 }
