@@ -134,3 +134,30 @@ Test(conventions, bash_completion_offers_verbs_options_methods_problems)
     cr_assert(strstr(s, "select") && strstr(s, "selftest"), "%s", s);
     free(s);
 }
+
+Test(conventions, sweep_takes_a_horizon_in_seconds)
+{
+    char dir[200], out[300], path[330];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/hz", dir);
+    /* 3000 s: about half an orbit of leo-near-circular, 477 of kepler-e0.6 */
+    const char *a[] = {"sweep", "--problems", "kepler-e0.6,leo-near-circular", "--methods", "rk4",
+                       "--steps-per-orbit", "50", "--horizon-s", "3000", "--repeats", "0",
+                       "--quiet", "--out", out, NULL};
+    cr_assert_eq(pbt_run_cli(a, conv_out, sizeof conv_out, conv_err, sizeof conv_err), 0, "%s", conv_err);
+    snprintf(path, sizeof path, "%s/summary.json", out);
+    char *s = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(s);
+    cr_assert(strstr(s, "kepler-e0.6__rk4__n50__s3000") && strstr(s, "leo-near-circular__rk4__n50__s3000"),
+              "case ids carry the horizon");
+    cr_assert(strstr(s, "\"horizon_s\": 3000"), "horizon recorded");
+    free(s);
+    const char *both[] = {"sweep", "--problems", "kepler-e0.6", "--methods", "rk4",
+                          "--steps-per-orbit", "50", "--horizon-s", "3000", "--orbits", "2",
+                          "--out", out, NULL};
+    cr_assert_eq(pbt_run_cli(both, conv_out, sizeof conv_out, conv_err, sizeof conv_err), 2);
+    cr_assert(strstr(conv_err, "--orbits or --horizon-s, not both"), "%s", conv_err);
+    const char *neg[] = {"sweep", "--suite", "quick", "--horizon-s", "-5", "--out", out, NULL};
+    cr_assert_eq(pbt_run_cli(neg, conv_out, sizeof conv_out, conv_err, sizeof conv_err), 2);
+    cr_assert(strstr(conv_err, "--horizon-s must be positive, got '-5'"), "%s", conv_err);
+}

@@ -3,6 +3,7 @@
 #include <ctype.h>
 #include <errno.h>
 #include <getopt.h>
+#include <math.h>
 #include <limits.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -21,7 +22,8 @@ static void sweep_help(FILE *f)
     fprintf(f,
 "usage: propbench sweep (--suite NAME | [--problems P,..] [--problem-file FILE [--case NAME]]\n"
 "                        --methods M,..\n"
-"                        [--steps-per-orbit N,..] [--tolerances T,..] [--orbits N])\n"
+"                        [--steps-per-orbit N,..] [--tolerances T,..]\n"
+"                        [--orbits N | --horizon-s S])\n"
 "                       [--out DIR] [-j N] [--shard K/N] [--repeats N]\n"
 "                       [--eval-cost-us X] [--compensated] [--formulation F]\n"
 "                       [--report] [--quiet]\n\n"
@@ -29,6 +31,8 @@ static void sweep_help(FILE *f)
 "A grid is problems x methods x (steps per orbit for fixed-step methods,\n"
 "tolerances for adaptive ones); it gives work-precision (error against\n"
 "evaluations) and convergence (error against step) data per method.\n"
+"  --orbits N    every case's horizon in periods (problems with a period)\n"
+"  --horizon-s S every case's horizon in time units (s or TU), any problem\n"
 "  -j N          worker processes (default 1); results are the same for every N\n"
 "  --shard K/N   run only the K-th of N deterministic slices; join with merge\n"
 "  --report      write plots and report.html/report.md afterwards\n"
@@ -41,13 +45,14 @@ static void sweep_help(FILE *f)
 
 enum { SW_SUITE = 300, SW_PROBLEMS, SW_METHODS, SW_STEPS, SW_TOLS, SW_ORBITS, SW_OUT,
        SW_SHARD, SW_REPEATS, SW_COST, SW_REPORT, SW_QUIET, SW_HELP, SW_COMP, SW_FILE, SW_CASE,
-       SW_FORM };
+       SW_FORM, SW_HORIZON };
 
 /* What the command line asks for; a suite, or the lists of a grid. */
 typedef struct sweep_options {
     const char *suite, *out, *pfile, *pcase;
     char *problems, *methods, *steps, *tols;
     double orbits, cost;      /* 0: not given */
+    double horizon_s;         /* --horizon-s (0: not given) */
     long jobs, repeats;       /* repeats -1: not given */
     int shard_k, shard_n, quiet, report, comp;
     int form;                 /* -1: each problem's own */
@@ -78,6 +83,17 @@ static int sweep_parse_shard(const char *s, int *k, int *n)
     return 0;
 }
 
+/* A number in (0, max]; 0, or PB_EXIT_USAGE after a message. */
+static int sweep_positive(const char *opt, const char *arg, double max, double *x)
+{
+    if (pb_cli_double("sweep", opt, arg, x))
+        return PB_EXIT_USAGE;
+    if (!(*x > 0) || *x > max)
+        return isinf(max) ? pb_cli_error("sweep", "%s must be positive, got '%s'", opt, arg)
+                          : pb_cli_error("sweep", "%s must be in (0, %g], got '%s'", opt, max, arg);
+    return 0;
+}
+
 static int sweep_parse(int argc, char **argv, sweep_options *o)
 {
     static const struct option opts[] = {
@@ -89,7 +105,8 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
         {"eval-cost-us", required_argument, 0, SW_COST}, {"report", no_argument, 0, SW_REPORT},
         {"compensated", no_argument, 0, SW_COMP}, {"formulation", required_argument, 0, SW_FORM},
         {"problem-file", required_argument, 0, SW_FILE}, {"case", required_argument, 0, SW_CASE},
-        {"quiet", no_argument, 0, SW_QUIET}, {"help", no_argument, 0, SW_HELP}, {0, 0, 0, 0}};
+        {"quiet", no_argument, 0, SW_QUIET}, {"help", no_argument, 0, SW_HELP},
+        {"horizon-s", required_argument, 0, SW_HORIZON}, {0, 0, 0, 0}};
     memset(o, 0, sizeof *o);
     o->jobs = 1;
     o->repeats = -1;
@@ -118,9 +135,10 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
             if (pb_cli_formulation("sweep", optarg, &o->form)) return PB_EXIT_USAGE;
             break;
         case SW_ORBITS:
-            if (pb_cli_double("sweep", "--orbits", optarg, &o->orbits)) return PB_EXIT_USAGE;
-            if (!(o->orbits > 0) || o->orbits > PB_CLI_ORBITS_MAX)
-                return pb_cli_error("sweep", "--orbits must be in (0, %g], got '%s'", PB_CLI_ORBITS_MAX, optarg);
+            if (sweep_positive("--orbits", optarg, PB_CLI_ORBITS_MAX, &o->orbits)) return PB_EXIT_USAGE;
+            break;
+        case SW_HORIZON:
+            if (sweep_positive("--horizon-s", optarg, HUGE_VAL, &o->horizon_s)) return PB_EXIT_USAGE;
             break;
         case SW_COST:
             if (pb_cli_double("sweep", "--eval-cost-us", optarg, &o->cost)) return PB_EXIT_USAGE;
@@ -151,6 +169,8 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
                             "--problem-file) and --methods");
     if (o->pcase && !o->pfile)
         return pb_cli_error("sweep", "--case goes with --problem-file");
+    if (o->orbits > 0 && o->horizon_s > 0)
+        return pb_cli_error("sweep", "give --orbits or --horizon-s, not both");
     return -1;
 }
 
@@ -203,7 +223,9 @@ static int sweep_grid_case(const sweep_options *o, const pb_problem *p, const pb
     s.method = m;
     s.steps_per_orbit = fixed ? (int)steps : 0;
     s.tolerance = fixed ? 0 : tol;
-    if (p->period > 0 && (o->orbits > 0 || p->default_orbits > 0))
+    if (o->horizon_s > 0)
+        s.horizon_s = o->horizon_s;
+    else if (p->period > 0 && (o->orbits > 0 || p->default_orbits > 0))
         s.orbits = o->orbits > 0 ? o->orbits : p->default_orbits;
     else
         s.horizon_s = p->default_horizon_s;
@@ -215,7 +237,8 @@ static int sweep_grid_case(const sweep_options *o, const pb_problem *p, const pb
     if (pb_case_validate(&s, err, sizeof err)) {
         char id[PB_CASE_ID_MAX];
         pb_case_id(&s, id, sizeof id);
-        pb_cli_error("sweep", "case %s (--steps-per-orbit/--tolerances x --orbits): %s", id, err);
+        pb_cli_error("sweep", "case %s (--steps-per-orbit/--tolerances x %s): %s", id,
+                     o->horizon_s > 0 ? "--horizon-s" : "--orbits", err);
         return -1;
     }
     if (pb_case_list_add(list, &s)) {
@@ -295,6 +318,8 @@ static void sweep_apply_options(const sweep_options *o, pb_case_list *list)
             s->eval_cost_us = o->cost;
         if (o->suite && o->orbits > 0 && s->problem.period > 0)
             s->orbits = o->orbits;
+        if (o->suite && o->horizon_s > 0)
+            s->orbits = 0, s->horizon_s = o->horizon_s;
         if (o->form >= 0 && !pb_formulation_refusal(s->method, (pb_formulation)o->form))
             s->problem.formulation = (pb_formulation)o->form;
     }
