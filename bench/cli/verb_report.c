@@ -144,6 +144,57 @@ static int report_prepare(const report_opts *o, const pb_report_run *run, char *
     return 0;
 }
 
+/* Draw every figure with a script, as many at once as there are cores (at
+ * most PB_GNUPLOT_SLOTS); drawn[] marks the good ones. Returns how many
+ * failed (each warned about on stderr). */
+static int report_draw_all(const report_opts *o, const pb_report_run *run, const char *exe,
+                           const char *plots, const unsigned char *made, unsigned char *drawn)
+{
+    int nfig = run->nproblems * PB_FIG_COUNT, total = 0, done = 0, failed = 0, running = 0;
+    int at_slot[PB_GNUPLOT_SLOTS];
+    long cores = sysconf(_SC_NPROCESSORS_ONLN);
+    int jobs = cores < 1 ? 1 : cores > PB_GNUPLOT_SLOTS ? PB_GNUPLOT_SLOTS : (int)cores;
+    char err[1024];
+    for (int i = 0; i < nfig; i++)
+        total += made[i];
+    for (int i = 0; i < nfig || running > 0;) {
+        if (i < nfig && running < jobs) {
+            int fig = i++;
+            if (!made[fig])
+                continue;
+            char base[PB_FIG_BASE_MAX];
+            pb_fig_base(run->problems[fig / PB_FIG_COUNT].name, fig % PB_FIG_COUNT, base, sizeof base);
+            if (!o->quiet)
+                fprintf(stderr, "propbench report: figure %d of %d: %s\n", ++done, total, base);
+            int k = pb_report_gnuplot_start(exe, plots, base, err, sizeof err);
+            if (k < 0) {
+                fprintf(stderr, "propbench report: warning: %s\n", err);
+                failed++;
+                continue;
+            }
+            at_slot[k] = fig;
+            running++;
+            continue;
+        }
+        int k;
+        int bad = pb_report_gnuplot_wait(exe, plots, &k, err, sizeof err);
+        if (k < 0) {    /* no child left to wait for: nothing is running */
+            fprintf(stderr, "propbench report: warning: %s\n", err);
+            failed += running;
+            running = 0;
+            continue;
+        }
+        running--;
+        if (bad) {
+            fprintf(stderr, "propbench report: warning: %s\n", err);
+            failed++;
+        } else {
+            drawn[at_slot[k]] = 1;
+        }
+    }
+    return failed;
+}
+
 /* Run gnuplot on every script written (drawn[] says which succeeded). The
  * reason nothing or not everything was drawn goes to why (NULL: all drawn);
  * returns PB_EXIT_FAIL when gnuplot failed on a figure, else 0. */
@@ -151,7 +202,7 @@ static int report_draw(const report_opts *o, const pb_report_run *run, const cha
                        const unsigned char *made, unsigned char *drawn, const char **why,
                        char *whybuf, size_t whylen)
 {
-    char exe[PATH_MAX], err[1024];
+    char exe[PATH_MAX];
     *why = NULL;
     if (o->noplots) {
         *why = "--no-plots was given";
@@ -165,24 +216,7 @@ static int report_draw(const report_opts *o, const pb_report_run *run, const cha
                 "or run propbench report again.\n", *why, plots);
         return 0;
     }
-    int failed = 0, total = 0, done = 0;
-    for (int i = 0; i < run->nproblems * PB_FIG_COUNT; i++)
-        total += made[i];
-    for (int pi = 0; pi < run->nproblems; pi++)
-        for (int k = 0; k < PB_FIG_COUNT; k++) {
-            if (!made[pi * PB_FIG_COUNT + k])
-                continue;
-            char base[PB_FIG_BASE_MAX];
-            pb_fig_base(run->problems[pi].name, k, base, sizeof base);
-            if (!o->quiet)
-                fprintf(stderr, "propbench report: figure %d of %d: %s\n", ++done, total, base);
-            if (pb_report_gnuplot_run(exe, plots, base, err, sizeof err)) {
-                fprintf(stderr, "propbench report: warning: %s\n", err);
-                failed++;
-            } else {
-                drawn[pi * PB_FIG_COUNT + k] = 1;
-            }
-        }
+    int failed = report_draw_all(o, run, exe, plots, made, drawn);
     if (!failed)
         return 0;
     snprintf(whybuf, whylen, "gnuplot failed on %d figure%s", failed, failed == 1 ? "" : "s");

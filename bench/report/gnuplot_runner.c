@@ -59,23 +59,27 @@ static void gnuplot_last_line(const char *log, char *buf, size_t len)
     fclose(f);
 }
 
-/* The figure being drawn, for pb_report_gnuplot_abort (a signal handler):
- * its gnuplot and the two temporary images it may be writing. */
-static volatile pid_t gnuplot_child;
-static char gnuplot_tmp[2][5000];
-static volatile sig_atomic_t gnuplot_have_tmp;
+/* The figures being drawn, one per slot, for pb_report_gnuplot_abort (a
+ * signal handler): each gnuplot and the two temporary images it may be
+ * writing; base and log for the messages once it ends. */
+static volatile pid_t gnuplot_child[PB_GNUPLOT_SLOTS];
+static char gnuplot_tmp[PB_GNUPLOT_SLOTS][2][5000];
+static char gnuplot_log[PB_GNUPLOT_SLOTS][5000], gnuplot_base[PB_GNUPLOT_SLOTS][700];
+static volatile sig_atomic_t gnuplot_have_tmp[PB_GNUPLOT_SLOTS];
 static const char *const gnuplot_ext[] = {"png", "svg"};
 
 void pb_report_gnuplot_abort(void)
 {
-    pid_t pid = gnuplot_child;
-    if (pid > 0) {
-        kill(pid, SIGKILL);
-        waitpid(pid, NULL, 0);  /* dead before its files go: it cannot write one again */
+    for (int k = 0; k < PB_GNUPLOT_SLOTS; k++) {
+        pid_t pid = gnuplot_child[k];
+        if (pid > 0) {
+            kill(pid, SIGKILL);
+            waitpid(pid, NULL, 0);  /* dead before its files go: it cannot write one again */
+        }
+        if (gnuplot_have_tmp[k])
+            for (int i = 0; i < 2; i++)
+                unlink(gnuplot_tmp[k][i]);
     }
-    if (gnuplot_have_tmp)
-        for (int i = 0; i < 2; i++)
-            unlink(gnuplot_tmp[i]);
 }
 
 /* Is the file at path a whole image of its kind? gnuplot exits 0 when its
@@ -113,11 +117,11 @@ static const char *gnuplot_image_bad(const char *path, int svg)
 
 /* Both images whole, then under their final names; else neither is
  * installed and both temporary files go. 0, or -1 with the reason. */
-static int gnuplot_install(const char *exe, const char *plots_dir, const char *base, char *err,
+static int gnuplot_install(int k, const char *exe, const char *plots_dir, const char *base, char *err,
                            size_t errlen)
 {
     for (int i = 0; i < 2; i++) {
-        const char *bad = gnuplot_image_bad(gnuplot_tmp[i], i == 1);
+        const char *bad = gnuplot_image_bad(gnuplot_tmp[k][i], i == 1);
         if (bad) {
             snprintf(err, errlen, "%s exited 0 but its %s.%s is unusable (%s; is the disk full?)",
                      exe, base, gnuplot_ext[i], bad);
@@ -127,7 +131,7 @@ static int gnuplot_install(const char *exe, const char *plots_dir, const char *b
     for (int i = 0; i < 2; i++) {
         char fin[5000];
         snprintf(fin, sizeof fin, "%s/%s.%s", plots_dir, base, gnuplot_ext[i]);
-        if (rename(gnuplot_tmp[i], fin) != 0) {
+        if (rename(gnuplot_tmp[k][i], fin) != 0) {
             snprintf(err, errlen, "cannot install %s: %s", fin, strerror(errno));
             return -1;
         }
@@ -135,16 +139,10 @@ static int gnuplot_install(const char *exe, const char *plots_dir, const char *b
     return 0;
 }
 
-/* Wait for gnuplot; 0 when it exited 0, else -1 with the reason. */
-static int gnuplot_wait(pid_t pid, const char *exe, const char *script, const char *log,
-                        char *err, size_t errlen)
+/* gnuplot's exit status st: 0 when it exited 0, else -1 with the reason. */
+static int gnuplot_status(int st, const char *exe, const char *script, const char *log, char *err,
+                          size_t errlen)
 {
-    int st;
-    while (waitpid(pid, &st, 0) < 0)
-        if (errno != EINTR) {
-            snprintf(err, errlen, "waiting for %s: %s", exe, strerror(errno));
-            return -1;
-        }
     if (WIFEXITED(st) && WEXITSTATUS(st) == 0)
         return 0;
     char last[512];
@@ -181,38 +179,79 @@ static void gnuplot_child_run(const char *exe, const char *plots_dir, const char
     _exit(127);
 }
 
-int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *base, char *err,
-                          size_t errlen)
+int pb_report_gnuplot_start(const char *exe, const char *plots_dir, const char *base, char *err,
+                            size_t errlen)
 {
-    char script[700], log[5000];
+    int k = 0;
+    while (k < PB_GNUPLOT_SLOTS && (gnuplot_child[k] > 0 || gnuplot_have_tmp[k]))
+        k++;
+    if (k == PB_GNUPLOT_SLOTS) {
+        snprintf(err, errlen, "more than %d figures drawn at once", PB_GNUPLOT_SLOTS);
+        return -1;
+    }
     /* "./" first: gnuplot reads any argument starting with '-' as an
      * option (a problem named "-V" gives "-V-energy.gp"), and a path never
      * starts with one */
+    char script[720];
     snprintf(script, sizeof script, "./%s.gp", base);
-    snprintf(log, sizeof log, "%s/%s.log", plots_dir, base);
-    gnuplot_have_tmp = 0;
+    snprintf(gnuplot_base[k], sizeof gnuplot_base[k], "%s", base);
+    snprintf(gnuplot_log[k], sizeof gnuplot_log[k], "%s/%s.log", plots_dir, base);
     for (int i = 0; i < 2; i++)
-        snprintf(gnuplot_tmp[i], sizeof gnuplot_tmp[i], "%s/%s.%s.tmp", plots_dir, base,
+        snprintf(gnuplot_tmp[k][i], sizeof gnuplot_tmp[k][i], "%s/%s.%s.tmp", plots_dir, base,
                  gnuplot_ext[i]);
-    gnuplot_have_tmp = 1;
+    gnuplot_have_tmp[k] = 1;
     fflush(NULL);
     pid_t pid = fork();
     if (pid < 0) {
+        gnuplot_have_tmp[k] = 0;
         snprintf(err, errlen, "cannot start %s: %s", exe, strerror(errno));
         return -1;
     }
     if (pid == 0)
-        gnuplot_child_run(exe, plots_dir, script, log);
-    gnuplot_child = pid;
-    int rc = gnuplot_wait(pid, exe, script, log, err, errlen);
-    gnuplot_child = 0;
+        gnuplot_child_run(exe, plots_dir, script, gnuplot_log[k]);
+    gnuplot_child[k] = pid;
+    return k;
+}
+
+int pb_report_gnuplot_wait(const char *exe, const char *plots_dir, int *slot, char *err, size_t errlen)
+{
+    int st, k = -1;
+    pid_t pid;
+    for (;;) {
+        pid = waitpid(-1, &st, 0);
+        if (pid < 0 && errno == EINTR)
+            continue;
+        if (pid < 0) {
+            snprintf(err, errlen, "waiting for %s: %s", exe, strerror(errno));
+            *slot = -1;
+            return -1;
+        }
+        for (k = 0; k < PB_GNUPLOT_SLOTS && gnuplot_child[k] != pid; k++)
+            ;
+        if (k < PB_GNUPLOT_SLOTS)
+            break;          /* another child of ours (none today): not a figure */
+    }
+    gnuplot_child[k] = 0;
+    *slot = k;
+    char script[720];
+    snprintf(script, sizeof script, "./%s.gp", gnuplot_base[k]);
+    int rc = gnuplot_status(st, exe, script, gnuplot_log[k], err, errlen);
     if (!rc)
-        rc = gnuplot_install(exe, plots_dir, base, err, errlen);
+        rc = gnuplot_install(k, exe, plots_dir, gnuplot_base[k], err, errlen);
     for (int i = 0; rc && i < 2; i++)
-        unlink(gnuplot_tmp[i]);  /* no temporary image stays behind */
-    gnuplot_have_tmp = 0;
-    struct stat st;
-    if (!rc && stat(log, &st) == 0 && st.st_size == 0)
-        unlink(log);   /* a log with nothing in it says nothing */
+        unlink(gnuplot_tmp[k][i]);  /* no temporary image stays behind */
+    gnuplot_have_tmp[k] = 0;
+    struct stat sb;
+    if (!rc && stat(gnuplot_log[k], &sb) == 0 && sb.st_size == 0)
+        unlink(gnuplot_log[k]);   /* a log with nothing in it says nothing */
     return rc;
+}
+
+int pb_report_gnuplot_run(const char *exe, const char *plots_dir, const char *base, char *err,
+                          size_t errlen)
+{
+    int k;
+    if (pb_report_gnuplot_start(exe, plots_dir, base, err, errlen) < 0)
+        return -1;
+    return pb_report_gnuplot_wait(exe, plots_dir, &k, err, errlen);
 }
