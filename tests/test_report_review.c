@@ -337,6 +337,15 @@ Test(review, many_methods_small_multiples_and_size)
             cr_assert(strstr(svg, "panels of at most 8 curves"), "no small multiples in %s", path);
         free(svg);
     }
+    /* work-precision: a row of two panels per group of at most 8 methods */
+    snprintf(path, sizeof path, "%s/plots/kepler-e0.5-work.gp", dir);
+    char *gp = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(gp);
+    const char *lay = strstr(gp, "set multiplot layout ");
+    int rows = 0, cols = 0;
+    cr_assert(lay && sscanf(lay, "set multiplot layout %d,%d", &rows, &cols) == 2, "no panels in %s", path);
+    cr_assert(rows >= 2 && cols == 2, "work-precision in %d x %d panels", rows, cols);
+    free(gp);
     snprintf(path, sizeof path, "%s/report.html", dir);
     size_t n = 0;
     char *html = pbt_slurp_file(path, &n);

@@ -7,6 +7,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "bench/report/figure_scripts.h"
+#include "bench/report/figure_util.h"
 #include "bench/store/run_dir.h"
 
 static const char *const gp_captions[PB_FIG_COUNT] = {
@@ -24,7 +25,7 @@ static const int gp_dash[] = {2, 1, 4, 3, 5};
 const char *pb_report_fig_caption(int kind) { return kind >= 0 && kind < PB_FIG_COUNT ? gp_captions[kind] : ""; }
 
 /* A gnuplot single-quoted string: only the quote itself needs doubling. */
-static void gp_quote(FILE *f, const char *s)
+void pb_gp_quote(FILE *f, const char *s)
 {
     fputc('\'', f);
     for (; *s; s++) {
@@ -52,7 +53,7 @@ static gp_tscale gp_time_scale(const pb_report_problem *p)
     return t;
 }
 
-static void gp_horizon(const pb_report_problem *p, char *buf, size_t len)
+void pb_gp_horizon(const pb_report_problem *p, char *buf, size_t len)
 {
     gp_tscale t = gp_time_scale(p);
     if (p->orbits_max > 0)
@@ -147,7 +148,7 @@ static void gp_label(const pb_report_case *c, char *buf, size_t len)
     snprintf(buf, len, "%s %s", c->method, set);
 }
 
-static void gp_axes_log(FILE *f)
+void pb_gp_axes_log(FILE *f)
 {
     fputs("set logscale xy\nset format x '10^{%L}'\nset format y '10^{%L}'\n", f);
 }
@@ -166,7 +167,7 @@ static int gp_time_plot(FILE *f, const pb_report_run *run, const pb_report_probl
               "plot [0:1][0:1] NaN notitle\nunset label 1\n", f);
         return 0;
     }
-    gp_axes_log(f);
+    pb_gp_axes_log(f);
     if (!key)
         fputs("unset key\n", f);
     else
@@ -188,10 +189,10 @@ static int gp_time_plot(FILE *f, const pb_report_run *run, const pb_report_probl
         }
         fputs(first ? "" : ", \\\n     ", f);
         first = 0;
-        gp_quote(f, path);
+        pb_gp_quote(f, path);
         fprintf(f, " skip 1 using (pbpos($%d/%.10g)):(pbpos(abs($%d))) with linespoints pi 5 lt %d dt %d title ",
                 g[i].cx, gp_time_scale(p).div, col, c->method_slot + 1, gp_dash[c->variant % 5]);
-        gp_quote(f, label);
+        pb_gp_quote(f, label);
     }
     if (with_fits) {
         int titled = 0;
@@ -209,10 +210,10 @@ static int gp_time_plot(FILE *f, const pb_report_run *run, const pb_report_probl
 static void gp_title(FILE *f, const pb_report_problem *p, const char *what)
 {
     char hz[96], t[512];
-    gp_horizon(p, hz, sizeof hz);
+    pb_gp_horizon(p, hz, sizeof hz);
     snprintf(t, sizeof t, "%s: %s, horizon %s", p->name, what, hz);
     fputs("set title ", f);
-    gp_quote(f, t);
+    pb_gp_quote(f, t);
     fputc('\n', f);
 }
 
@@ -225,7 +226,7 @@ static void gp_xtime(FILE *f, const pb_report_problem *p)
 }
 
 /* Margins so that no point sits on the frame. */
-static void gp_offsets(FILE *f)
+void pb_gp_offsets(FILE *f)
 {
     fputs("set offsets graph 0.03, graph 0.03, graph 0.08, graph 0.08\n", f);
 }
@@ -251,14 +252,14 @@ static int gp_ric(FILE *f, const pb_report_run *run, const pb_report_problem *p,
         return 0;
     }
     char hz[96], t[512];
-    gp_horizon(p, hz, sizeof hz);
+    pb_gp_horizon(p, hz, sizeof hz);
     snprintf(t, sizeof t, "%s: radial, along-track and cross-track error (finest case of each method), horizon %s",
              p->name, hz);
     fputs("set multiplot layout 3,1 title ", f);
-    gp_quote(f, t);
+    pb_gp_quote(f, t);
     /* the same plot width in every panel, the first one's legend in the margin */
     fputs(" font ',12'\nunset title\nset lmargin at screen 0.10\nset rmargin at screen 0.74\n", f);
-    gp_offsets(f);
+    pb_gp_offsets(f);
     for (int k = 0; k < 3; k++) {
         if (k == 2) gp_xtime(f, p);
         else fputs("unset xlabel\n", f);
@@ -272,8 +273,6 @@ static int gp_ric(FILE *f, const pb_report_run *run, const pb_report_problem *p,
 
 /* Curves at most per panel: beyond it a figure becomes small multiples,
  * one panel per group of whole methods, each panel with its own legend. */
-#define GP_PANEL_CURVES 8
-#define GP_PANEL_H 420
 
 /* panel[i] for each case of p (-1: nothing to draw); returns the count. */
 static int gp_panels(const pb_report_run *run, const pb_report_problem *p, const gp_case *g,
@@ -314,7 +313,7 @@ static int gp_time_figure(FILE *f, const pb_report_run *run, const pb_report_pro
         return -1;
     }
     int np = gp_panels(run, p, g, which, panel);
-    gp_offsets(f);
+    pb_gp_offsets(f);
     fputs(ylabel, f);
     if (np <= 1) {
         gp_title(f, p, what);
@@ -325,12 +324,12 @@ static int gp_time_figure(FILE *f, const pb_report_run *run, const pb_report_pro
         return rc;
     }
     char hz[96], t[512];
-    gp_horizon(p, hz, sizeof hz);
+    pb_gp_horizon(p, hz, sizeof hz);
     snprintf(t, sizeof t, "%s: %s, horizon %s (%d panels of at most %d curves)", p->name, what, hz, np,
              GP_PANEL_CURVES);
     int cols = np > 2 ? 2 : 1, rows = (np + cols - 1) / cols;
     fprintf(f, "set multiplot layout %d,%d title ", rows, cols);
-    gp_quote(f, t);
+    pb_gp_quote(f, t);
     fputs(" font ',12'\nunset title\n", f);
     gp_xtime(f, p);
     for (int k = 0; k < np; k++) {
@@ -343,117 +342,6 @@ static int gp_time_figure(FILE *f, const pb_report_run *run, const pb_report_pro
     *width = cols == 2 ? 1600 : 1000;
     free(panel); free(pick);
     return 1;
-}
-
-/* One cost panel: error against x (0 evaluations, 1 step, 2 CPU time),
- * a curve per method with each point labelled by its step or tolerance;
- * data blocks go to pre. Returns the curves drawn, -1 out of memory. */
-static int gp_cost_panel(FILE *f, FILE *pre, int xk, const pb_report_problem *p, const pb_report_case *cs,
-                         int id)
-{
-    int nplot = 0;
-    char *list = NULL;
-    size_t nlist = 0;
-    FILE *fl = open_memstream(&list, &nlist);
-    if (!fl)
-        return -1;
-    for (int m = 0; m < p->nmethods; m++) {
-        int npts = 0, mi = -1;
-        double h0 = INFINITY, e0 = NAN, h1 = 0;
-        fprintf(pre, "$c%d_%d << EOD\n", id, m);
-        for (int i = 0; i < p->n; i++) {
-            const pb_report_case *c = &cs[i];
-            if (c->method_slot != m || !pb_report_case_plain_ok(c) || !(c->pos_max > 0))
-                continue;
-            double x = xk == 0 ? (double)c->evals : xk == 1 ? c->h : c->cpu_s;
-            if (!(x > 0) || !isfinite(x) || (xk == 1 && !c->fixed))
-                continue;
-            char set[64];
-            pb_report_case_setting(c, set, sizeof set);
-            mi = i;
-            fprintf(pre, "%.9g,%.9g,%s\n", x, c->pos_max, set);
-            npts++;
-            if (xk == 1 && x < h0) { h0 = x; e0 = c->pos_max; }
-            if (xk == 1 && x > h1) h1 = x;
-        }
-        fputs("EOD\n", pre);
-        if (!npts)
-            continue;
-        const pb_report_case *c = &cs[mi];
-        fprintf(fl, "%s$c%d_%d using 1:2 with linespoints lt %d dt %d title ", nplot ? ", \\\n     " : "",
-                id, m, c->method_slot + 1, 1 + c->method_slot / 12);
-        gp_quote(fl, c->method);
-        if (xk != 1)
-            fprintf(fl, ", \\\n     $c%d_%d using 1:2:3 with labels offset char 0.6,0.6 left font ',7' "
-                    "tc lt %d notitle", id, m, c->method_slot + 1);
-        if (xk == 1 && c->order > 0) {
-            /* anchored at the finest step, where the error is nearest its asymptote */
-            if (!(h1 > h0)) h1 = 4 * h0;
-            fprintf(pre, "$ref%d << EOD\n%.9g,%.9g\n%.9g,%.9g\nEOD\n", m, h0, e0, h1,
-                    e0 * pow(h1 / h0, c->order));
-            fprintf(fl, ", \\\n     $ref%d using 1:2 with lines lt %d dt (7,5) lw 0.9 title 'slope %d'",
-                    m, c->method_slot + 1, c->order);
-        }
-        nplot++;
-    }
-    fclose(fl);
-    if (nplot) {
-        static const char *const xl[3] = {"force evaluations over the horizon [-]", NULL,
-                                          "CPU time over the horizon [s] (thread CPU, timed repeats)"};
-        if (xl[xk])
-            fprintf(f, "set xlabel '%s'\n", xl[xk]);
-        else
-            fprintf(f, "set xlabel 'step h [%s]'\n", p->time_unit);
-        fprintf(f, "plot %s\n", list);
-    }
-    free(list);
-    return nplot;
-}
-
-/* Work-precision (error against evaluations and, beside it, against CPU
- * time; the requirement as a line when there is one) or convergence (error
- * against step with each order's reference slope). 1 drawn, 0 no point to
- * draw, -1 out of memory. */
-static int gp_cost_plot(FILE *f, FILE *pre, int conv, const pb_report_problem *p,
-                        const pb_report_case *cs, int *width)
-{
-    char *body = NULL;
-    size_t nbody = 0;
-    FILE *fb = open_memstream(&body, &nbody);
-    if (!fb)
-        return -1;
-    fprintf(fb, "set ylabel 'largest position error [%s]'\n", p->len_unit);
-    gp_axes_log(fb);
-    gp_offsets(fb);
-    fputs("set key\n", fb);
-    if (p->req_pos > 0)
-        fprintf(fb, "set arrow 1 from graph 0, first %.9g to graph 1, first %.9g nohead dt 3 lw 1.6 lc rgb '#000000' front\n"
-                "set label 1 'requirement %.3g %s' at graph 0.02, first %.9g offset 0,0.7 front font ',9'\n",
-                p->req_pos, p->req_pos, p->req_pos, p->len_unit, p->req_pos);
-    if (p->req_pos > 0)   /* the requirement inside the y range, whatever the data */
-        fprintf(fb, "set yrange [*<%.9g:%.9g<*]\n", p->req_pos / 3, p->req_pos * 3);
-    int n1, n2 = 0;
-    if (conv) {
-        gp_title(fb, p, "convergence with step (cases that ended plain ok)");
-        n1 = gp_cost_panel(fb, pre, 1, p, cs, 0);
-    } else {
-        char hz[96], t[512];
-        gp_horizon(p, hz, sizeof hz);
-        snprintf(t, sizeof t, "%s: work-precision, horizon %s (cases that ended plain ok)", p->name, hz);
-        fputs("set multiplot layout 1,2 title ", fb);
-        gp_quote(fb, t);
-        fputs(" font ',12'\nunset title\n", fb);
-        n1 = gp_cost_panel(fb, pre, 0, p, cs, 0);
-        if (n1 > 0)
-            n2 = gp_cost_panel(fb, pre, 2, p, cs, 1);
-        fputs("unset multiplot\n", fb);
-        *width = 1500;
-    }
-    fclose(fb);
-    if (n1 > 0 && n2 >= 0)
-        fputs(body, f);
-    free(body);
-    return n1 < 0 || n2 < 0 ? -1 : n1 > 0;
 }
 
 /* Body of one figure (everything after the terminal is set); datablocks go
@@ -485,7 +373,7 @@ static int gp_body(FILE *f, FILE *pre, int kind, const pb_report_run *run, const
         return gp_ric(f, run, p, g, prefix);
     case PB_FIG_WORK:
     case PB_FIG_CONV:
-        return gp_cost_plot(f, pre, kind == PB_FIG_CONV, p, cs, width);
+        return pb_gp_cost_plot(f, pre, kind == PB_FIG_CONV, p, cs, width, height);
     default:
         return 0;
     }
