@@ -171,7 +171,8 @@ static json_t *load_cases(const char *dir)
         json_t *val;
         void *tmp;
         json_object_foreach_safe(cost, tmp, key, val) {
-            if (!strncmp(key, "ns_per_", 7) || !strncmp(key, "timing", 6))
+            if (!strncmp(key, "ns_per_", 7) || !strncmp(key, "timing", 6) ||
+                !strcmp(key, "calib_ns") || !strcmp(key, "step_kernel_ratio"))
                 json_object_del(cost, key);
         }
     }
