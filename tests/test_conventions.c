@@ -161,3 +161,33 @@ Test(conventions, sweep_takes_a_horizon_in_seconds)
     cr_assert_eq(pbt_run_cli(neg, conv_out, sizeof conv_out, conv_err, sizeof conv_err), 2);
     cr_assert(strstr(conv_err, "--horizon-s must be positive, got '-5'"), "%s", conv_err);
 }
+
+/* `run` on a pseudo-terminal (script(1) from util-linux), or not */
+static char *conv_run_tty(const char *extra, int tty)
+{
+    char dir[200], cmd[1200], inner[800];
+    pbt_tmpdir(dir, sizeof dir);
+    /* 3e6 steps of rk4: tens of progress calls (one per 65536 steps) */
+    snprintf(inner, sizeof inner, "'%s' run --problem kepler-e0.6 --method rk4 --steps-per-orbit 10000 "
+             "--orbits 300 --repeats 0 --out '%s/r' %s", conv_bin(), dir, extra);
+    if (tty)
+        snprintf(cmd, sizeof cmd, "script -qec \"%s\" /dev/null", inner);
+    else
+        snprintf(cmd, sizeof cmd, "%s 2>&1 >/dev/null", inner);
+    return conv_shell(cmd);
+}
+
+Test(conventions, run_shows_progress_on_a_terminal_only)
+{
+    char *s = conv_run_tty("", 1);
+    cr_assert(strstr(s, "% of the horizon, ") && strstr(s, " steps/s, about ") && strstr(s, " s left"),
+              "%s", s);
+    cr_assert(strstr(s, "\r\033[K"), "the line is cleared before the table");
+    free(s);
+    s = conv_run_tty("--quiet", 1);
+    cr_assert(!strstr(s, "of the horizon"), "--quiet: %s", s);
+    free(s);
+    s = conv_run_tty("", 0);
+    cr_assert(!strstr(s, "of the horizon"), "stderr not a terminal: %s", s);
+    free(s);
+}

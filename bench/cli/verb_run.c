@@ -6,6 +6,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 #include "bench/cli/cli.h"
 #include "bench/store/case_json.h"
 #include "bench/measure/harness.h"
@@ -152,6 +153,34 @@ static void run_help(FILE *f)
     pb_run_options_help(f);
 }
 
+/* The progress line on stderr (a terminal, without --quiet): the share of
+ * the horizon done, the rate and the time left at that rate, at most four
+ * times a second, from the metric pass every 65536 steps. */
+typedef struct run_prog {
+    double start, last;
+    int shown;
+} run_prog;
+
+static double run_wall(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+static void run_progress(void *ctx, double done, long steps)
+{
+    run_prog *p = ctx;
+    double now = run_wall(), el = now - p->start;
+    if (p->shown && now - p->last < 0.25)
+        return;
+    p->last = now;
+    p->shown = 1;
+    double left = done > 0 && done < 1 ? el * (1 - done) / done : 0;
+    fprintf(stderr, "\rpropbench run: %5.1f%% of the horizon, %.3g steps/s, about %.0f s left\033[K",
+            100 * done, el > 0 ? (double)steps / el : 0.0, left);
+}
+
 int pb_cli_run(int argc, char **argv)
 {
     pb_run_options o;
@@ -187,7 +216,12 @@ int pb_cli_run(int argc, char **argv)
     run_stops(0); /* a stop while the case runs removes the lock file and exits */
     pb_cli_warn_long("run", pb_case_fixed_steps(&spec));
     pb_case_result res;
+    run_prog prog = {run_wall(), 0, 0};
+    if (pb_cli_progress_wanted(o.quiet))
+        spec.progress = run_progress, spec.progress_ctx = &prog;
     int s = pb_case_run(&spec, &res);
+    if (prog.shown)
+        fputs("\r\033[K", stderr);
     run_stops(1); /* from here to the swap, a stop waits */
     if (s) {
         run_release(&out);

@@ -37,6 +37,10 @@ typedef struct pb_case_spec {
      * (borrowed; `score` samples at an ephemeris's own epochs) */
     const double *sample_times;
     int nsample_times;
+    /* called from the metric pass every 65536 steps with the share of the
+     * horizon done and the steps so far (NULL: none); `run`'s progress line */
+    void (*progress)(void *ctx, double done, long steps);
+    void *progress_ctx;
 } pb_case_spec;
 
 /* The record that drives the case's workspace: the method itself, or, for

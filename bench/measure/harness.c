@@ -49,6 +49,8 @@ typedef struct harness_watch {
     int ap_have;
     const pb_force_counter *counter;
     long dense_evals;         /* evaluations spent inside dense output */
+    const pb_case_spec *spec; /* its progress callback, if any */
+    long nstep;
 } harness_watch;
 
 static int harness_take_samples(harness_watch *w, double t);
@@ -60,6 +62,8 @@ static int harness_observe(void *ctx, double t, const double *r, const double *v
     harness_watch *w = ctx;
     const pb_problem *p = w->p;
     double de = 0;
+    if (w->spec && w->spec->progress && !(++w->nstep & 0xFFFF))
+        w->spec->progress(w->spec->progress_ctx, (t - p->t0) / w->horizon, w->nstep);
     /* a fixed-step method's last step may end past the horizon: that state
      * is not part of the case (the horizon's own sample, on dense output, is) */
     int inside = !w->plan || w->plan->n < 1 || t <= w->plan->t[w->plan->n - 1];
@@ -516,6 +520,7 @@ int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
     }
     harness_watch w;
     harness_watch_init(&w, p, horizon, res);
+    w.spec = spec;
     pb_force_counter counter;
     pb_force f;
     pb_force_counter_init(&counter, p, &f);
