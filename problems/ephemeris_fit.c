@@ -12,7 +12,8 @@
  * relative (arguments of thousands of degrees in __float128), so the check
  * cannot ask for less; a relative position error e moves a third body's pull
  * by about 3e of itself, and that pull is a small part of the total force, so
- * 1e-27 stays below the reference's step tolerance of 1e-28 of the state. */
+ * 1e-27 stays below the reference's fine step tolerance of 1e-26 of the
+ * state. */
 #define EPH_FIT_TOL 1e-27Q
 
 void pb_ephemeris_fit_at(const pb_ephemeris_fit *fit, __float128 t, __float128 (*pos)[3])

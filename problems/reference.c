@@ -21,14 +21,21 @@ typedef __float128 ref_real;
 #define REF_K 10                /* extrapolation columns: order 2K */
 /* Columns of the trial steps that locate a boundary: their states serve
  * only to place the boundary in time (the integration itself steps there
- * with REF_K), and where REF_K columns meet the step tolerance, 8 are
- * within a factor (18 * 20)^2 (H/T)^-4 of it (the extrapolation's error
- * constant is 1 / prod n_j^2; Hairer, Norsett & Wanner, Sec. II.9) */
-#define REF_K_TRIAL 8
+ * with REF_K), and where REF_K columns meet the step tolerance, 7 are
+ * within a factor (16 * 18 * 20)^2 (H/T)^-6 of it (the extrapolation's
+ * error constant is 1 / prod n_j^2; Hairer, Norsett & Wanner, Sec. II.9):
+ * about 1e-15 of the state for a LEO step (H/T = 0.03), a boundary time to
+ * about 1e-12 s, below what ref_find_crossing asks */
+#define REF_K_TRIAL 7
+/* Per-step tolerances of the two builds, relative to |r| and |v|. The
+ * states are kept as long double (a 64-bit mantissa, 5e-20 relative), so
+ * the fine build need not go below 1e-26 a step (1e-23 after a thousand
+ * steps); the coarse one sets the floor reported, their difference, which
+ * is never claimed below 1e-18 |r| (6.8e-15 km in LEO) */
 #define REF_TOL_COARSE 1e-24L
-#define REF_TOL_FINE 1e-28L
+#define REF_TOL_FINE 1e-26L
 #define REF_MAX_STEPS 20000000L
-#define REF_VERSION "pb-reference gbs20 float128 v3 edges"
+#define REF_VERSION "pb-reference gbs20 float128 v4 edges"
 
 /* How a step's time is stretched near a located boundary. At a penumbra's
  * edges the visible fraction goes as depth^(3/2) (the overlap of two discs),
@@ -101,6 +108,18 @@ static ref_real ref_norm3(const ref_real *x)
     return sqrtq(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
 }
 
+/* The time-only bodies fitted over a window that holds [t0, t0 + H]: the
+ * last window when it does (a rejected step, a trial, the short steps near
+ * a shadow's edge), else a new one of at least REF_FIT_SPAN_S (problems with
+ * such bodies are in seconds), whose fit checks itself (ephemeris_fit.h). */
+#define REF_FIT_SPAN_S 120.0Q
+static void ref_fit_cover(pb_ephemeris_fit *fit, const pb_problem *p, ref_real t0, ref_real H)
+{
+    if (fit->on && fit->n > 0 && t0 >= fit->t[fit->n - 1] && t0 + H <= fit->t[0])
+        return;
+    pb_ephemeris_fit_make(fit, p, t0, fmaxq(H, REF_FIT_SPAN_S));
+}
+
 /* One extrapolated step of size H, its time mapped by map (REF_MAP_*); y1
  * receives the result, the return value is the scaled error estimate
  * (relative to |r| and |v| separately). */
@@ -113,7 +132,7 @@ static ref_real ref_step_k(const ref_force *Fp, ref_real t0, const ref_real *y0,
     F->mt0 = t0;
     F->mH = H;
     if (F->fit)
-        pb_ephemeris_fit_make(F->fit, F->p, t0, H);
+        ref_fit_cover(F->fit, F->p, t0, H);
     /* in s the step runs over [0, 1] */
     ref_real s0 = map ? 0 : t0, S = map ? 1 : H;
     ref_deriv(F, s0, y0, f0);
@@ -205,17 +224,25 @@ typedef struct ref_bracket {
 
 /* Function j's crossing within (0, br->hi], by the Illinois variant of
  * regula falsi (Dowell & Jarratt 1971) with a bisection every fourth trial
- * as a safeguard, to a bracket of REF_EVENT_TOL * H. The integration does
- * not start from the bracket: it steps to lo itself, so lo need only be
- * close to the boundary and on its near side; the far side's formula then
- * holds over at most REF_EVENT_TOL * H, where the two sides' forces differ
- * by a term of order (REF_EVENT_TOL H / T)^(3/2) of the radiation pressure. */
-#define REF_EVENT_TOL 1e-16Q
+ * as a safeguard, to a bracket of tol * H. The integration does not start
+ * from the bracket: it steps to lo itself, so lo need only be close to the
+ * boundary and on its near side; the far side's formula then holds over at
+ * most tol * H. Where the force jumps there (a cylindrical shadow, a row of
+ * the atmosphere table), that is a velocity error of the jump times tol H:
+ * REF_EVENT_TOL_JUMP keeps it below 1e-24 km/s for any step here. At a
+ * conical shadow's boundary the force is continuous and the two formulas
+ * differ by a (tol H / T_pen)^(3/2) part of the radiation pressure (T_pen
+ * the penumbra's duration): REF_EVENT_TOL_SOFT keeps that below 1e-27 km/s
+ * over the bracket for a LEO or a GEO penumbra. */
+#define REF_EVENT_TOL_JUMP 1e-16Q
+#define REF_EVENT_TOL_SOFT 1e-9Q
 static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_bracket *br)
 {
     ref_real a = 0, b = br->hi, ga = w->g[j], gb = br->g_hi[j], y[REF_N], g[4];
+    int soft = j < w->nshadow && w->p->forces.shadow == PB_SHADOW_CONICAL;
+    ref_real tol = soft ? REF_EVENT_TOL_SOFT : REF_EVENT_TOL_JUMP;
     int side = 0;
-    for (int it = 0; b - a > REF_EVENT_TOL * H && it < 200; it++) {
+    for (int it = 0; b - a > tol * H && it < 200; it++) {
         ref_real m = (it % 4 == 3 || gb == ga) ? 0.5Q * (a + b) : (a * gb - b * ga) / (gb - ga);
         if (!(m > a && m < b))
             m = 0.5Q * (a + b);
@@ -424,7 +451,7 @@ int pb_reference_propagate(const pb_problem *p, const double *times, int n,
     w.F.band = pb_forces_band_q(p, w.y);
     w.nev = pb_forces_events_q(p, w.t, w.y, w.F.band, w.g, &w.nshadow);
     w.F.p = p;
-    pb_ephemeris_fit fit;
+    pb_ephemeris_fit fit = {0}; /* no window yet: the first step fits one */
     w.F.fit = pb_forces_timed_bodies(p) ? &fit : NULL;
     w.F.region = w.nshadow ? pb_forces_region_q(p, w.g) : -1;
     const pb_forces *f = &p->forces;
