@@ -191,3 +191,27 @@ Test(conventions, run_shows_progress_on_a_terminal_only)
     cr_assert(!strstr(s, "of the horizon"), "stderr not a terminal: %s", s);
     free(s);
 }
+
+/* A run or sweep into its default folder (no --out) that holds an earlier
+ * run says so on stderr before replacing it; the first one says nothing. */
+Test(conventions, replacing_a_default_folder_is_announced)
+{
+    char root[256], out[4096], err[4096];
+    pbt_tmpdir(root, sizeof root);
+    setenv("PB_ROOT", root, 1); /* the CLI runs in this scratch folder */
+    const char *run[] = {"run", "--problem", "kepler-e0.5", "--method", "rk4", "--steps-per-orbit",
+                         "100", "--orbits", "1", "--repeats", "0", NULL};
+    cr_assert_eq(pbt_run_cli(run, out, sizeof out, err, sizeof err), 0, "%s", err);
+    cr_expect_null(strstr(err, "replacing"), "first run: %s", err);
+    cr_assert_eq(pbt_run_cli(run, out, sizeof out, err, sizeof err), 0, "%s", err);
+    cr_expect(strstr(err, "note: replacing the earlier run in results/runs/kepler-e0.5__rk4__n100__o1"),
+              "second run: %s", err);
+    const char *sweep[] = {"sweep", "--problems", "kepler-e0.5", "--methods", "rk4",
+                           "--steps-per-orbit", "100", "--orbits", "1", "--repeats", "0",
+                           "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(sweep, out, sizeof out, err, sizeof err), 0, "%s", err);
+    cr_expect_null(strstr(err, "replacing"), "first sweep: %s", err);
+    cr_assert_eq(pbt_run_cli(sweep, out, sizeof out, err, sizeof err), 0, "%s", err);
+    cr_expect(strstr(err, "note: replacing the earlier run in results/runs/grid"), "second sweep: %s",
+              err);
+}

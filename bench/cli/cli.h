@@ -41,6 +41,10 @@ int pb_cli_long(const char *verb, const char *opt, const char *s, long *out);
  * reason before the path. */
 int pb_cli_out_path(const char *verb, const char *opt, const char *path, int reserve);
 
+/* Before a verb writes its run into a default folder (no --out) that holds
+ * an earlier run: a note on stderr naming the folder and how to keep it. */
+void pb_cli_note_replacing(const char *verb, const char *dir);
+
 /* Split a comma list in place into at most max items (at least one); -1
  * with a message naming the option when it is empty, has an empty item
  * ("a,,b", a leading or trailing comma) or has more than max. */

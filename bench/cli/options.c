@@ -140,3 +140,13 @@ int pb_cli_formulation(const char *verb, const char *s, int *out)
     pb_cli_error(verb, "--formulation: unknown formulation '%s' (known: cartesian, sundman, ks)", s);
     return -1;
 }
+
+void pb_cli_note_replacing(const char *verb, const char *dir)
+{
+    char path[PATH_MAX];
+    if (snprintf(path, sizeof path, "%s/summary.json", dir) >= (int)sizeof path)
+        return;
+    if (access(path, F_OK) == 0)
+        fprintf(stderr, "propbench %s: note: replacing the earlier run in %s (give --out DIR "
+                "to keep it)\n", verb, dir);
+}

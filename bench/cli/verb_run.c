@@ -200,8 +200,10 @@ int pb_cli_run(int argc, char **argv)
     char dir[4096];
     if (o.out)
         snprintf(dir, sizeof dir, "%s", o.out);
-    else
+    else {
         snprintf(dir, sizeof dir, "results/runs/%s", id);
+        pb_cli_note_replacing("run", dir);
+    }
 
     pb_run_out out;
     char why[4400];

@@ -261,6 +261,8 @@ int pb_cli_score(int argc, char **argv)
     char label[PB_OEM_LINE_MAX + 1], id[PB_CASE_ID_MAX], dir[4096];
     score_names(&o, &oem, &p, label, sizeof label, id, sizeof id);
     snprintf(dir, sizeof dir, o.out ? "%s" : "results/runs/%s", o.out ? o.out : id);
+    if (!o.out)
+        pb_cli_note_replacing("score", dir);
     pb_case_spec spec;
     score_spec(&p, &oem, &spec);
     rc = score_write(&o, &spec, &oem, label, id, dir);

@@ -432,8 +432,10 @@ int pb_cli_sweep(int argc, char **argv)
     char dir[4096];
     if (o.out)
         snprintf(dir, sizeof dir, "%s", o.out);
-    else
+    else {
         snprintf(dir, sizeof dir, "results/runs/%s", o.suite ? o.suite : "grid");
+        pb_cli_note_replacing("sweep", dir);
+    }
     rc = sweep_execute(&o, &list, dir);
     pb_case_list_free(&list);
     if (rc == PB_EXIT_OK && o.report) {
