@@ -3,7 +3,10 @@
  * and caps only the horizon of the problem whose finest fixed step would
  * spend more than 2e6 steps over it (kepler-e0.99: 10 orbits, not 100). */
 #include <criterion/criterion.h>
+#include <jansson.h>
+#include <stdio.h>
 #include <string.h>
+#include "test_support.h"
 #include "bench/study/suites.h"
 #include "problems/catalogue.h"
 
@@ -59,4 +62,38 @@ Test(suites, standard_horizons)
                       c->problem.name, c->method->name, c->steps_per_orbit, c->orbits);
     }
     pb_case_list_free(&l);
+}
+
+/* sweep --suite NAME --methods/--problems: only the suite's cases of those
+ * methods and problems, as many as the suite has of them (counted from
+ * pb_suite_expand); a name the suite does not have is refused (exit 2). */
+Test(suites, sweep_filters_a_suite_by_method_and_problem, .timeout = 120)
+{
+    pb_case_list l = {0};
+    cr_assert_eq(pb_suite_expand("quick", &l), 0);
+    int want = 0;
+    for (int i = 0; i < l.n; i++)
+        want += !strcmp(l.cases[i].method->name, "rk4") && !strcmp(l.cases[i].problem.name, "kepler-e0.6");
+    pb_case_list_free(&l);
+    cr_assert_gt(want, 0);
+    char dir[256], out[300], path[340], o[4096], e[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/q", dir);
+    const char *a[] = {"sweep", "--suite", "quick", "--methods", "rk4", "--problems", "kepler-e0.6",
+                       "--repeats", "0", "--quiet", "--out", out, NULL};
+    cr_assert_eq(pbt_run_cli(a, o, sizeof o, e, sizeof e), 0, "%s", e);
+    snprintf(path, sizeof path, "%s/summary.json", out);
+    json_t *doc = json_load_file(path, 0, NULL);
+    cr_assert_not_null(doc);
+    json_t *cases = json_object_get(doc, "cases"), *c;
+    size_t i;
+    cr_expect_eq((int)json_array_size(cases), want);
+    json_array_foreach(cases, i, c) {
+        cr_expect_str_eq(json_string_value(json_object_get(c, "method")), "rk4");
+        cr_expect_str_eq(json_string_value(json_object_get(c, "problem")), "kepler-e0.6");
+    }
+    json_decref(doc);
+    const char *bad[] = {"sweep", "--suite", "quick", "--methods", "rk4,nosuch", "--out", out, NULL};
+    cr_expect_eq(pbt_run_cli(bad, o, sizeof o, e, sizeof e), 2);
+    cr_expect(strstr(e, "'nosuch' is not in suite 'quick'"), "%s", e);
 }

@@ -20,13 +20,14 @@
 static void sweep_help(FILE *f)
 {
     fprintf(f,
-"usage: propbench sweep (--suite NAME | [--problems P,..] [--problem-file FILE [--case NAME]]\n"
+"usage: propbench sweep (--suite NAME [--problems P,..] [--methods M,..]\n"
+"                        | [--problems P,..] [--problem-file FILE [--case NAME]]\n"
 "                        --methods M,..\n"
 "                        [--steps-per-orbit N,..] [--tolerances T,..]\n"
 "                        [--orbits N | --horizon-s S])\n"
 "                       [--out DIR] [-j N] [--shard K/N] [--repeats N]\n"
 "                       [--eval-cost-us X] [--compensated] [--formulation F]\n"
-"                       [--report] [--quiet]\n\n"
+"                       [--report [--max-pos-err E]] [--quiet]\n\n"
 "Run many cases into one run directory: DIR/summary.json and DIR/series/.\n"
 "A grid is problems x methods x (steps per orbit for fixed-step methods,\n"
 "tolerances for adaptive ones); it gives work-precision (error against\n"
@@ -35,7 +36,10 @@ static void sweep_help(FILE *f)
 "  --horizon-s S every case's horizon in time units (s or TU), any problem\n"
 "  -j N          worker processes (default 1); results are the same for every N\n"
 "  --shard K/N   run only the K-th of N deterministic slices; join with merge\n"
+"  --suite NAME  a named suite; with --problems and/or --methods, only its\n"
+"                cases of those problems and methods\n"
 "  --report      write plots and report.html/report.md afterwards\n"
+"  --max-pos-err E  with --report: the requirement line on its figures\n"
 "  --compensated compensated summation for every method that has it\n"
 "  --formulation F  cartesian, sundman or ks: the equations the methods\n"
 "                integrate (a grid: every method must take it; a suite: the\n"
@@ -45,7 +49,7 @@ static void sweep_help(FILE *f)
 
 enum { SW_SUITE = 300, SW_PROBLEMS, SW_METHODS, SW_STEPS, SW_TOLS, SW_ORBITS, SW_OUT,
        SW_SHARD, SW_REPEATS, SW_COST, SW_REPORT, SW_QUIET, SW_HELP, SW_COMP, SW_FILE, SW_CASE,
-       SW_FORM, SW_HORIZON };
+       SW_FORM, SW_HORIZON, SW_REQ };
 
 /* What the command line asks for; a suite, or the lists of a grid. */
 typedef struct sweep_options {
@@ -56,6 +60,7 @@ typedef struct sweep_options {
     long jobs, repeats;       /* repeats -1: not given */
     int shard_k, shard_n, quiet, report, comp;
     int form;                 /* -1: each problem's own */
+    const char *req;          /* --max-pos-err, passed to the report */
 } sweep_options;
 
 /* Parse argv into o. Returns -1 to go on, or an exit status to return at
@@ -106,7 +111,8 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
         {"compensated", no_argument, 0, SW_COMP}, {"formulation", required_argument, 0, SW_FORM},
         {"problem-file", required_argument, 0, SW_FILE}, {"case", required_argument, 0, SW_CASE},
         {"quiet", no_argument, 0, SW_QUIET}, {"help", no_argument, 0, SW_HELP},
-        {"horizon-s", required_argument, 0, SW_HORIZON}, {0, 0, 0, 0}};
+        {"horizon-s", required_argument, 0, SW_HORIZON},
+        {"max-pos-err", required_argument, 0, SW_REQ}, {0, 0, 0, 0}};
     memset(o, 0, sizeof *o);
     o->jobs = 1;
     o->repeats = -1;
@@ -140,6 +146,12 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
         case SW_HORIZON:
             if (sweep_positive("--horizon-s", optarg, HUGE_VAL, &o->horizon_s)) return PB_EXIT_USAGE;
             break;
+        case SW_REQ: {
+            double e;
+            if (sweep_positive("--max-pos-err", optarg, HUGE_VAL, &e)) return PB_EXIT_USAGE;
+            o->req = optarg;
+            break;
+        }
         case SW_COST:
             if (pb_cli_double("sweep", "--eval-cost-us", optarg, &o->cost)) return PB_EXIT_USAGE;
             if (!(o->cost >= 0)) return pb_cli_error("sweep", "--eval-cost-us must be >= 0, got '%s'", optarg);
@@ -164,9 +176,14 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
     }
     if (optind < argc)
         return pb_cli_error("sweep", "unexpected argument '%s'", argv[optind]);
-    if (!o->suite == !(o->problems || o->pfile || o->methods))
+    if (!o->suite && !(o->problems || o->pfile || o->methods))
         return pb_cli_error("sweep", "give --suite NAME, or a grid with --problems (and/or "
                             "--problem-file) and --methods");
+    if (o->suite && (o->pfile || o->steps || o->tols))
+        return pb_cli_error("sweep", "a suite sets its own problems' files, steps and tolerances: "
+                            "--problem-file, --steps-per-orbit and --tolerances go with a grid");
+    if (o->req && !o->report)
+        return pb_cli_error("sweep", "--max-pos-err goes with --report");
     if (o->pcase && !o->pfile)
         return pb_cli_error("sweep", "--case goes with --problem-file");
     if (o->orbits > 0 && o->horizon_s > 0)
@@ -363,6 +380,49 @@ static int sweep_check_unique(const pb_case_list *list)
     return rc;
 }
 
+/* 1 when name is one of the comma list's entries (NULL list: all). */
+static int sweep_listed(const char *list, const char *name)
+{
+    size_t n = strlen(name);
+    for (const char *p = list; p && *p;) {
+        const char *e = strchr(p, ',');
+        size_t len = e ? (size_t)(e - p) : strlen(p);
+        if (len == n && !strncmp(p, name, n))
+            return 1;
+        p = e ? e + 1 : NULL;
+    }
+    return !list;
+}
+
+/* A suite's cases of the problems and methods named (--problems,
+ * --methods); every name must be in the suite. -1 after a message. */
+static int sweep_suite_filter(const sweep_options *o, pb_case_list *list)
+{
+    const char *lists[2] = {o->problems, o->methods}, *opt[2] = {"--problems", "--methods"};
+    for (int k = 0; k < 2; k++)
+        for (const char *p = lists[k]; p && *p;) {
+            const char *e = strchr(p, ',');
+            size_t len = e ? (size_t)(e - p) : strlen(p);
+            int found = 0;
+            for (int i = 0; i < list->n && !found; i++) {
+                const char *nm = k ? list->cases[i].method->name : list->cases[i].problem.name;
+                found = strlen(nm) == len && !strncmp(nm, p, len);
+            }
+            if (!found) {
+                pb_cli_error("sweep", "%s: '%.*s' is not in suite '%s'", opt[k], (int)len, p, o->suite);
+                return -1;
+            }
+            p = e ? e + 1 : NULL;
+        }
+    int m = 0;
+    for (int i = 0; i < list->n; i++)
+        if (sweep_listed(o->problems, list->cases[i].problem.name)
+            && sweep_listed(o->methods, list->cases[i].method->name))
+            list->cases[m++] = list->cases[i];
+    list->n = m;
+    return 0;
+}
+
 static int sweep_cases(const sweep_options *o, pb_case_list *list)
 {
     if (o->suite) {
@@ -370,6 +430,8 @@ static int sweep_cases(const sweep_options *o, pb_case_list *list)
             pb_cli_error("sweep", "unknown suite '%s' (see propbench list suites)", o->suite);
             return -1;
         }
+        if (sweep_suite_filter(o, list))
+            return -1;
     } else if (sweep_grid_expand(o, list)) {
         return -1;
     }
@@ -439,8 +501,16 @@ int pb_cli_sweep(int argc, char **argv)
     rc = sweep_execute(&o, &list, dir);
     pb_case_list_free(&list);
     if (rc == PB_EXIT_OK && o.report) {
-        char *rargv[] = {"report", dir, o.quiet ? "--quiet" : NULL, NULL};
-        rc = pb_cli_report(o.quiet ? 3 : 2, rargv);
+        char *rargv[6] = {"report", dir};
+        int ra = 2;
+        if (o.req) {
+            rargv[ra++] = "--max-pos-err";
+            rargv[ra++] = (char *)o.req;
+        }
+        if (o.quiet)
+            rargv[ra++] = "--quiet";
+        rargv[ra] = NULL;
+        rc = pb_cli_report(ra, rargv);
     }
     return rc;
 }
