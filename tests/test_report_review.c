@@ -429,3 +429,29 @@ Test(review, select_answer_and_requirement_from_the_folder)
     cr_assert(w && strstr(w, ">requirement 0.001 km<"), "the select requirement is not drawn");
     free(w);
 }
+
+/* On a problem whose whole force is the central one, a method built around
+ * the Kepler flow (kepler-split2: its drifts are that flow) wins the
+ * summary's error levels by construction; the summary says so beside it,
+ * and not beside rk4. */
+Test(review, summary_marks_a_win_by_construction, .timeout = 120)
+{
+    char dir[256], run[300], path[340], o[4096], e[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    const char *sw[] = {"sweep", "--problems", "kepler-e0.5", "--methods", "kepler-split2,rk4",
+                        "--steps-per-orbit", "100", "--orbits", "2", "--repeats", "0", "--quiet",
+                        "--out", run, NULL};
+    cr_assert_eq(pbt_run_cli(sw, o, sizeof o, e, sizeof e), 0, "%s", e);
+    const char *rp[] = {"report", run, "--no-plots", "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(rp, o, sizeof o, e, sizeof e), 0, "%s", e);
+    snprintf(path, sizeof path, "%s/report.html", run);
+    char *html = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(html);
+    char *sum = strstr(html, "id=\"summary\""), *end = sum ? strstr(sum, "</section>") : NULL;
+    cr_assert(sum && end);
+    *end = 0;
+    char *hit = strstr(sum, "kepler-split2 n=100");
+    cr_expect(hit && strstr(hit, "by construction"), "no note beside kepler-split2's win");
+    free(html);
+}

@@ -99,6 +99,25 @@ static int sweep_positive(const char *opt, const char *arg, double max, double *
     return 0;
 }
 
+/* Options that go together, after parsing: -1 to go on, or the exit
+ * status after a message. */
+static int sweep_combination(const sweep_options *o)
+{
+    if (!o->suite && !(o->problems || o->pfile || o->methods))
+        return pb_cli_error("sweep", "give --suite NAME, or a grid with --problems (and/or "
+                            "--problem-file) and --methods");
+    if (o->suite && (o->pfile || o->steps || o->tols))
+        return pb_cli_error("sweep", "a suite sets its own problems' files, steps and tolerances: "
+                            "--problem-file, --steps-per-orbit and --tolerances go with a grid");
+    if (o->req && !o->report)
+        return pb_cli_error("sweep", "--max-pos-err goes with --report");
+    if (o->pcase && !o->pfile)
+        return pb_cli_error("sweep", "--case goes with --problem-file");
+    if (o->orbits > 0 && o->horizon_s > 0)
+        return pb_cli_error("sweep", "give --orbits or --horizon-s, not both");
+    return -1;
+}
+
 static int sweep_parse(int argc, char **argv, sweep_options *o)
 {
     static const struct option opts[] = {
@@ -176,19 +195,7 @@ static int sweep_parse(int argc, char **argv, sweep_options *o)
     }
     if (optind < argc)
         return pb_cli_error("sweep", "unexpected argument '%s'", argv[optind]);
-    if (!o->suite && !(o->problems || o->pfile || o->methods))
-        return pb_cli_error("sweep", "give --suite NAME, or a grid with --problems (and/or "
-                            "--problem-file) and --methods");
-    if (o->suite && (o->pfile || o->steps || o->tols))
-        return pb_cli_error("sweep", "a suite sets its own problems' files, steps and tolerances: "
-                            "--problem-file, --steps-per-orbit and --tolerances go with a grid");
-    if (o->req && !o->report)
-        return pb_cli_error("sweep", "--max-pos-err goes with --report");
-    if (o->pcase && !o->pfile)
-        return pb_cli_error("sweep", "--case goes with --problem-file");
-    if (o->orbits > 0 && o->horizon_s > 0)
-        return pb_cli_error("sweep", "give --orbits or --horizon-s, not both");
-    return -1;
+    return sweep_combination(o);
 }
 
 /* A grid's lists, split and read: names stay in the option strings. */
