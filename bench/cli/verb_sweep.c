@@ -387,44 +387,42 @@ static int sweep_check_unique(const pb_case_list *list)
     return rc;
 }
 
-/* 1 when name is one of the comma list's entries (NULL list: all). */
-static int sweep_listed(const char *list, const char *name)
+/* 1 when name is one of items[0..n) (n < 0: no list given, so all). */
+static int sweep_listed(char *const *items, int n, const char *name)
 {
-    size_t n = strlen(name);
-    for (const char *p = list; p && *p;) {
-        const char *e = strchr(p, ',');
-        size_t len = e ? (size_t)(e - p) : strlen(p);
-        if (len == n && !strncmp(p, name, n))
+    for (int i = 0; i < n; i++)
+        if (!strcmp(items[i], name))
             return 1;
-        p = e ? e + 1 : NULL;
-    }
-    return !list;
+    return n < 0;
 }
 
 /* A suite's cases of the problems and methods named (--problems,
  * --methods); every name must be in the suite. -1 after a message. */
 static int sweep_suite_filter(const sweep_options *o, pb_case_list *list)
 {
-    const char *lists[2] = {o->problems, o->methods}, *opt[2] = {"--problems", "--methods"};
-    for (int k = 0; k < 2; k++)
-        for (const char *p = lists[k]; p && *p;) {
-            const char *e = strchr(p, ',');
-            size_t len = e ? (size_t)(e - p) : strlen(p);
+    char *names[2][64];
+    char *lists[2] = {o->problems, o->methods};
+    const char *opt[2] = {"--problems", "--methods"};
+    int n[2];
+    for (int k = 0; k < 2; k++) {
+        n[k] = lists[k] ? pb_cli_split("sweep", opt[k], lists[k], names[k], 64) : -1;
+        if (lists[k] && n[k] < 0)
+            return -1;
+        for (int j = 0; j < n[k]; j++) {
             int found = 0;
-            for (int i = 0; i < list->n && !found; i++) {
-                const char *nm = k ? list->cases[i].method->name : list->cases[i].problem.name;
-                found = strlen(nm) == len && !strncmp(nm, p, len);
-            }
+            for (int i = 0; i < list->n && !found; i++)
+                found = !strcmp(k ? list->cases[i].method->name : list->cases[i].problem.name,
+                                names[k][j]);
             if (!found) {
-                pb_cli_error("sweep", "%s: '%.*s' is not in suite '%s'", opt[k], (int)len, p, o->suite);
+                pb_cli_error("sweep", "%s: '%s' is not in suite '%s'", opt[k], names[k][j], o->suite);
                 return -1;
             }
-            p = e ? e + 1 : NULL;
         }
+    }
     int m = 0;
     for (int i = 0; i < list->n; i++)
-        if (sweep_listed(o->problems, list->cases[i].problem.name)
-            && sweep_listed(o->methods, list->cases[i].method->name))
+        if (sweep_listed(names[0], n[0], list->cases[i].problem.name)
+            && sweep_listed(names[1], n[1], list->cases[i].method->name))
             list->cases[m++] = list->cases[i];
     list->n = m;
     return 0;
