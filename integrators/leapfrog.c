@@ -8,9 +8,10 @@
 #include <stdlib.h>
 #include <string.h>
 #include "integrators/fixed_step.h"
+#include "integrators/yoshida_coeffs.h"
 #include "propbench/dense.h"
 
-#define YOSHIDA_STAGES_MAX 15 /* order 8: 2*7+1 substeps */
+#define YOSHIDA_STAGES_MAX PB_YOSHIDA_STAGES_MAX
 
 /* One composition: c[0..s-1] are the substep fractions of h (they sum to 1). */
 typedef struct yoshida_scheme {
@@ -45,15 +46,8 @@ typedef struct yoshida_ws {
 static yoshida_scheme yoshida_make(int k, const double *w)
 {
     yoshida_scheme sc;
-    double sum = 0;
     memset(&sc, 0, sizeof sc);
-    sc.s = 2 * k + 1;
-    for (int i = 1; i <= k; i++) {
-        sum += w[i];
-        sc.c[k - i] = w[i];
-        sc.c[k + i] = w[i];
-    }
-    sc.c[k] = 1.0 - 2.0 * sum;
+    sc.s = pb_yoshida_sequence(k, w, sc.c);
     return sc;
 }
 
@@ -262,25 +256,15 @@ static void yoshida_get_stats(const void *ws, pb_method_stats *st)
         .dense_order = (ORDER) - 1 < 4 ? (ORDER) - 1 : 4,                       \
     }
 
-/* Coefficients: Yoshida (1990), as listed in REFERENCES.md (from memory;
- * checked there and in tests/test_yoshida.c by observed order). */
-static const double yoshida4_w[] = {0, 1.3512071919596578};
-static const double yoshida6_w[] = {0, -1.17767998417887, 0.235573213359357,
-                                    0.784513610477560};
-static const double yoshida8_w[] = {0, 0.102799849391985, -1.96061023297549,
-                                    1.93813913762276, -0.158240635368243,
-                                    -1.44485223686048, 0.253693336566229,
-                                    0.914844246229740};
-
 /* Leapfrog is the composition of one substep (w0 = 1). */
 LEAPFROG_COMPOSITION(leapfrog, 0, NULL, 2, "kick-drift-kick Stormer-Verlet, 1 evaluation a step",
                      "Verlet (1967); Hairer, Lubich & Wanner (2006) Sec. I.1.4");
-LEAPFROG_COMPOSITION(yoshida4, 1, yoshida4_w, 4,
+LEAPFROG_COMPOSITION(yoshida4, 1, pb_yoshida4_w, 4,
                      "Yoshida order-4 leapfrog composition, 3 evaluations a step",
                      "Yoshida (1990), Physics Letters A 150, 262");
-LEAPFROG_COMPOSITION(yoshida6, 3, yoshida6_w, 6,
+LEAPFROG_COMPOSITION(yoshida6, 3, pb_yoshida6_w, 6,
                      "Yoshida order-6 leapfrog composition, 7 evaluations a step",
                      "Yoshida (1990), Physics Letters A 150, 262");
-LEAPFROG_COMPOSITION(yoshida8, 7, yoshida8_w, 8,
+LEAPFROG_COMPOSITION(yoshida8, 7, pb_yoshida8_w, 8,
                      "Yoshida order-8 leapfrog composition, 15 evaluations a step",
                      "Yoshida (1990), Physics Letters A 150, 262");

@@ -38,9 +38,10 @@
 #include <stdlib.h>
 #include <string.h>
 #include "integrators/method.h"
+#include "integrators/yoshida_coeffs.h"
 #include "propbench/dense.h"
 
-#define TT_STAGES_MAX 15 /* order 8: 2*7+1 substeps */
+#define TT_STAGES_MAX PB_YOSHIDA_STAGES_MAX
 
 /* One end of a step: r, v there, a there once evaluated. */
 typedef struct tt_end {
@@ -129,14 +130,7 @@ static int tt_start_with(void *ws, int k, const double *wk, const pb_force *f,
     w->f = *f;
     w->cfg = *cfg;
     w->mu = cfg->mu;
-    /* the sequence w_k..w_1, w0, w_1..w_k, w0 = 1 - 2 sum (leapfrog: w0 = 1) */
-    double sum = 0;
-    w->s = 2 * k + 1;
-    for (int i = 1; i <= k; i++) {
-        sum += wk[i];
-        w->c[k - i] = w->c[k + i] = wk[i];
-    }
-    w->c[k] = 1.0 - 2.0 * sum;
+    w->s = pb_yoshida_sequence(k, wk, w->c);
     w->d[0] = 0.5 * w->c[0];
     for (int j = 1; j < w->s; j++)
         w->d[j] = 0.5 * (w->c[j - 1] + w->c[j]);
@@ -409,25 +403,16 @@ static void tt_get_stats(const void *ws, pb_method_stats *st)
         .dense_order = (ORDER) - 1 < 4 ? (ORDER) - 1 : 4,                       \
     }
 
-/* Yoshida (1990) weights, the same digits as leapfrog.c (REFERENCES.md). */
-static const double tt_yoshida4_w[] = {0, 1.3512071919596578};
-static const double tt_yoshida6_w[] = {0, -1.17767998417887, 0.235573213359357,
-                                       0.784513610477560};
-static const double tt_yoshida8_w[] = {0, 0.102799849391985, -1.96061023297549,
-                                       1.93813913762276, -0.158240635368243,
-                                       -1.44485223686048, 0.253693336566229,
-                                       0.914844246229740};
-
 #define TT_SRC "Mikkola & Tanikawa (1999) MNRAS 310, 745; Preto & Tremaine (1999) AJ 118, 2532"
 LEAPFROG_TT("leapfrog-tt", leapfrog_tt, 0, NULL, 2,
             "time-transformed (log-Hamiltonian) leapfrog, ds = (mu/r) dt: exact Kepler "
             "orbit, error in time only; 1 evaluation a step", TT_SRC);
-LEAPFROG_TT("yoshida4-tt", yoshida4_tt, 1, tt_yoshida4_w, 4,
+LEAPFROG_TT("yoshida4-tt", yoshida4_tt, 1, pb_yoshida4_w, 4,
             "Yoshida order-4 composition of leapfrog-tt, 3 evaluations a step",
             TT_SRC "; Yoshida (1990) Physics Letters A 150, 262");
-LEAPFROG_TT("yoshida6-tt", yoshida6_tt, 3, tt_yoshida6_w, 6,
+LEAPFROG_TT("yoshida6-tt", yoshida6_tt, 3, pb_yoshida6_w, 6,
             "Yoshida order-6 composition of leapfrog-tt, 7 evaluations a step",
             TT_SRC "; Yoshida (1990) Physics Letters A 150, 262");
-LEAPFROG_TT("yoshida8-tt", yoshida8_tt, 7, tt_yoshida8_w, 8,
+LEAPFROG_TT("yoshida8-tt", yoshida8_tt, 7, pb_yoshida8_w, 8,
             "Yoshida order-8 composition of leapfrog-tt, 15 evaluations a step",
             TT_SRC "; Yoshida (1990) Physics Letters A 150, 262");
