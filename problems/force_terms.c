@@ -44,7 +44,7 @@ double pb_forces_energy(const pb_problem *p, double t, const double *r, const do
     e -= p->forces.inverse_cube_gamma / r2;
     if (p->forces.zonal_degree >= 2) {
         double a[3] = {0, 0, 0}, V = 0;
-        ft_zonal_d(p, r, a, &V);
+        ft_zonal_d(p, r, rn, a, &V);
         e += V;
     }
     return e;

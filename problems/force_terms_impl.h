@@ -23,14 +23,14 @@ FT_API FT_REAL FT_FN(ft_dot)(const FT_REAL *a, const FT_REAL *b)
  * Montenbruck & Gill Sec. 3.2). With V_n = mu J_n R^n r^-(n+1) P_n(s),
  * a = -grad V_n = mu J_n R^n / r^(n+2) [((n+1) P_n + s P_n') r_hat - P_n' z_hat];
  * P_n and P_n' by the Bonnet recurrence, P'_(n+1) = (n+1) P_n + s P'_n, which
- * has no pole at s = +-1. Adds to a; *V (may be NULL) receives V. */
-FT_API void FT_FN(ft_zonal)(const pb_problem *p, const FT_REAL *r, FT_REAL *a, FT_REAL *V)
+ * has no pole at s = +-1. rn = |r|. Adds to a; *V (may be NULL) receives V. */
+FT_API void FT_FN(ft_zonal)(const pb_problem *p, const FT_REAL *r, FT_REAL rn, FT_REAL *a, FT_REAL *V)
 {
     /* 1/(n+1) for n = 1..5, so the loop multiplies rather than divides (the
      * __float128 division costs several multiplications) */
     static const double inv[] = {0, 1.0 / 2, 1.0 / 3, 1.0 / 4, 1.0 / 5, 1.0 / 6};
     const pb_forces *f = &p->forces;
-    FT_REAL r2 = FT_FN(ft_dot)(r, r), rn = FT_SQRT(r2), irn = 1 / rn, s = r[2] * irn;
+    FT_REAL irn = 1 / rn, s = r[2] * irn;
     FT_REAL mu = p->mu, q = (FT_REAL)p->body_radius * irn;
     FT_REAL Pm = 1, P = s, dP = 1, qn = q, radial = 0, axial = 0, pot = 0;
     for (int n = 1; n < f->zonal_degree; n++) {
@@ -41,7 +41,8 @@ FT_API void FT_FN(ft_zonal)(const pb_problem *p, const FT_REAL *r, FT_REAL *a, F
         FT_REAL J = (FT_REAL)f->jn[n + 1] * qn;
         radial += J * ((FT_REAL)(n + 2) * P + s * dP);
         axial += J * dP;
-        pot += J * P;
+        if (V)
+            pot += J * P;
     }
     FT_REAL c = mu * irn * irn, cr = c * radial * irn;
     for (int i = 0; i < 3; i++)
@@ -95,14 +96,14 @@ FT_API FT_REAL FT_FN(ft_altitude)(const pb_problem *p, const FT_REAL *r)
 
 /* Drag a = -(1/2) rho (C_D A/m) |v_rel| v_rel with v_rel = v - omega x r
  * (Vallado 4th ed. Sec. 8.6.2); rho B is per metre, speeds in km/s, so the
- * result in km/s^2 carries a factor 1000. */
-FT_API void FT_FN(ft_drag)(const pb_problem *p, const FT_REAL *r, const FT_REAL *v, int band,
-                           FT_REAL *a)
+ * result in km/s^2 carries a factor 1000. rn = |r|. */
+FT_API void FT_FN(ft_drag)(const pb_problem *p, const FT_REAL *r, FT_REAL rn, const FT_REAL *v,
+                           int band, FT_REAL *a)
 {
     const pb_forces *f = &p->forces;
     FT_REAL w = f->body_rate;
     FT_REAL vr[3] = {v[0] + w * r[1], v[1] - w * r[0], v[2]};
-    FT_REAL h = FT_FN(ft_altitude)(p, r);
+    FT_REAL h = rn - (FT_REAL)p->body_radius;
     FT_REAL k = -(FT_REAL)0.5 * (FT_REAL)1000 * FT_FN(ft_density)(h, band) * (FT_REAL)f->ballistic_m2_kg
                 * FT_SQRT(FT_FN(ft_dot)(vr, vr));
     for (int i = 0; i < 3; i++)
@@ -183,14 +184,19 @@ FT_API void FT_FN(ft_circular)(const pb_circular_body *c, FT_REAL t, FT_REAL *s)
 /* A third body of parameter mu_b at s, direct and indirect terms together in
  * Battin's form (Battin 1987, Sec. 8.4, eq. 8.60): a = -mu_b/d^3 (r + F(q) s),
  * d = |s - r|, q = r.(r - 2s)/s^2, F(q) = q (3 + 3q + q^2)/(1 + (1 + q)^(3/2)),
- * which avoids the cancellation of mu_b((s - r)/d^3 - s/s^3) for far bodies. */
-FT_API void FT_FN(ft_third_body)(FT_REAL mu_b, const FT_REAL *s, const FT_REAL *r, FT_REAL *a)
+ * which avoids the cancellation of mu_b((s - r)/d^3 - s/s^3) for far bodies.
+ * d3 = |s - r|^3, or 0 to compute it here. */
+FT_API void FT_FN(ft_third_body)(FT_REAL mu_b, const FT_REAL *s, const FT_REAL *r, FT_REAL d3,
+                                 FT_REAL *a)
 {
-    FT_REAL d[3] = {s[0] - r[0], s[1] - r[1], s[2] - r[2]};
     FT_REAL rm2s[3] = {r[0] - 2 * s[0], r[1] - 2 * s[1], r[2] - 2 * s[2]};
     FT_REAL q = FT_FN(ft_dot)(r, rm2s) / FT_FN(ft_dot)(s, s);
     FT_REAL q1 = 1 + q, F = q * (3 + 3 * q + q * q) / (1 + q1 * FT_SQRT(q1));
-    FT_REAL d2 = FT_FN(ft_dot)(d, d), k = -mu_b / (d2 * FT_SQRT(d2));
+    if (d3 == 0) {
+        FT_REAL d[3] = {s[0] - r[0], s[1] - r[1], s[2] - r[2]}, d2 = FT_FN(ft_dot)(d, d);
+        d3 = d2 * FT_SQRT(d2);
+    }
+    FT_REAL k = -mu_b / d3;
     for (int i = 0; i < 3; i++)
         a[i] += k * (r[i] + F * s[i]);
 }
@@ -205,8 +211,25 @@ FT_API void FT_FN(ft_third_body)(FT_REAL mu_b, const FT_REAL *s, const FT_REAL *
  * is, which is smooth: the reference integrates each region with its own
  * formula between located boundaries. */
 enum { FT_REGION_GEOMETRY = -1, FT_REGION_SUN = 0, FT_REGION_PENUMBRA = 1, FT_REGION_UMBRA = 2 };
-FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REAL *r, int region,
-                            FT_REAL *g, FT_REAL *nu)
+
+/* The squared distances and distances of the satellite at r from the body's
+ * centre and from the Sun at s, which several terms share (each square root
+ * once an evaluation: in __float128 it is not cheap). */
+typedef struct FT_FN(ft_dist) {
+    FT_REAL rr, rn, dd, dn;
+} FT_FN(ft_dist);
+
+FT_API void FT_FN(ft_dist_fill)(const FT_REAL *s, const FT_REAL *r, FT_FN(ft_dist) *q)
+{
+    FT_REAL d[3] = {s[0] - r[0], s[1] - r[1], s[2] - r[2]};
+    q->rr = FT_FN(ft_dot)(r, r);
+    q->rn = FT_SQRT(q->rr);
+    q->dd = FT_FN(ft_dot)(d, d);
+    q->dn = FT_SQRT(q->dd);
+}
+
+FT_API int FT_FN(ft_shadow_at)(int model, FT_REAL R, const FT_REAL *s, const FT_REAL *r,
+                               const FT_FN(ft_dist) *q, int region, FT_REAL *g, FT_REAL *nu)
 {
     *nu = 1;
     /* a region given by the caller needs no geometry where its formula is a
@@ -219,10 +242,10 @@ FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REA
     }
     if (model == PB_SHADOW_CYLINDRICAL) {
         FT_REAL sn = FT_SQRT(FT_FN(ft_dot)(s, s)), along = FT_FN(ft_dot)(r, s) / sn;
-        FT_REAL rr = FT_FN(ft_dot)(r, r), perp = FT_SQRT(FT_FABS(rr - along * along));
+        FT_REAL perp = FT_SQRT(FT_FABS(q->rr - along * along));
         /* on the sunlit side the distance from the body's centre stands in:
          * equal to perp where along = 0, so g is continuous */
-        g[0] = along < 0 ? perp - R : FT_SQRT(rr) - R;
+        g[0] = along < 0 ? perp - R : q->rn - R;
         if (region == FT_REGION_GEOMETRY)
             region = g[0] < 0 ? FT_REGION_UMBRA : FT_REGION_SUN;
         *nu = region == FT_REGION_SUN ? 1 : 0;
@@ -230,9 +253,16 @@ FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REA
     }
     if (model != PB_SHADOW_CONICAL)
         return 0;
+    /* in the umbra the body's disc covers the Sun's (sb >= sa) unless the
+     * eclipse is annular; asin is increasing, so the sines tell which
+     * without the transcendental calls */
+    FT_REAL rs = (FT_REAL)PB_SUN_RADIUS_KM, dn = q->dn, rn = q->rn;
+    if (region == FT_REGION_UMBRA && R * dn >= rs * rn) {
+        *nu = 0;
+        return 2;
+    }
     FT_REAL d[3] = {s[0] - r[0], s[1] - r[1], s[2] - r[2]};
-    FT_REAL dn = FT_SQRT(FT_FN(ft_dot)(d, d)), rn = FT_SQRT(FT_FN(ft_dot)(r, r));
-    FT_REAL sa = FT_ASIN((FT_REAL)PB_SUN_RADIUS_KM / dn), sb = FT_ASIN(R / rn);
+    FT_REAL sa = FT_ASIN(rs / dn), sb = FT_ASIN(R / rn);
     FT_REAL cc = -FT_FN(ft_dot)(r, d) / (rn * dn);
     cc = cc > 1 ? 1 : cc < -1 ? -1 : cc;
     FT_REAL c = FT_ACOS(cc);
@@ -259,21 +289,29 @@ FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REA
     return 2;
 }
 
+FT_API int FT_FN(ft_shadow)(int model, FT_REAL R, const FT_REAL *s, const FT_REAL *r, int region,
+                            FT_REAL *g, FT_REAL *nu)
+{
+    FT_FN(ft_dist) q;
+    FT_FN(ft_dist_fill)(s, r, &q);
+    return FT_FN(ft_shadow_at)(model, R, s, r, &q, region, g, nu);
+}
+
 /* Cannonball radiation pressure a = nu P (AU/|d|)^2 C_R (A/m) d_hat, d from
  * the Sun to the satellite (Montenbruck & Gill Sec. 3.4); N/m^2 times m^2/kg
  * is m/s^2, hence the 1e-3 for km/s^2. */
-FT_API void FT_FN(ft_srp)(const pb_problem *p, const FT_REAL *sun, const FT_REAL *r, int region,
-                          FT_REAL *a)
+FT_API void FT_FN(ft_srp)(const pb_problem *p, const FT_REAL *sun, const FT_REAL *r,
+                          const FT_FN(ft_dist) *q, int region, FT_REAL *a)
 {
     const pb_forces *f = &p->forces;
     FT_REAL g[2], nu = 1;
-    FT_FN(ft_shadow)(f->shadow, (FT_REAL)p->body_radius, sun, r, region, g, &nu);
+    FT_FN(ft_shadow_at)(f->shadow, (FT_REAL)p->body_radius, sun, r, q, region, g, &nu);
     if (nu <= 0)
         return;
     FT_REAL d[3] = {r[0] - sun[0], r[1] - sun[1], r[2] - sun[2]};
-    FT_REAL d2 = FT_FN(ft_dot)(d, d), au = (FT_REAL)PB_AU_KM;
+    FT_REAL au = (FT_REAL)PB_AU_KM;
     FT_REAL k = nu * (FT_REAL)PB_SRP_1AU_N_M2 * (FT_REAL)1e-3 * (FT_REAL)f->cr
-                * (FT_REAL)f->srp_area_mass_m2_kg * au * au / (d2 * FT_SQRT(d2));
+                * (FT_REAL)f->srp_area_mass_m2_kg * au * au / (q->dd * q->dn);
     for (int i = 0; i < 3; i++)
         a[i] += k * d[i];
 }
@@ -300,24 +338,32 @@ FT_API void FT_FN(ft_accel_at)(const pb_problem *p, const FT_REAL *r, const FT_R
                                int region, int band, FT_REAL pos[3][3], FT_REAL *a)
 {
     const pb_forces *f = &p->forces;
-    FT_REAL r2 = FT_FN(ft_dot)(r, r), rn = FT_SQRT(r2);
+    FT_FN(ft_dist) q;
+    int sunlit = f->sun || f->srp_area_mass_m2_kg > 0;
+    if (sunlit) {
+        FT_FN(ft_dist_fill)(pos[0], r, &q);
+    } else {
+        q.rr = FT_FN(ft_dot)(r, r);
+        q.rn = FT_SQRT(q.rr);
+    }
+    FT_REAL r2 = q.rr, rn = q.rn;
     FT_REAL c = -(FT_REAL)p->mu / (r2 * rn);
     if (f->inverse_cube_gamma != 0)
         c -= 2 * (FT_REAL)f->inverse_cube_gamma / (r2 * r2);
     for (int i = 0; i < 3; i++)
         a[i] = c * r[i];
     if (f->zonal_degree >= 2)
-        FT_FN(ft_zonal)(p, r, a, NULL);
+        FT_FN(ft_zonal)(p, r, rn, a, NULL);
     if (f->drag)
-        FT_FN(ft_drag)(p, r, v, band, a);
+        FT_FN(ft_drag)(p, r, rn, v, band, a);
     if (f->sun)
-        FT_FN(ft_third_body)((FT_REAL)PB_GM_SUN, pos[0], r, a);
+        FT_FN(ft_third_body)((FT_REAL)PB_GM_SUN, pos[0], r, q.dd * q.dn, a);
     if (f->moon)
-        FT_FN(ft_third_body)((FT_REAL)PB_GM_MOON, pos[1], r, a);
+        FT_FN(ft_third_body)((FT_REAL)PB_GM_MOON, pos[1], r, 0, a);
     if (f->circular)
-        FT_FN(ft_third_body)((FT_REAL)f->circ.mu, pos[2], r, a);
+        FT_FN(ft_third_body)((FT_REAL)f->circ.mu, pos[2], r, 0, a);
     if (f->srp_area_mass_m2_kg > 0)
-        FT_FN(ft_srp)(p, pos[0], r, region, a);
+        FT_FN(ft_srp)(p, pos[0], r, &q, region, a);
 }
 
 FT_API void FT_FN(ft_accel)(const pb_problem *p, FT_REAL t, const FT_REAL *r, const FT_REAL *v,
