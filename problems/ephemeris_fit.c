@@ -1,7 +1,8 @@
-/* ephemeris_fit.c - Chebyshev interpolation of time-only body positions over
- * one reference step (ephemeris_fit.h). Barycentric formula at Chebyshev
- * points of the second kind, weights (-1)^j halved at both ends (Berrut &
- * Trefethen, SIAM Review 46 (2004) 501, eq. 5.1): stable at any t. */
+/* ephemeris_fit.c - interpolation of time-only body positions at Chebyshev
+ * points of the second kind over one reference step (ephemeris_fit.h),
+ * evaluated in the power basis of the window's own variable in [-1, 1]
+ * (degree 7 or 13: the check at a point off the nodes, made on that very
+ * form, bounds what its conditioning costs). */
 #include <quadmath.h>
 #include <string.h>
 #include "ephemeris_fit.h"
@@ -16,25 +17,46 @@
  * state. */
 #define EPH_FIT_TOL 1e-27Q
 
+/* The interpolant in powers of x = (t - tc) / (H/2) by Horner's rule: 7
+ * multiply-adds a coordinate for 8 nodes, against the barycentric form's
+ * divisions at every node (the evaluation is a sixth of the reference's
+ * work on a Sun-and-Moon problem). */
 void pb_ephemeris_fit_at(const pb_ephemeris_fit *fit, __float128 t, __float128 (*pos)[3])
 {
-    __float128 num[3][3] = {{0}}, den = 0;
-    for (int j = 0; j < fit->n; j++) {
-        __float128 d = t - fit->t[j];
-        if (d == 0) {
-            memcpy(pos, fit->pos[j], sizeof fit->pos[j]);
-            return;
-        }
-        __float128 c = fit->w[j] / d;
-        den += c;
-        for (int b = 0; b < 3; b++)
-            if (fit->used[b])
-                for (int i = 0; i < 3; i++)
-                    num[b][i] += c * fit->pos[j][b][i];
-    }
+    __float128 x = (t - fit->tc) * fit->inv_half;
     for (int b = 0; b < 3; b++)
-        for (int i = 0; i < 3; i++)
-            pos[b][i] = fit->used[b] ? num[b][i] / den : 0;
+        for (int i = 0; i < 3; i++) {
+            if (!fit->used[b]) {
+                pos[b][i] = 0;
+                continue;
+            }
+            __float128 acc = fit->coef[fit->n - 1][b][i];
+            for (int k = fit->n - 2; k >= 0; k--)
+                acc = acc * x + fit->coef[k][b][i];
+            pos[b][i] = acc;
+        }
+}
+
+/* The power-basis coefficients of the polynomial through (x[j], f[j]),
+ * j < n: Newton's divided differences, then the nested form expanded
+ * (both O(n^2), once a window). */
+static void fit_powers(const __float128 *x, const __float128 *f, int n, __float128 *c)
+{
+    __float128 d[PB_EPH_FIT_NODES];
+    for (int j = 0; j < n; j++)
+        d[j] = f[j];
+    for (int k = 1; k < n; k++)
+        for (int j = n - 1; j >= k; j--)
+            d[j] = (d[j] - d[j - 1]) / (x[j] - x[j - k]);
+    for (int k = 0; k < n; k++)
+        c[k] = 0;
+    c[0] = d[n - 1];
+    for (int k = n - 2; k >= 0; k--) {
+        /* c <- c (x - x[k]) + d[k] */
+        for (int m = n - 1; m >= 1; m--)
+            c[m] = c[m - 1] - x[k] * c[m];
+        c[0] = d[k] - x[k] * c[0];
+    }
 }
 
 /* Fit with n nodes over [t0, t0 + H] and check it at a point off the
@@ -46,11 +68,23 @@ static int fit_try(pb_ephemeris_fit *fit, const pb_problem *p, __float128 t0, __
     for (int j = 0; j <= m; j++) {
         /* node 0 at t0 + H, node m at t0: both step ends are nodes */
         fit->t[j] = t0 + 0.5Q * H * (1 + cosq(M_PIq * j / m));
-        fit->w[j] = (j % 2 ? -1 : 1) * ((j == 0 || j == m) ? 0.5Q : 1.0Q);
         pb_forces_bodies_q(p, fit->t[j], fit->pos[j]);
     }
     fit->t[m] = t0;
     fit->t[0] = t0 + H;
+    fit->tc = t0 + 0.5Q * H;
+    fit->inv_half = 2 / H;
+    __float128 x[PB_EPH_FIT_NODES], f[PB_EPH_FIT_NODES], c[PB_EPH_FIT_NODES];
+    for (int j = 0; j <= m; j++)
+        x[j] = (fit->t[j] - fit->tc) * fit->inv_half;
+    for (int b = 0; b < 3; b++)
+        for (int i = 0; i < 3 && fit->used[b]; i++) {
+            for (int j = 0; j <= m; j++)
+                f[j] = fit->pos[j][b][i];
+            fit_powers(x, f, n, c);
+            for (int k = 0; k < n; k++)
+                fit->coef[k][b][i] = c[k];
+        }
     __float128 tc = t0 + 0.3183098861837907Q * H, want[3][3] = {{0}}, got[3][3];
     pb_forces_bodies_q(p, tc, want);
     pb_ephemeris_fit_at(fit, tc, got);

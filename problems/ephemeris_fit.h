@@ -20,8 +20,9 @@ typedef struct pb_ephemeris_fit {
     int n;                                    /* nodes in use */
     int used[3];                              /* which bodies (Sun, Moon, circular) the problem has */
     __float128 t[PB_EPH_FIT_NODES];           /* nodes */
-    __float128 w[PB_EPH_FIT_NODES];           /* barycentric weights */
     __float128 pos[PB_EPH_FIT_NODES][3][3];   /* body positions at the nodes */
+    __float128 tc, inv_half;                  /* the window's centre and 2 / its length */
+    __float128 coef[PB_EPH_FIT_NODES][3][3];  /* the interpolant in powers of (t - tc) inv_half */
 } pb_ephemeris_fit;
 
 /* Fit the bodies of p over [t0, t0 + H]; fit->on says whether it may be used. */
