@@ -26,20 +26,24 @@ FT_API FT_REAL FT_FN(ft_dot)(const FT_REAL *a, const FT_REAL *b)
  * has no pole at s = +-1. rn = |r|. Adds to a; *V (may be NULL) receives V. */
 FT_API void FT_FN(ft_zonal)(const pb_problem *p, const FT_REAL *r, FT_REAL rn, FT_REAL *a, FT_REAL *V)
 {
-    /* 1/(n+1) for n = 1..5, so the loop multiplies rather than divides (the
-     * __float128 division costs several multiplications) */
-    static const double inv[] = {0, 1.0 / 2, 1.0 / 3, 1.0 / 4, 1.0 / 5, 1.0 / 6};
+    /* the recurrences' integers and 1/(n+1), n = 1..5, as FT_REAL
+     * constants: the loop neither converts nor divides (in __float128 each
+     * conversion is a call and a division costs several multiplications) */
+    static const FT_REAL k2n1[] = {1, 3, 5, 7, 9, 11}, kn[] = {0, 1, 2, 3, 4, 5};
+    static const FT_REAL kn1[] = {1, 2, 3, 4, 5, 6}, kn2[] = {2, 3, 4, 5, 6, 7};
+    static const FT_REAL inv[] = {1, (FT_REAL)1 / 2, (FT_REAL)1 / 3, (FT_REAL)1 / 4, (FT_REAL)1 / 5,
+                                  (FT_REAL)1 / 6};
     const pb_forces *f = &p->forces;
     FT_REAL irn = 1 / rn, s = r[2] * irn;
     FT_REAL mu = p->mu, q = (FT_REAL)p->body_radius * irn;
     FT_REAL Pm = 1, P = s, dP = 1, qn = q, radial = 0, axial = 0, pot = 0;
     for (int n = 1; n < f->zonal_degree; n++) {
-        FT_REAL Pn = ((FT_REAL)(2 * n + 1) * s * P - (FT_REAL)n * Pm) * (FT_REAL)inv[n];
-        FT_REAL dPn = (FT_REAL)(n + 1) * P + s * dP;
+        FT_REAL Pn = (k2n1[n] * s * P - kn[n] * Pm) * inv[n];
+        FT_REAL dPn = kn1[n] * P + s * dP;
         Pm = P, P = Pn, dP = dPn;
         qn *= q;
         FT_REAL J = (FT_REAL)f->jn[n + 1] * qn;
-        radial += J * ((FT_REAL)(n + 2) * P + s * dP);
+        radial += J * (kn2[n] * P + s * dP);
         axial += J * dP;
         if (V)
             pot += J * P;

@@ -1,8 +1,9 @@
-/* reference.c - reference trajectories by Gragg-Bulirsch-Stoer extrapolation
- * (Hairer, Norsett, Wanner, Solving ODEs I, Sec. II.9): the modified midpoint
- * rule with step numbers 2, 4, ..., 20 extrapolated in h^2 (order 20), step
- * control from the last two tableau entries, all in __float128; the force
- * models are re-evaluated here in __float128, never the problem's double accel. */
+/* reference.c - reference trajectories: the run of extrapolation steps
+ * (reference_step.c) from t0 to the sample times in __float128, with step
+ * control, shadow and atmosphere boundaries located and stepped onto
+ * exactly, eclipses inside a step caught (reference_dip.c) and manoeuvres
+ * applied; the force models are re-evaluated in __float128, never the
+ * problem's double accel. */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -11,12 +12,8 @@
 #include "problems/reference.h"
 #include "problems/reference_dip.h"
 #include "problems/force_terms.h"
-#include "problems/ephemeris_fit.h"
+#include "problems/reference_step.h"
 
-typedef __float128 ref_real;
-
-#define REF_N 6                 /* state (r, v), 3 + 3 */
-#define REF_K 10                /* extrapolation columns: order 2K */
 /* Columns of the trial steps that locate a boundary: their states serve
  * only to place the boundary in time (the integration itself steps there
  * with REF_K), and where REF_K columns meet the step tolerance, 7 are
@@ -26,145 +23,6 @@ typedef __float128 ref_real;
  * about 1e-12 s, below what ref_find_crossing asks */
 #define REF_K_TRIAL 7
 #define REF_MAX_STEPS 20000000L
-
-/* How a step's time is stretched near a located boundary. At a penumbra's
- * edges the visible fraction goes as depth^(3/2) (the overlap of two discs),
- * so the force has a (t - t_b)^(3/2) term there that no extrapolation step
- * resolves without shrinking towards the edge. A step [t0, t0 + H] with an
- * edge at one end is therefore taken in s in [0, 1] with t = t0 + H phi(s),
- * phi(s) = s^2 (edge at the start), 1 - (1 - s)^2 (at the end) or
- * 3s^2 - 2s^3 (both): the edge term becomes a power of s of degree 3 and the
- * integrand is smooth again (a change of variables of the kind used for
- * integrable end-point singularities in quadrature; common practice). */
-enum { REF_MAP_NONE = 0, REF_MAP_START = 1, REF_MAP_END = 2, REF_MAP_BOTH = 3 };
-
-/* The force as the reference evaluates it: the problem, the shadow region
- * whose formula holds until the next located boundary, and the time map of
- * the step being taken. */
-typedef struct ref_force {
-    const pb_problem *p;
-    int region;             /* shadow region (-1: none) */
-    int band;               /* atmosphere row (-1: no drag) */
-    pb_ephemeris_fit *fit;  /* the time-only bodies over the current step (NULL: none) */
-    int map;                /* REF_MAP_*: then the derivative is taken in s */
-    ref_real mt0, mH;       /* the mapped step's physical start and length */
-} ref_force;
-
-static void ref_deriv(const ref_force *F, ref_real t, const ref_real *y, ref_real *dy)
-{
-    ref_real pos[3][3], dtds = 1;
-    if (F->map) {
-        ref_real s = t, u = 1 - s;
-        ref_real phi = F->map == REF_MAP_START ? s * s
-                     : F->map == REF_MAP_END ? 1 - u * u : s * s * (3 - 2 * s);
-        dtds = F->mH * (F->map == REF_MAP_START ? 2 * s
-                      : F->map == REF_MAP_END ? 2 * u : 6 * s * u);
-        t = F->mt0 + F->mH * phi;
-    }
-    int fitted = F->fit && F->fit->on;
-    if (fitted)
-        pb_ephemeris_fit_at(F->fit, t, pos);
-    /* pb_reference_propagate refuses a force with no __float128 form first */
-    (void)pb_forces_deriv_q(F->p, t, y, F->region, F->band, fitted ? pos : NULL, dy);
-    if (F->map)
-        for (int i = 0; i < REF_N; i++)
-            dy[i] *= dtds;
-}
-
-/* Gragg's modified midpoint rule: m substeps of size H/m from y0 (f0 = f(y0)). */
-static void ref_midpoint(const ref_force *F, ref_real t0, const ref_real *y0, const ref_real *f0,
-                         ref_real H, int m, ref_real *out)
-{
-    ref_real h = H / m, zp[REF_N], z[REF_N], zn[REF_N], f[REF_N];
-    for (int i = 0; i < REF_N; i++) {
-        zp[i] = y0[i];
-        z[i] = y0[i] + h * f0[i];
-    }
-    for (int j = 1; j < m; j++) {
-        ref_deriv(F, t0 + j * h, z, f);
-        for (int i = 0; i < REF_N; i++) {
-            zn[i] = zp[i] + 2.0Q * h * f[i];
-            zp[i] = z[i];
-            z[i] = zn[i];
-        }
-    }
-    ref_deriv(F, t0 + H, z, f);
-    for (int i = 0; i < REF_N; i++)
-        out[i] = 0.5Q * (z[i] + zp[i] + h * f[i]);
-}
-
-static ref_real ref_norm3(const ref_real *x)
-{
-    return sqrtq(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
-}
-
-/* The time-only bodies fitted over a window that holds [t0, t0 + H]: the
- * last window when it does (a rejected step, a trial, the short steps near
- * a shadow's edge), else a new one of at least REF_FIT_SPAN_S (problems with
- * such bodies are in seconds), whose fit checks itself (ephemeris_fit.h). */
-#define REF_FIT_SPAN_S 120.0Q
-static void ref_fit_cover(pb_ephemeris_fit *fit, const pb_problem *p, ref_real t0, ref_real H)
-{
-    if (fit->on && fit->n > 0 && t0 >= fit->t[fit->n - 1] && t0 + H <= fit->t[0])
-        return;
-    pb_ephemeris_fit_make(fit, p, t0, fmaxq(H, REF_FIT_SPAN_S));
-}
-
-/* One extrapolated step of size H, its time mapped by map (REF_MAP_*); y1
- * receives the result, the return value is the scaled error estimate
- * (relative to |r| and |v| separately). */
-static ref_real ref_step_k(const ref_force *Fp, ref_real t0, const ref_real *y0, ref_real H,
-                           int map, int K, ref_real *y1)
-{
-    ref_real T[REF_K][REF_N], f0[REF_N];
-    ref_force Fm = *Fp, *F = &Fm;
-    F->map = map;
-    F->mt0 = t0;
-    F->mH = H;
-    if (F->fit)
-        ref_fit_cover(F->fit, F->p, t0, H);
-    /* in s the step runs over [0, 1] */
-    ref_real s0 = map ? 0 : t0, S = map ? 1 : H;
-    ref_deriv(F, s0, y0, f0);
-    for (int j = 0; j < K; j++) {
-        int nj = 2 * (j + 1);
-        ref_midpoint(F, s0, y0, f0, S, nj, T[j]);
-        /* Aitken-Neville in place: T[j-k] becomes the k-times extrapolated value. */
-        for (int k = 1; k <= j; k++) {
-            int nk = 2 * (j - k + 1);
-            ref_real q = (ref_real)nj / nk;
-            ref_real den = q * q - 1.0Q;
-            for (int i = 0; i < REF_N; i++)
-                T[j - k][i] = T[j - k + 1][i] + (T[j - k + 1][i] - T[j - k][i]) / den;
-        }
-    }
-    /* T[0] is the fully extrapolated value, T[1] the one before it. */
-    ref_real dr[3], dv[3];
-    for (int i = 0; i < 3; i++) {
-        dr[i] = T[0][i] - T[1][i];
-        dv[i] = T[0][i + 3] - T[1][i + 3];
-    }
-    ref_real sr = fmaxq(ref_norm3(y0), ref_norm3(T[0]));
-    ref_real sv = fmaxq(ref_norm3(y0 + 3), ref_norm3(T[0] + 3));
-    memcpy(y1, T[0], sizeof T[0]);
-    ref_real er = sr > 0 ? ref_norm3(dr) / sr : ref_norm3(dr);
-    ref_real ev = sv > 0 ? ref_norm3(dv) / sv : ref_norm3(dv);
-    return fmaxq(er, ev);
-}
-
-static ref_real ref_step(const ref_force *F, ref_real t0, const ref_real *y0, ref_real H,
-                         int map, ref_real *y1)
-{
-    return ref_step_k(F, t0, y0, H, map, REF_K, y1);
-}
-
-static int ref_finite(const ref_real *y)
-{
-    for (int i = 0; i < REF_N; i++)
-        if (!finiteq(y[i]))
-            return 0;
-    return 1;
-}
 
 /* The running integration: state, step size, tolerance, the boundary
  * functions at the current state, and what is known of the next boundary. */
@@ -181,6 +39,7 @@ typedef struct ref_run {
     ref_real h_cruise;      /* the step size before the last region with edge terms was entered */
     ref_real rej_t, rej_H, rej_err; /* the last rejected attempt */
     ref_real acc_t, acc_H, acc_err; /* the last accepted step */
+    ref_real appr_err;              /* the last accepted step's towards the pending edge (1e300: none) */
     ref_real t_fresh;               /* when the last edge was crossed */
     ref_real edge_k;                /* a step beside a singular edge errs by about edge_k H^(5/2) (0: not yet seen) */
     ref_real t_far, y_far[REF_N], g_far[4]; /* a state just past it, and its functions */
@@ -197,9 +56,9 @@ static int ref_crossed(const ref_real *g0, const ref_real *g1, int n)
 /* The state and boundary functions at w->t + tau, by one step from w. */
 static int ref_trial(ref_run *w, ref_real tau, ref_real *y, ref_real *g)
 {
-    ref_real err = ref_step_k(&w->F, w->t, w->y, tau, w->fresh ? REF_MAP_START : REF_MAP_NONE,
+    ref_real err = pb_ref_step(&w->F, w->t, w->y, tau, w->fresh ? REF_MAP_START : REF_MAP_NONE,
                               REF_K_TRIAL, y);
-    if (!ref_finite(y) || !finiteq(err))
+    if (!pb_ref_finite(y) || !finiteq(err))
         return PB_ENONFINITE;
     int ns;
     pb_forces_events_q(w->p, w->t + tau, y, w->F.band, g, &ns);
@@ -215,64 +74,123 @@ typedef struct ref_bracket {
 
 /* Function j's crossing within (0, br->hi], by the Illinois variant of
  * regula falsi (Dowell & Jarratt 1971) with a bisection every fourth trial
- * as a safeguard, to a bracket of tol * H. The integration does not start
- * from the bracket: it steps to lo itself, so lo need only be close to the
- * boundary and on its near side; the far side's formula then holds over at
- * most tol * H. Where the force jumps there (a cylindrical shadow, a row of
- * the atmosphere table), that is a velocity error of the jump times tol H:
- * REF_EVENT_TOL_JUMP keeps it below 1e-24 km/s for any step here. At a
- * conical shadow's boundary the force is continuous and the two formulas
- * differ by a (tol H / T_pen)^(3/2) part of the radiation pressure (T_pen
- * the penumbra's duration): REF_EVENT_TOL_SOFT keeps that below 1e-27 km/s
- * over the bracket for a LEO or a GEO penumbra. */
+ * as a safeguard, to a bracket of tol * H, or of four times the distance
+ * over which g clears the trial states' noise (ref_event_noise), whichever
+ * is wider. The integration does not start from the bracket: it steps to lo
+ * itself, so lo need only be close to the boundary and on its near side;
+ * the far side's formula then holds over at most the bracket. Where the
+ * force jumps there (a cylindrical shadow, a row of the atmosphere table),
+ * that is a velocity error of the jump times the bracket: the noise bound
+ * (about 3e-11 s for a LEO shadow's wall) keeps it near 2e-21 km/s, and
+ * REF_EVENT_TOL_JUMP asks for no less. At a conical shadow's boundary the
+ * force is continuous and the two formulas differ by a (tol H / T_pen)^(3/2)
+ * part of the radiation pressure (T_pen the penumbra's duration):
+ * REF_EVENT_TOL_SOFT keeps that below 1e-27 km/s over the bracket for a LEO
+ * or a GEO penumbra. Where the force jumps, the Hermite forecast of the root
+ * (guess, in (0, H); 0: none) is bracketed first and regula falsi's points
+ * are tried in pairs once the bracket is narrow. */
 #define REF_EVENT_TOL_JUMP 1e-16Q
 #define REF_EVENT_TOL_SOFT 1e-9Q
-static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_bracket *br)
+/* The size below which boundary function j's value says nothing about its
+ * sign: ten times the error of a trial state (about 1e-15 of it), in g's
+ * unit (rad for the conical shadow's angles, else km, scaled by the body's
+ * radius). */
+static ref_real ref_event_noise(const ref_run *w, int j)
+{
+    int conical = j < w->nshadow && w->p->forces.shadow == PB_SHADOW_CONICAL;
+    return 1e-14Q * (conical || !(w->p->body_radius > 0) ? 1 : w->p->body_radius);
+}
+
+/* How far a shadow function's Hermite forecast of its root over a step of
+ * length H may be off, in time: the interpolant's remainder
+ * (reference_dip.c), (w H)^3 / 384 of the step with w the orbital rate,
+ * four times over. */
+static ref_real ref_guess_error(const ref_run *w, ref_real H)
+{
+    ref_real rn = pb_ref_norm3(w->y), vn = pb_ref_norm3(w->y + 3), wH = rn > 0 ? vn / rn * H : 1;
+    return H * wH * wH * wH / 96;
+}
+
+/* The Illinois bracket of ref_find_crossing. */
+typedef struct ref_root {
+    ref_real a, b, ga, gb, fa, fb;  /* ends, their (Illinois-scaled) values, their true values */
+    int side;
+} ref_root;
+
+/* One trial at m narrows the bracket. */
+static int ref_root_try(ref_run *w, int j, ref_real m, ref_root *R, ref_bracket *br)
+{
+    ref_real y[REF_N], g[4];
+    int s = ref_trial(w, m, y, g);
+    if (s)
+        return s;
+    if ((g[j] > 0) == (R->ga > 0)) {
+        R->a = m, R->ga = R->fa = g[j];
+        if (R->side == -1)
+            R->gb *= 0.5Q;  /* Illinois: the stale end's value is halved */
+        R->side = -1;
+    } else {
+        R->b = m, R->gb = R->fb = g[j];
+        memcpy(br->g_hi, g, sizeof g);
+        memcpy(br->y_hi, y, sizeof y);
+        if (R->side == 1)
+            R->ga *= 0.5Q;
+        R->side = 1;
+    }
+    return PB_OK;
+}
+
+static int ref_find_crossing(ref_run *w, int j, ref_real H, ref_real guess, ref_bracket *br)
 {
     /* below g_at the near side of the edge just crossed would answer */
-    ref_real a = w->g_at, b = br->hi, ga = w->g[j], gb = br->g_hi[j], y[REF_N], g[4];
+    ref_root R = {w->g_at, br->hi, w->g[j], br->g_hi[j], w->g[j], br->g_hi[j], 0};
+    ref_real noise = ref_event_noise(w, j);
     int soft = j < w->nshadow && w->p->forces.shadow == PB_SHADOW_CONICAL;
     ref_real tol = soft ? REF_EVENT_TOL_SOFT : REF_EVENT_TOL_JUMP;
-    int side = 0;
-    for (int it = 0; b - a > tol * H && it < 200; it++) {
-        ref_real m = (it % 4 == 3 || gb == ga) ? 0.5Q * (a + b) : (a * gb - b * ga) / (gb - ga);
-        if (!(m > a && m < b))
-            m = 0.5Q * (a + b);
-        int s = ref_trial(w, m, y, g);
+    for (int it = 0; it < 200; it++) {
+        /* lean: the distance over which g clears its noise, twice; the
+         * bracket is not closed below four times it, so that its far end
+         * holds the far side's sign beyond doubt (ref_far_side) */
+        ref_real w0 = R.b - R.a, lean = R.fb != R.fa ? 2 * noise * w0 / fabsq(R.fb - R.fa) : 0;
+        if (!(w0 > fmaxq(tol * H, 4 * lean)))
+            break;
+        ref_real m = (it % 4 == 3 || R.gb == R.ga) ? 0.5Q * (R.a + R.b)
+                                                   : (R.a * R.gb - R.b * R.ga) / (R.gb - R.ga);
+        /* a forecast root is bracketed first, by its error bound each side
+         * (where the force jumps: a continuous one needs the boundary to
+         * 1e-9 of the step only, which regula falsi reaches as soon) */
+        if (!soft && guess > 0 && it < 2)
+            m = guess + (it ? 1 : -1) * fmaxq(1e-6Q * H, ref_guess_error(w, H));
+        if (!(m > R.a && m < R.b))
+            m = 0.5Q * (R.a + R.b);
+        /* on a narrow bracket regula falsi is good to far better than the
+         * bracket: try both sides of its point at once, lean apart */
+        int pair = !soft && !(guess > 0 && it < 2) && it % 4 != 3 && w0 < 1e-2Q * H &&
+                   m - lean > R.a && m + lean < R.b && lean > 0;
+        if (!pair && m + lean < R.b)
+            m += lean;
+        int s = ref_root_try(w, j, pair ? m - lean : m, &R, br);
+        if (!s && pair)
+            s = ref_root_try(w, j, m + lean, &R, br);
         if (s)
             return s;
-        if ((g[j] > 0) == (ga > 0)) {
-            a = m, ga = g[j];
-            if (side == -1)
-                gb *= 0.5Q;  /* Illinois: the stale end's value is halved */
-            side = -1;
-        } else {
-            b = m, gb = g[j];
-            memcpy(br->g_hi, g, sizeof g);
-            memcpy(br->y_hi, y, sizeof y);
-            if (side == 1)
-                ga *= 0.5Q;
-            side = 1;
-        }
     }
-    br->lo = a;
-    br->hi = b;
+    br->lo = R.a;
+    br->hi = R.b;
     return PB_OK;
 }
 
 /* The far end of a located crossing of function j must hold the far side's
- * sign beyond doubt: the root finder may close its bracket to 1e-27 s,
+ * sign beyond doubt: a root finder may close its bracket to 1e-27 s,
  * leaving g there at the level of the trial states' error (about 1e-15 of
  * the state), where its sign says nothing, and a wrong sign would send the
  * next step from the edge back across it (measured: a GEO eclipse skipped
- * whole). The far end moves on, by a few times the distance at which g
- * clears 1e-12 of its unit (rad, or the body's radius in km) at the
- * step's mean rate, until it does; the far side's formula then serves over
- * that stretch before the boundary (for a jump in LEO, below 1e-19 km/s). */
+ * whole). ref_find_crossing's trials lean past the root for this; where
+ * its far end still sits in the noise, the far end moves on, by a few times
+ * the distance at which g clears it at the step's mean rate, until it does. */
 static int ref_far_side(ref_run *w, int j, ref_real H, ref_real rate, ref_bracket *br)
 {
-    int conical = j < w->nshadow && w->p->forces.shadow == PB_SHADOW_CONICAL;
-    ref_real noise = 1e-12Q * (conical || !(w->p->body_radius > 0) ? 1 : w->p->body_radius);
+    ref_real noise = ref_event_noise(w, j);
     int far_pos = !(w->g[j] > 0);
     ref_real tau = br->hi - br->lo, y[REF_N], g[4];
     for (int k = 0; k < 8 && fabsq(br->g_hi[j]) < noise; k++) {
@@ -310,7 +228,9 @@ static int ref_locate_edge(ref_run *w, ref_real H, const ref_real *y1, const ref
     for (int j = 0; j < w->nev; j++) {
         if ((w->g[j] > 0) == (br.g_hi[j] > 0))
             continue;  /* no crossing before the earliest one found so far */
-        int s = ref_find_crossing(w, j, H, &br);
+        ref_real guess = j < w->nshadow && !w->g_at
+                             ? H * pb_ref_shadow_root(w->p, w->F.band, j, w->t, w->y, H, y1) : 0;
+        int s = ref_find_crossing(w, j, H, guess, &br);
         if (s)
             return s;
         jc = j;
@@ -319,6 +239,7 @@ static int ref_locate_edge(ref_run *w, ref_real H, const ref_real *y1, const ref
     if (s)
         return s;
     w->pending = 1;
+    w->appr_err = 1e300Q;
     w->t_edge = w->t + br.lo;
     w->h_keep = H;
     w->t_far = w->t + br.hi;
@@ -386,6 +307,39 @@ static ref_real ref_reject_factor(ref_run *w, ref_real H, ref_real err, ref_real
     return fac;
 }
 
+/* Just inside a penumbra its far edge is near and predictable: each shadow
+ * function's value and rate (central differences along the velocity) give
+ * when it reaches zero if it heads there; a trial a little past the nearest
+ * such time that finds a sign changed is a bracket, and the edge is located
+ * at once, so that the steps across the penumbra know how far they may go
+ * instead of one of them crossing the edge unawares and being thrown away
+ * (a linear forecast over a penumbra, a hundredth of an orbit, is good to
+ * about 1%: the trial goes 5% past it). */
+static int ref_predict_edge(ref_run *w)
+{
+    ref_real dt = 1e-4Q * w->h_cruise, rp[3], rm[3], gp[4], gm[4], tau = 1e300Q;
+    int ns;
+    for (int i = 0; i < 3; i++) {
+        rp[i] = w->y[i] + dt * w->y[i + 3];
+        rm[i] = w->y[i] - dt * w->y[i + 3];
+    }
+    pb_forces_events_q(w->p, w->t + dt, rp, w->F.band, gp, &ns);
+    pb_forces_events_q(w->p, w->t - dt, rm, w->F.band, gm, &ns);
+    for (int j = 0; j < w->nshadow; j++) {
+        ref_real rate = (gp[j] - gm[j]) / (2 * dt), g = 0.5Q * (gp[j] + gm[j]);
+        if ((g > 0) == (w->g[j] > 0) && (g > 0) != (rate > 0) && rate != 0)
+            tau = fminq(tau, -g / rate);
+    }
+    if (!(tau < w->h_cruise))
+        return PB_OK;
+    ref_real y[REF_N], g[4];
+    tau *= 1.05Q;
+    int s = ref_trial(w, tau, y, g);
+    if (s || !ref_crossed(w->g, g, w->nev))
+        return s;
+    return ref_locate_edge(w, tau, y, g);
+}
+
 /* The longest step beside a singular edge (one with the edge at its start
  * or end) whose error is predicted to be half the tolerance. Such a step's
  * error goes as its length to the power 5/2 whatever the map: the visible
@@ -401,22 +355,61 @@ static ref_real ref_edge_step(const ref_run *w)
     return w->edge_k > 0 ? powq(0.5Q * w->tol / w->edge_k, 0.4Q) : 1e300Q;
 }
 
+/* An accepted step: its length, error estimate and the controller's
+ * factor, where it ended (end, when last) and how it stood to the edges. */
+typedef struct ref_taken {
+    ref_real H, err, fac, end;
+    int map, last, at_edge, approach;
+} ref_taken;
+
+/* Move w over the accepted step (state y1, boundary functions g1) and set
+ * the next step's size; nonzero past REF_MAX_STEPS. */
+static int ref_accept(ref_run *w, const ref_taken *st, const ref_real *y1, const ref_real *g1)
+{
+    memcpy(w->y, y1, REF_N * sizeof *y1);
+    if (w->nev && !w->pending) {
+        memcpy(w->g, g1, sizeof w->g);
+        w->g_at = 0;
+    }
+    w->acc_t = w->t, w->acc_H = st->H, w->acc_err = st->err;
+    w->appr_err = st->approach ? st->err : 1e300Q;
+    w->t = st->last ? st->end : w->t + st->H;
+    w->fresh = 0;
+    if (++w->steps > REF_MAX_STEPS)
+        return 1;
+    if (!st->last || st->fac < 1)
+        w->h = st->H * st->fac;
+    /* off an edge, the next step may be three times the distance */
+    if (st->map & REF_MAP_START)
+        w->h = fmaxq(w->h, 3 * st->H);
+    if (st->at_edge)
+        ref_cross_edge(w);
+    return 0;
+}
+
 /* Step w exactly to target, stopping at every shadow boundary on the way. */
 static int ref_advance(ref_run *w, ref_real target)
 {
     ref_real y1[REF_N], g1[4];
     int ns;
     while (w->t < target) {
+        if (w->fresh && !w->pending && w->nshadow) {
+            int s = ref_predict_edge(w);
+            if (s)
+                return s;
+        }
         int to_edge = w->pending && w->t_edge <= target;
         ref_real end = to_edge ? w->t_edge : target;
         ref_real H = w->h, left = end - w->t, edge_h = ref_edge_step(w);
         int sing_end = to_edge && pb_forces_region_has_edge_terms(w->p, w->F.region);
         /* towards a singular edge a step's error depends on its length
          * against its distance from the edge: approach it by steps of three
-         * quarters of what is left until the last step is predicted to pass;
-         * from one, start with that step */
+         * quarters of what is left (seven eighths after a step that erred
+         * by less than 1e-4 of the tolerance: the error goes as about the
+         * ninth power of that ratio) until the last step is predicted to
+         * pass; from one, start with that step */
         if (sing_end && left > edge_h)
-            H = fminq(H, 0.75Q * left);
+            H = fminq(H, (w->appr_err < 1e-4Q * w->tol ? 0.875Q : 0.75Q) * left);
         if (w->fresh)
             H = fminq(H, edge_h);
         int last = H >= left;
@@ -424,8 +417,8 @@ static int ref_advance(ref_run *w, ref_real target)
             H = left;
         int at_edge = last && to_edge;
         int map = (w->fresh ? REF_MAP_START : 0) | (at_edge && sing_end ? REF_MAP_END : 0);
-        ref_real err = ref_step(&w->F, w->t, w->y, H, map, y1);
-        if (!ref_finite(y1) || !finiteq(err))
+        ref_real err = pb_ref_step(&w->F, w->t, w->y, H, map, REF_K, y1);
+        if (!pb_ref_finite(y1) || !finiteq(err))
             return PB_ENONFINITE;
         /* a step across a boundary is cut there, accurate or not: the error
          * estimate of a step across a jump says nothing (no boundary lies
@@ -451,20 +444,9 @@ static int ref_advance(ref_run *w, ref_real target)
             continue;
         }
         if (err <= w->tol) {
-            memcpy(w->y, y1, sizeof y1);
-            if (w->nev && !w->pending) {
-                memcpy(w->g, g1, sizeof g1);
-                w->g_at = 0;
-            }
-            w->acc_t = w->t, w->acc_H = H, w->acc_err = err;
-            w->t = last ? end : w->t + H;
-            w->fresh = 0;
-            if (++w->steps > REF_MAX_STEPS)
+            ref_taken st = {H, err, fac, end, map, last, at_edge, sing_end && !last};
+            if (ref_accept(w, &st, y1, g1))
                 return PB_EMAXSTEPS;
-            if (!last || fac < 1)
-                w->h = H * fac;
-            if (at_edge)
-                ref_cross_edge(w);
         } else {
             fac = ref_reject_factor(w, H, err, fac);
             w->h = H * fac;
@@ -486,7 +468,7 @@ static void ref_apply_manoeuvre(ref_run *w, const pb_manoeuvre *m)
     h[0] = r[1] * v[2] - r[2] * v[1];
     h[1] = r[2] * v[0] - r[0] * v[2];
     h[2] = r[0] * v[1] - r[1] * v[0];
-    ref_real rn = ref_norm3(r), hn = ref_norm3(h);
+    ref_real rn = pb_ref_norm3(r), hn = pb_ref_norm3(h);
     for (int i = 0; i < 3; i++)
         R[i] = r[i] / rn, C[i] = h[i] / hn;
     I[0] = C[1] * R[2] - C[2] * R[1];
@@ -503,13 +485,13 @@ int pb_reference_propagate(const pb_problem *p, const double *times, int n,
     if (!p || p->dim < 1 || p->dim > 3 || n < 0 || (n > 0 && !times) || !(tol > 0) ||
         !pb_forces_have_quad(p))
         return PB_EINVAL;
-    ref_run w = {.p = p, .t = p->t0, .tol = tol, .rej_t = -1, .t_fresh = 1e300Q};
+    ref_run w = {.p = p, .t = p->t0, .tol = tol, .rej_t = -1, .t_fresh = 1e300Q, .appr_err = 1e300Q};
     for (int i = 0; i < p->dim; i++) {
         w.y[i] = p->r0[i];
         w.y[i + 3] = p->v0[i];
     }
-    ref_real vn = ref_norm3(w.y + 3);
-    w.h = vn > 0 ? 0.01Q * ref_norm3(w.y) / vn : 1e-3Q;
+    ref_real vn = pb_ref_norm3(w.y + 3);
+    w.h = vn > 0 ? 0.01Q * pb_ref_norm3(w.y) / vn : 1e-3Q;
     if (p->period > 0 && w.h > p->period / 50)
         w.h = p->period / 50;
     w.F.band = pb_forces_band_q(p, w.y);

@@ -95,3 +95,25 @@ __float128 pb_ref_shadow_dip(const pb_problem *p, int band, int nshadow, __float
     }
     return cut;
 }
+
+__float128 pb_ref_shadow_root(const pb_problem *p, int band, int j, __float128 t0,
+                              const __float128 *y0, __float128 H, const __float128 *y1)
+{
+    dip_real g0[4], g1[4], r0[4], r1[4], dt = 1e-3Q * H;
+    dip_end(p, band, t0, y0, dt, g0, r0);
+    dip_end(p, band, t0 + H, y1, dt, g1, r1);
+    if ((g0[j] > 0) == (g1[j] > 0))
+        return 0;
+    /* the Hermite cubic's sign change, by bisection: it has one in (0, 1) */
+    dip_real a0 = g0[j], d0 = r0[j] * H, a1 = g1[j], d1 = r1[j] * H;
+    dip_real c2 = 3 * (a1 - a0) - 2 * d0 - d1, c3 = 2 * (a0 - a1) + d0 + d1, lo = 0, hi = 1;
+    for (int it = 0; it < 60; it++) {
+        dip_real m = 0.5Q * (lo + hi), v = a0 + m * (d0 + m * (c2 + m * c3));
+        if ((v > 0) == (a0 > 0))
+            lo = m;
+        else
+            hi = m;
+    }
+    return 0.5Q * (lo + hi);
+}
+

@@ -16,4 +16,10 @@
 __float128 pb_ref_shadow_dip(const pb_problem *p, int band, int nshadow, __float128 t0,
                              const __float128 *y0, __float128 H, const __float128 *y1);
 
+/* Where shadow function j, whose sign differs at the step's two ends,
+ * crosses zero by the same Hermite model: the fraction of the step in
+ * (0, 1), a first guess for the root finder (0: no sign change). */
+__float128 pb_ref_shadow_root(const pb_problem *p, int band, int j, __float128 t0,
+                              const __float128 *y0, __float128 H, const __float128 *y1);
+
 #endif
