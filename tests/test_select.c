@@ -235,6 +235,41 @@ Test(select, jobs_do_not_change_answers)
     json_decref(d1), json_decref(d2);
 }
 
+/* Each answer's figures come from its search run (a run is deterministic;
+ * only its timing pass is run again): they are those of `propbench run` of
+ * the answer's own command, fingerprint (the final state's bits), steps,
+ * evaluations and largest error alike. */
+Test(select, answer_figures_are_those_of_its_run)
+{
+    json_t *d = sel_run((const char *[]){K10, "--max-pos-err", "1e-6", "--methods", "rk4,rkf45", NULL}, 0);
+    const char *methods[] = {"rk4", "rkf45"};
+    for (int i = 0; i < 2; i++) {
+        json_t *e = sel_entry(d, methods[i]);
+        char dir[256], spo[32], tol[32];
+        pbt_tmpdir(dir, sizeof dir);
+        snprintf(spo, sizeof spo, "%lld", (long long)json_integer_value(json_object_get(e, "steps_per_orbit")));
+        snprintf(tol, sizeof tol, "%.17g", json_number_value(json_object_get(e, "tolerance")));
+        const char *a[] = {"run", K10, "--method", methods[i], i ? "--tolerance" : "--steps-per-orbit",
+                           i ? tol : spo, "--repeats", "0", "--out", dir, NULL};
+        cr_assert_eq(cli(a), 0, "run: %s", err_buf);
+        char path[320];
+        snprintf(path, sizeof path, "%s/summary.json", dir);
+        json_t *run = json_load_file(path, 0, NULL);
+        cr_assert_not_null(run);
+        json_t *c = json_array_get(json_object_get(run, "cases"), 0);
+        cr_assert_str_eq(json_string_value(json_object_get(c, "fingerprint")),
+                         json_string_value(json_object_get(e, "fingerprint")), "%s", methods[i]);
+        json_t *cost = json_object_get(c, "cost");
+        cr_assert_eq(json_integer_value(json_object_get(cost, "steps")), json_integer_value(json_object_get(e, "steps")));
+        cr_assert_eq(json_integer_value(json_object_get(cost, "evals")), json_integer_value(json_object_get(e, "evals")));
+        json_t *m = json_object_get(c, "metrics");
+        cr_assert_eq(json_number_value(json_object_get(m, "pos_err_max")), sel_num(d, methods[i], "pos_err_max"));
+        cr_assert(sel_num(d, methods[i], "ns_per_step") > 0, "%s: timed", methods[i]);
+        json_decref(run);
+    }
+    json_decref(d);
+}
+
 /* The secant search against the bisection it replaced (commit 63402f1:
  * ladder, bisection to adjacent whole steps or 10% in tolerance, neighbour,
  * timed rerun), on kepler-e0.5 over 100 orbits at 1e-6: the same answers

@@ -75,6 +75,33 @@ Test(timing, counts_are_those_of_the_metric_pass)
     }
 }
 
+/* The timing pass alone (pb_case_time_only, what select uses for an answer
+ * whose metric run it already has) integrates what pb_case_run's timing pass
+ * does: the same counts, for fixed-step, adaptive and multistep methods. */
+Test(timing, time_only_counts_what_the_full_run_times)
+{
+    const char *methods[] = {"rk4", "gauss-jackson8", "rkf45", "gsl-msadams"};
+    for (int i = 0; i < 4; i++) {
+        pb_case_spec spec = timing_spec(methods[i], 200, 1e-8, 5, 3);
+        if (spec.method->flags & PB_KIND_FIXED)
+            spec.tolerance = 0;
+        else
+            spec.steps_per_orbit = 0;
+        pb_case_result res, alone;
+        timing_run(&spec, &res);
+        memset(&alone, 0, sizeof alone);
+        cr_assert_eq(pb_case_time_only(&spec, res.steps + res.startup_steps, &alone), PB_OK);
+        assert_timed(&spec, &alone);
+        cr_assert_eq(alone.timing_steps, res.timing_steps, "%s", methods[i]);
+        cr_assert_eq(alone.timing_evals, res.timing_evals, "%s", methods[i]);
+        pb_case_result_free(&res);
+    }
+    pb_case_spec bad = timing_spec("rk4", 0, 0, 5, 3);
+    pb_case_result r;
+    memset(&r, 0, sizeof r);
+    cr_assert_eq(pb_case_time_only(&bad, 1000, &r), PB_EINVAL, "no step: a bad spec");
+}
+
 /* A case longer than the timing pass's 200000 steps is timed over its
  * first 200000 (timing.c's TIMING_STEPS), on the step grid: the counts of
  * the metric pass of the 200000-step case. */

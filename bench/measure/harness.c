@@ -552,6 +552,20 @@ out:
     return rc;
 }
 
+int pb_case_time_only(const pb_case_spec *spec, long steps_done, pb_case_result *res)
+{
+    char err[256];
+    if (pb_case_validate(spec, err, sizeof err))
+        return PB_EINVAL;
+    double horizon = pb_case_horizon(spec);
+    pb_method_config cfg;
+    harness_config(spec, horizon, &cfg);
+    double h = (pb_case_method(spec)->flags & PB_KIND_FIXED) ? cfg.h : 0;
+    res->ns_per_step = res->ns_per_eval = NAN;
+    pb_case_time(spec, &cfg, harness_integration_end(spec, horizon, h), steps_done, res);
+    return PB_OK;
+}
+
 void pb_case_result_free(pb_case_result *res)
 {
     if (!res)

@@ -40,6 +40,13 @@ double pb_case_fixed_steps(const pb_case_spec *spec);
 int pb_case_run(const pb_case_spec *spec, pb_case_result *res);
 void pb_case_result_free(pb_case_result *res);
 
+/* The timing pass alone of a case whose metric pass already ran and took
+ * steps_done steps (its steps and start-up steps): fills res's timing
+ * fields (ns_per_step, ns_per_eval, timing_*), nothing else. A run is
+ * deterministic, so this times what pb_case_run would have timed. 0, or
+ * PB_EINVAL for a bad spec. */
+int pb_case_time_only(const pb_case_spec *spec, long steps_done, pb_case_result *res);
+
 /* "ok", "diverged", "max_steps" or "crashed" for a pb_status of an integration. */
 const char *pb_case_status_name(int status);
 

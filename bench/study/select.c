@@ -108,6 +108,8 @@ typedef struct select_state {
     int n;
     double x[SELECT_MEMO], q[SELECT_MEMO];
     signed char ok[SELECT_MEMO], usable[SELECT_MEMO]; /* usable: q measures the error */
+    pb_select_answer ans[SELECT_MEMO];  /* each run's figures, untimed */
+    long steps_done[SELECT_MEMO];       /* its steps and start-up steps */
     double timed_x;            /* the setting out->confirmed holds (0: none) */
 } select_state;
 
@@ -119,9 +121,8 @@ static int memo_find(const select_state *st, double x)
     return -1;
 }
 
-static void select_keep(select_state *st, double x, const pb_case_result *r)
+static void select_fill(pb_select_answer *a, const pb_case_result *r)
 {
-    pb_select_answer *a = &st->out->confirmed;
     memset(a, 0, sizeof *a);
     a->steps = r->steps;
     a->evals = r->evals;
@@ -135,6 +136,11 @@ static void select_keep(select_state *st, double x, const pb_case_result *r)
     a->ns_per_step = r->ns_per_step;
     a->step_s = r->h;
     snprintf(a->fingerprint, sizeof a->fingerprint, "%s", r->fingerprint);
+}
+
+static void select_keep(select_state *st, double x, const pb_case_result *r)
+{
+    select_fill(&st->out->confirmed, r);
     st->timed_x = x;
 }
 
@@ -174,6 +180,8 @@ static int select_try(select_state *st, double x, int timed)
         st->q[i] = q;
         st->ok[i] = q <= 1;
         st->usable[i] = r.status == PB_OK && !r.saturated && !r.below_floor && isfinite(q) && q > 0;
+        select_fill(&st->ans[i], &r);
+        st->steps_done[i] = r.steps + r.startup_steps;
     }
     if (timed)
         select_keep(st, x, &r);
@@ -440,6 +448,35 @@ static int select_confirm(select_state *st, double lo, double *hi)
     return 0;
 }
 
+/* The answer x with its ns per step: its metric run is in the memo (a run
+ * is deterministic, so running it again gives the same figures), and only
+ * the timing pass is run; a setting not in the memo is run whole. */
+static int select_time_answer(select_state *st, double x)
+{
+    int i = memo_find(st, x);
+    if (i < 0)
+        return select_try(st, x, 1);
+    pb_case_spec s = *st->base;
+    s.method = st->m;
+    if (st->ax->fixed)
+        s.steps_per_orbit = (int)x;
+    else
+        s.tolerance = select_tol(x);
+    pb_case_spec d;
+    pb_case_spec_default(&d);
+    s.repeats = st->base->repeats > 0 ? st->base->repeats : d.repeats;
+    s.timing_min_cpu_s = SELECT_TIMING_MIN_CPU_S;
+    pb_case_result r;
+    memset(&r, 0, sizeof r);
+    st->out->runs++;
+    if (pb_case_time_only(&s, st->steps_done[i], &r))
+        return -1;
+    st->out->confirmed = st->ans[i];
+    st->out->confirmed.ns_per_step = r.ns_per_step;
+    st->timed_x = x;
+    return st->ok[i];
+}
+
 static int select_search(select_state *st)
 {
     double lo, hi;
@@ -452,7 +489,7 @@ static int select_search(select_state *st)
     }
     if ((rc = select_confirm(st, lo, &hi)) <= 0)
         return rc;
-    int ok = select_try(st, hi, 1);
+    int ok = select_time_answer(st, hi);
     if (ok < 0)
         return -1;
     if (!ok) {
