@@ -57,17 +57,10 @@ static void *ref_job_run(void *arg)
     return NULL;
 }
 
-int pb_reference_build(const pb_problem *p, const double *times, int n,
-                       const char *cache_dir, long double *r, long double *v,
-                       double *floor)
+/* pb_reference_build past the cache: both builds, the floor, the entry. */
+static int ref_build_now(const pb_problem *p, const double *times, int n, const char *cache_dir,
+                         uint64_t key, long double *r, long double *v, double *floor)
 {
-    /* a force with no __float128 form is refused before the cache is read:
-     * the key cannot tell two force functions apart */
-    if (!p || n < 0 || (n > 0 && (!times || !r || !v || !floor)) || !pb_forces_have_quad(p))
-        return PB_EINVAL;
-    uint64_t key = pb_reference_key(p, times, n);
-    if (pb_ref_cache_read(cache_dir, key, n, r, v, floor))
-        return PB_OK;
     size_t m = (size_t)(n > 0 ? n : 1) * PB_DIM_MAX;
     long double *rc = malloc(2 * m * sizeof *rc);
     if (!rc)
@@ -101,5 +94,27 @@ int pb_reference_build(const pb_problem *p, const double *times, int n,
         pb_ref_cache_write(cache_dir, key, n, r, v, floor);
     }
     free(rc);
+    return s;
+}
+
+int pb_reference_build(const pb_problem *p, const double *times, int n,
+                       const char *cache_dir, long double *r, long double *v,
+                       double *floor)
+{
+    /* a force with no __float128 form is refused before the cache is read:
+     * the key cannot tell two force functions apart */
+    if (!p || n < 0 || (n > 0 && (!times || !r || !v || !floor)) || !pb_forces_have_quad(p))
+        return PB_EINVAL;
+    uint64_t key = pb_reference_key(p, times, n);
+    if (pb_ref_cache_read(cache_dir, key, n, r, v, floor))
+        return PB_OK;
+    /* one build per entry: another process may be building it now */
+    int lock = pb_ref_cache_lock(cache_dir, key);
+    if (lock >= 0 && pb_ref_cache_read(cache_dir, key, n, r, v, floor)) {
+        pb_ref_cache_unlock(lock);
+        return PB_OK;
+    }
+    int s = ref_build_now(p, times, n, cache_dir, key, r, v, floor);
+    pb_ref_cache_unlock(lock);
     return s;
 }

@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/file.h>
 #include <sys/stat.h>
 #include <time.h>
 #include <unistd.h>
@@ -47,10 +48,39 @@ uint64_t pb_cache_cap_bytes(void)
     return (uint64_t)mb << 20;
 }
 
+static int cache_path_ext(char *buf, size_t len, const char *dir, uint64_t key, const char *ext)
+{
+    int n = snprintf(buf, len, "%s/ref-%016llx.%s", dir, (unsigned long long)key, ext);
+    return n > 0 && (size_t)n < len;
+}
+
 static int cache_path(char *buf, size_t len, const char *dir, uint64_t key)
 {
-    int n = snprintf(buf, len, "%s/ref-%016llx.bin", dir, (unsigned long long)key);
-    return n > 0 && (size_t)n < len;
+    return cache_path_ext(buf, len, dir, key, "bin");
+}
+
+int pb_ref_cache_lock(const char *dir, uint64_t key)
+{
+    char path[PATH_MAX];
+    if (!dir || !cache_path_ext(path, sizeof path, dir, key, "lock") || pb_mkdirs(dir))
+        return -1;
+    int fd = open(path, O_RDWR | O_CREAT | O_CLOEXEC, 0644);
+    if (fd < 0)
+        return -1;
+    int rc;
+    while ((rc = flock(fd, LOCK_EX)) != 0 && errno == EINTR)
+        ;
+    if (rc) {
+        close(fd);
+        return -1;
+    }
+    return fd;
+}
+
+void pb_ref_cache_unlock(int fd)
+{
+    if (fd >= 0)
+        close(fd); /* closing the descriptor releases its lock */
 }
 
 int pb_ref_cache_read(const char *dir, uint64_t key, int n, long double *r, long double *v,
@@ -144,8 +174,15 @@ static void cache_prune(const char *dir, const char *keep)
         if (strcmp(e[i].name, keep) == 0
             || snprintf(path, sizeof path, "%s/%s", dir, e[i].name) >= (int)sizeof path)
             continue;
-        if (remove(path) == 0)
+        if (remove(path) == 0) {
             total -= e[i].size;
+            /* its build lock too (ref-<key>.lock beside ref-<key>.bin) */
+            size_t len = strlen(path);
+            if (len > 4 && len < sizeof path) {
+                memcpy(path + len - 4, ".lock", 6);
+                remove(path);
+            }
+        }
     }
     free(e);
 }

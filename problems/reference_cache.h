@@ -21,6 +21,15 @@ uint64_t pb_cache_cap_bytes(void);
 int pb_ref_cache_read(const char *dir, uint64_t key, int n, long double *r, long double *v,
                       double *floor);
 
+/* An exclusive lock on entry key while one process builds it: another that
+ * needs the same entry waits, then reads it, instead of building it too
+ * (a sweep's workers start cases of one problem side by side). The lock is
+ * a file beside the entry, ref-<key>.lock, removed with the entry when the
+ * cap prunes it; the kernel drops the lock if its holder dies. Returns its
+ * descriptor, or -1 (no cache folder, or no lock to be had: build anyway). */
+int pb_ref_cache_lock(const char *dir, uint64_t key);
+void pb_ref_cache_unlock(int fd);
+
 /* Write the entry (temporary name, then rename: an interrupted run never
  * leaves half an entry), then remove the least recently used entries until
  * the folder's reference files fit the cap. A failure only loses the

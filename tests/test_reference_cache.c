@@ -108,3 +108,58 @@ Test(reference_cache, cli_option_and_environment, .timeout = 120)
     cr_expect_eq(pbt_run_cli(none, out, sizeof out, err, sizeof err), 2);
     cr_expect(strstr(err, "--cache expects a folder"), "%s", err);
 }
+
+/* One build per entry: while a process holds an entry's build lock, another
+ * that needs the entry waits, then reads what the first wrote instead of
+ * building it. The parent takes the lock for leo-j2's one-sample reference
+ * and writes an entry of its own making (positions of 1, 2, 3 km, marked so
+ * that a build could never produce them); a child asks for the reference
+ * meanwhile and must return exactly those values, and only after the lock
+ * was released (its pipe stays empty while the parent holds the lock). */
+#include <sys/wait.h>
+#include <poll.h>
+#include <unistd.h>
+#include "problems/catalogue.h"
+#include "problems/reference.h"
+
+Test(reference_cache, a_build_in_progress_is_waited_for_not_repeated, .timeout = 60)
+{
+    char dir[256];
+    pbt_tmpdir(dir, sizeof dir);
+    pb_problem p;
+    cr_assert_eq(pb_problem_lookup("leo-j2", &p), PB_OK);
+    double t[1] = {600};
+    uint64_t key = pb_reference_key(&p, t, 1);
+    int lock = pb_ref_cache_lock(dir, key);
+    cr_assert_geq(lock, 0, "no lock in %s", dir);
+    int fds[2];
+    cr_assert_eq(pipe(fds), 0);
+    pid_t pid = fork();
+    cr_assert_geq(pid, 0);
+    if (pid == 0) {
+        /* the inherited descriptor shares the parent's lock: a flock lasts
+         * until every descriptor of its open file is closed */
+        close(lock);
+        close(fds[0]);
+        long double r[PB_DIM_MAX], v[PB_DIM_MAX];
+        double fl[1];
+        int s = pb_reference_build(&p, t, 1, dir, r, v, fl);
+        char msg[200];
+        int n = snprintf(msg, sizeof msg, "%d %.3Lf %.3Lf %.3Lf %.3g", s, r[0], r[1], r[2], fl[0]);
+        _exit(write(fds[1], msg, (size_t)n) == n ? 0 : 1);
+    }
+    close(fds[1]);
+    struct pollfd pf = {fds[0], POLLIN, 0};
+    cr_assert_eq(poll(&pf, 1, 500), 0, "the child did not wait for the lock");
+    long double r[PB_DIM_MAX] = {1, 2, 3}, v[PB_DIM_MAX] = {0, 0, 0};
+    double fl[1] = {4.5e-9};
+    pb_ref_cache_write(dir, key, 1, r, v, fl);
+    pb_ref_cache_unlock(lock);
+    char got[200] = {0};
+    ssize_t k = read(fds[0], got, sizeof got - 1);
+    int st = 0;
+    waitpid(pid, &st, 0);
+    close(fds[0]);
+    cr_assert(k > 0 && WIFEXITED(st) && WEXITSTATUS(st) == 0, "child: %s", got);
+    cr_assert_str_eq(got, "0 1.000 2.000 3.000 4.5e-09", "the child built instead of reading: %s", got);
+}
