@@ -119,6 +119,14 @@ static void form_config(form_ws *w, const pb_method_config *cfg, pb_method_confi
 }
 
 static int form_start(void *ws, const pb_force *f, const pb_method_config *cfg, double t0,
+                      const double *r0, const double *v0);
+
+int pb_formulation_wraps(const pb_method_type *m)
+{
+    return m && m->start == form_start;
+}
+
+static int form_start(void *ws, const pb_force *f, const pb_method_config *cfg, double t0,
                       const double *r0, const double *v0)
 {
     form_ws *w = ws;

@@ -18,6 +18,10 @@ int pb_formulation_qdim(pb_formulation form, int dim);
  * (PB_KIND_KEPLER) regularises in its own way. */
 const char *pb_formulation_refusal(const pb_method_type *inner, pb_formulation form);
 
+/* Whether m steps in a regularised formulation of its own (its steps are
+ * set per Kepler period of the start, so it needs a bound orbit). */
+int pb_formulation_wraps(const pb_method_type *m);
+
 /* The record through which the harness drives a workspace made by
  * pb_formulation_alloc for inner (fixed-step or adaptive as inner is; its
  * own alloc is never called and returns NULL). */

@@ -1,8 +1,10 @@
 /* method_table.c - the registry of methods, in display order. Adding a method
  * is one file, one extern line and one table line here. */
 #include <stdio.h>
+#include <math.h>
 #include <string.h>
 #include "method.h"
+#include "formulation.h"
 
 extern const pb_method_type pb_method_rk4;
 extern const pb_method_type pb_method_leapfrog;
@@ -167,9 +169,27 @@ int pb_method_check(const pb_method_type *m, char *err, size_t errlen)
     return -1;
 }
 
+/* A regularised formulation (a problem's, or one a method steps in) is set
+ * up from the Kepler period of the start (its time scale, and the steps per
+ * period of a fixed-step method): it needs a bound orbit there (negative
+ * two-body energy). */
+static int method_unbound(const pb_method_type *m, const pb_problem *p)
+{
+    if (!pb_formulation_wraps(m) && p->formulation == PB_FORMULATION_CARTESIAN)
+        return 0;
+    double mu = pb_problem_kepler_mu(p), r2 = 0, v2 = 0;
+    if (!(mu > 0))
+        return 0;  /* no central body at all: refused for that, elsewhere */
+    for (int i = 0; i < p->dim; i++)
+        r2 += p->r0[i] * p->r0[i], v2 += p->v0[i] * p->v0[i];
+    return !(r2 > 0 && 0.5 * v2 - mu / sqrt(r2) < 0);
+}
+
 int pb_method_fits(const pb_method_type *m, const pb_problem *p)
 {
     if ((m->flags & PB_KIND_KEPLER) && pb_problem_kepler_mu(p) <= 0)
+        return 0;
+    if (method_unbound(m, p))
         return 0;
     return !((m->flags & PB_FORM_SECOND) && p->velocity_dependent);
 }
@@ -178,6 +198,13 @@ int pb_method_fit_error(const pb_method_type *m, const pb_problem *p, char *err,
 {
     int no_mu = (m->flags & PB_KIND_KEPLER) && pb_problem_kepler_mu(p) <= 0;
     int vel = (m->flags & PB_FORM_SECOND) && p->velocity_dependent;
+    if (!no_mu && method_unbound(m, p)) {
+        snprintf(err, errlen, "method '%s' %s, which is set up from the Kepler period of the "
+                 "start and needs a bound orbit, but problem '%s' starts on an unbound one", m->name,
+                 pb_formulation_wraps(m) ? "steps in a regularised time" : "in the problem's "
+                 "regularised formulation", p->name);
+        return -1;
+    }
     if (!no_mu && !vel)
         return 0;
     snprintf(err, errlen, "method '%s' %s%s%s, but problem '%s' %s%s%s", m->name,

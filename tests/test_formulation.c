@@ -344,6 +344,35 @@ Test(formulation, refusals)
     cr_assert(!pbt_exists(out), "%s was written", out);
 }
 
+/* A regularised formulation is set up from the Kepler period of the start:
+ * on an unbound orbit (hyperbolic-flyby, e = 1.158) gauss-jackson8-s and a
+ * KS case are refused with exit 2 and a message naming method and problem
+ * (they were "crashed: invalid argument"), the standard suite leaves them
+ * out, and the same method on a bound orbit fits. */
+Test(formulation, unbound_orbit_refused)
+{
+    char dir[256], out[300], err[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/run", dir);
+    const char *gjs[] = {"run", "--problem", "hyperbolic-flyby", "--method", "gauss-jackson8-s",
+                         "--steps-per-orbit", "100", "--out", out, NULL};
+    cr_assert_eq(form_cli(gjs, err, sizeof err), 2);
+    cr_assert(strstr(err, "method 'gauss-jackson8-s' steps in a regularised time") &&
+              strstr(err, "needs a bound orbit, but problem 'hyperbolic-flyby' starts on an unbound one"),
+              "%s", err);
+    const char *ks[] = {"run", "--problem", "hyperbolic-flyby", "--method", "dop853", "--tolerance",
+                        "1e-9", "--formulation", "ks", "--out", out, NULL};
+    cr_assert_eq(form_cli(ks, err, sizeof err), 2);
+    cr_assert(strstr(err, "method 'dop853' in the problem's regularised formulation"), "%s", err);
+    cr_assert(!pbt_exists(out), "%s was written", out);
+    pb_problem hyp, ell;
+    cr_assert_eq(pb_problem_lookup("hyperbolic-flyby", &hyp), PB_OK);
+    cr_assert_eq(pb_problem_lookup("kepler-e0.99", &ell), PB_OK);
+    cr_assert(!pb_method_fits(&pb_method_gauss_jackson8_s, &hyp));
+    cr_assert(pb_method_fits(&pb_method_gauss_jackson8_s, &ell));
+    cr_assert(pb_method_fits(&pb_method_dop853, &hyp), "Cartesian dop853 takes any orbit");
+}
+
 /* summary.json records the formulation ("formulation": "ks", the id's
  * "__ks"), a problem file's key sets it, and a Cartesian case has no key,
  * so that baselines made before it compare unchanged. */
