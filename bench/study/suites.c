@@ -123,8 +123,8 @@ static const suite_entry suite_table[] = {
     {"quick", suite_quick, "every method on kepler-e0.6 (100 orbits) and leo-near-circular (16 orbits), "
                            "2 resolutions each; for CI, under a minute on 2 cores"},
     {"standard", suite_standard, "every method on every built-in problem, 3 resolutions, "
-                                 "steps scaled to resolve periapsis, horizon up to 100 orbits (10 for kepler-e0.99); minutes with -j 2 (the GEO "
-                                 "scenario's reference alone takes about a minute the first time)"},
+                                 "steps scaled to resolve periapsis, horizon up to 100 orbits (10 for kepler-e0.99); about half "
+                                 "a minute with -j 2 on a quiet machine, the references cached"},
     {NULL, NULL, NULL}
 };
 
