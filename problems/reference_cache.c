@@ -48,21 +48,25 @@ uint64_t pb_cache_cap_bytes(void)
     return (uint64_t)mb << 20;
 }
 
-static int cache_path_ext(char *buf, size_t len, const char *dir, uint64_t key, const char *ext)
+static int cache_path(char *buf, size_t len, const char *dir, uint64_t key)
 {
-    int n = snprintf(buf, len, "%s/ref-%016llx.%s", dir, (unsigned long long)key, ext);
+    int n = snprintf(buf, len, "%s/ref-%016llx.bin", dir, (unsigned long long)key);
     return n > 0 && (size_t)n < len;
 }
 
-static int cache_path(char *buf, size_t len, const char *dir, uint64_t key)
+/* The entry's build lock: lock-<key>, so that the folder's ref-* files are
+ * the entries alone. */
+static int cache_lock_path(char *buf, size_t len, const char *dir, const char *key_hex)
 {
-    return cache_path_ext(buf, len, dir, key, "bin");
+    int n = snprintf(buf, len, "%s/lock-%s", dir, key_hex);
+    return n > 0 && (size_t)n < len;
 }
 
 int pb_ref_cache_lock(const char *dir, uint64_t key)
 {
-    char path[PATH_MAX];
-    if (!dir || !cache_path_ext(path, sizeof path, dir, key, "lock") || pb_mkdirs(dir))
+    char path[PATH_MAX], hex[24];
+    snprintf(hex, sizeof hex, "%016llx", (unsigned long long)key);
+    if (!dir || !cache_lock_path(path, sizeof path, dir, hex) || pb_mkdirs(dir))
         return -1;
     int fd = open(path, O_RDWR | O_CREAT | O_CLOEXEC, 0644);
     if (fd < 0)
@@ -176,12 +180,12 @@ static void cache_prune(const char *dir, const char *keep)
             continue;
         if (remove(path) == 0) {
             total -= e[i].size;
-            /* its build lock too (ref-<key>.lock beside ref-<key>.bin) */
-            size_t len = strlen(path);
-            if (len > 4 && len < sizeof path) {
-                memcpy(path + len - 4, ".lock", 6);
+            /* its build lock too: lock-<key> for ref-<key>.bin */
+            char hex[24];
+            size_t len = strlen(e[i].name);
+            if (len == 24 && snprintf(hex, sizeof hex, "%.16s", e[i].name + 4) == 16
+                && cache_lock_path(path, sizeof path, dir, hex))
                 remove(path);
-            }
         }
     }
     free(e);

@@ -24,8 +24,8 @@ int pb_ref_cache_read(const char *dir, uint64_t key, int n, long double *r, long
 /* An exclusive lock on entry key while one process builds it: another that
  * needs the same entry waits, then reads it, instead of building it too
  * (a sweep's workers start cases of one problem side by side). The lock is
- * a file beside the entry, ref-<key>.lock, removed with the entry when the
- * cap prunes it; the kernel drops the lock if its holder dies. Returns its
+ * a file beside the entry, lock-<key>, removed with the entry when the cap
+ * prunes it; the kernel drops the lock if its holder dies. Returns its
  * descriptor, or -1 (no cache folder, or no lock to be had: build anyway). */
 int pb_ref_cache_lock(const char *dir, uint64_t key);
 void pb_ref_cache_unlock(int fd);

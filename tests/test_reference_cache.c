@@ -58,6 +58,11 @@ Test(reference_cache, least_recently_used_pruned_to_the_cap)
     time_t now = time(NULL);
     rc_entry(dir, 1, now - 300);
     rc_entry(dir, 2, now - 200);
+    /* entry 2's build lock, left behind by its build, goes with it */
+    pb_ref_cache_unlock(pb_ref_cache_lock(dir, 2));
+    char lock2[4200];
+    snprintf(lock2, sizeof lock2, "%s/lock-%016llx", dir, 2ULL);
+    cr_assert(pbt_exists(lock2), "%s", lock2);
     /* reading entry 1 makes it the most recently used */
     static long double r[RC_N * 3], v[RC_N * 3];
     static double fl[RC_N];
@@ -66,6 +71,7 @@ Test(reference_cache, least_recently_used_pruned_to_the_cap)
     rc_entry(dir, 3, now);  /* over the cap: entry 2, the least recently used, goes */
     cr_expect(rc_has(dir, 1), "entry 1 was just read");
     cr_expect(!rc_has(dir, 2), "entry 2 was the least recently used");
+    cr_expect(!pbt_exists(lock2), "entry 2's lock stayed behind");
     cr_expect(rc_has(dir, 3), "entry 3 was just written");
     /* a wrong key or count is a miss, never a misread */
     cr_expect_eq(pb_ref_cache_read(dir, 3, RC_N - 1, r, v, fl), 0);
