@@ -109,6 +109,16 @@ void pb_sun_position(double days, double *s) { ft_sun_d(days, s); }
 
 void pb_moon_position(double days, double *s) { ft_moon_d(days, s); }
 
+int pb_forces_shadow_g(const pb_problem *p, double t, const double *r, double *g)
+{
+    const pb_forces *f = &p->forces;
+    if (!(f->srp_area_mass_m2_kg > 0) || f->shadow == PB_SHADOW_NONE)
+        return 0;
+    double sun[3], nu;
+    ft_sun_d(f->epoch_days + t / 86400.0, sun);
+    return ft_shadow_d(f->shadow, p->body_radius, sun, r, FT_REGION_GEOMETRY, g, &nu);
+}
+
 double pb_shadow_fraction(int model, double R, const double *s, const double *r)
 {
     double g[2], nu = 1;

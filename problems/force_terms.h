@@ -44,6 +44,9 @@ int pb_forces_region_q(const pb_problem *p, const __float128 *g);
  * conical penumbra, where the visible part of the Sun's disc is the overlap
  * of two discs (an area that grows as depth^(3/2)). */
 int pb_forces_region_has_edge_terms(const pb_problem *p, int region);
+/* The shadow boundary functions of pb_forces_events_q in double at (t, r),
+ * positive in sunlight; how many (0: no shadow model). */
+int pb_forces_shadow_g(const pb_problem *p, double t, const double *r, double *g);
 /* sqrt(x) in __float128, faster than sqrtq and within 2 ulp of it. */
 __float128 pb_sqrt_q(__float128 x);
 /* Whether p's force has a __float128 form. */

@@ -16,11 +16,10 @@
 
 /* Columns of the trial steps that locate a boundary: their states serve
  * only to place the boundary in time (the integration itself steps there
- * with REF_K), and where REF_K columns meet the step tolerance, 7 are
- * within a factor (16 * 18 * 20)^2 (H/T)^-6 of it (the extrapolation's
- * error constant is 1 / prod n_j^2; Hairer, Norsett & Wanner, Sec. II.9):
- * about 1e-15 of the state for a LEO step (H/T = 0.03), a boundary time to
- * about 1e-12 s, below what ref_find_crossing asks */
+ * with REF_K). Measured against REF_K columns from the same state (leo-j2,
+ * review of this file): 9.7e-22 of the position at H/T = 0.03, a LEO
+ * step, and 4.1e-19 at H/T = 0.045; ref_event_noise allows 1e-14, far
+ * above either */
 #define REF_K_TRIAL 7
 #define REF_MAX_STEPS 20000000L
 
@@ -29,7 +28,7 @@
 typedef struct ref_run {
     const pb_problem *p;
     ref_real t, y[REF_N], h, tol;
-    long steps;
+    long steps, cuts;       /* accepted steps; steps cut for an eclipse inside them */
     int nev, nshadow;       /* boundary functions, the first nshadow of them the shadow's */
     ref_real g[4], g_at;    /* the boundary functions hold at t + g_at (just past an edge) */
     ref_force F;            /* p, the shadow region and atmosphere row of the current state */
@@ -313,8 +312,9 @@ static ref_real ref_reject_factor(ref_run *w, ref_real H, ref_real err, ref_real
  * such time that finds a sign changed is a bracket, and the edge is located
  * at once, so that the steps across the penumbra know how far they may go
  * instead of one of them crossing the edge unawares and being thrown away
- * (a linear forecast over a penumbra, a hundredth of an orbit, is good to
- * about 1%: the trial goes 5% past it). */
+ * (the forecast is linear, over a penumbra of a few thousandths of an
+ * orbit; the trial goes 5% past it, and when it finds no sign change the
+ * edge is found as any other, by a step that crosses it). */
 static int ref_predict_edge(ref_run *w)
 {
     ref_real dt = 1e-4Q * w->h_cruise, rp[3], rm[3], gp[4], gm[4], tau = 1e300Q;
@@ -436,11 +436,16 @@ static int ref_advance(ref_run *w, ref_real target)
         if (beside && err > 1e-3Q * w->tol)
             w->edge_k = err / (H * H * sqrtq(H));
         ref_real fac = ref_step_factor(w, H, err, map);
-        /* an eclipse wholly inside the step shows at neither end */
-        ref_real dip = err <= w->tol && w->nshadow && !w->pending
+        /* an eclipse wholly inside the step shows at neither end (before a
+         * pending edge too: that may be an atmosphere row's) */
+        ref_real dip = err <= w->tol && w->nshadow
                            ? pb_ref_shadow_dip(w->p, w->F.band, w->nshadow, w->t, w->y, H, y1) : 0;
         if (dip > 0) {
             w->h = dip * H;
+            if (++w->cuts > REF_MAX_STEPS)
+                return PB_EMAXSTEPS;
+            if (w->h < 1e-30Q * fabsq(w->t))
+                return PB_EMINSTEP;
             continue;
         }
         if (err <= w->tol) {

@@ -17,7 +17,7 @@
  * is never claimed below 1e-18 |r| (6.8e-15 km in LEO) */
 #define REF_TOL_COARSE 1e-24L
 #define REF_TOL_FINE 1e-26L
-#define REF_VERSION "pb-reference gbs20 float128 v6 eclipse-safe"
+#define REF_VERSION "pb-reference gbs20 float128 v7 sampled dips"
 
 uint64_t pb_reference_key(const pb_problem *p, const double *times, int n)
 {
