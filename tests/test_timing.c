@@ -53,6 +53,18 @@ static void assert_timed(const pb_case_spec *spec, const pb_case_result *res)
     cr_assert(fabs(a - b) <= 1e-12 * a, "%g vs %g", a, b);
 }
 
+/* A fixed-step method at 200 steps per orbit or an adaptive one at 1e-8,
+ * over 5 orbits, timed for 3 repeats. */
+static pb_case_spec timing_spec_either(const char *method)
+{
+    pb_case_spec spec = timing_spec(method, 200, 1e-8, 5, 3);
+    if (spec.method->flags & PB_KIND_FIXED)
+        spec.tolerance = 0;
+    else
+        spec.steps_per_orbit = 0;
+    return spec;
+}
+
 /* The timing pass integrates the case the metric pass did (one advance to
  * its end; samples come from dense output), so it counts the metric pass's
  * steps and evaluations: fixed-step methods (Gauss-Jackson with start-up
@@ -61,11 +73,7 @@ Test(timing, counts_are_those_of_the_metric_pass)
 {
     const char *methods[] = {"rk4", "leapfrog", "gauss-jackson8", "rkf45", "gsl-rk8pd", "gsl-msadams"};
     for (int i = 0; i < 6; i++) {
-        pb_case_spec spec = timing_spec(methods[i], 200, 1e-8, 5, 3);
-        if (spec.method->flags & PB_KIND_FIXED)
-            spec.tolerance = 0;
-        else
-            spec.steps_per_orbit = 0;
+        pb_case_spec spec = timing_spec_either(methods[i]);
         pb_case_result res;
         timing_run(&spec, &res);
         assert_timed(&spec, &res);
@@ -82,11 +90,7 @@ Test(timing, time_only_counts_what_the_full_run_times)
 {
     const char *methods[] = {"rk4", "gauss-jackson8", "rkf45", "gsl-msadams"};
     for (int i = 0; i < 4; i++) {
-        pb_case_spec spec = timing_spec(methods[i], 200, 1e-8, 5, 3);
-        if (spec.method->flags & PB_KIND_FIXED)
-            spec.tolerance = 0;
-        else
-            spec.steps_per_orbit = 0;
+        pb_case_spec spec = timing_spec_either(methods[i]);
         pb_case_result res, alone;
         timing_run(&spec, &res);
         memset(&alone, 0, sizeof alone);
