@@ -10,9 +10,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
-#include <sys/wait.h>
 #include <dirent.h>
-#include <fcntl.h>
 #include <unistd.h>
 #include "test_support.h"
 #include "bench/store/run_dir.h"
@@ -312,62 +310,6 @@ Test(report, figures_and_tables_of_a_run)
     free(html);
 }
 
-/* Run chromium with args; stdout to out_path; returns exit status and the
- * tail of stderr in err. */
-static int rpt_chromium(const char *const *extra, const char *out_path, char *err, size_t errlen)
-{
-    const char *bin = getenv("PB_CHROMIUM");
-    if (!bin)
-        bin = "chromium";
-    char prof[256], errpath[300];
-    pbt_tmpdir(prof, sizeof prof);
-    snprintf(errpath, sizeof errpath, "%s.stderr", prof);
-    char udd[300];
-    snprintf(udd, sizeof udd, "--user-data-dir=%s", prof);
-    const char *argv[32] = {bin, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
-                            "--no-first-run", "--disable-background-networking",
-                            "--disable-component-update", "--disable-sync", "--disable-extensions",
-                            "--hide-scrollbars", udd};
-    int n = 12;
-    for (int i = 0; extra[i] && n < 31; i++)
-        argv[n++] = extra[i];
-    argv[n] = NULL;
-    fflush(NULL);
-    pid_t pid = fork();
-    if (pid == 0) {
-        int o = open(out_path, O_WRONLY | O_CREAT | O_TRUNC, 0644);
-        int e = open(errpath, O_WRONLY | O_CREAT | O_TRUNC, 0644);
-        if (o < 0 || e < 0)
-            _exit(127);
-        dup2(o, 1);
-        dup2(e, 2);
-        alarm(90);
-        execvp(bin, (char *const *)argv);
-        dprintf(2, "cannot execute %s (install Debian's chromium: PB_WITH_BROWSER=1 sh scripts/install-deps.sh)\n", bin);
-        _exit(127);
-    }
-    int st = 0;
-    waitpid(pid, &st, 0);
-    size_t len = 0;
-    char *e = pbt_slurp_file(errpath, &len);
-    err[0] = 0;
-    if (e) {
-        snprintf(err, errlen, "%s", len + 1 > errlen ? e + len + 1 - errlen : e);
-        free(e);
-    }
-    unlink(errpath);
-    char cmd[400];
-    snprintf(cmd, sizeof cmd, "%s", prof);
-    const char *rm[] = {"rm", "-rf", cmd, NULL};
-    pid_t r = fork();
-    if (r == 0) {
-        execvp("rm", (char *const *)rm);
-        _exit(127);
-    }
-    waitpid(r, NULL, 0);
-    return WIFEXITED(st) ? WEXITSTATUS(st) : -1;
-}
-
 /* Appended to a copy of report.html (never to the report itself): after
  * layout, count the SVGs, those with at least 5 paths of non-zero drawn
  * size, and the table rows, into one line the DOM dump carries out. */
@@ -405,7 +347,7 @@ Test(report, browser_renders_figures_and_tables)
     snprintf(url, sizeof url, "file://%s", probe);
     snprintf(dom, sizeof dom, "%s/probe.dom", dir);
     const char *a1[] = {"--window-size=1200,900", "--dump-dom", url, NULL};
-    rc = rpt_chromium(a1, dom, err, sizeof err);
+    rc = pbt_chromium(a1, dom, err, sizeof err);
     cr_assert_eq(rc, 0, "headless chromium could not start or failed (status %d): %s", rc, err);
     char *d = pbt_slurp_file(dom, NULL);
     cr_assert_not_null(d);
@@ -426,7 +368,7 @@ Test(report, browser_renders_figures_and_tables)
     const char *a2[] = {"--window-size=1200,2400", shot, url, NULL};
     char devnull[600];
     snprintf(devnull, sizeof devnull, "%s/chromium.out", dir);
-    rc = rpt_chromium(a2, devnull, err, sizeof err);
+    rc = pbt_chromium(a2, devnull, err, sizeof err);
     cr_assert_eq(rc, 0, "screenshot failed (status %d): %s", rc, err);
     char blank[600], bshot[700], burl[700];
     snprintf(blank, sizeof blank, "%s/blank.html", dir);
@@ -436,7 +378,7 @@ Test(report, browser_renders_figures_and_tables)
     snprintf(burl, sizeof burl, "file://%s", blank);
     snprintf(bshot, sizeof bshot, "--screenshot=%s/blank.png", dir);
     const char *a3[] = {"--window-size=1200,2400", bshot, burl, NULL};
-    rc = rpt_chromium(a3, devnull, err, sizeof err);
+    rc = pbt_chromium(a3, devnull, err, sizeof err);
     cr_assert_eq(rc, 0, "blank screenshot failed (status %d): %s", rc, err);
     char rp[600], bp[600];
     snprintf(rp, sizeof rp, "%s/report.png", dir);

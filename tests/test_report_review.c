@@ -16,7 +16,6 @@
 #include "bench/report/context.h"
 #include "bench/store/figure_names.h"
 #include <unistd.h>
-#include <sys/wait.h>
 
 TestSuite(review, .timeout = 240);
 
@@ -209,39 +208,6 @@ Test(review, figures_stand_alone)
     cr_assert(pbt_exists(png), "the redraw did not write %s", png);
 }
 
-/* Headless Chromium with args, stdout to out_path; the exit status. */
-static int rv_chromium(const char *const *extra, const char *out_path)
-{
-    const char *bin = getenv("PB_CHROMIUM") ? getenv("PB_CHROMIUM") : "chromium";
-    char prof[256], udd[300];
-    pbt_tmpdir(prof, sizeof prof);
-    snprintf(udd, sizeof udd, "--user-data-dir=%s", prof);
-    const char *argv[24] = {bin, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
-                            "--disable-background-networking", "--disable-component-update",
-                            "--disable-sync", "--disable-extensions", udd};
-    int n = 10;
-    for (int i = 0; extra[i] && n < 23; i++)
-        argv[n++] = extra[i];
-    argv[n] = NULL;
-    fflush(NULL);
-    pid_t pid = fork();
-    if (pid == 0) {
-        FILE *o = freopen(out_path, "w", stdout);
-        FILE *e = freopen("/dev/null", "w", stderr);
-        if (!o || !e)
-            _exit(127);
-        alarm(90);
-        execvp(bin, (char *const *)argv);
-        _exit(127);
-    }
-    int st = 0;
-    waitpid(pid, &st, 0);
-    char cmd[400];
-    snprintf(cmd, sizeof cmd, "rm -rf '%s'", prof);
-    cr_assert_eq(system(cmd), 0);
-    return WIFEXITED(st) ? WEXITSTATUS(st) : -1;
-}
-
 /* Run in the page after layout: per figure whether a legend entry (a text
  * naming a method of the run) was rendered with a size; the saturated
  * row's status text and whether it holds a best mark; the rendered orbit
@@ -284,7 +250,7 @@ Test(review, browser_shows_status_legends_and_orbit)
     snprintf(url, sizeof url, "file://%s", probe);
     snprintf(dom, sizeof dom, "%s/probe.dom", dir);
     const char *a1[] = {"--window-size=1200,900", "--dump-dom", url, NULL};
-    cr_assert_eq(rv_chromium(a1, dom), 0, "headless chromium failed (install Debian's chromium)");
+    cr_assert_eq(pbt_chromium(a1, dom, err, sizeof err), 0, "headless chromium failed: %s", err);
     char *d = pbt_slurp_file(dom, NULL);
     cr_assert_not_null(d);
     char *line = strstr(d, "<pre id=\"rvcheck\">");

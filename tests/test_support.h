@@ -73,4 +73,9 @@ void pbt_read_into(const char *path, char *buf, size_t len);
 /* 1 if the path exists. */
 int pbt_exists(const char *path);
 
+/* Headless Chromium ($PB_CHROMIUM, else chromium) with the extra arguments
+ * (NULL-ended) and a fresh profile folder, stdout into out_path; the exit
+ * status, and the tail of its stderr in err (test_support_browser.c). */
+int pbt_chromium(const char *const *extra, const char *out_path, char *err, size_t errlen);
+
 #endif
