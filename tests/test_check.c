@@ -123,21 +123,6 @@ static int pbc_check(pbc_ctx *c, const char *run_dir, const char *a1, const char
     return pbc_spawn(c, argv);
 }
 
-/* 1 when one line of text holds all of a, b and c. */
-static int pbc_line_has(const char *text, const char *a, const char *b, const char *c)
-{
-    for (const char *l = text; l && *l;) {
-        const char *e = strchr(l, '\n');
-        size_t n = e ? (size_t)(e - l) : strlen(l);
-        char line[512];
-        snprintf(line, sizeof line, "%.*s", (int)(n < sizeof line ? n : sizeof line - 1), l);
-        if (strstr(line, a) && strstr(line, b) && strstr(line, c))
-            return 1;
-        l = e ? e + 1 : NULL;
-    }
-    return 0;
-}
-
 static pbc_ctx ctx;
 static void pbc_init(void) { pbc_setup(&ctx); }
 static void pbc_fini(void) { pbc_teardown(&ctx); }
@@ -160,9 +145,9 @@ Test(check, injected_regression_fails_naming_case_and_metric)
     /* issue 7: worse by more than 10% (default) is a regression; 25% worse */
     const char *d = pbc_doctor(&ctx, "worse", edit_pos_worse);
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 1, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "pos_err_max", "REGRESSION"),
+    cr_assert(pbt_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "pos_err_max", "REGRESSION"),
               "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "pos_err_max", "+25.0%", "REGRESSION"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "pos_err_max", "+25.0%", "REGRESSION"), "%s", ctx.out);
     cr_assert(strstr(ctx.out, "1 regressions"), "%s", ctx.out);
     /* a per-metric tolerance of 30% (issue 7: configurable per metric) accepts it */
     cr_assert_eq(pbc_check(&ctx, d, "--metric-tolerance", "pos_err_max=0.3", NULL), 0, "%s", ctx.out);
@@ -189,9 +174,9 @@ Test(check, improvement_passes_and_is_reported)
     /* issue 7: improvements are reported, never fail; halved energy error */
     const char *d = pbc_doctor(&ctx, "better", edit_energy_better);
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 0, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__rkf45__tol1e-08__o10", "energy_rel_max", "improved"),
+    cr_assert(pbt_line_has(ctx.out, "kepler-e0.6__rkf45__tol1e-08__o10", "energy_rel_max", "improved"),
               "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "energy_rel_max", "-50.0%", "improved"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "energy_rel_max", "-50.0%", "improved"), "%s", ctx.out);
     cr_assert(strstr(ctx.out, "0 regressions, 1 improvements"), "%s", ctx.out);
 }
 
@@ -207,7 +192,7 @@ Test(check, roundoff_noise_below_floor_does_not_flag)
     const char *d = pbc_doctor(&ctx, "noise", edit_roundoff);
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 0, "%s", ctx.out);
     cr_assert_eq(pbc_check(&ctx, d, "--floor", "0", NULL), 1, "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "leapfrog", "angmom_rel_max", "REGRESSION"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "leapfrog", "angmom_rel_max", "REGRESSION"), "%s", ctx.out);
 }
 
 static void edit_counts(json_t *cs)
@@ -223,8 +208,8 @@ Test(check, count_and_status_changes_fail)
      * change), a status change is a regression */
     const char *d = pbc_doctor(&ctx, "counts", edit_counts);
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 1, "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "evals", "-1"), "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__leapfrog__n200__o10", "status", "REGRESSION"),
+    cr_assert(pbt_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "evals", "-1"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "kepler-e0.6__leapfrog__n200__o10", "status", "REGRESSION"),
               "%s", ctx.out);
     cr_assert(strstr(ctx.out, "2 regressions"), "%s", ctx.out);
 }
@@ -239,8 +224,8 @@ Test(check, missing_and_new_cases_listed)
     /* issue 7: a case missing from the run is a regression, a new one is listed */
     const char *d = pbc_doctor(&ctx, "renamed", edit_missing_new);
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 1, "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__rkf45__tol1e-08__o10", "missing", "MISSING"), "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__rkf45__renamed", "new", "new"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "kepler-e0.6__rkf45__tol1e-08__o10", "missing", "MISSING"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "kepler-e0.6__rkf45__renamed", "new", "new"), "%s", ctx.out);
     cr_assert(strstr(ctx.out, "1 missing, 1 new: FAIL"), "%s", ctx.out);
 }
 
@@ -254,10 +239,10 @@ Test(check, changed_fingerprint_reported_and_strict_fails)
     /* issue 7: bits changed within tolerance are reported; --strict fails */
     const char *d = pbc_doctor(&ctx, "bits", edit_bits);
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 0, "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "fingerprint", "bits changed"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "fingerprint", "bits changed"), "%s", ctx.out);
     cr_assert(strstr(ctx.out, "0 regressions, 0 improvements, 1 fingerprint changes"), "%s", ctx.out);
     cr_assert_eq(pbc_check(&ctx, d, "--strict", NULL, NULL), 1, "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "fingerprint", "REGRESSION"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "kepler-e0.6__rk4__n200__o10", "fingerprint", "REGRESSION"), "%s", ctx.out);
 }
 
 static void edit_slow(json_t *cs) { pbc_scale(cs, "rkf45", "cost", "step_kernel_ratio", 2.0); }
@@ -268,7 +253,7 @@ Test(check, timing_only_when_asked_as_a_ratio)
     const char *d = pbc_doctor(&ctx, "slow", edit_slow);
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 0, "%s", ctx.out);
     cr_assert_eq(pbc_check(&ctx, d, "--timing", NULL, NULL), 1, "%s", ctx.out);
-    cr_assert(pbc_line_has(ctx.out, "rkf45", "ns_per_step", "x2.00"), "%s", ctx.out);
+    cr_assert(pbt_line_has(ctx.out, "rkf45", "ns_per_step", "x2.00"), "%s", ctx.out);
     cr_assert_eq(pbc_check(&ctx, d, "--timing-ratio", "2.5", NULL), 0, "%s", ctx.out);
 }
 
@@ -352,7 +337,7 @@ Test(check, empty_cases_exit_2_in_baseline_and_check)
     snprintf(summary, sizeof summary, "%s/summary.json", d);
     char *argv[] = {(char *)pbc_bin(), "baseline", (char *)d, "--out", out, NULL};
     cr_assert_eq(pbc_spawn(&ctx, argv), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, "propbench baseline: error:", summary,
+    cr_assert(pbt_line_has(ctx.err, "propbench baseline: error:", summary,
                            "has no cases: nothing to compare"), "%s", ctx.err);
     cr_assert_not(pbt_exists(out), "no baseline may be written");
     json_t *b = json_load_file(ctx.base, 0, NULL);
@@ -361,7 +346,7 @@ Test(check, empty_cases_exit_2_in_baseline_and_check)
     cr_assert_eq(json_dump_file(b, ctx.base, 0), 0);
     json_decref(b);
     cr_assert_eq(pbc_check(&ctx, ctx.run, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, "propbench check: error:", ctx.base,
+    cr_assert(pbt_line_has(ctx.err, "propbench check: error:", ctx.base,
                            "has no cases: nothing to compare"), "%s", ctx.err);
     cr_assert_eq(ctx.out[0], 0, "nothing compared, nothing printed: %s", ctx.out);
 }
@@ -415,14 +400,14 @@ Test(check, missing_keys_exit_2_naming_file_case_and_key)
     snprintf(out, sizeof out, "%s/nopos.json", ctx.dir);
     char *bl[] = {(char *)pbc_bin(), "baseline", (char *)d, "--out", out, NULL};
     cr_assert_eq(pbc_spawn(&ctx, bl), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
+    cr_assert(pbt_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
     cr_assert_not(pbt_exists(out));
     cr_assert_eq(pbc_check(&ctx, d, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
+    cr_assert(pbt_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
     snprintf(out, sizeof out, "%s/merged", ctx.dir);
     char *mg[] = {(char *)pbc_bin(), "merge", "--out", out, (char *)d, NULL};
     cr_assert_eq(pbc_spawn(&ctx, mg), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
+    cr_assert(pbt_line_has(ctx.err, summary, rk4, "key 'pos_err_max' missing"), "%s", ctx.err);
 
     /* a crashed case has no results at all and is still a valid run */
     d = pbc_doctor(&ctx, "crashed", edit_crashed);
@@ -433,16 +418,16 @@ Test(check, missing_keys_exit_2_naming_file_case_and_key)
     /* a baseline without a metric, without a scale, with a zero scale */
     pbc_base_edit(ctx.base, base_no_energy);
     cr_assert_eq(pbc_check(&ctx, ctx.run, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, ctx.base, id0, "key 'energy_rel_max' missing"), "%s", ctx.err);
+    cr_assert(pbt_line_has(ctx.err, ctx.base, id0, "key 'energy_rel_max' missing"), "%s", ctx.err);
     char *rb[] = {(char *)pbc_bin(), "baseline", ctx.run, "--out", ctx.base, NULL};
     cr_assert_eq(pbc_spawn(&ctx, rb), 0, "%s", ctx.err);
     pbc_base_edit(ctx.base, base_no_scale);
     cr_assert_eq(pbc_check(&ctx, ctx.run, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, ctx.base, id0, "key 'scale' missing"), "%s", ctx.err);
+    cr_assert(pbt_line_has(ctx.err, ctx.base, id0, "key 'scale' missing"), "%s", ctx.err);
     cr_assert_eq(pbc_spawn(&ctx, rb), 0, "%s", ctx.err);
     pbc_base_edit(ctx.base, base_zero_scale);
     cr_assert_eq(pbc_check(&ctx, ctx.run, NULL, NULL, NULL), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, ctx.base, id0, "key 'scale.length' must be a positive finite number, got 0"),
+    cr_assert(pbt_line_has(ctx.err, ctx.base, id0, "key 'scale.length' must be a positive finite number, got 0"),
               "%s", ctx.err);
 }
 
@@ -462,7 +447,7 @@ Test(check, options_beyond_sane_limits_exit_2)
     for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
         cr_assert_eq(pbc_check(&ctx, ctx.run, bad[i][0], bad[i][1], NULL), 2, "%s %s: %s%s",
                      bad[i][0], bad[i][1], ctx.out, ctx.err);
-        cr_assert(pbc_line_has(ctx.err, "propbench check: error:", bad[i][2], ""), "%s", ctx.err);
+        cr_assert(pbt_line_has(ctx.err, "propbench check: error:", bad[i][2], ""), "%s", ctx.err);
         cr_assert_eq(ctx.out[0], 0, "nothing compared: %s", ctx.out);
     }
     /* the limits themselves are accepted */
@@ -558,14 +543,14 @@ Test(check, failed_report_leaves_no_output_file)
     char *a1[] = {(char *)pbc_bin(), "check", "--baseline", ctx.base, ctx.run, "--junit", xml,
                   "--markdown", badmd, NULL};
     cr_assert_eq(pbc_spawn(&ctx, a1), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, "propbench check: error:", badmd,
+    cr_assert(pbt_line_has(ctx.err, "propbench check: error:", badmd,
                            "cannot write the Markdown summary"), "%s", ctx.err);
     cr_assert_not(pbt_exists(xml), "%s was left", xml);
     cr_assert_eq(pbc_entries(d), 0, "a temporary file was left: %s", ctx.out);
     char *a2[] = {(char *)pbc_bin(), "check", "--baseline", ctx.base, ctx.run, "--junit", badxml,
                   "--markdown", md, NULL};
     cr_assert_eq(pbc_spawn(&ctx, a2), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, "propbench check: error:", badxml,
+    cr_assert(pbt_line_has(ctx.err, "propbench check: error:", badxml,
                            "cannot write the JUnit report"), "%s", ctx.err);
     cr_assert_eq(pbc_entries(d), 0, "a file was left: %s", ctx.out);
     /* both writable: both written */
@@ -669,5 +654,5 @@ Test(check, problem_file_case_keeps_its_own_scale)
     snprintf(summary, sizeof summary, "%s/summary.json", d);
     char *bs[] = {(char *)pbc_bin(), "baseline", (char *)d, "--out", base, NULL};
     cr_assert_eq(pbc_spawn(&ctx, bs), 2, "%s%s", ctx.out, ctx.err);
-    cr_assert(pbc_line_has(ctx.err, summary, "key 'scales' missing", "rk4"), "%s", ctx.err);
+    cr_assert(pbt_line_has(ctx.err, summary, "key 'scales' missing", "rk4"), "%s", ctx.err);
 }

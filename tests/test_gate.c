@@ -90,21 +90,6 @@ static const char *gate_doctor(const char *name, void (*edit)(json_t *doc))
     return dst;
 }
 
-/* 1 when one line of text holds a, b and c. */
-static int gate_line(const char *text, const char *a, const char *b, const char *c)
-{
-    for (const char *l = text; l && *l;) {
-        const char *e = strchr(l, '\n');
-        size_t n = e ? (size_t)(e - l) : strlen(l);
-        char line[600];
-        snprintf(line, sizeof line, "%.*s", (int)(n < sizeof line ? n : sizeof line - 1), l);
-        if (strstr(line, a) && strstr(line, b) && strstr(line, c))
-            return 1;
-        l = e ? e + 1 : NULL;
-    }
-    return 0;
-}
-
 /* ---- item 1: the calibration kernel ---- */
 
 Test(gate, calibration_recorded_in_summary_and_baseline)
@@ -160,9 +145,9 @@ Test(gate, timing_compares_steps_in_kernel_units)
     const char *slow = gate_doctor("slow-method", edit_slow_method);
     const char *a2[] = {"check", "--baseline", g.base, slow, "--timing", NULL};
     cr_assert_eq(gate_cli(a2), 1, "%s", g.out);
-    cr_assert(gate_line(g.out, "kepler-e0.6__rkf45", "ns_per_step", "x2.00 calibrated"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, "kepler-e0.6__rkf45", "ns_per_step", "x2.00 calibrated"), "%s", g.out);
     /* the deciding row names the timing, not a metric that moved less */
-    cr_assert(gate_line(g.out, "kepler-e0.6__rkf45", "ns_per_step", "REGRESSION"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, "kepler-e0.6__rkf45", "ns_per_step", "REGRESSION"), "%s", g.out);
 }
 
 static void base_without_kernel(json_t *d)
@@ -184,7 +169,7 @@ Test(gate, baseline_without_kernel_compares_raw_cpu_with_a_warning)
     const char *slow_m = gate_doctor("slow-machine-raw", edit_slow_machine);
     const char *a[] = {"check", "--baseline", old, slow_m, "--timing", NULL};
     cr_assert_eq(gate_cli(a), 1, "%s", g.out);
-    cr_assert(gate_line(g.out, "rk4", "ns_per_step", "x2.00 raw CPU"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, "rk4", "ns_per_step", "x2.00 raw CPU"), "%s", g.out);
     cr_assert(strstr(g.err, "warning: 4 cases compared on raw CPU time"), "%s", g.err);
 }
 
@@ -205,9 +190,9 @@ Test(gate, count_tolerance_reported_like_metrics)
     const char *loose[] = {"check", "--baseline", g.base, d, "--count-tolerance",
                            "steps=0.05,evals=0.05", NULL};
     cr_assert_eq(gate_cli(loose), 1, "evals +8%% > 5%%: %s", g.out);
-    cr_assert(gate_line(g.out, "kepler-e0.6__rkf45", "evals", "REGRESSION"), "%s", g.out);
-    cr_assert(gate_line(g.out, "kepler-e0.6__rkf45", "evals", "(+8.0%)"), "%s", g.out);
-    cr_assert(!gate_line(g.out, "kepler-e0.6__rkf45", "steps ", "REGRESSION"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, "kepler-e0.6__rkf45", "evals", "REGRESSION"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, "kepler-e0.6__rkf45", "evals", "(+8.0%)"), "%s", g.out);
+    cr_assert(!pbt_line_has(g.out, "kepler-e0.6__rkf45", "steps ", "REGRESSION"), "%s", g.out);
     const char *looser[] = {"check", "--baseline", g.base, d, "--count-tolerance",
                             "steps=0.05,evals=0.1", NULL};
     cr_assert_eq(gate_cli(looser), 0, "%s", g.out);
@@ -242,8 +227,8 @@ Test(gate, require_without_baseline_per_case)
     cr_assert_eq(gate_cli(a), 1, "%s%s", g.out, g.err);
     const char *worse = e4 > e45 ? "leo-near-circular__rk4" : "leo-near-circular__rkf45";
     const char *better = e4 > e45 ? "leo-near-circular__rkf45" : "leo-near-circular__rk4";
-    cr_assert(gate_line(g.out, worse, "pos_err_max_m<=", "UNMET"), "%s", g.out);
-    cr_assert(gate_line(g.out, better, "-", "ok"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, worse, "pos_err_max_m<=", "UNMET"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, better, "-", "ok"), "%s", g.out);
     cr_assert(!strstr(g.out, "kepler-e0.6"), "filtered out: %s", g.out);
     cr_assert(strstr(g.out, "2 requirements checked: 1 unmet; 2 cases checked"), "%s", g.out);
     char *m = pbt_slurp_file(md, NULL), *x = pbt_slurp_file(xml, NULL);
@@ -302,9 +287,9 @@ Test(gate, only_failures_and_the_deciding_item)
     const char *a[] = {"check", "--baseline", g.base, d, "--only-failures", NULL};
     cr_assert_eq(gate_cli(a), 1, "%s", g.out);
     /* the table's line (the details say DIFFER nowhere) */
-    cr_assert(gate_line(g.out, "kepler-e0.6__rk4", "evals", "DIFFER"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, "kepler-e0.6__rk4", "evals", "DIFFER"), "%s", g.out);
     cr_assert(!strstr(g.out, "rkf45"), "passing cases left out: %s", g.out);
-    cr_assert(!gate_line(g.out, "kepler-e0.6__rk4", "vel_err_max", "improved"),
+    cr_assert(!pbt_line_has(g.out, "kepler-e0.6__rk4", "vel_err_max", "improved"),
               "improvements left out of the details: %s", g.out);
     /* the summary is the last line */
     const char *last = strrchr(g.out, '\n');
@@ -313,7 +298,7 @@ Test(gate, only_failures_and_the_deciding_item)
     cr_assert(last && strstr(last, "4 cases compared: 1 regressions") && strstr(last, "FAIL"), "%s", g.out);
     const char *all[] = {"check", "--baseline", g.base, d, NULL};
     cr_assert_eq(gate_cli(all), 1);
-    cr_assert(gate_line(g.out, "leo-near-circular__rkf45", "same", "ok"), "%s", g.out);
+    cr_assert(pbt_line_has(g.out, "leo-near-circular__rkf45", "same", "ok"), "%s", g.out);
 }
 
 /* ---- item 6: the CI script a team runs (scripts/ci-gate.sh) ---- */

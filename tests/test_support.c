@@ -208,3 +208,17 @@ int pbt_exists(const char *path)
     struct stat st;
     return stat(path, &st) == 0;
 }
+
+int pbt_line_has(const char *text, const char *a, const char *b, const char *c)
+{
+    for (const char *l = text; l && *l;) {
+        const char *e = strchr(l, '\n');
+        size_t n = e ? (size_t)(e - l) : strlen(l);
+        char line[600];
+        snprintf(line, sizeof line, "%.*s", (int)(n < sizeof line ? n : sizeof line - 1), l);
+        if (strstr(line, a) && strstr(line, b) && strstr(line, c))
+            return 1;
+        l = e ? e + 1 : NULL;
+    }
+    return 0;
+}

@@ -73,6 +73,9 @@ void pbt_read_into(const char *path, char *buf, size_t len);
 /* 1 if the path exists. */
 int pbt_exists(const char *path);
 
+/* 1 when one line of text (its first 599 characters) holds all of a, b and c. */
+int pbt_line_has(const char *text, const char *a, const char *b, const char *c);
+
 /* Headless Chromium ($PB_CHROMIUM, else chromium) with the extra arguments
  * (NULL-ended) and a fresh profile folder, stdout into out_path; the exit
  * status, and the tail of its stderr in err (test_support_browser.c). */
