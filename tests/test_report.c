@@ -325,34 +325,15 @@ static const char rpt_probe[] =
 
 Test(report, browser_renders_figures_and_tables)
 {
-    char dir[256], err[8192], path[600], url[700], probe[600], dom[600], shot[700];
+    char dir[256], err[8192], path[600], url[700], shot[700];
     rpt_make_run(dir, sizeof dir);
     int rc = rpt_report(dir, NULL, err, sizeof err);
     cr_assert_eq(rc, 0, "rc %d: %s", rc, err);
 
     snprintf(path, sizeof path, "%s/report.html", dir);
-    size_t n = 0;
-    char *html = pbt_slurp_file(path, &n);
-    cr_assert_not_null(html);
-    char *end = strstr(html, "</body>");
-    cr_assert_not_null(end);
-    snprintf(probe, sizeof probe, "%s/probe.html", dir);
-    FILE *f = fopen(probe, "w");
-    fwrite(html, 1, (size_t)(end - html), f);
-    fputs(rpt_probe, f);
-    fputs(end, f);
-    fclose(f);
-    free(html);
-
-    snprintf(url, sizeof url, "file://%s", probe);
-    snprintf(dom, sizeof dom, "%s/probe.dom", dir);
-    const char *a1[] = {"--window-size=1200,900", "--dump-dom", url, NULL};
-    rc = pbt_chromium(a1, dom, err, sizeof err);
-    cr_assert_eq(rc, 0, "headless chromium could not start or failed (status %d): %s", rc, err);
-    char *d = pbt_slurp_file(dom, NULL);
-    cr_assert_not_null(d);
+    char *d = pbt_browser_dom(path, rpt_probe, dir);
     char *line = strstr(d, "<pre id=\"pbcheck\">");
-    cr_assert_not_null(line, "the page's probe did not run; chromium stderr: %s", err);
+    cr_assert_not_null(line, "the page's probe did not run");
     int svgs = -1, drawn = -1, rows = -1;
     cr_assert_eq(sscanf(line, "<pre id=\"pbcheck\">PBCHECK svgs=%d drawn=%d rows=%d", &svgs, &drawn, &rows), 3,
                  "%.200s", line);
@@ -372,7 +353,8 @@ Test(report, browser_renders_figures_and_tables)
     cr_assert_eq(rc, 0, "screenshot failed (status %d): %s", rc, err);
     char blank[600], bshot[700], burl[700];
     snprintf(blank, sizeof blank, "%s/blank.html", dir);
-    f = fopen(blank, "w");
+    FILE *f = fopen(blank, "w");
+    cr_assert_not_null(f);
     fputs("<!DOCTYPE html><html><body></body></html>\n", f);
     fclose(f);
     snprintf(burl, sizeof burl, "file://%s", blank);

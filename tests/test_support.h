@@ -80,5 +80,9 @@ int pbt_line_has(const char *text, const char *a, const char *b, const char *c);
  * (NULL-ended) and a fresh profile folder, stdout into out_path; the exit
  * status, and the tail of its stderr in err (test_support_browser.c). */
 int pbt_chromium(const char *const *extra, const char *out_path, char *err, size_t errlen);
+/* A copy of the page at html_path with script put before its </body>
+ * (DIR/probe.html), laid out by headless Chromium at 1200 x 900; the DOM it
+ * dumps after the script ran (malloc'd). Fails the test when it cannot. */
+char *pbt_browser_dom(const char *html_path, const char *script, const char *dir);
 
 #endif

@@ -1,8 +1,10 @@
 /* test_support_browser.c - headless Chromium for the report tests that
  * check what a browser actually lays out (see test_support.h). */
+#include <criterion/criterion.h>
 #include <fcntl.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 #include <sys/wait.h>
 #include <unistd.h>
 #include "test_support.h"
@@ -59,4 +61,29 @@ int pbt_chromium(const char *const *extra, const char *out_path, char *err, size
     }
     waitpid(r, NULL, 0);
     return WIFEXITED(st) ? WEXITSTATUS(st) : -1;
+}
+
+char *pbt_browser_dom(const char *html_path, const char *script, const char *dir)
+{
+    char probe[600], url[700], dom[600], err[2048];
+    char *html = pbt_slurp_file(html_path, NULL);
+    cr_assert_not_null(html, "%s", html_path);
+    char *end = strstr(html, "</body>");
+    cr_assert_not_null(end, "%s has no </body>", html_path);
+    snprintf(probe, sizeof probe, "%s/probe.html", dir);
+    FILE *f = fopen(probe, "w");
+    cr_assert_not_null(f, "%s", probe);
+    fwrite(html, 1, (size_t)(end - html), f);
+    fputs(script, f);
+    fputs(end, f);
+    fclose(f);
+    free(html);
+    snprintf(url, sizeof url, "file://%s", probe);
+    snprintf(dom, sizeof dom, "%s/probe.dom", dir);
+    const char *args[] = {"--window-size=1200,900", "--dump-dom", url, NULL};
+    int rc = pbt_chromium(args, dom, err, sizeof err);
+    cr_assert_eq(rc, 0, "headless chromium could not start or failed (status %d): %s", rc, err);
+    char *d = pbt_slurp_file(dom, NULL);
+    cr_assert_not_null(d, "no DOM dump in %s", dom);
+    return d;
 }
