@@ -19,6 +19,22 @@ void pb_check_options_default(pb_check_options *o)
     o->timing_ratio = PB_CHECK_TIMING_RATIO;
 }
 
+/* The REL of option opt's NAME=REL (text: what follows '='): a relative
+ * tolerance from 0 to PB_CHECK_TOLERANCE_MAX; 0, or -1 with the reason. */
+static int check_rel_value(const char *opt, const char *name, const char *text, double *t, char *err,
+                           size_t errlen)
+{
+    char *end;
+    errno = 0;
+    *t = strtod(text, &end);
+    if (end == text || *end || errno || !isfinite(*t) || *t < 0 || *t > PB_CHECK_TOLERANCE_MAX) {
+        snprintf(err, errlen, "%s %s: expects a relative tolerance from 0 to %g, got '%s'", opt, name,
+                 PB_CHECK_TOLERANCE_MAX, text);
+        return -1;
+    }
+    return 0;
+}
+
 int pb_check_options_metric(pb_check_options *o, const char *arg, char *err, size_t errlen)
 {
     const char *eq = strchr(arg, '=');
@@ -35,14 +51,9 @@ int pb_check_options_metric(pb_check_options *o, const char *arg, char *err, siz
             snprintf(err + n, errlen - (size_t)n, "; got '%s'", arg);
         return -1;
     }
-    char *end;
-    errno = 0;
-    double t = strtod(eq + 1, &end);
-    if (end == eq + 1 || *end || errno || !isfinite(t) || t < 0 || t > PB_CHECK_TOLERANCE_MAX) {
-        snprintf(err, errlen, "--metric-tolerance %s: expects a relative tolerance from 0 to %g, "
-                 "got '%s'", *k, PB_CHECK_TOLERANCE_MAX, eq + 1);
+    double t;
+    if (check_rel_value("--metric-tolerance", *k, eq + 1, &t, err, errlen))
         return -1;
-    }
     int i = 0;
     while (i < o->n_metric && strcmp(o->metric_name[i], *k))
         i++;
@@ -74,14 +85,9 @@ int pb_check_options_counts(pb_check_options *o, const char *arg, char *err, siz
                      "of steps, evals, rejected, startup_steps; got '%.*s'", (int)len, p);
             return -1;
         }
-        char *end;
-        errno = 0;
-        double t = strtod(eq + 1, &end);
-        if (end == eq + 1 || *end || errno || !isfinite(t) || t < 0 || t > PB_CHECK_TOLERANCE_MAX) {
-            snprintf(err, errlen, "--count-tolerance %s: expects a relative tolerance from 0 to "
-                     "%g, got '%s'", *k, PB_CHECK_TOLERANCE_MAX, eq + 1);
+        double t;
+        if (check_rel_value("--count-tolerance", *k, eq + 1, &t, err, errlen))
             return -1;
-        }
         int i = 0;
         while (i < o->n_count && strcmp(o->count_name[i], *k))
             i++;
