@@ -5,6 +5,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "bench/gate/require.h"
+#include "bench/store/summary_read.h"
 
 const char *const pb_require_names[] = {
     "energy_rel_max", "energy_rel_final", "angmom_rel_max", "angmom_rel_final",
@@ -64,40 +65,16 @@ int pb_require_parse(pb_check_options *o, const char *arg, char *err, size_t err
     return 0;
 }
 
-/* 1 when name is in the comma list (or there is no list). */
-static int require_listed(const char *list, const char *name)
-{
-    if (!list)
-        return 1;
-    size_t n = strlen(name);
-    for (const char *p = list; *p;) {
-        size_t len = strcspn(p, ",");
-        if (len == n && !strncmp(p, name, n))
-            return 1;
-        p += len + (p[len] == ',');
-    }
-    return 0;
-}
-
 /* A list name that matches no case of the run: 1 with the message. */
 static int require_list_unmatched(const json_t *cases, const char *list, const char *key,
                                   const char *opt, char *err, size_t errlen)
 {
-    for (const char *p = list; p && *p;) {
-        size_t len = strcspn(p, ","), i;
-        const json_t *c;
-        int found = 0;
-        json_array_foreach(cases, i, c) {
-            const char *s = json_string_value(json_object_get(c, key));
-            found |= s && strlen(s) == len && !strncmp(s, p, len);
-        }
-        if (!found) {
-            snprintf(err, errlen, "%s: no case of %s '%.*s' in the run", opt, key, (int)len, p);
-            return 1;
-        }
-        p += len + (p[len] == ',');
-    }
-    return 0;
+    size_t len;
+    const char *p = pb_summary_list_unmatched(cases, list, key, &len);
+    if (!p)
+        return 0;
+    snprintf(err, errlen, "%s: no case of %s '%.*s' in the run", opt, key, (int)len, p);
+    return 1;
 }
 
 static int require_met(const pb_check_require *q, double x)
@@ -182,8 +159,8 @@ int pb_require_check(const json_t *summary, const pb_check_options *o, pb_check_
     const json_t *c;
     json_array_foreach(cases, i, c) {
         const char *id = json_string_value(json_object_get(c, "id"));
-        if (!o->n_require || !require_listed(o->methods, json_string_value(json_object_get(c, "method"))) ||
-            !require_listed(o->problems, json_string_value(json_object_get(c, "problem"))))
+        if (!o->n_require || !pb_summary_listed(o->methods, json_string_value(json_object_get(c, "method"))) ||
+            !pb_summary_listed(o->problems, json_string_value(json_object_get(c, "problem"))))
             continue;
         for (int q = 0; q < o->n_require; q++)
             if (require_row(r, id ? id : "?", c, &o->require[q]))

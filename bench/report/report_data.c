@@ -168,41 +168,16 @@ static int data_stems_distinct(const pb_report_run *run, const char *path, char 
     return 0;
 }
 
-/* 1 when name is one of the comma-separated list's items (NULL: any). */
-static int data_listed(const char *list, const char *name)
-{
-    if (!list)
-        return 1;
-    size_t n = strlen(name);
-    for (const char *s = list; *s;) {
-        size_t k = strcspn(s, ",");
-        if (k == n && !strncmp(s, name, n))
-            return 1;
-        s += k + (s[k] == ',');
-    }
-    return 0;
-}
-
 /* Every item of list must name a case's field key (method or problem). */
 static int data_list_known(const json_t *cases, const char *list, const char *key, const char *opt,
                            char *err, size_t errlen)
 {
-    for (const char *s = list; s && *s;) {
-        size_t k = strcspn(s, ","), i;
-        int hit = 0;
-        const json_t *c;
-        json_array_foreach(cases, i, c) {
-            const char *v = json_string_value(json_object_get(c, key));
-            if (v && strlen(v) == k && !strncmp(v, s, k))
-                hit = 1;
-        }
-        if (!hit) {
-            snprintf(err, errlen, "%s: '%.*s' is no %s of this run", opt, (int)(k > 200 ? 200 : k), s, key);
-            return -1;
-        }
-        s += k + (s[k] == ',');
-    }
-    return 0;
+    size_t k;
+    const char *s = pb_summary_list_unmatched(cases, list, key, &k);
+    if (!s)
+        return 0;
+    snprintf(err, errlen, "%s: '%.*s' is no %s of this run", opt, (int)(k > 200 ? 200 : k), s, key);
+    return -1;
 }
 
 int pb_report_load(const char *dir, pb_report_run *run, char *err, size_t errlen)
@@ -254,7 +229,7 @@ int pb_report_load_subset(const char *dir, const char *methods, const char *prob
             bad = 1;
             break;
         }
-        if (!data_listed(methods, it->c.method) || !data_listed(problems, it->c.problem))
+        if (!pb_summary_listed(methods, it->c.method) || !pb_summary_listed(problems, it->c.problem))
             continue;
         kept++;
         it->pslot = data_slot(pnames, &np, it->c.problem);

@@ -241,3 +241,40 @@ int pb_summary_load(const char *path, json_t **out, char *err, size_t errlen)
     *out = d;
     return 0;
 }
+
+int pb_summary_listed(const char *list, const char *name)
+{
+    if (!list)
+        return 1;
+    if (!name)
+        return 0;
+    size_t n = strlen(name);
+    for (const char *p = list; *p;) {
+        size_t len = strcspn(p, ",");
+        if (len == n && !strncmp(p, name, n))
+            return 1;
+        p += len + (p[len] == ',');
+    }
+    return 0;
+}
+
+const char *pb_summary_list_unmatched(const json_t *cases, const char *list, const char *key,
+                                      size_t *len)
+{
+    for (const char *p = list; p && *p;) {
+        size_t n = strcspn(p, ","), i;
+        const json_t *c;
+        int found = 0;
+        json_array_foreach(cases, i, c) {
+            const char *v = json_string_value(json_object_get(c, key));
+            found |= v && strlen(v) == n && !strncmp(v, p, n);
+        }
+        if (!found) {
+            *len = n;
+            return p;
+        }
+        p += n + (p[n] == ',');
+    }
+    return NULL;
+}
+

@@ -25,6 +25,16 @@ json_t *pb_json_doc_read(const char *path, char *err, size_t errlen);
 int pb_json_doc_format_ok(const char *path, const json_t *d, int want, const char *what,
                           char *err, size_t errlen);
 
+/* The --methods/--problems filters of the verbs that read a run: 1 when
+ * name is an item of the comma-separated list (a NULL list takes any name,
+ * a NULL name none). */
+int pb_summary_listed(const char *list, const char *name);
+/* The first item of list that no case of cases has as its string field key
+ * ("method", "problem"), with its length in *len; NULL when every item
+ * names one. */
+const char *pb_summary_list_unmatched(const json_t *cases, const char *list, const char *key,
+                                      size_t *len);
+
 /* Counts (steps, evaluations) above this are refused: 2^62 is far beyond
  * any run, and the difference of two such counts fits a long long. */
 #define PB_SUMMARY_COUNT_MAX (1LL << 62)
