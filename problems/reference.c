@@ -317,19 +317,11 @@ static ref_real ref_reject_factor(ref_run *w, ref_real H, ref_real err, ref_real
  * edge is found as any other, by a step that crosses it). */
 static int ref_predict_edge(ref_run *w)
 {
-    ref_real dt = 1e-4Q * w->h_cruise, rp[3], rm[3], gp[4], gm[4], tau = 1e300Q;
-    int ns;
-    for (int i = 0; i < 3; i++) {
-        rp[i] = w->y[i] + dt * w->y[i + 3];
-        rm[i] = w->y[i] - dt * w->y[i + 3];
-    }
-    pb_forces_events_q(w->p, w->t + dt, rp, w->F.band, gp, &ns);
-    pb_forces_events_q(w->p, w->t - dt, rm, w->F.band, gm, &ns);
-    for (int j = 0; j < w->nshadow; j++) {
-        ref_real rate = (gp[j] - gm[j]) / (2 * dt), g = 0.5Q * (gp[j] + gm[j]);
-        if ((g > 0) == (w->g[j] > 0) && (g > 0) != (rate > 0) && rate != 0)
-            tau = fminq(tau, -g / rate);
-    }
+    ref_real gm[4], rate[4], tau = 1e300Q;
+    pb_ref_event_rates(w->p, w->F.band, w->t, w->y, 1e-4Q * w->h_cruise, gm, rate);
+    for (int j = 0; j < w->nshadow; j++)
+        if ((gm[j] > 0) == (w->g[j] > 0) && (gm[j] > 0) != (rate[j] > 0) && rate[j] != 0)
+            tau = fminq(tau, -gm[j] / rate[j]);
     if (!(tau < w->h_cruise))
         return PB_OK;
     ref_real y[REF_N], g[4];

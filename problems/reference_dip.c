@@ -132,26 +132,32 @@ __float128 pb_ref_shadow_dip(const pb_problem *p, int band, int nshadow, __float
     return cut > 0 ? fmin(fmax(cut, 1.0 / (4 * DIP_SAMPLES)), 1 - 1.0 / (4 * DIP_SAMPLES)) : 0;
 }
 
+int pb_ref_event_rates(const pb_problem *p, int band, __float128 t, const __float128 *y, __float128 dt,
+                       __float128 *g, __float128 *rate)
+{
+    __float128 rp[3], rm[3], gp[4], gm[4];
+    int ns;
+    for (int i = 0; i < 3; i++) {
+        rp[i] = y[i] + dt * y[i + 3];
+        rm[i] = y[i] - dt * y[i + 3];
+    }
+    int n = pb_forces_events_q(p, t + dt, rp, band, gp, &ns);
+    pb_forces_events_q(p, t - dt, rm, band, gm, &ns);
+    for (int j = 0; j < n; j++) {
+        g[j] = 0.5Q * (gp[j] + gm[j]);
+        rate[j] = (gp[j] - gm[j]) / (2 * dt);
+    }
+    return n;
+}
+
 __float128 pb_ref_shadow_root(const pb_problem *p, int band, int j, __float128 t0,
                               const __float128 *y0, __float128 H, const __float128 *y1)
 {
     /* the Hermite cubic of g_j from its values and rates at the two ends */
     __float128 g0[4], g1[4], r0[4], r1[4], dt = 1e-3Q * H;
-    for (int e = 0; e < 2; e++) {
-        const __float128 *y = e ? y1 : y0;
-        __float128 t = e ? t0 + H : t0, rp[3], rm[3], gp[4], gm[4], *g = e ? g1 : g0, *rt = e ? r1 : r0;
-        int ns;
-        for (int i = 0; i < 3; i++) {
-            rp[i] = y[i] + dt * y[i + 3];
-            rm[i] = y[i] - dt * y[i + 3];
-        }
-        int n = pb_forces_events_q(p, t, y, band, g, &ns);
-        pb_forces_events_q(p, t + dt, rp, band, gp, &ns);
-        pb_forces_events_q(p, t - dt, rm, band, gm, &ns);
-        if (j >= n)
-            return 0;
-        rt[j] = (gp[j] - gm[j]) / (2 * dt);
-    }
+    if (pb_ref_event_rates(p, band, t0, y0, dt, g0, r0) <= j ||
+        pb_ref_event_rates(p, band, t0 + H, y1, dt, g1, r1) <= j)
+        return 0;
     if ((g0[j] > 0) == (g1[j] > 0))
         return 0;
     /* the cubic's sign change, by bisection: it has one in (0, 1) */

@@ -16,6 +16,12 @@
 __float128 pb_ref_shadow_dip(const pb_problem *p, int band, int nshadow, __float128 t0,
                              const __float128 *y0, __float128 H, const __float128 *y1);
 
+/* The boundary functions (pb_forces_events_q) at t, as the mean of their
+ * values at t +- dt along the state's velocity, and their rates by that
+ * central difference (the acceleration's part cancels); how many. */
+int pb_ref_event_rates(const pb_problem *p, int band, __float128 t, const __float128 *y, __float128 dt,
+                       __float128 *g, __float128 *rate);
+
 /* Where shadow function j, whose sign differs at the step's two ends,
  * crosses zero by the same Hermite model: the fraction of the step in
  * (0, 1), a first guess for the root finder (0: no sign change). */
