@@ -144,16 +144,9 @@ static void select_keep(select_state *st, double x, const pb_case_result *r)
     st->timed_x = x;
 }
 
-/* Run setting x (once: later calls answer from the memo); 1 pass, 0 fail,
- * -1 could not run. timed: run it with a timing pass and keep it as the
- * answer's candidate (the answer's projected cost needs its ns per step). */
-static int select_try(select_state *st, double x, int timed)
+/* The case of setting x; timed: with the answer's timing pass. */
+static pb_case_spec select_spec(const select_state *st, double x, int timed)
 {
-    int i = memo_find(st, x);
-    if (i >= 0 && (!timed || st->timed_x == x))
-        return st->ok[i];
-    if (i < 0 && st->n == SELECT_MEMO)
-        return -1;
     pb_case_spec s = *st->base;
     s.method = st->m;
     s.repeats = 0; /* the search's trial runs need errors, not timings */
@@ -169,6 +162,20 @@ static int select_try(select_state *st, double x, int timed)
         s.steps_per_orbit = (int)x;
     else
         s.tolerance = select_tol(x);
+    return s;
+}
+
+/* Run setting x (once: later calls answer from the memo); 1 pass, 0 fail,
+ * -1 could not run. timed: run it with a timing pass and keep it as the
+ * answer's candidate (the answer's projected cost needs its ns per step). */
+static int select_try(select_state *st, double x, int timed)
+{
+    int i = memo_find(st, x);
+    if (i >= 0 && (!timed || st->timed_x == x))
+        return st->ok[i];
+    if (i < 0 && st->n == SELECT_MEMO)
+        return -1;
+    pb_case_spec s = select_spec(st, x, timed);
     pb_case_result r;
     st->out->runs++;
     if (pb_case_run(&s, &r))
@@ -456,16 +463,7 @@ static int select_time_answer(select_state *st, double x)
     int i = memo_find(st, x);
     if (i < 0)
         return select_try(st, x, 1);
-    pb_case_spec s = *st->base;
-    s.method = st->m;
-    if (st->ax->fixed)
-        s.steps_per_orbit = (int)x;
-    else
-        s.tolerance = select_tol(x);
-    pb_case_spec d;
-    pb_case_spec_default(&d);
-    s.repeats = st->base->repeats > 0 ? st->base->repeats : d.repeats;
-    s.timing_min_cpu_s = SELECT_TIMING_MIN_CPU_S;
+    pb_case_spec s = select_spec(st, x, 1);
     pb_case_result r;
     memset(&r, 0, sizeof r);
     st->out->runs++;
