@@ -279,7 +279,7 @@ Test(select, answer_figures_are_those_of_its_run)
 Test(select, secant_search_needs_fewer_runs, .timeout = 600)
 {
     json_t *d = sel_run((const char *[]){"--problem", "kepler-e0.5", "--orbits", "100", "--max-pos-err", "1e-6",
-                                         "--methods", "rk4,gauss-jackson8,rkf45,leapfrog", NULL}, 0);
+                                         "--methods", "rk4,gauss-jackson8,rkf45,leapfrog", "--prune-factor", "0", NULL}, 0);
     cr_assert_eq(sel_spo(d, "rk4"), 1975);
     cr_assert_eq(sel_spo(d, "gauss-jackson8"), 326);
     cr_assert_float_eq(sel_num(d, "rkf45", "tolerance"), 3.91e-13, 1e-27);
@@ -350,4 +350,52 @@ Test(select, formulation_recorded_and_ks_cheaper_on_an_eccentric_orbit, .timeout
     cr_expect(ek > 0 && ek < ec, "ks %g evaluations, cartesian %g", ek, ec);
     json_decref(c);
     json_decref(k);
+}
+
+/* --prune-factor K (default 10): a method whose answer is known from its
+ * own failing runs to cost more than K times the cheapest answer is not
+ * searched to its end. Its bound must be true (its answer, searched with
+ * --prune-factor 0, costs at least that), it must exceed K times the
+ * cheapest, and every answer that is given is the one the full search
+ * gives (the rounds resume each search from its memory, so they take the
+ * same decisions). Methods and bound chosen so that one is pruned:
+ * gauss-jackson8 needs 2,331 evaluations here, leapfrog far more than ten
+ * times that, and rk4 (34,761) is searched to its end in the round whose
+ * cap is 4 K times the cheapest (measured). */
+Test(select, pruning_keeps_every_answer_it_gives, .timeout = 300)
+{
+#define PR K10, "--max-pos-err", "1e-6", "--methods", "gauss-jackson8,dop853,rk4,leapfrog,yoshida6"
+    json_t *dp = sel_run((const char *[]){PR, NULL}, 0);
+    json_t *df = sel_run((const char *[]){PR, "--prune-factor", "0", NULL}, 0);
+#undef PR
+    json_t *best = json_array_get(json_object_get(dp, "ranking"), 0);
+    cr_assert_str_eq(json_string_value(json_object_get(best, "method")),
+                     json_string_value(json_object_get(json_array_get(json_object_get(df, "ranking"), 0), "method")));
+    double cheapest = json_number_value(json_object_get(best, "evals"));
+    int pruned = 0;
+    size_t i;
+    json_t *e;
+    json_array_foreach(json_object_get(dp, "ranking"), i, e) {
+        const char *m = json_string_value(json_object_get(e, "method"));
+        json_t *f = sel_entry(df, m);
+        if (json_is_true(json_object_get(e, "meets_requirement"))) {
+            const char *keys[] = {"steps_per_orbit", "tolerance", "evals", "steps", "fingerprint", "pos_err_max", NULL};
+            for (int k = 0; keys[k]; k++)
+                cr_assert(json_equal(json_object_get(e, keys[k]), json_object_get(f, keys[k])) ||
+                          (!json_object_get(e, keys[k]) && !json_object_get(f, keys[k])), "%s: %s differs", m, keys[k]);
+            continue;
+        }
+        const char *why = json_string_value(json_object_get(e, "reason"));
+        if (strcmp(why, "costlier"))
+            continue;
+        pruned++;
+        double lb = json_number_value(json_object_get(e, "lower_bound_evals"));
+        cr_assert_gt(lb, 10 * cheapest, "%s pruned at %g evaluations, the cheapest needs %g", m, lb, cheapest);
+        cr_assert_lt(json_number_value(json_object_get(e, "runs")), json_number_value(json_object_get(f, "runs")),
+                     "%s: pruning saved no run", m);
+        if (json_is_true(json_object_get(f, "meets_requirement")))
+            cr_assert_geq(json_number_value(json_object_get(f, "evals")), lb, "%s: the bound is not true", m);
+    }
+    cr_assert_geq(pruned, 1, "no method pruned");
+    json_decref(dp), json_decref(df);
 }

@@ -23,7 +23,7 @@ static void select_help(FILE *f)
 "usage: propbench select (--problem NAME | --problem-file FILE [--case NAME])\n"
 "                        [--orbits N | --horizon-s S] REQUIREMENT.. [--margin F]\n"
 "                        [--methods M,..] [--formulation F] [--eval-cost-us C]\n"
-"                        [-j N] [--out FILE] [--quiet]\n\n"
+"                        [--prune-factor K] [-j N] [--out FILE] [--quiet]\n\n"
 "Find, for each method, the largest step (fixed-step methods, as steps per\n"
 "orbit and seconds) or loosest tolerance (adaptive ones) whose run meets every\n"
 "requirement over the horizon (default: the problem's own). A coarse ladder\n"
@@ -45,9 +45,13 @@ static void select_help(FILE *f)
 "  --formulation F     cartesian, sundman or ks: the equations the methods\n"
 "                      integrate (methods that cannot take it are not searched)\n"
 "  --eval-cost-us C    cost of one evaluation of YOUR force model (default 1)\n"
+"  --prune-factor K    a method whose failing runs already cost more than K x\n"
+"                      the cheapest answer is not searched to its end (reason\n"
+"                      costlier; default %g); 0 searches every method to its answer\n"
 "  -j N                methods searched at once (default: the cores, %ld)\n"
 "  --out FILE          selection JSON (default results/runs/select-<problem>.json)\n"
-"Exit status 1 when no method meets the requirement.\n", sysconf(_SC_NPROCESSORS_ONLN));
+"Exit status 1 when no method meets the requirement.\n", PB_SELECT_PRUNE_DEFAULT,
+            sysconf(_SC_NPROCESSORS_ONLN));
 }
 
 /* The requirements with a metre form: position, velocity, RIC parts. */
@@ -58,13 +62,13 @@ static const char *const rq_words[RQ_N] = {"position", "velocity", "radial", "al
                                            "cross-track"};
 
 enum { SE_PROBLEM = 400, SE_FILE, SE_CASE, SE_ORBITS, SE_HORIZON, SE_EN, SE_ANG, SE_MARGIN,
-       SE_METHODS, SE_COST, SE_OUT, SE_QUIET, SE_HELP, SE_FORM, SE_JOBS, SE_RQ };
+       SE_METHODS, SE_COST, SE_OUT, SE_QUIET, SE_HELP, SE_FORM, SE_JOBS, SE_PRUNE, SE_RQ };
 
 /* What the command line asks for; numbers left 0 were not given. */
 typedef struct select_options {
     const char *problem, *file, *case_name, *out;
     char *methods;
-    double orbits, horizon, en, ang, margin, cost;
+    double orbits, horizon, en, ang, margin, cost, prune;
     double bound[RQ_N], bound_m[RQ_N];  /* X forms, -m forms */
     int cost_given;
     long jobs;
@@ -103,6 +107,7 @@ static int select_option(int c, select_options *o)
     case SE_EN: return select_number("--max-energy-err", optarg, &o->en, 0);
     case SE_ANG: return select_number("--max-angmom-err", optarg, &o->ang, 0);
     case SE_MARGIN: return select_number("--margin", optarg, &o->margin, 1);
+    case SE_PRUNE: return select_number("--prune-factor", optarg, &o->prune, 1);
     case SE_COST: o->cost_given = 1; return select_number("--eval-cost-us", optarg, &o->cost, 1);
     }
     if (c >= SE_RQ && c < SE_RQ + 2 * RQ_N) {
@@ -137,9 +142,11 @@ static int select_parse(int argc, char **argv, select_options *o)
         {"methods", required_argument, 0, SE_METHODS}, {"eval-cost-us", required_argument, 0, SE_COST},
         {"out", required_argument, 0, SE_OUT}, {"quiet", no_argument, 0, SE_QUIET},
         {"formulation", required_argument, 0, SE_FORM}, {"jobs", required_argument, 0, SE_JOBS},
+        {"prune-factor", required_argument, 0, SE_PRUNE},
         {"help", no_argument, 0, SE_HELP}, {0, 0, 0, 0}};
     memset(o, 0, sizeof *o);
     o->cost = 1;
+    o->prune = PB_SELECT_PRUNE_DEFAULT;
     o->form = -1;
     o->jobs = sysconf(_SC_NPROCESSORS_ONLN);
     if (o->jobs < 1)
@@ -515,7 +522,8 @@ static int select_run(const select_options *o, const pb_case_spec *base, const p
         return pb_cli_error("select", "out of memory");
     pb_progress prog;
     pb_progress_start(&prog, pb_cli_progress_wanted(o->quiet), m, "methods");
-    pb_select_all(base, req, list, m, (int)o->jobs, sel, select_progress, &prog);
+    pb_select_plan plan = {(int)o->jobs, o->prune, o->cost_given};
+    pb_select_all(base, req, list, m, &plan, sel, select_progress, &prog);
     pb_progress_end(&prog);
     select_commands(o, &base->problem, sel, m);
     pb_selection_rank(sel, m, o->cost_given);

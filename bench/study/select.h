@@ -34,6 +34,20 @@ typedef struct pb_select_answer {
     char fingerprint[40];
 } pb_select_answer;
 
+/* One method's search so far: every setting run and its outcome. Plain
+ * data (it crosses a pipe to and from the worker that searches), so a
+ * search stopped at a round's cost cap resumes where it stopped and makes
+ * the same decisions, run for run, as one never stopped. */
+#define PB_SELECT_MEMO 128
+typedef struct pb_select_memo {
+    int n, runs;               /* settings run; cases run (timing passes included) */
+    double x[PB_SELECT_MEMO], q[PB_SELECT_MEMO];  /* fineness; requirement ratio */
+    signed char ok[PB_SELECT_MEMO], usable[PB_SELECT_MEMO]; /* usable: q measures the error */
+    pb_select_answer ans[PB_SELECT_MEMO];  /* each run's figures, untimed */
+    long steps_done[PB_SELECT_MEMO];       /* its steps and start-up steps */
+    double timed_x;            /* the setting the answer's timing pass ran (0: none) */
+} pb_select_memo;
+
 typedef struct pb_selection {
     const pb_method_type *method;
     int index;               /* place in the list searched (ties rank in this order) */
@@ -45,7 +59,10 @@ typedef struct pb_selection {
     pb_select_answer confirmed;  /* the confirming run (valid when found) */
     double projected_s;      /* evals x eval cost + steps x measured ns per step */
     const char *reason;      /* no answer: "not_met", "budget", "order_projection",
-                              * "not_monotone", "refused", "could_not_run" */
+                              * "not_monotone", "costlier", "refused", "could_not_run" */
+    int deferred;            /* 1: the search stopped at its round's cost cap (not final) */
+    long lb_evals;           /* evaluations the answer needs at least: the most any failing
+                              * run coarser than every passing one took (0: none) */
     char note[300];
     char command[768];       /* the `propbench run` that reproduces the answer */
 } pb_selection;
@@ -53,6 +70,10 @@ typedef struct pb_selection {
 /* 1 when res meets req (status ok and every given bound, divided by 1 +
  * margin, met). */
 int pb_requirement_met(const pb_requirement *req, const pb_case_result *res);
+
+/* The largest |radial|, |along-track| and |cross-track| position error over
+ * res's metric samples (NaN when any is undefined). */
+void pb_requirement_components(const pb_case_result *res, double *rad, double *alo, double *crs);
 
 /* How far res is from meeting req: the largest ratio of a value to its
  * bound (divided by 1 + margin); <= 1 meets it, +inf when the run failed. */
@@ -66,17 +87,39 @@ double pb_requirement_ratio(const pb_requirement *req, const pb_case_result *res
  * neighbour on the bisection grid (falling back to bisection when a
  * prediction misses twice); then confirmation: the answer and a 10% finer
  * neighbour must both pass, since errors need not be monotone in the step.
- * Returns 0, or -1 when a case could not be run. */
+ * memo: the search so far (all zero to start one). cap_evals > 0: a setting
+ * not yet run whose evaluations are forecast past it is not run; the search
+ * stops there with out->deferred set, and a later call with the same memo
+ * goes on from there. Returns 0, or -1 when a case could not be run. */
 int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
-                     const pb_requirement *req, pb_selection *out);
+                     const pb_requirement *req, double cap_evals, pb_select_memo *memo,
+                     pb_selection *out);
 void pb_selection_free(pb_selection *s);
 
-/* Search every method of list into sel[0..n) with up to jobs worker
- * processes (a method a worker); the same answers for every jobs. progress
- * (may be NULL) is called as each method ends with how many have. */
+/* How pb_select_all searches: worker processes; prune_factor K > 0: a
+ * method whose answer is known (from its failing runs) to cost more than K
+ * times the cheapest answer found is not searched to the end (reason
+ * "costlier"); 0 searches every method to its answer. by_cost: costs are
+ * projected seconds (evaluations x eval_cost_us), else evaluations. */
+typedef struct pb_select_plan {
+    int jobs;
+    double prune_factor;
+    int by_cost;
+} pb_select_plan;
+
+/* The prune factor when none is given. */
+#define PB_SELECT_PRUNE_DEFAULT 10.0
+
+/* Search every method of list into sel[0..n): in rounds, the first with each
+ * run's evaluations capped, so the cheap answers are known before any
+ * method spends more than K times them; a method's search is done by one
+ * worker process at a time, up to plan->jobs at once; the same answers
+ * for every jobs. progress (may be NULL) is called as each method ends
+ * with how many have. */
 void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
-                   const pb_method_type *const *list, int n, int jobs, pb_selection *sel,
-                   void (*progress)(void *ctx, int done, const char *name), void *ctx);
+                   const pb_method_type *const *list, int n, const pb_select_plan *plan,
+                   pb_selection *sel, void (*progress)(void *ctx, int done, const char *name),
+                   void *ctx);
 
 /* Order sel: methods with an answer first, by projected cost when by_cost,
  * else by evaluations; ties and the rest in list order. */

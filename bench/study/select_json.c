@@ -106,6 +106,8 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
         } else {
             json_object_set_new(e, "reason", json_string(s->reason ? s->reason : "not_met"));
             json_object_set_new(e, "note", json_string(s->note));
+            if (s->lb_evals > 0)
+                json_object_set_new(e, "lower_bound_evals", json_integer(s->lb_evals));
         }
         json_array_append_new(arr, e);
     }

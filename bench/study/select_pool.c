@@ -1,9 +1,15 @@
-/* select_pool.c - select's methods searched side by side: one worker
- * process a method, at most `jobs` at once, each sending its pb_selection
- * (plain data) back through a pipe. The search of a method does not depend
- * on the others, so the answers are those of one process; a worker that
- * dies leaves its method with the reason "could_not_run". */
+/* select_pool.c - select's methods searched side by side and in rounds.
+ * A round: one worker process a method, at most `jobs` at once, each
+ * sending its pb_selection and its search's memory (plain data) back
+ * through a pipe. The first round caps each run's forecast evaluations, so
+ * the cheap answers come first; a method then known (from its own failing
+ * runs) to cost more than K times the cheapest answer ends there, and the
+ * rest are searched on to their end from where they stopped. What each
+ * round does depends on the rounds before only, never on which worker ended
+ * first, so the answers are those of one process; a worker that dies leaves
+ * its method with the reason "could_not_run". */
 #include <errno.h>
+#include <math.h>
 #include <poll.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -13,23 +19,42 @@
 #include "bench/study/select.h"
 
 #define POOL_MAX 64
+#define POOL_FIRST_CAP 2e4   /* evaluations a run of the first round may be forecast to take */
+#define POOL_CAP_GROWTH 8.0  /* the cap of each further round while no answer is known */
+
+/* What a worker sends back: its method's selection and search so far. */
+typedef struct pool_reply {
+    pb_selection sel;
+    pb_select_memo memo;
+} pool_reply;
 
 typedef struct pool_slot {
     pid_t pid;
     int fd, which;       /* the pipe's read end; the method's index */
-    size_t got;          /* bytes of the selection read so far */
-    pb_selection buf;
+    size_t got;          /* bytes of the reply read so far */
+    pool_reply buf;
 } pool_slot;
 
-static void pool_child(const pb_case_spec *base, const pb_requirement *req, const pb_method_type *m,
-                       int index, int fd)
+/* One round's shared facts. */
+typedef struct pool_round {
+    const pb_case_spec *base;
+    const pb_requirement *req;
+    const pb_method_type *const *list;
+    pb_selection *sel;
+    pb_select_memo *memo;
+    double cap;
+} pool_round;
+
+static void pool_child(const pool_round *rd, int index, int fd)
 {
-    pb_selection s;
-    memset(&s, 0, sizeof s);
-    s.index = index;
-    pb_select_method(base, m, req, &s);
-    const char *p = (const char *)&s;
-    size_t left = sizeof s;
+    pool_reply *rp = calloc(1, sizeof *rp);
+    if (!rp)
+        _exit(1);
+    rp->sel.index = index;
+    rp->memo = rd->memo[index];
+    pb_select_method(rd->base, rd->list[index], rd->req, rd->cap, &rp->memo, &rp->sel);
+    const char *p = (const char *)rp;
+    size_t left = sizeof *rp;
     while (left > 0) {
         ssize_t w = write(fd, p, left);
         if (w < 0 && errno == EINTR)
@@ -42,8 +67,7 @@ static void pool_child(const pb_case_spec *base, const pb_requirement *req, cons
     _exit(0);
 }
 
-static int pool_spawn(pool_slot *sl, const pb_case_spec *base, const pb_requirement *req,
-                      const pb_method_type *m, int index)
+static int pool_spawn(pool_slot *sl, const pool_round *rd, int index)
 {
     int fds[2];
     if (pipe(fds))
@@ -57,27 +81,33 @@ static int pool_spawn(pool_slot *sl, const pb_case_spec *base, const pb_requirem
     }
     if (pid == 0) {
         close(fds[0]);
-        pool_child(base, req, m, index, fds[1]);
+        pool_child(rd, index, fds[1]);
     }
     close(fds[1]);
-    *sl = (pool_slot){.pid = pid, .fd = fds[0], .which = index, .got = 0};
+    sl->pid = pid;
+    sl->fd = fds[0];
+    sl->which = index;
+    sl->got = 0;
     return 0;
 }
 
 /* The worker of slot sl has closed its pipe: reap it and take its result. */
-static void pool_finish(pool_slot *sl, const pb_method_type *m, pb_selection *out)
+static void pool_finish(pool_slot *sl, const pool_round *rd)
 {
-    int st = 0;
+    int st = 0, i = sl->which;
+    pb_selection *out = &rd->sel[i];
     close(sl->fd);
     while (waitpid(sl->pid, &st, 0) < 0 && errno == EINTR)
         ;
     if (sl->got == sizeof sl->buf && WIFEXITED(st) && WEXITSTATUS(st) == 0) {
-        *out = sl->buf;
+        *out = sl->buf.sel;
+        out->method = rd->list[i]; /* the same table in both processes, but said here */
+        rd->memo[i] = sl->buf.memo;
         return;
     }
     memset(out, 0, sizeof *out);
-    out->method = m;
-    out->index = sl->which;
+    out->method = rd->list[i];
+    out->index = i;
     out->reason = "could_not_run";
     if (WIFSIGNALED(st))
         snprintf(out->note, sizeof out->note, "the search's worker died (signal %d)", WTERMSIG(st));
@@ -86,8 +116,7 @@ static void pool_finish(pool_slot *sl, const pb_method_type *m, pb_selection *ou
 }
 
 /* Read what the busy workers have written; reap those that finished. */
-static int pool_poll(pool_slot *slot, int busy, const pb_method_type *const *list, pb_selection *sel,
-                     void (*progress)(void *, int, const char *), void *ctx, int *done)
+static int pool_poll(pool_slot *slot, int busy, const pool_round *rd, int *finished, int *nfin)
 {
     struct pollfd pf[POOL_MAX];
     if (busy < 1 || busy > POOL_MAX)
@@ -108,35 +137,155 @@ static int pool_poll(pool_slot *slot, int busy, const pb_method_type *const *lis
         } else if (r < 0 && errno == EINTR) {
             continue;
         }
-        pool_finish(sl, list[sl->which], &sel[sl->which]);
-        ++*done;
-        if (progress)
-            progress(ctx, *done, list[sl->which]->name);
+        pool_finish(sl, rd);
+        finished[(*nfin)++] = sl->which;
         slot[i] = slot[--busy];
     }
     return busy;
 }
 
-void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
-                   const pb_method_type *const *list, int n, int jobs, pb_selection *sel,
-                   void (*progress)(void *ctx, int done, const char *name), void *ctx)
+/* One round over the methods todo[0..n): each searched (or its search
+ * resumed) under rd->cap, by up to jobs workers; the indices of those that
+ * ended, in the order they did, into finished. */
+static void pool_round_run(const pool_round *rd, const int *todo, int n, int jobs, int *finished)
 {
-    if (jobs > POOL_MAX)
-        jobs = POOL_MAX;
-    int done = 0, next = 0, busy = 0;
-    pool_slot slot[POOL_MAX];
-    while (done < n) {
-        while (jobs > 1 && busy < jobs && next < n && !pool_spawn(&slot[busy], base, req, list[next], next))
+    int nfin = 0, next = 0, busy = 0;
+    pool_slot *slot = calloc(POOL_MAX, sizeof *slot);
+    if (!slot)
+        jobs = 1; /* the slots' reply buffers are large; without them, one at a time */
+    while (nfin < n) {
+        while (jobs > 1 && busy < jobs && next < n && !pool_spawn(&slot[busy], rd, todo[next]))
             busy++, next++;
         if (busy == 0) {
             /* one job, or no worker to be had: the method runs here */
-            sel[next].index = next;
-            pb_select_method(base, list[next], req, &sel[next]);
-            if (progress)
-                progress(ctx, ++done, list[next]->name);
-            next++;
+            int i = todo[next++];
+            rd->sel[i].index = i;
+            pb_select_method(rd->base, rd->list[i], rd->req, rd->cap, &rd->memo[i], &rd->sel[i]);
+            finished[nfin++] = i;
             continue;
         }
-        busy = pool_poll(slot, busy, list, sel, progress, ctx, &done);
+        busy = pool_poll(slot, busy, rd, finished, &nfin);
     }
+    free(slot);
+}
+
+/* A selection's cost in the ranking's terms; its lower bound when unknown. */
+static double pool_cost(const pb_selection *s, const pb_case_spec *base, int by_cost, int bound)
+{
+    double evals = bound ? (double)s->lb_evals : (double)s->confirmed.evals;
+    if (!by_cost)
+        return evals;
+    /* the bound leaves out the steps' own cost, which is not yet measured */
+    return bound ? 1e-6 * base->eval_cost_us * evals : s->projected_s;
+}
+
+/* The cheapest answer among sel[0..n) in the ranking's terms; -1: none. */
+static int pool_cheapest(const pb_selection *sel, int n, const pb_case_spec *base, int by_cost)
+{
+    int best = -1;
+    for (int i = 0; i < n; i++)
+        if (sel[i].found && (best < 0 || pool_cost(&sel[i], base, by_cost, 0) <
+                                         pool_cost(&sel[best], base, by_cost, 0)))
+            best = i;
+    return best;
+}
+
+/* A deferred method whose answer is known to cost more than K times the
+ * cheapest answer's ends here with the reason "costlier"; 1 when it did. */
+static int pool_prune(pb_selection *s, const pb_selection *best, const pb_case_spec *base,
+                      const pb_select_plan *plan)
+{
+    double K = plan->prune_factor, lb = pool_cost(s, base, plan->by_cost, 1);
+    double c = pool_cost(best, base, plan->by_cost, 0);
+    if (!(K > 0) || !(lb > K * c))
+        return 0;
+    s->deferred = 0;
+    s->reason = "costlier";
+    if (plan->by_cost)
+        snprintf(s->note, sizeof s->note, "costs over %.3g s (%ld evaluations, half its finest failing "
+                 "run's), over %g x the cheapest answer's %.3g s (%s); not searched further",
+                 lb, s->lb_evals, K, c, best->method->name);
+    else
+        snprintf(s->note, sizeof s->note, "needs over %ld evaluations (half its finest failing run's), "
+                 "over %g x the cheapest answer's %ld (%s); not searched further", s->lb_evals, K,
+                 best->confirmed.evals, best->method->name);
+    return 1;
+}
+
+/* The next round's cap. Stage 0, no answer yet: a larger cap, for the
+ * cheapest answer to show first. Once one is known (stage 1): 4 K times
+ * its evaluations (or projected cost, in evaluations): the ladder's rungs
+ * double, so one lies between 2 K and 4 K times it, and a method that
+ * fails there is pruned (its lower bound is half a failing run's
+ * evaluations: select.c), while one that costs less than 2 K times it
+ * mostly reaches its answer. Stage 2: no cap, every method left is
+ * searched to its end. */
+static double pool_next_cap(const pool_round *rd, const pb_selection *best, const pb_select_plan *plan,
+                            int *stage)
+{
+    if (*stage == 0 && !best)
+        return rd->cap > 1e12 ? 0 : rd->cap * POOL_CAP_GROWTH;
+    if (*stage == 0) {
+        *stage = 1;
+        double c = pool_cost(best, rd->base, plan->by_cost, 0);
+        double evals = plan->by_cost ? c / (1e-6 * rd->base->eval_cost_us) : c;
+        double cap = 4 * plan->prune_factor * evals;
+        if (cap > rd->cap && isfinite(cap))
+            return cap;
+    }
+    *stage = 2;
+    return 0;
+}
+
+void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
+                   const pb_method_type *const *list, int n, const pb_select_plan *plan,
+                   pb_selection *sel, void (*progress)(void *ctx, int done, const char *name),
+                   void *ctx)
+{
+    int jobs = plan->jobs > POOL_MAX ? POOL_MAX : plan->jobs;
+    pb_select_memo *memo = calloc((size_t)(n > 0 ? n : 1), sizeof *memo);
+    int *todo = malloc((size_t)(n > 0 ? n : 1) * sizeof *todo);
+    int *fin = malloc((size_t)(n > 0 ? n : 1) * sizeof *fin);
+    int ntodo = 0, done = 0, stage = 0;
+    for (int i = 0; i < n; i++)
+        todo[ntodo++] = i;
+    /* without pruning, or without room for the searches' memories, one
+     * round with no cap: every method searched to its end */
+    pool_round rd = {base, req, list, sel, memo, plan->prune_factor > 0 ? POOL_FIRST_CAP : 0};
+    if (!memo || !todo || !fin) {
+        free(memo), free(todo), free(fin);
+        for (int i = 0; i < n; i++) {
+            pb_select_memo m1;
+            memset(&m1, 0, sizeof m1);
+            sel[i].index = i;
+            pb_select_method(base, list[i], req, 0, &m1, &sel[i]);
+            if (progress)
+                progress(ctx, ++done, list[i]->name);
+        }
+        return;
+    }
+    while (ntodo > 0) {
+        pool_round_run(&rd, todo, ntodo, jobs, fin);
+        int best = pool_cheapest(sel, n, base, plan->by_cost), left = 0;
+        for (int k = 0; k < ntodo; k++) {
+            int i = fin[k];
+            if (sel[i].deferred && !(best >= 0 && pool_prune(&sel[i], &sel[best], base, plan))) {
+                todo[left++] = i;
+                continue;
+            }
+            if (progress)
+                progress(ctx, ++done, list[i]->name);
+        }
+        ntodo = left;
+        rd.cap = pool_next_cap(&rd, best >= 0 ? &sel[best] : NULL, plan, &stage);
+        /* todo is reordered by the finishing order: restore the list's order,
+         * so the same methods start first whatever the workers did */
+        for (int a = 1; a < ntodo; a++)
+            for (int b = a; b > 0 && todo[b - 1] > todo[b]; b--) {
+                int t = todo[b];
+                todo[b] = todo[b - 1];
+                todo[b - 1] = t;
+            }
+    }
+    free(memo), free(todo), free(fin);
 }
