@@ -1,7 +1,8 @@
 /* test_suites.c - the standard suite's contents (issue 16 item 4): it keeps
  * every built-in problem and every method that fits each, at three settings,
- * and caps only the horizon of the problem whose finest fixed step would
- * spend more than 2e6 steps over it (kepler-e0.99: 10 orbits, not 100). */
+ * and caps the horizon of a problem whose finest fixed step would spend
+ * more than 2e5 steps over it, down to no fewer than 3 orbits
+ * (kepler-e0.99: 3 orbits, kepler-e0.9: 25, not 100). */
 #include <criterion/criterion.h>
 #include <jansson.h>
 #include <stdio.h>
@@ -49,17 +50,20 @@ Test(suites, standard_horizons)
     pb_case_list l = {0, 0, NULL};
     cr_assert_eq(pb_suite_expand("standard", &l), 0);
     int n;
-    /* e = 0.99: 50,000 to 200,000 steps an orbit; 2e6 / 200,000 = 10 orbits */
-    cr_assert_eq(std_orbits(&l, "kepler-e0.99", &n), 10.0);
-    /* the others keep up to 100 orbits: e = 0.9 at 2,000 to 8,000 steps an
-     * orbit spends 800,000 of the finest */
-    cr_assert_eq(std_orbits(&l, "kepler-e0.9", &n), 100.0);
+    /* e = 0.99: 50,000 to 200,000 steps an orbit; 2e5 / 200,000 = 1 orbit,
+     * raised to the least, 3 */
+    cr_assert_eq(std_orbits(&l, "kepler-e0.99", &n), 3.0);
+    /* e = 0.9 at 2,000 to 8,000 steps an orbit: 2e5 / 8,000 = 25 orbits */
+    cr_assert_eq(std_orbits(&l, "kepler-e0.9", &n), 25.0);
+    /* the others keep up to 100 orbits (molniya-like at 2,000: exactly 2e5) */
     cr_assert_eq(std_orbits(&l, "kepler-e0.5", &n), 100.0);
+    cr_assert_eq(std_orbits(&l, "molniya-like", &n), 100.0);
     for (int i = 0; i < l.n; i++) {
         const pb_case_spec *c = &l.cases[i];
-        if (c->steps_per_orbit > 0 && c->orbits > 0)
-            cr_assert(c->steps_per_orbit * c->orbits <= 2e6 + 0.5, "%s %s: %d steps/orbit x %g orbits",
+        if (c->steps_per_orbit > 0 && c->orbits > 3)
+            cr_assert(c->steps_per_orbit * c->orbits <= 2e5 + 0.5, "%s %s: %d steps/orbit x %g orbits",
                       c->problem.name, c->method->name, c->steps_per_orbit, c->orbits);
+        cr_assert_eq(c->timing_min_cpu_s, 0.02, "%s %s: timing pass", c->problem.name, c->method->name);
     }
     pb_case_list_free(&l);
 }

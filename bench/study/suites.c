@@ -75,8 +75,13 @@ static int suite_quick(pb_case_list *list)
     return 0;
 }
 
-#define SUITE_MAX_STEPS 2e6   /* standard suite: steps of the finest fixed step over the horizon */
-#define SUITE_MIN_ORBITS 10.0 /* ... but never fewer orbits than this: error growth needs them */
+#define SUITE_MAX_STEPS 2e5   /* standard suite: steps of the finest fixed step over the horizon */
+#define SUITE_MIN_ORBITS 3.0  /* ... but never fewer orbits than this: three periapsis passes */
+/* The standard suite's timing pass: at least its 3 repeats and this much CPU
+ * time a case (a run's default is 0.2 s). Its 1836 cases at 0.2 s were over
+ * 6 minutes of CPU for ns per step that a survey needs to a few per cent,
+ * which 0.02 s gives (select times its answers so). */
+#define SUITE_TIMING_MIN_CPU_S 0.02
 
 static int suite_standard(pb_case_list *list)
 {
@@ -105,14 +110,17 @@ static int suite_standard(pb_case_list *list)
             base = 2000;
         int steps[3] = {base, 2 * base, 4 * base};
         double orbits = p.period > 0 ? fmin(p.default_orbits > 0 ? p.default_orbits : 100, 100) : 0;
-        /* the horizon spends at most SUITE_MAX_STEPS of the finest fixed step:
-         * kepler-e0.99 (50,000 to 200,000 steps an orbit) over 10 orbits, not
-         * 100, where it was 72% of the suite's work; every other problem keeps
-         * its horizon (at most 800,000 such steps) */
+        /* the horizon spends at most SUITE_MAX_STEPS of the finest fixed step,
+         * where the suite's time went: kepler-e0.99 (50,000 to 200,000 steps
+         * an orbit) runs 3 orbits, kepler-e0.9 (2,000 to 8,000) 25; every
+         * other problem keeps its horizon (at most 200,000 such steps) */
         if (orbits > 0 && 4.0 * base * orbits > SUITE_MAX_STEPS)
             orbits = fmax(floor(SUITE_MAX_STEPS / (4.0 * base)), SUITE_MIN_ORBITS);
+        int first = list->n;
         if (suite_add_problem(list, &p, steps, 3, tols, 3, orbits, 3))
             return -1;
+        for (int i = first; i < list->n; i++)
+            list->cases[i].timing_min_cpu_s = SUITE_TIMING_MIN_CPU_S;
     }
     return 0;
 }
@@ -123,8 +131,8 @@ static const suite_entry suite_table[] = {
     {"quick", suite_quick, "every method on kepler-e0.6 (100 orbits) and leo-near-circular (16 orbits), "
                            "2 resolutions each; for CI, under a minute on 2 cores"},
     {"standard", suite_standard, "every method on every built-in problem, 3 resolutions, "
-                                 "steps scaled to resolve periapsis, horizon up to 100 orbits (10 for kepler-e0.99); about half "
-                                 "a minute with -j 2 on a quiet machine, the references cached"},
+                                 "steps scaled to resolve periapsis, horizon up to 100 orbits (3 for kepler-e0.99, 25 for "
+                                 "kepler-e0.9), timing pass 0.02 s a case"},
     {NULL, NULL, NULL}
 };
 
