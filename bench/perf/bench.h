@@ -115,4 +115,13 @@ void bench_overhead_beyond_force(const pb_problem *p, const bench_job *jobs, int
  * ratios into *gj_x, *lf_x). 0, or -1 when a run failed. */
 int bench_hotpaths(const pb_problem *p, double *gj_x, double *lf_x);
 
+/* Section 8: select on leo-j2 (cold and warm) and kepler-e0.5, and the
+ * standard suite without timing, as run by build/propbench: CPU seconds
+ * of each (NaN when it failed); -1 when it could not run at all. */
+#define BENCH_SELECT_LEO_COLD_GOAL 1.5   /* s of CPU: issue 16 */
+#define BENCH_SELECT_LEO_WARM_GOAL 0.3
+#define BENCH_SELECT_K05_GOAL 0.5
+#define BENCH_SUITE_GOAL 20.0
+int bench_study(double *leo_cold, double *leo_warm, double *k05, double *suite_warm);
+
 #endif

@@ -4,9 +4,9 @@
  * hand-written RK4 loops (bench_overhead.c), peak memory
  * against horizon (bench_memory.c), the timing pass's spread under load
  * (bench_load.c), reference builds with mission-like forces
- * (bench_reference.c) and the hot paths of gauss-jackson8 and leapfrog
- * against hand loops (bench_hotpaths.c); this file runs them in order and
- * prints the goals.
+ * (bench_reference.c), the hot paths of gauss-jackson8 and leapfrog
+ * against hand loops (bench_hotpaths.c) and select and the standard suite
+ * as run (bench_study.c); this file runs them in order and prints the goals.
  * Reporting only: nothing here asserts a timing. */
 #include <gsl/gsl_errno.h>
 #include <stdio.h>
@@ -45,6 +45,8 @@ int main(void)
     int ref_ok = bench_reference(&ref_s) == 0;
     double gj_x = nan, lf_x = nan;
     int hot_ok = bench_hotpaths(&p, &gj_x, &lf_x) == 0;
+    double s_lc = nan, s_lw = nan, s_k = nan, s_std = nan;
+    bench_study(&s_lc, &s_lw, &s_k, &s_std);
     printf("== Goals ==\n");
     printf("   harness overhead <= %.0f%% against a hand-written RK4 loop calling the same force\n"
            "   function:                              %s (measured %+.1f%%, median of paired rounds;"
@@ -67,6 +69,13 @@ int main(void)
     printf("   leapfrog per step <= %.2fx a hand loop calling the force through a pointer:\n"
            "                                          %s (measured %.3fx, median of paired rounds)\n",
            BENCH_LF_HAND_GOAL, hot_ok && lf_x <= BENCH_LF_HAND_GOAL ? "PASS" : "MISS", lf_x);
+    printf("   select leo-j2 1 m, CPU s: cold <= %.1f %s (%.2f), warm <= %.1f %s (%.2f);\n"
+           "   select kepler-e0.5 1e-6 <= %.1f: %s (%.2f); standard suite (--repeats 0, references\n"
+           "   cached) <= %.0f: %s (%.1f)\n",
+           BENCH_SELECT_LEO_COLD_GOAL, s_lc <= BENCH_SELECT_LEO_COLD_GOAL ? "PASS" : "MISS", s_lc,
+           BENCH_SELECT_LEO_WARM_GOAL, s_lw <= BENCH_SELECT_LEO_WARM_GOAL ? "PASS" : "MISS", s_lw,
+           BENCH_SELECT_K05_GOAL, s_k <= BENCH_SELECT_K05_GOAL ? "PASS" : "MISS", s_k,
+           BENCH_SUITE_GOAL, s_std <= BENCH_SUITE_GOAL ? "PASS" : "MISS", s_std);
     printf("   total bench time %.1f s\n", bench_now() - t_start);
     return 0;
 }
