@@ -45,9 +45,12 @@ static void select_help(FILE *f)
 "  --formulation F     cartesian, sundman or ks: the equations the methods\n"
 "                      integrate (methods that cannot take it are not searched)\n"
 "  --eval-cost-us C    cost of one evaluation of YOUR force model (default 1)\n"
-"  --prune-factor K    a method whose failing runs already cost more than K x\n"
-"                      the cheapest answer is not searched to its end (reason\n"
-"                      costlier; default %g); 0 searches every method to its answer\n"
+"  --prune-factor K    0, or K >= 1: a method whose answer is estimated from its\n"
+"                      failing runs (half the finest one's evaluations) to take\n"
+"                      over K x the evaluations of the answer with the fewest is\n"
+"                      not searched to its end (reason costlier). Default %g when\n"
+"                      every method is searched; 0 (search each to its answer)\n"
+"                      with --methods or --eval-cost-us\n"
 "  -j N                methods searched at once (default: the cores, %ld)\n"
 "  --out FILE          selection JSON (default results/runs/select-<problem>.json)\n"
 "Exit status 1 when no method meets the requirement.\n", PB_SELECT_PRUNE_DEFAULT,
@@ -70,7 +73,7 @@ typedef struct select_options {
     char *methods;
     double orbits, horizon, en, ang, margin, cost, prune;
     double bound[RQ_N], bound_m[RQ_N];  /* X forms, -m forms */
-    int cost_given;
+    int cost_given, prune_given;
     long jobs;
     int quiet;
     int form;                 /* -1: the problem's own */
@@ -107,7 +110,14 @@ static int select_option(int c, select_options *o)
     case SE_EN: return select_number("--max-energy-err", optarg, &o->en, 0);
     case SE_ANG: return select_number("--max-angmom-err", optarg, &o->ang, 0);
     case SE_MARGIN: return select_number("--margin", optarg, &o->margin, 1);
-    case SE_PRUNE: return select_number("--prune-factor", optarg, &o->prune, 1);
+    case SE_PRUNE:
+        o->prune_given = 1;
+        if (select_number("--prune-factor", optarg, &o->prune, 1))
+            return PB_EXIT_USAGE;
+        /* below 1, "more than K x the fewest" would prune methods cheaper than it */
+        if (o->prune > 0 && o->prune < 1)
+            return pb_cli_error("select", "--prune-factor must be 0 or at least 1, got '%s'", optarg);
+        return 0;
     case SE_COST: o->cost_given = 1; return select_number("--eval-cost-us", optarg, &o->cost, 1);
     }
     if (c >= SE_RQ && c < SE_RQ + 2 * RQ_N) {
@@ -458,13 +468,19 @@ static void select_print_rows(const pb_selection *sel, int m, const select_cols 
 }
 
 /* The notes under the table: GSL marks, the verdict. */
-static void select_print_notes(const pb_selection *sel, int m, int found, int by_cost)
+static void select_print_notes(const pb_selection *sel, int m, int found, int by_cost, double K)
 {
-    int gsl_shown = 0;
-    for (int i = 0; i < m; i++)
+    int gsl_shown = 0, pruned = 0;
+    for (int i = 0; i < m; i++) {
         gsl_shown |= sel[i].found && (sel[i].method->flags & PB_FROM_GSL);
+        pruned += !sel[i].found && sel[i].reason && !strcmp(sel[i].reason, "costlier");
+    }
     if (gsl_shown)
         printf("(* GSL's stepper)\n");
+    if (pruned)
+        printf("%d method%s not searched to the end (over %g x the fewest evaluations of any answer):\n"
+               "the ranks past that are not the full order; --prune-factor 0 searches every one\n",
+               pruned, pruned > 1 ? "s" : "", K);
     if (!found)
         printf("NO METHOD meets the requirement over this horizon.\n");
     else
@@ -496,13 +512,13 @@ static void select_print_head(const select_options *o, const pb_problem *p, cons
 }
 
 static void select_print(const select_options *o, const pb_problem *p, const pb_requirement *req,
-                         const pb_selection *sel, int m, int found)
+                         const pb_selection *sel, int m, int found, double K)
 {
     select_cols c;
     select_columns(req, p->units == PB_UNITS_KM_S, &c);
     select_print_head(o, p, req);
     select_print_rows(sel, m, &c);
-    select_print_notes(sel, m, found, o->cost_given);
+    select_print_notes(sel, m, found, o->cost_given, K);
 }
 
 static void select_progress(void *ctx, int done, const char *name)
@@ -522,7 +538,10 @@ static int select_run(const select_options *o, const pb_case_spec *base, const p
         return pb_cli_error("select", "out of memory");
     pb_progress prog;
     pb_progress_start(&prog, pb_cli_progress_wanted(o->quiet), m, "methods");
-    pb_select_plan plan = {(int)o->jobs, o->prune, o->cost_given};
+    /* a user who names the methods, or gives the force's cost, wants each
+     * one's answer; a search of every method prunes by default */
+    double K = o->prune_given ? o->prune : o->methods || o->cost_given ? 0 : PB_SELECT_PRUNE_DEFAULT;
+    pb_select_plan plan = {(int)o->jobs, K};
     pb_select_all(base, req, list, m, &plan, sel, select_progress, &prog);
     pb_progress_end(&prog);
     select_commands(o, &base->problem, sel, m);
@@ -531,10 +550,10 @@ static int select_run(const select_options *o, const pb_case_spec *base, const p
     for (int i = 0; i < m; i++)
         found += sel[i].found;
     if (!o->quiet)
-        select_print(o, &base->problem, req, sel, m, found);
+        select_print(o, &base->problem, req, sel, m, found, K);
     for (int i = 0; i < nref; i++)
         sel[m + i] = refused[i];
-    json_t *doc = pb_selection_json(base, req, sel, m + nref, o->cost_given);
+    json_t *doc = pb_selection_json(base, req, sel, m + nref, o->cost_given, K);
     int w = pb_json_write_atomic(path, doc), e = errno;
     json_decref(doc);
     free(sel);

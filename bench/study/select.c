@@ -18,6 +18,7 @@
 #define SELECT_MAX_MISSES 4        /* predictions that miss before plain bisection */
 #define SELECT_TIMING_MIN_CPU_S 0.02 /* the answer's timing pass: at least 3 repeats and this */
 #define SELECT_CAPPED (-2)         /* select_try: the run would pass the round's cap */
+#define SELECT_FULL (-3)           /* select_try: the memo has no room for another setting */
 
 /* The search's axis: fineness x grows as the setting gets more accurate and
  * more costly. Fixed-step methods: x is the (whole) number of steps per
@@ -109,16 +110,50 @@ static pb_case_spec select_spec(const select_state *st, double x, int timed)
     return s;
 }
 
-/* The evaluations a run at x not yet made will take, from the runs so far:
- * a fixed-step method's grow as x (steps per orbit), an adaptive one's as
- * x^s with s the slope between its two finest runs (1/(order + 1), the
- * step's tolerance law, before there are two). 0 before any run. */
-static double select_forecast(const select_state *st, double x)
+/* The evaluations a fixed-step run at x will take: its steps are known from
+ * x (x a period over the horizon), times the evaluations a step of the
+ * finest run that tells them, preferring one that reached the horizon. A
+ * run tells them if it took steps, at least ten times its start-up steps:
+ * one that failed early took few evaluations, but not few a step, while
+ * one that diverged just after a multistep start-up has hundreds a step.
+ * With lowest, the fewest a step of any run that tells them (0: none). */
+static double select_forecast_fixed(const select_state *st, double x, int lowest)
 {
     const pb_select_memo *mm = st->mm;
-    int a = -1, b = -1; /* the finest run and the one before it */
+    int b = -1, bd = -1;
+    double per_min = INFINITY;
     for (int i = 0; i < mm->n; i++) {
-        if (mm->ans[i].evals <= 0)
+        long steps = mm->ans[i].steps, startup = mm->steps_done[i] - steps;
+        if (steps <= 0 || steps < 10 * startup)
+            continue;
+        per_min = fmin(per_min, (double)mm->ans[i].evals / (double)steps);
+        if (b < 0 || mm->x[i] > mm->x[b])
+            b = i;
+        if (mm->done[i] && (bd < 0 || mm->x[i] > mm->x[bd]))
+            bd = i;
+    }
+    b = bd >= 0 ? bd : b;
+    if (b < 0)
+        return 0;
+    const pb_case_spec *c = st->base;
+    double T = c->problem.period > 0 ? c->problem.period : pb_case_horizon(c);
+    double per = lowest ? per_min : (double)mm->ans[b].evals / (double)mm->ans[b].steps;
+    return x * pb_case_horizon(c) / T * per;
+}
+
+/* The evaluations a run at x not yet made will take, from the runs so far
+ * (0 before any): fixed-step methods as above; an adaptive one's grow as
+ * x^s with s the slope between its two finest runs that reached the
+ * horizon (1/(order + 1), the step's tolerance law, before there are
+ * two). */
+static double select_forecast(const select_state *st, double x, int lowest)
+{
+    if (st->ax->fixed)
+        return select_forecast_fixed(st, x, lowest);
+    const pb_select_memo *mm = st->mm;
+    int a = -1, b = -1; /* the finest such run and the one before it */
+    for (int i = 0; i < mm->n; i++) {
+        if (!mm->done[i] || mm->ans[i].evals <= 0)
             continue;
         if (b < 0 || mm->x[i] > mm->x[b])
             a = b, b = i;
@@ -127,13 +162,10 @@ static double select_forecast(const select_state *st, double x)
     }
     if (b < 0)
         return 0;
-    double s = 1.0;
-    if (!st->ax->fixed) {
-        s = 1.0 / (st->m->order > 0 ? st->m->order + 1 : 5);
-        if (a >= 0 && mm->ans[a].evals > 0 && mm->x[b] > mm->x[a])
-            s = log((double)mm->ans[b].evals / (double)mm->ans[a].evals) / log(mm->x[b] / mm->x[a]);
-        s = fmin(fmax(s, 0.05), 1.0);
-    }
+    double s = 1.0 / (st->m->order > 0 ? st->m->order + 1 : 5);
+    if (a >= 0 && mm->x[b] > mm->x[a])
+        s = log((double)mm->ans[b].evals / (double)mm->ans[a].evals) / log(mm->x[b] / mm->x[a]);
+    s = fmin(fmax(s, 0.05), 1.0);
     return (double)mm->ans[b].evals * pow(x / mm->x[b], s);
 }
 
@@ -147,8 +179,8 @@ static int select_try(select_state *st, double x, int timed)
     if (i >= 0 && (!timed || st->mm->timed_x == x))
         return st->mm->ok[i];
     if (i < 0 && st->mm->n == PB_SELECT_MEMO)
-        return -1;
-    if (i < 0 && !timed && st->cap > 0 && select_forecast(st, x) > st->cap)
+        return SELECT_FULL;
+    if (i < 0 && !timed && st->cap > 0 && select_forecast(st, x, 0) > st->cap)
         return SELECT_CAPPED;
     pb_case_spec s = select_spec(st, x, timed);
     pb_case_result r;
@@ -162,6 +194,7 @@ static int select_try(select_state *st, double x, int timed)
         st->mm->q[i] = q;
         st->mm->ok[i] = q <= 1;
         st->mm->usable[i] = r.status == PB_OK && !r.saturated && !r.below_floor && isfinite(q) && q > 0;
+        st->mm->done[i] = r.status == PB_OK;
         select_fill(&st->mm->ans[i], &r);
         st->mm->steps_done[i] = r.steps + r.startup_steps;
     }
@@ -248,7 +281,7 @@ static void select_probe(select_state *st, const int *at, int k)
 {
     int j = k - 1;
     while (j > 0 && at[j] < 0 && memo_find(st, select_rung(st->ax, j)) < 0 &&
-           select_forecast(st, select_rung(st->ax, j)) > st->cap)
+           select_forecast(st, select_rung(st->ax, j), 0) > st->cap)
         j--;
     if (j > 0 && at[j] < 0 && memo_find(st, select_rung(st->ax, j)) < 0)
         select_try(st, select_rung(st->ax, j), 0);
@@ -498,25 +531,37 @@ static int select_search(select_state *st)
     return 0;
 }
 
-/* The answer's lower bound in evaluations: half those of the finest
- * failing run coarser than every passing one (the answer is finer). Half,
- * because a finer setting need not cost more: an adaptive method's
- * evaluations need not grow as its tolerance tightens (gsl-msadams on
- * leo-j2 over a day: 14,663 at 1e-9, 8,930 at 1e-11), nor a fixed-step
- * method's with its steps where an iterated corrector and the start-up
- * cost less on finer steps (gauss-jackson8-s on kepler-e0.5 over 100
- * orbits: 11,856 at 16 steps per orbit, 11,235 at 54); both measured. */
-static long select_lower_bound(const pb_select_memo *mm)
+/* The answer's evaluations estimated from below: half those of the finest
+ * failing setting coarser than every passing run (the answer is finer). A
+ * fixed-step setting's steps over the horizon are known, and its
+ * evaluations are taken as those times the fewest evaluations a step of
+ * any run that tells them (select_forecast_fixed), so a run that diverged
+ * early counts as the whole run it would have been; an adaptive
+ * setting counts only if its run reached the horizon (one that failed
+ * before says nothing of the cost of one that does not). Half, because a
+ * finer setting can cost less: an adaptive method's evaluations need not
+ * grow as its tolerance tightens (gsl-msadams on leo-j2 over a day: 14,663
+ * at 1e-9, 8,930 at 1e-11), nor a fixed-step method's with its steps where
+ * an iterated corrector and the start-up cost less on finer steps
+ * (gauss-jackson8-s on kepler-e0.5 over 100 orbits: 11,856 at 16 steps per
+ * orbit, 11,235 at 54); both measured. An estimate, not a bound: the cost
+ * can fall by more (bulirsch-stoer on arenstorf over one orbit: 1,821 at
+ * 3.39e-5, 867 at 1.53e-5, found in review). */
+static long select_estimate(const select_state *st)
 {
+    const pb_select_memo *mm = st->mm;
     double pass = INFINITY;
-    int f = -1;
+    int f = -1, fixed = st->ax->fixed;
     for (int i = 0; i < mm->n; i++)
         if (mm->ok[i])
             pass = fmin(pass, mm->x[i]);
     for (int i = 0; i < mm->n; i++)
-        if (!mm->ok[i] && mm->x[i] < pass && (f < 0 || mm->x[i] > mm->x[f]))
+        if (!mm->ok[i] && (fixed || mm->done[i]) && mm->x[i] < pass && (f < 0 || mm->x[i] > mm->x[f]))
             f = i;
-    return f < 0 ? 0 : mm->ans[f].evals / 2;
+    if (f < 0)
+        return 0;
+    double e = fixed ? select_forecast(st, mm->x[f], 1) : (double)mm->ans[f].evals;
+    return (long)(e / 2);
 }
 
 int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
@@ -543,9 +588,9 @@ int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
     *st = (select_state){.base = base, .m = m, .ax = &ax, .req = req, .out = out, .mm = memo,
                          .cap = cap_evals};
     int rc = select_search(st);
-    free(st);
     out->runs = memo->runs;
-    out->lb_evals = select_lower_bound(memo);
+    out->est_evals = select_estimate(st);
+    free(st);
     if (rc == SELECT_CAPPED) {
         out->found = 0;
         out->deferred = 1;
@@ -557,7 +602,8 @@ int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
     if (rc < 0) {
         out->found = 0;
         out->reason = "could_not_run";
-        snprintf(out->note, sizeof out->note, "the case could not be run");
+        snprintf(out->note, sizeof out->note, rc == SELECT_FULL ? "the search ran out of room for its "
+                 "runs (%d settings)" : "the case could not be run", PB_SELECT_MEMO);
     }
     if (out->found) {
         const pb_select_answer *r = &out->confirmed;

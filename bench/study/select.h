@@ -43,6 +43,7 @@ typedef struct pb_select_memo {
     int n, runs;               /* settings run; cases run (timing passes included) */
     double x[PB_SELECT_MEMO], q[PB_SELECT_MEMO];  /* fineness; requirement ratio */
     signed char ok[PB_SELECT_MEMO], usable[PB_SELECT_MEMO]; /* usable: q measures the error */
+    signed char done[PB_SELECT_MEMO];  /* the run reached the horizon (status ok) */
     pb_select_answer ans[PB_SELECT_MEMO];  /* each run's figures, untimed */
     long steps_done[PB_SELECT_MEMO];       /* its steps and start-up steps */
     double timed_x;            /* the setting the answer's timing pass ran (0: none) */
@@ -61,8 +62,9 @@ typedef struct pb_selection {
     const char *reason;      /* no answer: "not_met", "budget", "order_projection",
                               * "not_monotone", "costlier", "refused", "could_not_run" */
     int deferred;            /* 1: the search stopped at its round's cost cap (not final) */
-    long lb_evals;           /* evaluations the answer needs at least: the most any failing
-                              * run coarser than every passing one took (0: none) */
+    long est_evals;          /* the answer's evaluations estimated from below: half those of
+                              * the finest run that reached the horizon and failed, coarser
+                              * than every passing run (0: none) */
     char note[300];
     char command[768];       /* the `propbench run` that reproduces the answer */
 } pb_selection;
@@ -96,18 +98,18 @@ int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
                      pb_selection *out);
 void pb_selection_free(pb_selection *s);
 
-/* How pb_select_all searches: worker processes; prune_factor K > 0: a
- * method whose answer is known (from its failing runs) to cost more than K
- * times the cheapest answer found is not searched to the end (reason
- * "costlier"); 0 searches every method to its answer. by_cost: costs are
- * projected seconds (evaluations x eval_cost_us), else evaluations. */
+/* How pb_select_all searches: worker processes; prune_factor K >= 1: a
+ * method whose answer is estimated (from its failing runs) to take more
+ * than K times the evaluations of the answer with the fewest is not
+ * searched to the end (reason "costlier"); 0 searches every method to its
+ * answer. Evaluations, not projected seconds: those include measured time,
+ * and which methods are pruned must not depend on the machine's load. */
 typedef struct pb_select_plan {
     int jobs;
     double prune_factor;
-    int by_cost;
 } pb_select_plan;
 
-/* The prune factor when none is given. */
+/* The prune factor when none is given and every method is searched. */
 #define PB_SELECT_PRUNE_DEFAULT 10.0
 
 /* Search every method of list into sel[0..n): in rounds, the first with each
@@ -125,8 +127,9 @@ void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
  * else by evaluations; ties and the rest in list order. */
 void pb_selection_rank(pb_selection *sel, int n, int by_cost);
 
-/* The selections as JSON, in the order given; new reference. */
+/* The selections as JSON, in the order given, with the prune factor the
+ * search used (0: none); new reference. */
 json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
-                          const pb_selection *sel, int n, int by_cost);
+                          const pb_selection *sel, int n, int by_cost, double prune_factor);
 
 #endif

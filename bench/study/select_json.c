@@ -74,7 +74,7 @@ static void answer_json(json_t *e, const pb_selection *s)
 }
 
 json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
-                          const pb_selection *sel, int n, int by_cost)
+                          const pb_selection *sel, int n, int by_cost, double prune_factor)
 {
     json_t *o = json_object();
     json_object_set_new(o, "format", json_integer(PB_SUMMARY_FORMAT));
@@ -89,6 +89,7 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
     json_object_set_new(o, "margin", json_real(req->margin));
     json_object_set_new(o, "eval_cost_us", json_real(base->eval_cost_us));
     json_object_set_new(o, "ranked_by", json_string(by_cost ? "projected_s" : "evals"));
+    json_object_set_new(o, "prune_factor", json_real(prune_factor));
     json_t *arr = json_array();
     int rank = 0;
     for (int i = 0; i < n; i++) {
@@ -96,7 +97,9 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
         json_t *e = json_object();
         json_object_set_new(e, "method", json_string(s->method->name));
         json_object_set_new(e, "from_gsl", json_boolean(s->method->flags & PB_FROM_GSL));
-        json_object_set_new(e, "meets_requirement", json_boolean(s->found));
+        /* a method pruned may well meet it: not known, so null */
+        int pruned = !s->found && s->reason && !strcmp(s->reason, "costlier");
+        json_object_set_new(e, "meets_requirement", pruned ? json_null() : json_boolean(s->found));
         json_object_set_new(e, "runs", json_integer(s->runs));
         if (isfinite(s->order))
             json_object_set_new(e, "observed_order", json_real(s->order));
@@ -106,8 +109,8 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
         } else {
             json_object_set_new(e, "reason", json_string(s->reason ? s->reason : "not_met"));
             json_object_set_new(e, "note", json_string(s->note));
-            if (s->lb_evals > 0)
-                json_object_set_new(e, "lower_bound_evals", json_integer(s->lb_evals));
+            if (s->reason && !strcmp(s->reason, "costlier"))
+                json_object_set_new(e, "estimated_min_evals", json_integer(s->est_evals));
         }
         json_array_append_new(arr, e);
     }

@@ -2,12 +2,13 @@
  * A round: one worker process a method, at most `jobs` at once, each
  * sending its pb_selection and its search's memory (plain data) back
  * through a pipe. The first round caps each run's forecast evaluations, so
- * the cheap answers come first; a method then known (from its own failing
- * runs) to cost more than K times the cheapest answer ends there, and the
- * rest are searched on to their end from where they stopped. What each
- * round does depends on the rounds before only, never on which worker ended
- * first, so the answers are those of one process; a worker that dies leaves
- * its method with the reason "could_not_run". */
+ * the cheap answers come first; a method then estimated (from its own
+ * failing runs) to take more than K times the evaluations of the
+ * fewest-evaluation answer ends there, and the rest are searched on to
+ * their end from where they stopped. What each round does depends on the
+ * rounds before and on evaluation counts only (never on timings or on which
+ * worker ended first), so the answers are those of one process; a worker
+ * that dies leaves its method with the reason "could_not_run". */
 #include <errno.h>
 #include <math.h>
 #include <poll.h>
@@ -59,11 +60,14 @@ static void pool_child(const pool_round *rd, int index, int fd)
         ssize_t w = write(fd, p, left);
         if (w < 0 && errno == EINTR)
             continue;
-        if (w <= 0)
+        if (w <= 0) {
+            free(rp);
             _exit(1);
+        }
         p += w;
         left -= (size_t)w;
     }
+    free(rp);
     _exit(0);
 }
 
@@ -169,69 +173,49 @@ static void pool_round_run(const pool_round *rd, const int *todo, int n, int job
     free(slot);
 }
 
-/* A selection's cost in the ranking's terms; its lower bound when unknown. */
-static double pool_cost(const pb_selection *s, const pb_case_spec *base, int by_cost, int bound)
-{
-    double evals = bound ? (double)s->lb_evals : (double)s->confirmed.evals;
-    if (!by_cost)
-        return evals;
-    /* the bound leaves out the steps' own cost, which is not yet measured */
-    return bound ? 1e-6 * base->eval_cost_us * evals : s->projected_s;
-}
-
-/* The cheapest answer among sel[0..n) in the ranking's terms; -1: none. */
-static int pool_cheapest(const pb_selection *sel, int n, const pb_case_spec *base, int by_cost)
+/* The answer with the fewest evaluations among sel[0..n); -1: none. */
+static int pool_fewest(const pb_selection *sel, int n)
 {
     int best = -1;
     for (int i = 0; i < n; i++)
-        if (sel[i].found && (best < 0 || pool_cost(&sel[i], base, by_cost, 0) <
-                                         pool_cost(&sel[best], base, by_cost, 0)))
+        if (sel[i].found && (best < 0 || sel[i].confirmed.evals < sel[best].confirmed.evals))
             best = i;
     return best;
 }
 
-/* A deferred method whose answer is known to cost more than K times the
- * cheapest answer's ends here with the reason "costlier"; 1 when it did. */
-static int pool_prune(pb_selection *s, const pb_selection *best, const pb_case_spec *base,
-                      const pb_select_plan *plan)
+/* A deferred method whose answer is estimated to take more than K times the
+ * evaluations of the fewest-evaluation answer ends here with the reason
+ * "costlier"; 1 when it did. */
+static int pool_prune(pb_selection *s, const pb_selection *best, double K)
 {
-    double K = plan->prune_factor, lb = pool_cost(s, base, plan->by_cost, 1);
-    double c = pool_cost(best, base, plan->by_cost, 0);
-    if (!(K > 0) || !(lb > K * c))
+    long b = best->confirmed.evals;
+    if (!(K >= 1) || !((double)s->est_evals > K * (double)b))
         return 0;
     s->deferred = 0;
     s->reason = "costlier";
-    if (plan->by_cost)
-        snprintf(s->note, sizeof s->note, "costs over %.3g s (%ld evaluations, half its finest failing "
-                 "run's), over %g x the cheapest answer's %.3g s (%s); not searched further",
-                 lb, s->lb_evals, K, c, best->method->name);
-    else
-        snprintf(s->note, sizeof s->note, "needs over %ld evaluations (half its finest failing run's), "
-                 "over %g x the cheapest answer's %ld (%s); not searched further", s->lb_evals, K,
-                 best->confirmed.evals, best->method->name);
+    snprintf(s->note, sizeof s->note, "not searched to its end: estimated at over %ld evaluations (half "
+             "those of its finest failing run), over %g x the fewest of any answer (%ld, %s)",
+             s->est_evals, K, b, best->method->name);
     return 1;
 }
 
 /* The next round's cap. Stage 0, no answer yet: a larger cap, for the
- * cheapest answer to show first. Once one is known (stage 1): 4 K times
- * its evaluations (or projected cost, in evaluations): the ladder's rungs
- * double, so one lies between 2 K and 4 K times it, and a method that
- * fails there is pruned (its lower bound is half a failing run's
- * evaluations: select.c), while one that costs less than 2 K times it
- * mostly reaches its answer. Stage 2: no cap, every method left is
- * searched to its end. */
-static double pool_next_cap(const pool_round *rd, const pb_selection *best, const pb_select_plan *plan,
-                            int *stage)
+ * cheapest answer to show first. Once one is known (stage 1): 4 K times its
+ * evaluations, and at least twice the last cap (one rung more, since the
+ * rungs of fixed-step methods double). A method costing more than K times
+ * it then meets a failing run past 2 K times it (the ladder runs the finest
+ * rung the cap allows where it would jump past: select.c), and its
+ * estimate, half that run's, prunes it; one costing less than about 2 K
+ * times it mostly reaches its answer. Adaptive methods' rungs are decades
+ * of tolerance, whose cost grows slower than that. Stage 2: no cap, every
+ * method left is searched to its end. */
+static double pool_next_cap(double cap, const pb_selection *best, double K, int *stage)
 {
     if (*stage == 0 && !best)
-        return rd->cap > 1e12 ? 0 : rd->cap * POOL_CAP_GROWTH;
+        return cap > 1e12 ? 0 : cap * POOL_CAP_GROWTH;
     if (*stage == 0) {
         *stage = 1;
-        double c = pool_cost(best, rd->base, plan->by_cost, 0);
-        double evals = plan->by_cost ? c / (1e-6 * rd->base->eval_cost_us) : c;
-        double cap = 4 * plan->prune_factor * evals;
-        if (cap > rd->cap && isfinite(cap))
-            return cap;
+        return fmax(4 * K * (double)best->confirmed.evals, 2 * cap);
     }
     *stage = 2;
     return 0;
@@ -251,7 +235,7 @@ void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
         todo[ntodo++] = i;
     /* without pruning, or without room for the searches' memories, one
      * round with no cap: every method searched to its end */
-    pool_round rd = {base, req, list, sel, memo, plan->prune_factor > 0 ? POOL_FIRST_CAP : 0};
+    pool_round rd = {base, req, list, sel, memo, plan->prune_factor >= 1 ? POOL_FIRST_CAP : 0};
     if (!memo || !todo || !fin) {
         free(memo), free(todo), free(fin);
         for (int i = 0; i < n; i++) {
@@ -266,10 +250,10 @@ void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
     }
     while (ntodo > 0) {
         pool_round_run(&rd, todo, ntodo, jobs, fin);
-        int best = pool_cheapest(sel, n, base, plan->by_cost), left = 0;
+        int best = pool_fewest(sel, n), left = 0;
         for (int k = 0; k < ntodo; k++) {
             int i = fin[k];
-            if (sel[i].deferred && !(best >= 0 && pool_prune(&sel[i], &sel[best], base, plan))) {
+            if (sel[i].deferred && !(best >= 0 && pool_prune(&sel[i], &sel[best], plan->prune_factor))) {
                 todo[left++] = i;
                 continue;
             }
@@ -277,7 +261,7 @@ void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
                 progress(ctx, ++done, list[i]->name);
         }
         ntodo = left;
-        rd.cap = pool_next_cap(&rd, best >= 0 ? &sel[best] : NULL, plan, &stage);
+        rd.cap = pool_next_cap(rd.cap, best >= 0 ? &sel[best] : NULL, plan->prune_factor, &stage);
         /* todo is reordered by the finishing order: restore the list's order,
          * so the same methods start first whatever the workers did */
         for (int a = 1; a < ntodo; a++)
