@@ -17,6 +17,12 @@
 
 #define BENCH_REF_GOAL_S 2.0   /* s: issue 12, a full-force one-day LEO reference */
 
+/* PASS or MISS against an upper goal, FAILED when nothing was measured. */
+static const char *bench_verdict(double v, double goal)
+{
+    return isnan(v) ? "FAILED" : v <= goal ? "PASS" : "MISS";
+}
+
 int main(void)
 {
     pb_problem p;
@@ -72,10 +78,10 @@ int main(void)
     printf("   select leo-j2 1 m, CPU s: cold <= %.1f %s (%.2f), warm <= %.1f %s (%.2f);\n"
            "   select kepler-e0.5 1e-6 <= %.1f: %s (%.2f); standard suite (--repeats 0, references\n"
            "   cached) <= %.0f: %s (%.1f)\n",
-           BENCH_SELECT_LEO_COLD_GOAL, s_lc <= BENCH_SELECT_LEO_COLD_GOAL ? "PASS" : "MISS", s_lc,
-           BENCH_SELECT_LEO_WARM_GOAL, s_lw <= BENCH_SELECT_LEO_WARM_GOAL ? "PASS" : "MISS", s_lw,
-           BENCH_SELECT_K05_GOAL, s_k <= BENCH_SELECT_K05_GOAL ? "PASS" : "MISS", s_k,
-           BENCH_SUITE_GOAL, s_std <= BENCH_SUITE_GOAL ? "PASS" : "MISS", s_std);
+           BENCH_SELECT_LEO_COLD_GOAL, bench_verdict(s_lc, BENCH_SELECT_LEO_COLD_GOAL), s_lc,
+           BENCH_SELECT_LEO_WARM_GOAL, bench_verdict(s_lw, BENCH_SELECT_LEO_WARM_GOAL), s_lw,
+           BENCH_SELECT_K05_GOAL, bench_verdict(s_k, BENCH_SELECT_K05_GOAL), s_k,
+           BENCH_SUITE_GOAL, bench_verdict(s_std, BENCH_SUITE_GOAL), s_std);
     printf("   total bench time %.1f s\n", bench_now() - t_start);
     return 0;
 }

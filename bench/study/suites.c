@@ -111,9 +111,10 @@ static int suite_standard(pb_case_list *list)
         int steps[3] = {base, 2 * base, 4 * base};
         double orbits = p.period > 0 ? fmin(p.default_orbits > 0 ? p.default_orbits : 100, 100) : 0;
         /* the horizon spends at most SUITE_MAX_STEPS of the finest fixed step,
-         * where the suite's time went: kepler-e0.99 (50,000 to 200,000 steps
-         * an orbit) runs 3 orbits, kepler-e0.9 (2,000 to 8,000) 25; every
-         * other problem keeps its horizon (at most 200,000 such steps) */
+         * where the suite's time went, but no fewer than SUITE_MIN_ORBITS:
+         * kepler-e0.9 (2,000 to 8,000 steps an orbit) runs 25 orbits, and
+         * kepler-e0.99 (50,000 to 200,000) 3, so 600,000; every other
+         * problem keeps its horizon (at most 200,000 such steps) */
         if (orbits > 0 && 4.0 * base * orbits > SUITE_MAX_STEPS)
             orbits = fmax(floor(SUITE_MAX_STEPS / (4.0 * base)), SUITE_MIN_ORBITS);
         int first = list->n;
