@@ -17,6 +17,7 @@
  * CPU seconds of it and everything it waited for, NaN when it failed. */
 static double study_cpu(char *const argv[], int ok_status_max)
 {
+    fflush(NULL); /* else the child's freopen writes our buffered report again */
     pid_t pid = fork();
     if (pid < 0)
         return (double)NAN;
@@ -44,6 +45,7 @@ static int study_scratch(char *dir, size_t n)
 
 static void study_remove(const char *dir)
 {
+    fflush(NULL);
     pid_t pid = fork();
     if (pid == 0) {
         execlp("rm", "rm", "-rf", dir, (char *)NULL);
