@@ -327,6 +327,10 @@ Test(select, bad_requirement_options_exit_2)
         cr_assert_not_null(strstr(err_buf, bad[i].named), "%s", err_buf);
         cr_assert(!pbt_exists(path), "JSON written for %s", bad[i].a);
     }
+    /* a method named twice, as sweep refuses a case twice */
+    cr_assert_eq(cli((const char *[]){"select", K10, "--max-pos-err", "1e-4", "--methods", "rk4,rk4", "--out", path, NULL}), 2);
+    cr_assert_not_null(strstr(err_buf, "'rk4' twice"), "%s", err_buf);
+    cr_assert(!pbt_exists(path), "JSON written for a method named twice");
     /* no requirement at all */
     cr_assert_eq(cli((const char *[]){"select", K10, "--out", path, NULL}), 2);
     cr_assert_not_null(strstr(err_buf, "give a requirement"), "%s", err_buf);

@@ -312,9 +312,15 @@ static int select_methods(const select_options *o, const pb_problem *p, const pb
         n = pb_cli_split("select", "--methods", o->methods, names, 64);
         if (n < 0)
             return -1;
-        for (int i = 0; i < n; i++)
+        for (int i = 0; i < n; i++) {
             if (!(list[i] = pb_cli_method("select", names[i])))
                 return -1;
+            for (int j = 0; j < i; j++)
+                if (list[j] == list[i]) {
+                    pb_cli_error("select", "--methods names '%s' twice", names[i]);
+                    return -1;
+                }
+        }
     } else {
         for (const pb_method_type *const *t = pb_method_table; *t && n < 64; t++)
             list[n++] = *t;
