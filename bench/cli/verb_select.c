@@ -156,7 +156,6 @@ static int select_parse(int argc, char **argv, select_options *o)
         {"help", no_argument, 0, SE_HELP}, {0, 0, 0, 0}};
     memset(o, 0, sizeof *o);
     o->cost = 1;
-    o->prune = PB_SELECT_PRUNE_DEFAULT;
     o->form = -1;
     o->jobs = sysconf(_SC_NPROCESSORS_ONLN);
     if (o->jobs < 1)
@@ -479,7 +478,7 @@ static void select_print_notes(const pb_selection *sel, int m, int found, int by
     int gsl_shown = 0, pruned = 0;
     for (int i = 0; i < m; i++) {
         gsl_shown |= sel[i].found && (sel[i].method->flags & PB_FROM_GSL);
-        pruned += !sel[i].found && sel[i].reason && !strcmp(sel[i].reason, "costlier");
+        pruned += pb_selection_pruned(&sel[i]);
     }
     if (gsl_shown)
         printf("(* GSL's stepper)\n");

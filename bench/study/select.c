@@ -464,21 +464,17 @@ int pb_select_method(const pb_case_spec *base, const pb_method_type *m,
     select_axis ax;
     if (m->flags & PB_KIND_FIXED) {
         /* doubling from 4 steps per orbit, within a budget of steps per case */
-        double T = base->problem.period > 0 ? base->problem.period : pb_case_horizon(base);
-        double last = fmin(SELECT_MAX_SPO, floor(PB_SELECT_MAX_STEPS * T / pb_case_horizon(base)));
+        double last = fmin(SELECT_MAX_SPO, floor(PB_SELECT_MAX_STEPS * pb_case_scale(base) /
+                                                 pb_case_horizon(base)));
         ax = (select_axis){1, 4, 2, last, 1.0, 2}; /* bisect to adjacent whole numbers */
     } else {
         ax = (select_axis){0, 1e3, 10, 1e14, 1.1, 10};
     }
-    select_state *st = calloc(1, sizeof *st);
-    if (!st)
-        return -1;
-    *st = (select_state){.base = base, .m = m, .ax = &ax, .req = req, .out = out, .mm = memo,
-                         .cap = cap_evals};
-    int rc = select_search(st);
+    select_state st = {.base = base, .m = m, .ax = &ax, .req = req, .out = out, .mm = memo,
+                       .cap = cap_evals};
+    int rc = select_search(&st);
     out->runs = memo->runs;
-    out->est_evals = pb_select_estimate(st);
-    free(st);
+    out->est_evals = pb_select_estimate(&st);
     if (rc == SELECT_CAPPED) {
         out->found = 0;
         out->deferred = 1;

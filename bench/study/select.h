@@ -62,9 +62,9 @@ typedef struct pb_selection {
     const char *reason;      /* no answer: "not_met", "budget", "order_projection",
                               * "not_monotone", "costlier", "refused", "could_not_run" */
     int deferred;            /* 1: the search stopped at its round's cost cap (not final) */
-    long est_evals;          /* the answer's evaluations estimated from below: half those of
-                              * the finest run that reached the horizon and failed, coarser
-                              * than every passing run (0: none) */
+    long est_evals;          /* the answer's evaluations estimated from below, from the
+                              * finest failing setting coarser than every passing run
+                              * (select_cost.c; 0: none) */
     char note[300];
     char command[768];       /* the `propbench run` that reproduces the answer */
 } pb_selection;
@@ -122,6 +122,10 @@ void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
                    const pb_method_type *const *list, int n, const pb_select_plan *plan,
                    pb_selection *sel, void (*progress)(void *ctx, int done, const char *name),
                    void *ctx);
+
+/* 1 when s was left before its answer: its estimate passed K x the fewest
+ * evaluations of any answer (reason "costlier"). */
+int pb_selection_pruned(const pb_selection *s);
 
 /* Order sel: methods with an answer first, by projected cost when by_cost,
  * else by evaluations; ties and the rest in list order. */

@@ -32,10 +32,8 @@ static double select_forecast_fixed(const select_state *st, double x, int lowest
     b = bd >= 0 ? bd : b;
     if (b < 0)
         return 0;
-    const pb_case_spec *c = st->base;
-    double T = c->problem.period > 0 ? c->problem.period : pb_case_horizon(c);
     double per = lowest ? per_min : (double)mm->ans[b].evals / (double)mm->ans[b].steps;
-    return x * pb_case_horizon(c) / T * per;
+    return x * pb_case_horizon(st->base) / pb_case_scale(st->base) * per;
 }
 
 /* The evaluations a run at x not yet made will take, from the runs so far

@@ -23,6 +23,11 @@ static int rank_cmp(const void *a, const void *b)
     return (x->index > y->index) - (x->index < y->index);
 }
 
+int pb_selection_pruned(const pb_selection *s)
+{
+    return !s->found && s->reason && !strcmp(s->reason, "costlier");
+}
+
 void pb_selection_rank(pb_selection *sel, int n, int by_cost)
 {
     rank_by_cost = by_cost;
@@ -98,8 +103,8 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
         json_object_set_new(e, "method", json_string(s->method->name));
         json_object_set_new(e, "from_gsl", json_boolean(s->method->flags & PB_FROM_GSL));
         /* a method pruned may well meet it: not known, so null */
-        int pruned = !s->found && s->reason && !strcmp(s->reason, "costlier");
-        json_object_set_new(e, "meets_requirement", pruned ? json_null() : json_boolean(s->found));
+        json_object_set_new(e, "meets_requirement",
+                            pb_selection_pruned(s) ? json_null() : json_boolean(s->found));
         json_object_set_new(e, "runs", json_integer(s->runs));
         if (isfinite(s->order))
             json_object_set_new(e, "observed_order", json_real(s->order));
@@ -109,7 +114,7 @@ json_t *pb_selection_json(const pb_case_spec *base, const pb_requirement *req,
         } else {
             json_object_set_new(e, "reason", json_string(s->reason ? s->reason : "not_met"));
             json_object_set_new(e, "note", json_string(s->note));
-            if (s->reason && !strcmp(s->reason, "costlier"))
+            if (pb_selection_pruned(s))
                 json_object_set_new(e, "estimated_min_evals", json_integer(s->est_evals));
         }
         json_array_append_new(arr, e);

@@ -154,7 +154,7 @@ static int pool_poll(pool_slot *slot, int busy, const pool_round *rd, int *finis
 static void pool_round_run(const pool_round *rd, const int *todo, int n, int jobs, int *finished)
 {
     int nfin = 0, next = 0, busy = 0;
-    pool_slot *slot = calloc(POOL_MAX, sizeof *slot);
+    pool_slot *slot = calloc((size_t)(jobs > 1 ? jobs : 1), sizeof *slot);
     if (!slot)
         jobs = 1; /* the slots' reply buffers are large; without them, one at a time */
     while (nfin < n) {
@@ -252,24 +252,18 @@ void pb_select_all(const pb_case_spec *base, const pb_requirement *req,
         pool_round_run(&rd, todo, ntodo, jobs, fin);
         int best = pool_fewest(sel, n), left = 0;
         for (int k = 0; k < ntodo; k++) {
-            int i = fin[k];
-            if (sel[i].deferred && !(best >= 0 && pool_prune(&sel[i], &sel[best], plan->prune_factor))) {
-                todo[left++] = i;
-                continue;
-            }
-            if (progress)
-                progress(ctx, ++done, list[i]->name);
+            int i = fin[k]; /* in the order they ended, for the progress line */
+            if (!sel[i].deferred || (best >= 0 && pool_prune(&sel[i], &sel[best], plan->prune_factor)))
+                if (progress)
+                    progress(ctx, ++done, list[i]->name);
         }
+        /* those left, in the list's order (todo's own), so the same methods
+         * start first whatever the workers did */
+        for (int k = 0; k < ntodo; k++)
+            if (sel[todo[k]].deferred)
+                todo[left++] = todo[k];
         ntodo = left;
         rd.cap = pool_next_cap(rd.cap, best >= 0 ? &sel[best] : NULL, plan->prune_factor, &stage);
-        /* todo is reordered by the finishing order: restore the list's order,
-         * so the same methods start first whatever the workers did */
-        for (int a = 1; a < ntodo; a++)
-            for (int b = a; b > 0 && todo[b - 1] > todo[b]; b--) {
-                int t = todo[b];
-                todo[b] = todo[b - 1];
-                todo[b - 1] = t;
-            }
     }
     free(memo), free(todo), free(fin);
 }
