@@ -29,9 +29,11 @@ void pb_case_list_free(pb_case_list *list)
     list->n = list->cap = 0;
 }
 
-/* Add every compatible method on problem p at the given resolutions. */
+/* Add every compatible method on problem p at the given resolutions, timed
+ * for repeats and at least timing_min_cpu_s (0: the default). */
 static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int *steps, int nsteps,
-                             const double *tols, int ntols, double orbits, int repeats)
+                             const double *tols, int ntols, double orbits, int repeats,
+                             double timing_min_cpu_s)
 {
     for (const pb_method_type *const *t = pb_method_table; *t; t++) {
         const pb_method_type *m = *t;
@@ -53,6 +55,7 @@ static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int 
             else
                 s.horizon_s = p->default_horizon_s;
             s.repeats = repeats;
+            s.timing_min_cpu_s = timing_min_cpu_s;
             s.linear_samples = PB_SWEEP_LINEAR_SAMPLES;
             if (pb_case_list_add(list, &s))
                 return -1;
@@ -67,10 +70,10 @@ static int suite_quick(pb_case_list *list)
     static const double tols[] = {1e-8, 1e-10};
     pb_problem p;
     if (pb_problem_lookup("kepler-e0.6", &p) ||
-        suite_add_problem(list, &p, steps_kepler, 2, tols, 2, 100, 1))
+        suite_add_problem(list, &p, steps_kepler, 2, tols, 2, 100, 1, 0))
         return -1;
     if (pb_problem_lookup("leo-near-circular", &p) ||
-        suite_add_problem(list, &p, steps_leo, 2, tols, 2, 16, 1))
+        suite_add_problem(list, &p, steps_leo, 2, tols, 2, 16, 1, 0))
         return -1;
     return 0;
 }
@@ -78,9 +81,9 @@ static int suite_quick(pb_case_list *list)
 #define SUITE_MAX_STEPS 2e5   /* standard suite: steps of the finest fixed step over the horizon */
 #define SUITE_MIN_ORBITS 3.0  /* ... but never fewer orbits than this: three periapsis passes */
 /* The standard suite's timing pass: at least its 3 repeats and this much CPU
- * time a case (a run's default is 0.2 s). Its 1836 cases at 0.2 s were over
- * 6 minutes of CPU for ns per step that a survey needs to a few per cent,
- * which 0.02 s gives (select times its answers so). */
+ * time a case (a run's default is 0.2 s), as select times its answers. Its
+ * 1836 cases at 0.2 s were over 6 minutes of CPU; fewer repeats let one
+ * disturbed repeat move a case's median more. */
 #define SUITE_TIMING_MIN_CPU_S 0.02
 
 static int suite_standard(pb_case_list *list)
@@ -117,11 +120,8 @@ static int suite_standard(pb_case_list *list)
          * problem keeps its horizon (at most 200,000 such steps) */
         if (orbits > 0 && 4.0 * base * orbits > SUITE_MAX_STEPS)
             orbits = fmax(floor(SUITE_MAX_STEPS / (4.0 * base)), SUITE_MIN_ORBITS);
-        int first = list->n;
-        if (suite_add_problem(list, &p, steps, 3, tols, 3, orbits, 3))
+        if (suite_add_problem(list, &p, steps, 3, tols, 3, orbits, 3, SUITE_TIMING_MIN_CPU_S))
             return -1;
-        for (int i = first; i < list->n; i++)
-            list->cases[i].timing_min_cpu_s = SUITE_TIMING_MIN_CPU_S;
     }
     return 0;
 }
