@@ -58,7 +58,7 @@ static void study_remove(const char *dir)
 int bench_study(double *leo_cold, double *leo_warm, double *k05, double *suite_warm)
 {
     *leo_cold = *leo_warm = *k05 = *suite_warm = (double)NAN;
-    char dir[256], cache[300], out[300], suite[300];
+    char dir[256], cache[300], out[300], suite[300], suite_cache[300];
     if (access(STUDY_BIN, X_OK) || study_scratch(dir, sizeof dir)) {
         printf("== 8. skipped: needs %s and a scratch folder ==\n\n", STUDY_BIN);
         return -1;
@@ -66,11 +66,14 @@ int bench_study(double *leo_cold, double *leo_warm, double *k05, double *suite_w
     snprintf(cache, sizeof cache, "%s/cache", dir);
     snprintf(out, sizeof out, "%s/select.json", dir);
     snprintf(suite, sizeof suite, "%s/suite", dir);
+    /* its own cache, so that its cold run builds every reference it needs
+     * (the select runs have just built leo-j2's) */
+    snprintf(suite_cache, sizeof suite_cache, "%s/suite-cache", dir);
     char *leo[] = {STUDY_BIN, "select", "--problem", "leo-j2", "--horizon-s", "86400", "--max-pos-err-m", "1",
                    "--cache", cache, "--out", out, "--quiet", NULL};
     char *kep[] = {STUDY_BIN, "select", "--problem", "kepler-e0.5", "--orbits", "100", "--max-pos-err", "1e-6",
                    "--cache", cache, "--out", out, "--quiet", NULL};
-    char *std[] = {STUDY_BIN, "sweep", "--suite", "standard", "-j", "2", "--repeats", "0", "--cache", cache,
+    char *std[] = {STUDY_BIN, "sweep", "--suite", "standard", "-j", "2", "--repeats", "0", "--cache", suite_cache,
                    "--out", suite, "--quiet", NULL};
     printf("== 8. select and the standard suite as run (CPU s of the process and its workers) ==\n");
     *leo_cold = study_cpu(leo, 0);
