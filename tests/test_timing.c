@@ -188,10 +188,13 @@ Test(timing, policy_of_a_spec)
     cr_assert_eq(pol.min_repeats, 3);
     cr_assert_eq(pol.max_repeats, PB_TIMING_MAX_REPEATS);
     cr_assert_eq(pol.min_cpu_s, PB_TIMING_MIN_CPU_S);
+    cr_assert_eq(pol.calibrate, 1);
     spec.repeats = PB_TIMING_MAX_REPEATS + 500;
+    spec.timing_uncalibrated = 1;
     pol = pb_timing_policy_for(&spec);
     cr_assert_eq(pol.min_repeats, PB_TIMING_MAX_REPEATS + 500);
     cr_assert_eq(pol.max_repeats, PB_TIMING_MAX_REPEATS + 500);
+    cr_assert_eq(pol.calibrate, 0);
 }
 
 /* pb_case_time_with on one orbit of rk4 at T/100, as the harness sets a
@@ -208,6 +211,23 @@ static void time_one_orbit(const pb_timing_policy *pol, pb_case_result *res)
     pb_case_time_with(&spec, &cfg, spec.problem.t0 + 100 * cfg.h, 100, pol, res);
 }
 
+/* The calibration kernel runs only when the policy asks: with it, the
+ * kernel's ns a chunk and a step's time in chunks are measured; without
+ * it (select's answers) both stay NaN and the step's own time is kept. */
+Test(timing, kernel_only_when_asked)
+{
+    pb_case_result res;
+    pb_timing_policy with = {3, 3, 0, 1}, without = {3, 3, 0, 0};
+    time_one_orbit(&with, &res);
+    cr_assert_eq(res.timing_repeats, 3);
+    cr_assert(res.calib_ns > 0 && res.step_kernel_ratio > 0, "calib_ns %g, ratio %g", res.calib_ns,
+              res.step_kernel_ratio);
+    time_one_orbit(&without, &res);
+    cr_assert_eq(res.timing_repeats, 3);
+    cr_assert(res.ns_per_step > 0);
+    cr_assert(isnan(res.calib_ns) && isnan(res.step_kernel_ratio));
+}
+
 /* The stop rule without the clock's say: an unreachable CPU-time floor
  * stops at the cap, a zero floor at the minimum, exactly. Each repeat
  * counts what the metric pass of the same case does. */
@@ -217,22 +237,22 @@ Test(timing, stop_rule_cap_and_floor)
     pb_case_result ref, res;
     timing_run(&spec, &ref);
     cr_assert_eq(ref.steps, 100);
-    pb_timing_policy unreachable = {2, 7, 1e9};
+    pb_timing_policy unreachable = {2, 7, 1e9, 1};
     time_one_orbit(&unreachable, &res);
     cr_assert_eq(res.timing_repeats, 7);
     cr_assert_eq(res.timing_steps, ref.steps + ref.startup_steps);
     cr_assert_eq(res.timing_evals, ref.evals);
     pb_case_result_free(&ref);
     cr_assert(isfinite(res.ns_per_step_spread) && res.ns_per_step_spread >= 0);
-    pb_timing_policy no_floor = {4, 1000, 0};
+    pb_timing_policy no_floor = {4, 1000, 0, 1};
     time_one_orbit(&no_floor, &res);
     cr_assert_eq(res.timing_repeats, 4);
     cr_assert(isfinite(res.ns_per_step) && res.ns_per_step > 0);
-    pb_timing_policy one = {1, 1, 0};
+    pb_timing_policy one = {1, 1, 0, 1};
     time_one_orbit(&one, &res);
     cr_assert_eq(res.timing_repeats, 1);
     cr_assert_eq(res.ns_per_step_spread, 0); /* one repeat: no spread */
-    pb_timing_policy none = {0, 1000, 0.2};
+    pb_timing_policy none = {0, 1000, 0.2, 1};
     time_one_orbit(&none, &res);
     cr_assert_eq(res.timing_repeats, 0);
     cr_assert(isnan(res.ns_per_step) && isnan(res.ns_per_step_spread));

@@ -28,6 +28,9 @@ typedef struct pb_case_spec {
     int compensated;
     int repeats;                    /* timing repeats (0: no timing pass) */
     double timing_min_cpu_s;        /* the timing pass's least CPU time (0: PB_TIMING_MIN_CPU_S) */
+    int timing_uncalibrated;        /* 1: no calibration kernel after the repeats, for a
+                                     * caller that never states a step in kernel units
+                                     * (select): calib_ns, step_kernel_ratio stay NaN */
     double eval_cost_us;            /* user's cost of one force evaluation (0: none) */
     int linear_samples;             /* extra linear grid points for plots */
     long max_steps;                 /* 0: automatic budget */

@@ -103,6 +103,7 @@ pb_timing_policy pb_timing_policy_for(const pb_case_spec *spec)
     pol.min_repeats = spec->repeats;
     pol.max_repeats = spec->repeats > PB_TIMING_MAX_REPEATS ? spec->repeats : PB_TIMING_MAX_REPEATS;
     pol.min_cpu_s = spec->timing_min_cpu_s > 0 ? spec->timing_min_cpu_s : PB_TIMING_MIN_CPU_S;
+    pol.calibrate = !spec->timing_uncalibrated;
     return pol;
 }
 
@@ -235,8 +236,10 @@ void pb_case_time_with(const pb_case_spec *spec, const pb_method_config *cfg, do
     double *kc = dt + pol->max_repeats;
     long chunks = 0;
     timing_calib kern;
-    if (timing_calib_init(&kern))
-        timing_calib_free(&kern);  /* no kernel: calib_ns stays NaN */
+    memset(&kern, 0, sizeof kern);
+    /* no kernel (not asked for, or it cannot run): calib_ns stays NaN */
+    if (!pol->calibrate || timing_calib_init(&kern))
+        timing_calib_free(&kern);
     int ok = 0;
     double total = 0;
     while (ok < pol->max_repeats && (ok < pol->min_repeats || total < pol->min_cpu_s)) {

@@ -35,10 +35,12 @@
 typedef struct pb_timing_policy {
     int min_repeats, max_repeats;
     double min_cpu_s;
+    int calibrate;       /* 1: time the calibration kernel after each repeat */
 } pb_timing_policy;
 
 /* The policy pb_case_time uses for spec: spec->repeats,
- * max(spec->repeats, PB_TIMING_MAX_REPEATS), PB_TIMING_MIN_CPU_S. */
+ * max(spec->repeats, PB_TIMING_MAX_REPEATS), spec->timing_min_cpu_s or
+ * PB_TIMING_MIN_CPU_S, and the kernel unless spec->timing_uncalibrated. */
 pb_timing_policy pb_timing_policy_for(const pb_case_spec *spec);
 
 /* Time spec's integration from t0 towards t_end (the metric pass reached

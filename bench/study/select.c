@@ -17,7 +17,14 @@
 #define SELECT_STOP_FACTOR 2.0     /* stop when the order projects past 2x the last rung */
 #define SELECT_MAX_JUMP 3          /* rungs the ladder may skip at once */
 #define SELECT_MAX_MISSES 4        /* predictions that miss before plain bisection */
-#define SELECT_TIMING_MIN_CPU_S 0.02 /* the answer's timing pass: at least 3 repeats and this */
+/* The answer's timing pass: at least 3 repeats and this much CPU time. On
+ * leo-j2 (1 m, 22 answers; 6 warm selects of each, alternating) the
+ * run-to-run spread of an answer's ns per step, (max - min) / median, had
+ * a median over the methods of 0.40-0.44 at 0.02 s (with the kernel) and
+ * 0.32-0.44 at 0.005 s, and the two agreed on each answer's median ns per
+ * step to 0.91-0.99: this machine's noise, not the repeats, sets the
+ * spread, and 0.02 s cost half of the select's CPU. */
+#define SELECT_TIMING_MIN_CPU_S 0.005
 #define SELECT_CAPPED (-2)         /* select_try: the run would pass the round's cap */
 #define SELECT_FULL (-3)           /* select_try: the memo has no room for another setting */
 
@@ -82,6 +89,9 @@ static pb_case_spec select_spec(const select_state *st, double x, int timed)
         /* a ranking needs ns per step to a few per cent, not a sweep's
          * 0.2 s of repeats per case: that was 5.6 s of a 28-method select */
         s.timing_min_cpu_s = SELECT_TIMING_MIN_CPU_S;
+        /* select states ns per step, never kernel units: the kernel timed
+         * after every repeat was half the timing pass's CPU */
+        s.timing_uncalibrated = 1;
     }
     if (st->ax->fixed)
         s.steps_per_orbit = (int)x;
