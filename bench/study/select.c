@@ -18,13 +18,14 @@
 #define SELECT_MAX_JUMP 3          /* rungs the ladder may skip at once */
 #define SELECT_MAX_MISSES 4        /* predictions that miss before plain bisection */
 /* The answer's timing pass: at least 3 repeats and this much CPU time. On
- * leo-j2 (1 m, 22 answers; 6 warm selects of each, alternating) the
- * run-to-run spread of an answer's ns per step, (max - min) / median, had
- * a median over the methods of 0.40-0.44 at 0.02 s (with the kernel) and
- * 0.32-0.44 at 0.005 s, and the two agreed on each answer's median ns per
- * step to 0.91-0.99: this machine's noise, not the repeats, sets the
- * spread, and 0.02 s cost half of the select's CPU. */
-#define SELECT_TIMING_MIN_CPU_S 0.005
+ * leo-j2 (1 m, 22 answers; 6 warm selects with each setting, alternating)
+ * the run-to-run spread of an answer's ns per step, (max - min) / median,
+ * had a median over the methods of 0.27-0.44 at 0.02 s (with the kernel),
+ * 0.32-0.44 at 0.005 s and 0.32-0.35 at 0.002 s, and the settings agreed
+ * on each answer's median ns per step to within 2%: this machine's noise,
+ * not the repeats, sets the spread, and at 0.02 s the timing passes were
+ * half of the select's CPU. */
+#define SELECT_TIMING_MIN_CPU_S 0.002
 #define SELECT_CAPPED (-2)         /* select_try: the run would pass the round's cap */
 #define SELECT_FULL (-3)           /* select_try: the memo has no room for another setting */
 
