@@ -42,7 +42,15 @@
 
 static const int gj_gbs_seq[GJ_GBS_COLS] = {2, 4, 6, 8, 10, 12};
 
+/* Two doubles side by side (GCC's and clang's vector extension; SSE2 on
+ * x86-64): each lane does the scalar operation it replaces, in the same
+ * order, so results are the same bits. */
+typedef double gj_v2 __attribute__((vector_size(2 * sizeof(double))));
+
 typedef struct gj_ws {
+    /* rows 8 and 9 of the coefficients as pairs {a[row][k], b[row][k]}, for
+     * the 3-d partial sums (gj_partials) */
+    gj_v2 ab8[GJ_NB - 1], ab9[GJ_NB - 1];
     int dim;
     double *block;              /* the one allocation all arrays below share */
     pb_force f;
@@ -74,6 +82,10 @@ static void *gj_alloc(int dim)
     if (!w)
         return NULL;
     w->dim = dim;
+    for (int k = 0; k < GJ_NB - 1; k++) {
+        w->ab8[k] = (gj_v2){gj_a[8][k], gj_b[8][k]};
+        w->ab9[k] = (gj_v2){gj_a[9][k], gj_b[9][k]};
+    }
     size_t d = (size_t)dim;
     size_t total = d * (4 + 5 * GJ_NB + 6) + 2 * d * (4 + GJ_GBS_COLS) +
                    d * (GJ_RING_SLOTS + 8);
@@ -329,54 +341,65 @@ static void gj_partials_d(int d, const double *f, const double *ca, const double
         pa[i] = sa[i], pb[i] = sb[i], qa[i] = ta[i], qb[i] = tb[i];
 }
 
-static void gj_partials(int d, const double *f, const double *ca, const double *cb, double *pa,
-                        double *pb, const double *ea, const double *eb, double *qa, double *qb)
+/* The corrector's partial sums (row rc of the coefficients) into pa, pb and
+ * the next predictor's (row re) into qa, qb, over the 8 points from f. */
+static void gj_partials(const gj_ws *w, const double *f, int rc, double *pa, double *pb, int re,
+                        double *qa, double *qb)
 {
-    if (d != 3) {
-        gj_partials_d(d, f, ca, cb, pa, pb, ea, eb, qa, qb);
+    if (w->dim != 3) {
+        gj_partials_d(w->dim, f, gj_a[rc], gj_b[rc], pa, pb, gj_a[re], gj_b[re], qa, qb);
         return;
     }
-    /* the common case written out: 12 independent chains side by side in
-     * registers */
-    double a0 = 0, a1 = 0, a2 = 0, b0 = 0, b1 = 0, b2 = 0;
-    double c0 = 0, c1 = 0, c2 = 0, e0 = 0, e1 = 0, e2 = 0;
+    /* the common case: for each component, the a and b sums of a row side
+     * by side, the component broadcast: 6 pairs of chains, one multiply and
+     * one add each a point */
+    const gj_v2 *kc = rc == 8 ? w->ab8 : w->ab9, *ke = re == 8 ? w->ab8 : w->ab9;
+    gj_v2 c0 = {0, 0}, c1 = {0, 0}, c2 = {0, 0}, e0 = {0, 0}, e1 = {0, 0}, e2 = {0, 0};
     for (int k = 0; k < GJ_NB - 1; k++) {
         const double *x = f + 3 * k;
-        a0 += ca[k] * x[0], a1 += ca[k] * x[1], a2 += ca[k] * x[2];
-        b0 += cb[k] * x[0], b1 += cb[k] * x[1], b2 += cb[k] * x[2];
-        c0 += ea[k] * x[0], c1 += ea[k] * x[1], c2 += ea[k] * x[2];
-        e0 += eb[k] * x[0], e1 += eb[k] * x[1], e2 += eb[k] * x[2];
+        gj_v2 x0 = {x[0], x[0]}, x1 = {x[1], x[1]}, x2 = {x[2], x[2]};
+        c0 += kc[k] * x0, c1 += kc[k] * x1, c2 += kc[k] * x2;
+        e0 += ke[k] * x0, e1 += ke[k] * x1, e2 += ke[k] * x2;
     }
-    pa[0] = a0, pa[1] = a1, pa[2] = a2;
-    pb[0] = b0, pb[1] = b1, pb[2] = b2;
-    qa[0] = c0, qa[1] = c1, qa[2] = c2;
-    qb[0] = e0, qb[1] = e1, qb[2] = e2;
+    pa[0] = c0[0], pa[1] = c1[0], pa[2] = c2[0];
+    pb[0] = c0[1], pb[1] = c1[1], pb[2] = c2[1];
+    qa[0] = e0[0], qa[1] = e1[0], qa[2] = e2[0];
+    qb[0] = e0[1], qb[1] = e1[1], qb[2] = e2[1];
 }
 
 /* The acceleration at the new point: evaluated into the ring slot outside
  * the window (and its mirror). */
-static int gj_eval_new(gj_ws *w, double t, const double *r, const double *v, double *fa)
+static PB_STEP_INLINE int gj_eval_new(gj_ws *w, double t, const double *r, const double *v, double *fa,
+                                  const int d)
 {
-    int s = gj_eval(w, t, r, v, fa);
+    int s = w->f.accel(w->f.ctx, t, r, v, fa), ok = 1;
+    if (s)
+        return s;
+    PB_UNROLL_COMPONENTS
+    for (int i = 0; i < d; i++)
+        ok &= isfinite(fa[i]);
+    if (!ok)
+        return PB_ENONFINITE;
     int q = (w->head + GJ_NB) % GJ_RING;
-    if (!s && q < GJ_NB - 1) {
-        double *mirror = w->ring + (size_t)(q + GJ_RING) * w->dim;
-        for (int i = 0; i < w->dim; i++)
+    if (q < GJ_NB - 1) {
+        double *mirror = w->ring + (size_t)(q + GJ_RING) * d;
+        PB_UNROLL_COMPONENTS
+        for (int i = 0; i < d; i++)
             mirror[i] = fa[i];
     }
-    return s;
+    return PB_OK;
 }
 
 /* corrected r, v at the new point from its acceleration fa, the corrector's
  * partial sums and the sums Sn, sn (locals: the arrays alias nothing, which
  * the compiler cannot see through w) */
-static void gj_correct(gj_ws *w, const double *fnow, const double *fa)
+static PB_STEP_INLINE void gj_correct(gj_ws *w, const double *fnow, const double *fa, const int d)
 {
-    int d = w->dim;
     double h = w->cfg.h, h2 = h * h;
     const double *s = w->s, *Sn = w->Sn, *ca = w->ca, *cb = w->cb;
     double *sn = w->sn, *rc = w->rc, *vc = w->vc;
     const double a8 = gj_a[8][GJ_NB - 1], b8 = gj_b[8][GJ_NB - 1];
+    PB_UNROLL_COMPONENTS
     for (int i = 0; i < d; i++) {
         double f = fa[i], sni = s[i] + 0.5 * (fnow[i] + f);
         double r = h2 * (Sn[i] + (cb[i] + b8 * f)), v = h * (sni + (ca[i] + a8 * f));
@@ -391,11 +414,11 @@ static int gj_iterate(gj_ws *w, double t1, const double *fnow, double *fa)
     int d = w->dim, s, i, it;
     int maxit = w->cfg.corrector_max_iter > 0 ? w->cfg.corrector_max_iter : GJ_CORR_MAXIT_DEFAULT;
     for (it = 0; it < maxit; it++) {
-        if ((s = gj_eval_new(w, t1, w->rc, w->vc, fa)))
+        if ((s = gj_eval_new(w, t1, w->rc, w->vc, fa, d)))
             return s;
         double rold[PB_STATE_DIM_MAX], change = 0, scale = 0;
         memcpy(rold, w->rc, (size_t)d * sizeof(double));
-        gj_correct(w, fnow, fa);
+        gj_correct(w, fnow, fa, d);
         for (i = 0; i < d; i++) {
             change = fmax(change, fabs(w->rc[i] - rold[i]));
             scale = fmax(scale, fabs(w->rc[i]));
@@ -414,21 +437,24 @@ static void gj_swap(double **a, double **b)
 }
 
 /* One step n -> n+1, ending at t1: predict, evaluate, correct (iterated if
- * asked). On failure the workspace still holds step n. */
-static int gj_step(gj_ws *w, double t1)
+ * asked). On failure the workspace still holds step n. d is w->dim, a
+ * constant where it is inlined for 3 dimensions, so that every loop over
+ * the components unrolls. */
+static PB_STEP_INLINE int gj_step(gj_ws *w, double t1, const int d)
 {
-    int d = w->dim, s, i;
+    int s, i;
     double h = w->cfg.h, h2 = h * h;
     const double *fw = w->ring + (size_t)w->head * d, *fnow = fw + 8 * d;
     double *fa = w->ring + (size_t)((w->head + GJ_NB) % GJ_RING) * d;
     if (!w->have_part) {
-        gj_partials(d, fw, gj_a[9], gj_b[9], w->pa, w->pb, gj_a[9], gj_b[9], w->pan, w->pbn);
+        gj_partials(w, fw, 9, w->pa, w->pb, 9, w->pan, w->pbn);
         w->have_part = 1;
     }
     {
         const double *S = w->S, *sv = w->s, *pa = w->pa, *pb = w->pb;
         double *Sn = w->Sn, *rp = w->rp, *vp = w->vp;
         const double a9 = gj_a[9][GJ_NB - 1], b9 = gj_b[9][GJ_NB - 1];
+        PB_UNROLL_COMPONENTS
         for (i = 0; i < d; i++) {
             double f = fnow[i], sa = pa[i] + a9 * f, sb = pb[i] + b9 * f;
             double Sni = S[i] + sv[i] + 0.5 * f;
@@ -439,15 +465,18 @@ static int gj_step(gj_ws *w, double t1)
     }
     /* what the corrector and the next predictor sum over the window's
      * newest 8 points, before the force call rather than after it */
-    gj_partials(d, fw + d, gj_a[8], gj_b[8], w->ca, w->cb, gj_a[9], gj_b[9], w->pan, w->pbn);
-    if ((s = gj_eval_new(w, t1, w->rp, w->vp, fa)))
+    gj_partials(w, fw + d, 8, w->ca, w->cb, 9, w->pan, w->pbn);
+    if ((s = gj_eval_new(w, t1, w->rp, w->vp, fa, d)))
         return s;
-    gj_correct(w, fnow, fa);
+    gj_correct(w, fnow, fa, d);
     if (w->cfg.corrector_tol > 0 && (s = gj_iterate(w, t1, fnow, fa)))
         return s;
+    int ok = 1; /* one branch, not one a component */
+    PB_UNROLL_COMPONENTS
     for (i = 0; i < d; i++)
-        if (!isfinite(w->rc[i]) || !isfinite(w->vc[i]))
-            return PB_ENONFINITE;
+        ok &= isfinite(w->rc[i]) & isfinite(w->vc[i]);
+    if (!ok)
+        return PB_ENONFINITE;
     w->head = (w->head + 1) % GJ_RING;
     gj_swap(&w->s, &w->sn);
     gj_swap(&w->S, &w->Sn);
@@ -482,7 +511,7 @@ static int gj_fixed_step(void *ctx, long n, double t, double t1)
         memcpy(w->v, w->vb + (5 + n) * d, (size_t)d * sizeof(double));
         return PB_OK;
     }
-    return gj_step(w, t1);
+    return d == 3 ? gj_step(w, t1, 3) : gj_step(w, t1, d);
 }
 
 /* The last step's ends with their accelerations, put together only when

@@ -74,7 +74,7 @@ static int rk4_start(void *ws, const pb_force *f, const pb_method_config *cfg,
  * stack and nothing is copied; inlined with d = 3 the loops unroll. The
  * arithmetic is the tableau's, term for term, so every variant gives the
  * same bits. A failed step leaves y and comp untouched. */
-static inline int rk4_step_d(rk4_ws *w, double t, double t1, double h, const int d)
+static PB_STEP_INLINE int rk4_step_d(rk4_ws *w, double t, double t1, double h, const int d)
 {
     double *r = w->y, *v = w->y + d, *cr = w->comp, *cv = w->comp + d;
     double a1[PB_STATE_DIM_MAX], a2[PB_STATE_DIM_MAX], a3[PB_STATE_DIM_MAX], a4[PB_STATE_DIM_MAX];
@@ -84,6 +84,7 @@ static inline int rk4_step_d(rk4_ws *w, double t, double t1, double h, const int
     int s, i, ok = 1;
     void *ctx = w->f.ctx;
     if (w->have_a) {
+        PB_UNROLL_COMPONENTS
         for (i = 0; i < d; i++)
             a1[i] = w->a[i];
     } else {
@@ -91,18 +92,21 @@ static inline int rk4_step_d(rk4_ws *w, double t, double t1, double h, const int
             return s;
         pb_dense_set_a(&w->span, a1);
     }
+    PB_UNROLL_COMPONENTS
     for (i = 0; i < d; i++) {
         r2[i] = r[i] + 0.5 * h * v[i];
         v2[i] = v[i] + 0.5 * h * a1[i];
     }
     if ((s = w->f.accel(ctx, t + 0.5 * h, r2, v2, a2)))
         return s;
+    PB_UNROLL_COMPONENTS
     for (i = 0; i < d; i++) {
         r3[i] = r[i] + 0.5 * h * v2[i];
         v3[i] = v[i] + 0.5 * h * a2[i];
     }
     if ((s = w->f.accel(ctx, t + 0.5 * h, r3, v3, a3)))
         return s;
+    PB_UNROLL_COMPONENTS
     for (i = 0; i < d; i++) {
         r4[i] = r[i] + h * v3[i];
         v4[i] = v[i] + h * a3[i];
@@ -120,15 +124,18 @@ static inline int rk4_step_d(rk4_ws *w, double t, double t1, double h, const int
             ncv[i] = (vn[i] - v[i]) - dv;
         }
     } else {
+        PB_UNROLL_COMPONENTS
         for (i = 0; i < d; i++) {
             rn[i] = r[i] + h / 6.0 * (v[i] + 2.0 * (v2[i] + v3[i]) + v4[i]);
             vn[i] = v[i] + h / 6.0 * (a1[i] + 2.0 * (a2[i] + a3[i]) + a4[i]);
         }
     }
+    PB_UNROLL_COMPONENTS
     for (i = 0; i < d; i++)
         ok &= isfinite(rn[i]) & isfinite(vn[i]);
     if (!ok)
         return PB_ENONFINITE;
+    PB_UNROLL_COMPONENTS
     for (i = 0; i < d; i++) {
         r[i] = rn[i];
         v[i] = vn[i];
