@@ -22,68 +22,9 @@
 #define FT_PI M_PI
 #include "force_terms_impl.h"
 
-/* The time-only bodies' places (Sun, Moon, circular body) at the last
- * FT_BODY_SLOTS times asked on this thread. A method asks for the force at
- * one time more than once: rk4's two midpoint stages, an implicit method's
- * iterations at its nodes, a corrector after its predictor; and the Moon's
- * series alone is some 35 sines and cosines, most of a Sun-and-Moon
- * force's cost. The places depend only on the key (t, epoch, which bodies,
- * the circular body's elements), compared bit for bit, so an answer from
- * here is the very value computed afresh. */
-#define FT_BODY_SLOTS 8
-
-typedef struct ft_body_key {
-    double t, epoch_days;
-    int sun, moon, circular;
-    pb_circular_body circ;
-} ft_body_key;
-
-typedef struct ft_body_slot {
-    ft_body_key key;
-    int used;
-    double pos[3][3];
-} ft_body_slot;
-
-static _Thread_local struct {
-    ft_body_slot slot[FT_BODY_SLOTS];
-    int next;                      /* the slot the next new time replaces */
-} ft_body_memo;
-
-static void ft_bodies_remembered(const pb_problem *p, double t, double pos[3][3])
-{
-    const pb_forces *f = &p->forces;
-    ft_body_key k;
-    memset(&k, 0, sizeof k); /* padding too: keys are compared with memcmp */
-    k.t = t;
-    k.epoch_days = f->epoch_days;
-    k.sun = f->sun || f->srp_area_mass_m2_kg > 0;
-    k.moon = f->moon;
-    k.circular = f->circular;
-    if (f->circular)
-        k.circ = f->circ;
-    for (int i = 0; i < FT_BODY_SLOTS; i++) {
-        ft_body_slot *s = &ft_body_memo.slot[i];
-        /* the time first: it rules out all but one slot without a call */
-        if (s->used && !memcmp(&s->key.t, &k.t, sizeof k.t) && !memcmp(&s->key, &k, sizeof k)) {
-            memcpy(pos, s->pos, sizeof s->pos);
-            return;
-        }
-    }
-    ft_bodies_d(p, t, pos);
-    ft_body_slot *s = &ft_body_memo.slot[ft_body_memo.next];
-    ft_body_memo.next = (ft_body_memo.next + 1) % FT_BODY_SLOTS;
-    s->key = k;
-    s->used = 1;
-    memcpy(s->pos, pos, sizeof s->pos);
-}
-
 int pb_forces_accel(const pb_problem *p, double t, const double *r, const double *v, double *a)
 {
-    const pb_forces *f = &p->forces;
-    double pos[3][3];
-    if (f->sun || f->moon || f->circular || f->srp_area_mass_m2_kg > 0)
-        ft_bodies_remembered(p, t, pos);
-    ft_accel_at_d(p, r, v, FT_REGION_GEOMETRY, -1, pos, a);
+    ft_accel_d(p, t, r, v, FT_REGION_GEOMETRY, -1, a);
     return isfinite(a[0]) && isfinite(a[1]) && isfinite(a[2]) ? PB_OK : PB_ENONFINITE;
 }
 
