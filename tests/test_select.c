@@ -10,6 +10,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <unistd.h>
 #include "test_support.h"
 
@@ -166,6 +167,19 @@ Test(select, ranking_by_projected_cost_when_a_cost_is_given)
     /* the answers themselves do not depend on the cost */
     cr_assert_eq(sel_spo(dc, "yoshida6"), sel_spo(de, "yoshida6"));
     json_decref(de), json_decref(dc);
+    /* the table warns that measured costs close together are ties, only
+     * when it ranks by them */
+    char dir[256], out[300];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(out, sizeof out, "%s/shown.json", dir);
+    const char *shown[] = {"select", "--problem", "leo-j2", "--horizon-s", "86400",
+                           "--max-pos-err-m", "1", "--methods", "yoshida6,gsl-msadams",
+                           "--eval-cost-us", "0.001", "--out", out, NULL};
+    cr_assert_eq(cli(shown), 0, "stderr: %s", err_buf);
+    cr_assert(strstr(out_buf, "treat projected costs within 2x as ties"), "%s", out_buf);
+    shown[9] = NULL; /* the same without --eval-cost-us */
+    cr_assert_eq(cli(shown), 0, "stderr: %s", err_buf);
+    cr_assert(strstr(out_buf, "cheapest by evaluations") && !strstr(out_buf, "as ties"), "%s", out_buf);
 }
 
 /* A problem file's horizon_s (or orbits) is select's horizon when none is
@@ -334,6 +348,19 @@ Test(select, bad_requirement_options_exit_2)
     /* no requirement at all */
     cr_assert_eq(cli((const char *[]){"select", K10, "--out", path, NULL}), 2);
     cr_assert_not_null(strstr(err_buf, "give a requirement"), "%s", err_buf);
+    /* --out naming a folder or a pipe (as /dev/null is a device): refused
+     * before the search, and left as it was, not replaced by a plain file */
+    char fifo[300];
+    snprintf(fifo, sizeof fifo, "%s/pipe", dir);
+    cr_assert_eq(mkfifo(fifo, 0600), 0);
+    const char *outs[] = {dir, fifo};
+    for (int i = 0; i < 2; i++) {
+        cr_assert_eq(cli((const char *[]){"select", K10, "--max-pos-err", "1e-4", "--methods", "rk4", "--out", outs[i], NULL}), 2);
+        cr_assert_not_null(strstr(err_buf, "--out"), "%s", err_buf);
+        struct stat st;
+        cr_assert(!stat(outs[i], &st) && (i ? S_ISFIFO(st.st_mode) : S_ISDIR(st.st_mode)), "%s", outs[i]);
+    }
+    remove(fifo);
     rmdir(dir);
 }
 

@@ -31,7 +31,8 @@ static void select_help(FILE *f)
 "between its bracketing rungs, then confirmation (the answer and a 10%%\n"
 "finer neighbour must pass). Ranked by projected cost when --eval-cost-us is\n"
 "given, by evaluations otherwise; the projected cost is evaluations x C\n"
-"microseconds + steps x measured ns/step.\n"
+"microseconds + steps x measured ns/step (measured on this machine, now:\n"
+"costs within 2x of each other are ties).\n"
 "Requirements (any combination; X in problem units, M in metres and m/s for\n"
 "km-s problems); radial, along- and cross-track in the true orbit's frame:\n"
 "  --max-pos-err X | --max-pos-err-m M        largest position error\n"
@@ -367,6 +368,11 @@ static int select_out_path(const select_options *o, const pb_problem *p, char *p
         snprintf(path, len, "%s", o->out);
     else
         snprintf(path, len, "results/runs/select-%s.json", p->name);
+    /* the JSON replaces its file by a rename, which would put a plain file
+     * where a folder or a device (/dev/null, run as root) stands */
+    if (!path[0] || path[strlen(path) - 1] == '/' || pb_path_blocked(path))
+        return pb_cli_error("select", "--out '%s': not a file name (a folder or a device stands there)",
+                            path);
     char dir[4096];
     snprintf(dir, sizeof dir, "%s", path);
     char *slash = strrchr(dir, '/');
@@ -488,7 +494,14 @@ static void select_print_notes(const pb_selection *sel, int m, int found, int by
                pruned, pruned > 1 ? "s" : "", K);
     if (!found)
         printf("NO METHOD meets the requirement over this horizon.\n");
-    else
+    if (found && by_cost)
+        /* the spread of an answer's ns per step from run to run on the
+         * 2-core machine of the README's select section
+         * (scripts/select-timing-spread.py) */
+        printf("ns/step is measured here and now: an answer's moved by up to 1.7x from run to\n"
+               "run on a 2-core test machine, so treat projected costs within 2x as ties and\n"
+               "time the finalists with `propbench run` on the machine that will run them\n");
+    if (found)
         printf("cheapest by %s: %s; reproduce it with\n  %s\n"
                "Benchmarks on idealised problems do not validate an operational propagator;\n"
                "confirm with the mission's own verification.\n",

@@ -32,6 +32,12 @@ int pb_write_atomic(const char *path, const char *data, size_t len)
             return -1;
         path = target;
     }
+    /* a rename would replace a folder's or a device's name (/dev/null, as
+     * root) with a plain file: refused, whoever the caller */
+    if (!stat(path, &st) && !S_ISREG(st.st_mode)) {
+        errno = S_ISDIR(st.st_mode) ? EISDIR : EPERM;
+        return -1;
+    }
     /* never cut: a shortened name would be another file */
     if (snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid()) >= (int)sizeof tmp) {
         errno = ENAMETOOLONG;

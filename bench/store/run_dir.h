@@ -15,7 +15,9 @@
  * so no file can be written there; 0 if it is absent or a plain file. */
 int pb_path_blocked(const char *path);
 
-/* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1. */
+/* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1 (errno
+ * EISDIR or EPERM, nothing written, when a folder or a device stands at
+ * path: the rename would replace it). */
 int pb_write_atomic(const char *path, const char *data, size_t len);
 
 /* Write what body prints (0 on success) to path atomically, through an
