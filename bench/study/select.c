@@ -17,14 +17,15 @@
 #define SELECT_STOP_FACTOR 2.0     /* stop when the order projects past 2x the last rung */
 #define SELECT_MAX_JUMP 3          /* rungs the ladder may skip at once */
 #define SELECT_MAX_MISSES 4        /* predictions that miss before plain bisection */
-/* The answer's timing pass: at least 3 repeats and this much CPU time. On
- * leo-j2 (1 m, 22 answers; 6 warm selects with each setting, alternating)
- * the run-to-run spread of an answer's ns per step, (max - min) / median,
- * had a median over the methods of 0.27-0.44 at 0.02 s (with the kernel),
- * 0.32-0.44 at 0.005 s and 0.32-0.35 at 0.002 s, and the settings agreed
- * on each answer's median ns per step to within 2%: this machine's noise,
- * not the repeats, sets the spread, and at 0.02 s the timing passes were
- * half of the select's CPU. */
+/* The answer's timing pass: at least 3 repeats and this much CPU time, and
+ * no calibration kernel (select_spec). How far an answer's ns per step
+ * moves from run to run, (max - min) / median over 6 warm selects of leo-j2
+ * at 1 m, median over the 22 answers, this build against 6a7c272's (0.02 s
+ * with the kernel), alternating (scripts/select-timing-spread.py): 0.32-0.35
+ * against 0.27-0.44 on a busy machine, 0.04-0.07 against 0.03-0.04 on a
+ * quiet one; the largest 0.20-0.70 against 0.49-0.61. The machine's load
+ * sets the spread more than the repeats do, and the longer pass was most of
+ * a warm select's CPU. */
 #define SELECT_TIMING_MIN_CPU_S 0.002
 #define SELECT_CAPPED (-2)         /* select_try: the run would pass the round's cap */
 #define SELECT_FULL (-3)           /* select_try: the memo has no room for another setting */
@@ -90,8 +91,8 @@ static pb_case_spec select_spec(const select_state *st, double x, int timed)
         /* a ranking needs ns per step to a few per cent, not a sweep's
          * 0.2 s of repeats per case: that was 5.6 s of a 28-method select */
         s.timing_min_cpu_s = SELECT_TIMING_MIN_CPU_S;
-        /* select states ns per step, never kernel units: the kernel timed
-         * after every repeat was half the timing pass's CPU */
+        /* select states ns per step, never kernel units: no kernel after
+         * each repeat (it took about 0.15 s of a 0.77 s warm select) */
         s.timing_uncalibrated = 1;
     }
     if (st->ax->fixed)
