@@ -4,6 +4,7 @@
  * (from memory). Start-up points from Gragg-Bulirsch-Stoer extrapolation
  * (Hairer, Norsett & Wanner, Solving ODEs I, Sec. II.9). Fixed step. */
 #include <math.h>
+#include <stddef.h>
 #include <stdlib.h>
 #include <string.h>
 #include "integrators/fixed_step.h"
@@ -47,10 +48,13 @@ static const int gj_gbs_seq[GJ_GBS_COLS] = {2, 4, 6, 8, 10, 12};
  * order, so results are the same bits. */
 typedef double gj_v2 __attribute__((vector_size(2 * sizeof(double))));
 
+/* calloc's alignment serves the pairs at the workspace's start */
+_Static_assert(_Alignof(gj_v2) <= _Alignof(max_align_t), "gj_v2 in a calloc'ed workspace");
+
 typedef struct gj_ws {
-    /* rows 8 and 9 of the coefficients as pairs {a[row][k], b[row][k]}, for
-     * the 3-d partial sums (gj_partials) */
-    gj_v2 ab8[GJ_NB - 1], ab9[GJ_NB - 1];
+    /* rows 8 and 9 of the coefficients (the only rows the steps sum with) as
+     * pairs {a[row][k], b[row][k]}, for the 3-d partial sums: ab[row - 8] */
+    gj_v2 ab[2][GJ_NB - 1];
     int dim;
     double *block;              /* the one allocation all arrays below share */
     pb_force f;
@@ -83,8 +87,8 @@ static void *gj_alloc(int dim)
         return NULL;
     w->dim = dim;
     for (int k = 0; k < GJ_NB - 1; k++) {
-        w->ab8[k] = (gj_v2){gj_a[8][k], gj_b[8][k]};
-        w->ab9[k] = (gj_v2){gj_a[9][k], gj_b[9][k]};
+        w->ab[0][k] = (gj_v2){gj_a[8][k], gj_b[8][k]};
+        w->ab[1][k] = (gj_v2){gj_a[9][k], gj_b[9][k]};
     }
     size_t d = (size_t)dim;
     size_t total = d * (4 + 5 * GJ_NB + 6) + 2 * d * (4 + GJ_GBS_COLS) +
@@ -157,22 +161,25 @@ static int gj_start(void *ws, const pb_force *f, const pb_method_config *cfg,
     return PB_OK;
 }
 
-static int gj_eval(gj_ws *w, double t, const double *r, const double *v, double *a)
+/* The force at (t, r, v) into a, refused when not finite; d is w->dim (a
+ * constant in the 3-d step, see gj_step). */
+static PB_STEP_INLINE int gj_eval(gj_ws *w, double t, const double *r, const double *v, double *a,
+                                  const int d)
 {
-    int s = w->f.accel(w->f.ctx, t, r, v, a);
+    int s = w->f.accel(w->f.ctx, t, r, v, a), ok = 1;
     if (s)
         return s;
-    for (int i = 0; i < w->dim; i++)
-        if (!isfinite(a[i]))
-            return PB_ENONFINITE;
-    return PB_OK;
+    PB_UNROLL_COMPONENTS
+    for (int i = 0; i < d; i++)
+        ok &= isfinite(a[i]) != 0;
+    return ok ? PB_OK : PB_ENONFINITE;
 }
 
 /* dy = (v, a(t, r, v)) for y = (r, v) */
 static int gj_deriv(gj_ws *w, double t, const double *y, double *dy)
 {
     memcpy(dy, y + w->dim, (size_t)w->dim * sizeof(double));
-    return gj_eval(w, t, y, y + w->dim, dy + w->dim);
+    return gj_eval(w, t, y, y + w->dim, dy + w->dim, w->dim);
 }
 
 /* One Gragg-Bulirsch-Stoer step of length H (either sign) from (t, y) into y:
@@ -276,7 +283,7 @@ static int gj_startup(gj_ws *w)
         }
     }
     for (j = 0; j < GJ_NB; j++)
-        if ((s = gj_eval(w, gj_time(w, j - 4), w->rb + j * d, w->vb + j * d, w->fw + j * d)))
+        if ((s = gj_eval(w, gj_time(w, j - 4), w->rb + j * d, w->vb + j * d, w->fw + j * d, d)))
             return s;
     for (int it = 0; it < GJ_START_MAXIT; it++) {
         gj_back_sums(w, w->fw);
@@ -302,7 +309,7 @@ static int gj_startup(gj_ws *w)
         }
         for (j = 0; j < GJ_NB; j++)
             if (j != 4 && (s = gj_eval(w, gj_time(w, j - 4), w->rb + j * d, w->vb + j * d,
-                                       w->fw + j * d)))
+                                       w->fw + j * d, d)))
                 return s;
         if (change <= GJ_START_TOL * scale) {
             gj_back_sums(w, w->fw);
@@ -342,7 +349,8 @@ static void gj_partials_d(int d, const double *f, const double *ca, const double
 }
 
 /* The corrector's partial sums (row rc of the coefficients) into pa, pb and
- * the next predictor's (row re) into qa, qb, over the 8 points from f. */
+ * the next predictor's (row re) into qa, qb, over the 8 points from f; rc
+ * and re are 8 or 9, the rows the workspace keeps in pairs. */
 static void gj_partials(const gj_ws *w, const double *f, int rc, double *pa, double *pb, int re,
                         double *qa, double *qb)
 {
@@ -353,7 +361,7 @@ static void gj_partials(const gj_ws *w, const double *f, int rc, double *pa, dou
     /* the common case: for each component, the a and b sums of a row side
      * by side, the component broadcast: 6 pairs of chains, one multiply and
      * one add each a point */
-    const gj_v2 *kc = rc == 8 ? w->ab8 : w->ab9, *ke = re == 8 ? w->ab8 : w->ab9;
+    const gj_v2 *kc = w->ab[rc - 8], *ke = w->ab[re - 8];
     gj_v2 c0 = {0, 0}, c1 = {0, 0}, c2 = {0, 0}, e0 = {0, 0}, e1 = {0, 0}, e2 = {0, 0};
     for (int k = 0; k < GJ_NB - 1; k++) {
         const double *x = f + 3 * k;
@@ -372,14 +380,9 @@ static void gj_partials(const gj_ws *w, const double *f, int rc, double *pa, dou
 static PB_STEP_INLINE int gj_eval_new(gj_ws *w, double t, const double *r, const double *v, double *fa,
                                   const int d)
 {
-    int s = w->f.accel(w->f.ctx, t, r, v, fa), ok = 1;
+    int s = gj_eval(w, t, r, v, fa, d);
     if (s)
         return s;
-    PB_UNROLL_COMPONENTS
-    for (int i = 0; i < d; i++)
-        ok &= isfinite(fa[i]);
-    if (!ok)
-        return PB_ENONFINITE;
     int q = (w->head + GJ_NB) % GJ_RING;
     if (q < GJ_NB - 1) {
         double *mirror = w->ring + (size_t)(q + GJ_RING) * d;
@@ -474,7 +477,7 @@ static PB_STEP_INLINE int gj_step(gj_ws *w, double t1, const int d)
     int ok = 1; /* one branch, not one a component */
     PB_UNROLL_COMPONENTS
     for (i = 0; i < d; i++)
-        ok &= isfinite(w->rc[i]) & isfinite(w->vc[i]);
+        ok &= (isfinite(w->rc[i]) != 0) & (isfinite(w->vc[i]) != 0);
     if (!ok)
         return PB_ENONFINITE;
     w->head = (w->head + 1) % GJ_RING;

@@ -132,7 +132,7 @@ static PB_STEP_INLINE int rk4_step_d(rk4_ws *w, double t, double t1, double h, c
     }
     PB_UNROLL_COMPONENTS
     for (i = 0; i < d; i++)
-        ok &= isfinite(rn[i]) & isfinite(vn[i]);
+        ok &= (isfinite(rn[i]) != 0) & (isfinite(vn[i]) != 0);
     if (!ok)
         return PB_ENONFINITE;
     PB_UNROLL_COMPONENTS
