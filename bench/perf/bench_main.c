@@ -72,7 +72,7 @@ static void bench_goals_rest(const bench_results *r)
 }
 
 /* `bench_main` runs every section; `bench_main hot` only sections 3 and 6
- * (about 15 s), to compare the hot paths across runs or stack layouts. */
+ * (about 10 s), to compare the hot paths across runs or stack layouts. */
 int main(int argc, char **argv)
 {
     int hot_only = argc == 2 && !strcmp(argv[1], "hot");
