@@ -351,7 +351,7 @@ static void gj_partials_d(int d, const double *f, const double *ca, const double
 /* The corrector's partial sums (row rc of the coefficients) into pa, pb and
  * the next predictor's (row re) into qa, qb, over the 8 points from f; rc
  * and re are 8 or 9, the rows the workspace keeps in pairs. */
-static void gj_partials(const gj_ws *w, const double *f, int rc, double *pa, double *pb, int re,
+static PB_STEP_INLINE void gj_partials(const gj_ws *w, const double *f, int rc, double *pa, double *pb, int re,
                         double *qa, double *qb)
 {
     if (w->dim != 3) {
@@ -375,6 +375,13 @@ static void gj_partials(const gj_ws *w, const double *f, int rc, double *pa, dou
     qb[0] = e0[1], qb[1] = e1[1], qb[2] = e2[1];
 }
 
+/* The ring slot outside the window, where the new point's acceleration
+ * goes: (head + GJ_NB) % GJ_RING, without a division. */
+static inline int gj_new_slot(const gj_ws *w)
+{
+    return w->head ? w->head - 1 : GJ_NB;
+}
+
 /* The acceleration at the new point: evaluated into the ring slot outside
  * the window (and its mirror). */
 static PB_STEP_INLINE int gj_eval_new(gj_ws *w, double t, const double *r, const double *v, double *fa,
@@ -383,7 +390,7 @@ static PB_STEP_INLINE int gj_eval_new(gj_ws *w, double t, const double *r, const
     int s = gj_eval(w, t, r, v, fa, d);
     if (s)
         return s;
-    int q = (w->head + GJ_NB) % GJ_RING;
+    int q = gj_new_slot(w);
     if (q < GJ_NB - 1) {
         double *mirror = w->ring + (size_t)(q + GJ_RING) * d;
         PB_UNROLL_COMPONENTS
@@ -448,7 +455,7 @@ static PB_STEP_INLINE int gj_step(gj_ws *w, double t1, const int d)
     int s, i;
     double h = w->cfg.h, h2 = h * h;
     const double *fw = w->ring + (size_t)w->head * d, *fnow = fw + 8 * d;
-    double *fa = w->ring + (size_t)((w->head + GJ_NB) % GJ_RING) * d;
+    double *fa = w->ring + (size_t)gj_new_slot(w) * d;
     if (!w->have_part) {
         gj_partials(w, fw, 9, w->pa, w->pb, 9, w->pan, w->pbn);
         w->have_part = 1;
@@ -480,7 +487,7 @@ static PB_STEP_INLINE int gj_step(gj_ws *w, double t1, const int d)
         ok &= (isfinite(w->rc[i]) != 0) & (isfinite(w->vc[i]) != 0);
     if (!ok)
         return PB_ENONFINITE;
-    w->head = (w->head + 1) % GJ_RING;
+    w->head = w->head == GJ_RING - 1 ? 0 : w->head + 1; /* (head + 1) % GJ_RING */
     gj_swap(&w->s, &w->sn);
     gj_swap(&w->S, &w->Sn);
     /* state n becomes the one a step back, n+1 the current one */
