@@ -41,6 +41,12 @@ int pb_cli_long(const char *verb, const char *opt, const char *s, long *out);
  * reason before the path. */
 int pb_cli_out_path(const char *verb, const char *opt, const char *path, int reserve);
 
+/* An output file's path names a file that can be replaced: not empty, not
+ * ending in '/', and no folder or device standing there (the rename that
+ * writes it would replace it: /dev/null, as root). 0, or -1 after a
+ * message naming opt. */
+int pb_cli_out_file(const char *verb, const char *opt, const char *path);
+
 /* Before a verb writes its run into a default folder (no --out) that holds
  * an earlier run: a note on stderr naming the folder and how to keep it. */
 void pb_cli_note_replacing(const char *verb, const char *dir);

@@ -8,6 +8,7 @@
 #include <string.h>
 #include <unistd.h>
 #include "bench/cli/cli.h"
+#include "bench/store/run_dir.h"
 #include "problems/catalogue.h"
 
 int pb_cli_error(const char *verb, const char *fmt, ...)
@@ -69,6 +70,15 @@ int pb_cli_out_path(const char *verb, const char *opt, const char *path, int res
         }
         p += n;
         p += strspn(p, "/");
+    }
+    return 0;
+}
+
+int pb_cli_out_file(const char *verb, const char *opt, const char *path)
+{
+    if (!path[0] || path[strlen(path) - 1] == '/' || pb_path_blocked(path)) {
+        pb_cli_error(verb, "%s '%s': not a file name (a folder or a device stands there)", opt, path);
+        return -1;
     }
     return 0;
 }

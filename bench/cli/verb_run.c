@@ -27,10 +27,8 @@ static int run_check_out(const char *opt, const char *path)
         slash == dir ? (void)(slash[1] = 0) : (void)(*slash = 0);
     else
         snprintf(dir, sizeof dir, ".");
-    if (path[strlen(path) - 1] == '/' || pb_path_blocked(path)) {
-        pb_cli_error("run", "%s '%s': not a file name", opt, path);
+    if (pb_cli_out_file("run", opt, path))
         return -1;
-    }
     if (access(dir, W_OK | X_OK)) {
         pb_cli_error("run", "%s '%s': cannot write in the folder %s: %s", opt, path, dir,
                      strerror(errno));

@@ -369,11 +369,8 @@ static int select_out_path(const select_options *o, const pb_problem *p, char *p
         snprintf(path, len, "%s", o->out);
     else
         snprintf(path, len, "results/runs/select-%s.json", p->name);
-    /* the JSON replaces its file by a rename, which would put a plain file
-     * where a folder or a device (/dev/null, run as root) stands */
-    if (!path[0] || path[strlen(path) - 1] == '/' || pb_path_blocked(path))
-        return pb_cli_error("select", "--out '%s': not a file name (a folder or a device stands there)",
-                            path);
+    if (pb_cli_out_file("select", "--out", path))
+        return PB_EXIT_USAGE;
     char dir[4096];
     snprintf(dir, sizeof dir, "%s", path);
     char *slash = strrchr(dir, '/');
