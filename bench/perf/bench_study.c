@@ -10,6 +10,7 @@
 #include <sys/wait.h>
 #include <unistd.h>
 #include "bench/perf/bench.h"
+#include "bench/store/run_swap.h"
 
 #define STUDY_BIN "build/propbench"
 
@@ -43,18 +44,6 @@ static int study_scratch(char *dir, size_t n)
     return mkdtemp(dir) ? 0 : -1;
 }
 
-static void study_remove(const char *dir)
-{
-    fflush(NULL);
-    pid_t pid = fork();
-    if (pid == 0) {
-        execlp("rm", "rm", "-rf", dir, (char *)NULL);
-        _exit(127);
-    }
-    if (pid > 0)
-        waitpid(pid, NULL, 0);
-}
-
 int bench_study(double *leo_cold, double *leo_warm, double *k05, double *suite_warm)
 {
     *leo_cold = *leo_warm = *k05 = *suite_warm = (double)NAN;
@@ -85,6 +74,6 @@ int bench_study(double *leo_cold, double *leo_warm, double *k05, double *suite_w
     double suite_cold = study_cpu(std, 1);
     *suite_warm = study_cpu(std, 1);
     printf("   sweep --suite standard -j 2 --repeats 0: cold %.1f, warm %.1f\n\n", suite_cold, *suite_warm);
-    study_remove(dir);
+    pb_rm_tree(dir);
     return 0;
 }
