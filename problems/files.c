@@ -1,4 +1,5 @@
 /* files.c - file-system helpers shared by every layer (see files.h). */
+#include <dirent.h>
 #include <errno.h>
 #include <fcntl.h>
 #include <limits.h>
@@ -115,4 +116,28 @@ const char *pb_link_target(const char *path, char *buf)
     if (lstat(path, &st) || !S_ISLNK(st.st_mode))
         return path;
     return realpath(path, buf) ? buf : NULL;
+}
+
+int pb_rm_tree(const char *path)
+{
+    struct stat st;
+    if (lstat(path, &st))
+        return errno == ENOENT ? 0 : -1;
+    if (!S_ISDIR(st.st_mode))
+        return unlink(path);
+    DIR *d = opendir(path);
+    if (!d)
+        return -1;
+    int rc = 0;
+    struct dirent *e;
+    char sub[4400];
+    while ((e = readdir(d)))
+        if (strcmp(e->d_name, ".") && strcmp(e->d_name, "..")) {
+            if ((size_t)snprintf(sub, sizeof sub, "%s/%s", path, e->d_name) >= sizeof sub)
+                rc = -1;
+            else if (pb_rm_tree(sub))
+                rc = -1;
+        }
+    closedir(d);
+    return rmdir(path) ? -1 : rc;
 }

@@ -11,6 +11,10 @@
  * exists but is not a directory, or mkdir's own. */
 int pb_mkdirs(const char *path);
 
+/* rm -rf: remove path and everything below it (symbolic links are removed,
+ * not followed); 0, or -1 when something could not be removed. */
+int pb_rm_tree(const char *path);
+
 /* Open an input file for reading, refusing anything but a regular file: a
  * folder, a FIFO (whose open would wait for a writer), a device such as
  * /dev/zero (endless) or a socket. The open itself does not block. The

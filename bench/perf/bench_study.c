@@ -10,7 +10,7 @@
 #include <sys/wait.h>
 #include <unistd.h>
 #include "bench/perf/bench.h"
-#include "bench/store/run_swap.h"
+#include "problems/files.h"
 
 #define STUDY_BIN "build/propbench"
 

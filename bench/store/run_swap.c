@@ -19,30 +19,6 @@
 #define RENAME_EXCHANGE (1 << 1) /* linux/fs.h */
 #endif
 
-int pb_rm_tree(const char *path)
-{
-    struct stat st;
-    if (lstat(path, &st))
-        return errno == ENOENT ? 0 : -1;
-    if (!S_ISDIR(st.st_mode))
-        return unlink(path);
-    DIR *d = opendir(path);
-    if (!d)
-        return -1;
-    int rc = 0;
-    struct dirent *e;
-    char sub[4400];
-    while ((e = readdir(d)))
-        if (strcmp(e->d_name, ".") && strcmp(e->d_name, "..")) {
-            if ((size_t)snprintf(sub, sizeof sub, "%s/%s", path, e->d_name) >= sizeof sub)
-                rc = -1;
-            else if (pb_rm_tree(sub))
-                rc = -1;
-        }
-    closedir(d);
-    return rmdir(path) ? -1 : rc;
-}
-
 static int swap_exists(const char *path)
 {
     struct stat st;

@@ -49,8 +49,5 @@ void pb_run_out_discard(pb_run_out *o);
  * remove the lock file. Safe to call more than once. */
 void pb_run_out_close(pb_run_out *o);
 
-/* Remove a folder and everything below it (symbolic links are removed, not
- * followed); 0 or -1. */
-int pb_rm_tree(const char *path);
 
 #endif
