@@ -27,11 +27,8 @@ int pb_write_atomic(const char *path, const char *data, size_t len)
      * stays (a link that names nothing is refused: ENOENT) */
     char target[PATH_MAX], tmp[4200];
     struct stat st;
-    if (!lstat(path, &st) && S_ISLNK(st.st_mode)) {
-        if (!realpath(path, target))
-            return -1;
-        path = target;
-    }
+    if (!(path = pb_link_target(path, target)))
+        return -1;
     /* a rename would replace a folder's or a device's name (/dev/null, as
      * root) with a plain file: refused, whoever the caller */
     if (!stat(path, &st) && !S_ISREG(st.st_mode)) {
