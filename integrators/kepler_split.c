@@ -330,7 +330,8 @@ static void ks_get_stats(const void *ws, pb_method_stats *st)
         .description = DESC,                                                         \
         .source = SRC,                                                               \
         .order = ORDER,                                                              \
-        .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_KEPLER, \
+        .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND | PB_KIND_KEPLER |  \
+                 PB_KIND_KEPLER_EXACT,                                               \
         .alloc = ks_alloc,                                                           \
         .start = NAME##_start,                                                       \
         .advance = ks_advance,                                                       \

@@ -392,7 +392,7 @@ static void tt_get_stats(const void *ws, pb_method_stats *st)
         .source = SRC,                                                          \
         .order = ORDER,                                                         \
         .flags = PB_KIND_FIXED | PB_KIND_SYMPLECTIC | PB_FORM_SECOND |          \
-                 PB_KIND_KEPLER | PB_KIND_COMPENSABLE,                          \
+                 PB_KIND_KEPLER | PB_KIND_COMPENSABLE | PB_KIND_REGULARIZED,    \
         .alloc = tt_alloc,                                                      \
         .start = CNAME##_start,                                                 \
         .advance = tt_advance,                                                  \

@@ -46,6 +46,11 @@ void pb_method_expected_error(const pb_method_type *m, double e, double *steps_o
  * a(r) only, so it cannot take a velocity-dependent force; a method built
  * around the Kepler flow (PB_KIND_KEPLER) needs a central -mu r/|r|^3 term. */
 int pb_method_fits(const pb_method_type *m, const pb_problem *p);
+/* 1 when m's map is p's exact flow, whatever the step: a splitting around
+ * the Kepler drift (PB_KIND_KEPLER | PB_KIND_KEPLER_EXACT) on a pure
+ * two-body problem, where the perturbation it splits off is zero. Its error
+ * there is round-off. */
+int pb_method_exact_on(const pb_method_type *m, const pb_problem *p);
 /* 0 when m fits p, else -1 with every reason it does not in err, naming the
  * method and the problem (the message of a refused case). */
 int pb_method_fit_error(const pb_method_type *m, const pb_problem *p, char *err, size_t errlen);

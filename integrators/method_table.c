@@ -194,6 +194,12 @@ int pb_method_fits(const pb_method_type *m, const pb_problem *p)
     return !((m->flags & PB_FORM_SECOND) && p->velocity_dependent);
 }
 
+int pb_method_exact_on(const pb_method_type *m, const pb_problem *p)
+{
+    unsigned both = PB_KIND_KEPLER | PB_KIND_KEPLER_EXACT;
+    return (m->flags & both) == both && p->force == PB_FORCE_TWO_BODY && pb_method_fits(m, p);
+}
+
 int pb_method_fit_error(const pb_method_type *m, const pb_problem *p, char *err, size_t errlen)
 {
     int no_mu = (m->flags & PB_KIND_KEPLER) && pb_problem_kepler_mu(p) <= 0;

@@ -1,8 +1,9 @@
 /* test_suites.c - the standard suite's contents (issue 16 item 4): it keeps
- * every built-in problem and every method that fits each, at three settings,
- * and caps the horizon of a problem whose finest fixed step would spend
- * more than 2e5 steps over it, down to no fewer than 3 orbits
- * (kepler-e0.99: 3 orbits, kepler-e0.9: 25, not 100). */
+ * every built-in problem and every method that fits each, at three settings
+ * (one for a Kepler-flow splitting map on a pure two-body problem, where its
+ * map is the exact flow), and caps the horizon of a problem whose finest
+ * fixed step would spend more than 1e5 steps over it, down to no fewer than
+ * 3 orbits (kepler-e0.99: 3 orbits, kepler-e0.9: 12, molniya-like: 50). */
 #include <criterion/criterion.h>
 #include <jansson.h>
 #include <stdio.h>
@@ -36,12 +37,83 @@ Test(suites, standard_keeps_every_problem_and_method)
     for (const pb_problem_entry *e = pb_problem_table; e->name; e++) {
         pb_problem p;
         cr_assert_eq(e->make(&p), 0);
-        int fit = 0, n;
-        for (const pb_method_type *const *m = pb_method_table; *m; m++)
+        int fit = 0, exact = 0, n;
+        for (const pb_method_type *const *m = pb_method_table; *m; m++) {
             fit += pb_method_fits(*m, &p);
+            exact += pb_method_exact_on(*m, &p);
+        }
         std_orbits(&l, p.name, &n);
-        cr_assert_eq(n, 3 * fit, "%s: %d cases for %d methods", p.name, n, fit);
+        cr_assert_eq(n, 3 * fit - 2 * exact, "%s: %d cases for %d methods, %d exact", p.name, n, fit, exact);
+        /* the five splitting maps on every pure two-body problem (the
+         * hyperbolic one too: their drift is the universal-variable flow),
+         * on no other */
+        int pure = p.force == PB_FORCE_TWO_BODY;
+        cr_assert_eq(exact, pure ? 5 : 0, "%s: %d methods exact", p.name, exact);
     }
+    pb_case_list_free(&l);
+}
+
+/* An exact method keeps the suite's coarsest step: kepler-split8 on
+ * kepler-e0.5 once, at the rung rk4 starts from; on leo-j2 (a J2 term to
+ * split off) at all three. */
+Test(suites, exact_methods_run_once_at_the_coarsest_step)
+{
+    pb_case_list l = {0, 0, NULL};
+    cr_assert_eq(pb_suite_expand("standard", &l), 0);
+    int split_e05 = 0, split_j2 = 0, split_step = 0, rk4_min = 0;
+    for (int i = 0; i < l.n; i++) {
+        const pb_case_spec *c = &l.cases[i];
+        int split = !strcmp(c->method->name, "kepler-split8");
+        if (!strcmp(c->problem.name, "kepler-e0.5")) {
+            if (split) {
+                split_e05++;
+                split_step = c->steps_per_orbit;
+            }
+            if (!strcmp(c->method->name, "rk4") && (!rk4_min || c->steps_per_orbit < rk4_min))
+                rk4_min = c->steps_per_orbit;
+        }
+        split_j2 += split && !strcmp(c->problem.name, "leo-j2");
+    }
+    cr_expect_eq(split_e05, 1);
+    cr_expect_eq(split_step, rk4_min);
+    cr_expect_eq(split_j2, 3);
+    pb_case_list_free(&l);
+}
+
+/* A regularized method (PB_KIND_REGULARIZED: the -tt compositions and
+ * gauss-jackson8-s) steps as on a circular orbit, 50, 100 and 200 steps an
+ * orbit, on every problem; the others on kepler-e0.99 at the periapsis
+ * ladder, 50,000 to 200,000, over the same 3 orbits. */
+Test(suites, regularized_methods_step_as_on_a_circle)
+{
+    pb_case_list l = {0, 0, NULL};
+    cr_assert_eq(pb_suite_expand("standard", &l), 0);
+    int nreg = 0, nother = 0;
+    for (int i = 0; i < l.n; i++) {
+        const pb_case_spec *c = &l.cases[i];
+        if (!(c->method->flags & PB_KIND_FIXED))
+            continue;
+        if (c->method->flags & PB_KIND_REGULARIZED) {
+            nreg++;
+            cr_expect(c->steps_per_orbit == 50 || c->steps_per_orbit == 100 || c->steps_per_orbit == 200,
+                      "%s on %s: %d steps an orbit", c->method->name, c->problem.name, c->steps_per_orbit);
+        } else if (!strcmp(c->problem.name, "kepler-e0.99")) {
+            nother++;
+            cr_expect(c->steps_per_orbit >= 50000, "%s: %d", c->method->name, c->steps_per_orbit);
+            cr_expect_eq(c->orbits, 3.0);
+        }
+    }
+    /* three steps for each problem a regularized method fits */
+    int fits = 0;
+    for (const pb_problem_entry *e = pb_problem_table; e->name; e++) {
+        pb_problem p;
+        cr_assert_eq(e->make(&p), 0);
+        for (const pb_method_type *const *m = pb_method_table; *m; m++)
+            fits += ((*m)->flags & PB_KIND_REGULARIZED) && pb_method_fits(*m, &p);
+    }
+    cr_expect_gt(fits, 5);
+    cr_expect_eq(nreg, 3 * fits);
+    cr_expect_gt(nother, 0);
     pb_case_list_free(&l);
 }
 
@@ -50,18 +122,19 @@ Test(suites, standard_horizons)
     pb_case_list l = {0, 0, NULL};
     cr_assert_eq(pb_suite_expand("standard", &l), 0);
     int n;
-    /* e = 0.99: 50,000 to 200,000 steps an orbit; 2e5 / 200,000 = 1 orbit,
-     * raised to the least, 3 */
+    /* e = 0.99: 50,000 to 200,000 steps an orbit; 1e5 / 200,000 = 0.5
+     * orbit, raised to the least, 3 */
     cr_assert_eq(std_orbits(&l, "kepler-e0.99", &n), 3.0);
-    /* e = 0.9 at 2,000 to 8,000 steps an orbit: 2e5 / 8,000 = 25 orbits */
-    cr_assert_eq(std_orbits(&l, "kepler-e0.9", &n), 25.0);
-    /* the others keep up to 100 orbits (molniya-like at 2,000: exactly 2e5) */
+    /* e = 0.9 at 2,000 to 8,000 steps an orbit: 1e5 / 8,000 = 12.5, 12 orbits */
+    cr_assert_eq(std_orbits(&l, "kepler-e0.9", &n), 12.0);
+    /* molniya-like at 500 to 2,000: 1e5 / 2,000 = 50 orbits */
+    cr_assert_eq(std_orbits(&l, "molniya-like", &n), 50.0);
+    /* the others keep up to 100 orbits (kepler-e0.5 at 200 to 800: 8e4 steps) */
     cr_assert_eq(std_orbits(&l, "kepler-e0.5", &n), 100.0);
-    cr_assert_eq(std_orbits(&l, "molniya-like", &n), 100.0);
     for (int i = 0; i < l.n; i++) {
         const pb_case_spec *c = &l.cases[i];
         if (c->steps_per_orbit > 0 && c->orbits > 3)
-            cr_assert(c->steps_per_orbit * c->orbits <= 2e5 + 0.5, "%s %s: %d steps/orbit x %g orbits",
+            cr_assert(c->steps_per_orbit * c->orbits <= 1e5 + 0.5, "%s %s: %d steps/orbit x %g orbits",
                       c->problem.name, c->method->name, c->steps_per_orbit, c->orbits);
         cr_assert_eq(c->timing_min_cpu_s, 0.02, "%s %s: timing pass", c->problem.name, c->method->name);
     }

@@ -1,7 +1,8 @@
 /* suites.c - the built-in sweep suites, and the default every case spec
  * starts from.
  * quick: every method on two problems at two resolutions (CI, < 60 s);
- * standard: every method on every built-in problem at three resolutions. */
+ * standard: every method on every built-in problem at three resolutions
+ * (one where the method is exact: see suite_add_problem). */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -29,25 +30,43 @@ void pb_case_list_free(pb_case_list *list)
     list->n = list->cap = 0;
 }
 
+/* How the standard suite tailors a problem's fixed steps to a method:
+ * exact_once, a method whose map is the problem's exact flow
+ * (pb_method_exact_on) runs at the coarsest step alone, its error being
+ * round-off whatever the step (finer steps cost six times as much and show
+ * no order); steps_regularized (NULL: none), the steps of a method that
+ * steps in a regularizing variable (PB_KIND_REGULARIZED), which do not
+ * scale with the periapsis (at the periapsis ladder's 50,000 an orbit on
+ * kepler-e0.99 such methods sat at round-off; at 100 to 400 they show
+ * their orders). */
+typedef struct suite_tailoring {
+    int exact_once;
+    const int *steps_regularized;
+} suite_tailoring;
+
 /* Add every compatible method on problem p at the given resolutions, timed
- * for repeats and at least timing_min_cpu_s (0: the default). */
+ * for repeats and at least timing_min_cpu_s (0: the default), tailored by
+ * tl (NULL: the same steps for every fixed-step method). */
 static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int *steps, int nsteps,
                              const double *tols, int ntols, double orbits, int repeats,
-                             double timing_min_cpu_s)
+                             double timing_min_cpu_s, const suite_tailoring *tl)
 {
     for (const pb_method_type *const *t = pb_method_table; *t; t++) {
         const pb_method_type *m = *t;
         if (!pb_method_fits(m, p))
             continue;
         int fixed = (m->flags & PB_KIND_FIXED) != 0;
-        int nv = fixed ? nsteps : ntols;
+        int exact = tl && tl->exact_once && pb_method_exact_on(m, p);
+        int nv = fixed ? (exact ? 1 : nsteps) : ntols;
+        const int *msteps = tl && tl->steps_regularized && (m->flags & PB_KIND_REGULARIZED)
+                                ? tl->steps_regularized : steps;
         for (int j = 0; j < nv; j++) {
             pb_case_spec s;
             pb_case_spec_default(&s);
             s.problem = *p;
             s.method = m;
             if (fixed)
-                s.steps_per_orbit = steps[j];
+                s.steps_per_orbit = msteps[j];
             else
                 s.tolerance = tols[j];
             if (p->period > 0 && (orbits > 0 || p->default_orbits > 0))
@@ -70,15 +89,16 @@ static int suite_quick(pb_case_list *list)
     static const double tols[] = {1e-8, 1e-10};
     pb_problem p;
     if (pb_problem_lookup("kepler-e0.6", &p) ||
-        suite_add_problem(list, &p, steps_kepler, 2, tols, 2, 100, 1, 0))
+        suite_add_problem(list, &p, steps_kepler, 2, tols, 2, 100, 1, 0, NULL))
         return -1;
     if (pb_problem_lookup("leo-near-circular", &p) ||
-        suite_add_problem(list, &p, steps_leo, 2, tols, 2, 16, 1, 0))
+        suite_add_problem(list, &p, steps_leo, 2, tols, 2, 16, 1, 0, NULL))
         return -1;
     return 0;
 }
 
-#define SUITE_MAX_STEPS 2e5   /* standard suite: steps of the finest fixed step over the horizon */
+#define SUITE_MAX_STEPS 1e5   /* standard suite: steps of the finest fixed step over the horizon */
+#define SUITE_STEPS_CIRCULAR 50 /* standard suite: the coarsest fixed step, in steps an orbit, at e = 0 */
 #define SUITE_MIN_ORBITS 3.0  /* ... but never fewer orbits than this: three periapsis passes */
 /* The standard suite's timing pass: at least its 3 repeats and this much CPU
  * time a case (a run's default is 0.2 s; select's answers take 0.002 s). Its
@@ -104,7 +124,7 @@ static int suite_standard(pb_case_list *list)
         /* the step must resolve periapsis, where the local time scale is
          * (1 - e)^1.5 of the period: 50 steps per such time, rounded up to
          * 1, 2 or 5 times a power of ten */
-        double want = 50.0 * pow(fmax(1.0 - ecc, 1e-3), -1.5);
+        double want = SUITE_STEPS_CIRCULAR * pow(fmax(1.0 - ecc, 1e-3), -1.5);
         double dec = pow(10.0, floor(log10(want)));
         int base = (int)(want <= dec ? dec : want <= 2 * dec ? 2 * dec : want <= 5 * dec ? 5 * dec : 10 * dec);
         /* without a Kepler orbit there is no periapsis scale to size the step
@@ -115,12 +135,17 @@ static int suite_standard(pb_case_list *list)
         double orbits = p.period > 0 ? fmin(p.default_orbits > 0 ? p.default_orbits : 100, 100) : 0;
         /* the horizon spends at most SUITE_MAX_STEPS of the finest fixed step,
          * where the suite's time went, but no fewer than SUITE_MIN_ORBITS:
-         * kepler-e0.9 (2,000 to 8,000 steps an orbit) runs 25 orbits, and
-         * kepler-e0.99 (50,000 to 200,000) 3, so 600,000; every other
-         * problem keeps its horizon (at most 200,000 such steps) */
+         * kepler-e0.9 (2,000 to 8,000 steps an orbit) runs 12 orbits,
+         * molniya-like and gto-transfer (500 to 2,000) 50, and kepler-e0.99
+         * (50,000 to 200,000) 3, so 600,000; every other problem keeps its
+         * horizon (at most 100,000 such steps) */
         if (orbits > 0 && 4.0 * base * orbits > SUITE_MAX_STEPS)
             orbits = fmax(floor(SUITE_MAX_STEPS / (4.0 * base)), SUITE_MIN_ORBITS);
-        if (suite_add_problem(list, &p, steps, 3, tols, 3, orbits, 3, SUITE_TIMING_MIN_CPU_S))
+        /* a regularized method's steps: those of a circular orbit, since
+         * its steps fall equally in eccentric anomaly */
+        int steps_reg[3] = {SUITE_STEPS_CIRCULAR, 2 * SUITE_STEPS_CIRCULAR, 4 * SUITE_STEPS_CIRCULAR};
+        suite_tailoring tl = {1, p.keplerian ? steps_reg : NULL};
+        if (suite_add_problem(list, &p, steps, 3, tols, 3, orbits, 3, SUITE_TIMING_MIN_CPU_S, &tl))
             return -1;
     }
     return 0;
@@ -132,8 +157,10 @@ static const suite_entry suite_table[] = {
     {"quick", suite_quick, "every method on kepler-e0.6 (100 orbits) and leo-near-circular (16 orbits), "
                            "2 resolutions each; for CI, under a minute on 2 cores"},
     {"standard", suite_standard, "every method on every built-in problem, 3 resolutions, "
-                                 "steps scaled to resolve periapsis, horizon up to 100 orbits (3 for kepler-e0.99, 25 for "
-                                 "kepler-e0.9), timing pass 0.02 s a case"},
+                                 "steps scaled to resolve periapsis, horizon up to 100 orbits (3 for kepler-e0.99, 12 for "
+                                 "kepler-e0.9, 50 for molniya-like and gto-transfer), the Kepler-flow "
+                                 "splitting maps at one step on pure two-body problems (exact there), "
+                                 "timing pass 0.02 s a case"},
     {NULL, NULL, NULL}
 };
 

@@ -35,8 +35,16 @@ enum {
     PB_FORM_SECOND      = 1u << 4, /* sees r, v, a(r): needs a velocity-independent force */
     PB_KIND_COMPENSABLE = 1u << 5, /* honours cfg->compensated */
     PB_FROM_GSL         = 1u << 6, /* GSL's stepper, wrapped */
-    PB_KIND_KEPLER      = 1u << 7  /* built around the Kepler flow of cfg->mu: needs a
+    PB_KIND_KEPLER      = 1u << 7, /* built around the Kepler flow of cfg->mu: needs a
                                     * force that is -mu r/|r|^3 plus a perturbation */
+    PB_KIND_KEPLER_EXACT = 1u << 8, /* with PB_KIND_KEPLER: the map is the exact Kepler
+                                    * flow when the perturbation is zero (a splitting
+                                    * around the Kepler drift), so on a pure two-body
+                                    * problem its error is round-off at any step */
+    PB_KIND_REGULARIZED = 1u << 9  /* steps equal in a regularizing variable (dt
+                                    * proportional to r: equal steps in eccentric
+                                    * anomaly on a Kepler orbit), so the steps an orbit
+                                    * needs do not grow with its eccentricity */
 };
 
 /* The force as a method sees it: a(t, r, v) through an opaque context.
