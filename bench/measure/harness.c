@@ -477,6 +477,18 @@ static int harness_plan(const pb_case_spec *spec, double horizon, pb_sample_plan
                                 horizon, pb_case_scale(spec), plan);
 }
 
+void pb_case_truth_warm(const pb_case_spec *spec)
+{
+    pb_sample_plan plan;
+    pb_truth *truth = NULL;
+    if (!spec->problem.exact_q || spec->max_steps > 0 ||
+        harness_plan(spec, pb_case_horizon(spec), &plan))
+        return;
+    if (pb_truth_build(&spec->problem, plan.t, plan.n, NULL, &truth) == PB_OK)
+        pb_truth_free(truth);
+    pb_sample_plan_free(&plan);
+}
+
 int pb_case_run(const pb_case_spec *spec, pb_case_result *res)
 {
     memset(res, 0, sizeof *res);

@@ -38,6 +38,12 @@ double pb_case_fixed_steps(const pb_case_spec *spec);
  * spec, no memory, truth failed). Owner: the caller frees with
  * pb_case_result_free; spec is borrowed. */
 int pb_case_run(const pb_case_spec *spec, pb_case_result *res);
+/* Build the exact truth spec's run will compare against, so that the
+ * process (and the workers it forks after) finds it in truth.c's memo;
+ * nothing for a problem without an exact solution, or a case whose sample
+ * times depend on its run (a step limit). Cheap to call for every case of
+ * a sweep: cases that share a problem, horizon and samples share one. */
+void pb_case_truth_warm(const pb_case_spec *spec);
 void pb_case_result_free(pb_case_result *res);
 
 /* The timing pass alone of a case whose metric pass already ran and took

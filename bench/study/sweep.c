@@ -464,6 +464,10 @@ int pb_sweep_run(const pb_case_list *list, pb_run_out *out, const pb_sweep_optio
     snprintf(s.work, sizeof s.work, "%s/.work.%ld", s.dir, (long)s.parent);
     int rc = -1;
     if (sweep_prepare(&s) == 0) {
+        /* the exact truths the cases share, built once here for every
+         * worker rather than once in each */
+        for (int k = 0; k < s.nmine && !sweep_stop; k++)
+            pb_case_truth_warm(&list->cases[s.mine[k]]);
         sweep_loop(&s);
         rc = sweep_stop ? sweep_abandon(&s) : sweep_finish(&s);
     }
