@@ -32,8 +32,10 @@ static int memo_matches_exact(const pb_truth *tr, const pb_problem *p, const dou
     return 1;
 }
 
-static void memo_times(const pb_problem *p, double *t)
+/* The named problem and MEMO_N sample times over its first 36.5 orbits. */
+static void memo_problem(const char *name, pb_problem *p, double *t)
 {
+    cr_assert_eq(pb_problem_lookup(name, p), PB_OK);
     for (int k = 0; k < MEMO_N; k++)
         t[k] = p->t0 + (k + 1) * 7.3 * p->period;
 }
@@ -41,9 +43,8 @@ static void memo_times(const pb_problem *p, double *t)
 Test(truth_memo, a_second_build_is_the_exact_solution)
 {
     pb_problem p;
-    cr_assert_eq(pb_problem_lookup("kepler-e0.6", &p), PB_OK);
     double t[MEMO_N];
-    memo_times(&p, t);
+    memo_problem("kepler-e0.6", &p, t);
     pb_truth *a = NULL, *b = NULL;
     cr_assert_eq(pb_truth_build(&p, t, MEMO_N, NULL, &a), PB_OK);
     cr_assert_eq(pb_truth_build(&p, t, MEMO_N, NULL, &b), PB_OK);
@@ -57,9 +58,8 @@ Test(truth_memo, a_second_build_is_the_exact_solution)
 Test(truth_memo, a_shifted_copy_leaves_the_memo_as_built)
 {
     pb_problem p;
-    cr_assert_eq(pb_problem_lookup("kepler-e0.5", &p), PB_OK);
     double t[MEMO_N];
-    memo_times(&p, t);
+    memo_problem("kepler-e0.5", &p, t);
     pb_truth *a = NULL, *b = NULL;
     cr_assert_eq(pb_truth_build(&p, t, MEMO_N, NULL, &a), PB_OK);
     pb_truth_shift(a, MEMO_N - 1, t[MEMO_N - 1], -1e-9, &p);
@@ -75,9 +75,8 @@ Test(truth_memo, a_shifted_copy_leaves_the_memo_as_built)
 Test(truth_memo, one_ulp_apart_is_another_truth)
 {
     pb_problem p;
-    cr_assert_eq(pb_problem_lookup("kepler-e0.9", &p), PB_OK);
     double t[MEMO_N];
-    memo_times(&p, t);
+    memo_problem("kepler-e0.9", &p, t);
     pb_truth *tr = NULL;
     cr_assert_eq(pb_truth_build(&p, t, MEMO_N, NULL, &tr), PB_OK);
     pb_truth_free(tr);
