@@ -406,4 +406,56 @@ Test(review, summary_marks_a_win_by_construction, .timeout = 120)
     char *hit = strstr(sum, "kepler-split2 n=100");
     cr_expect(hit && strstr(hit, "by construction"), "no note beside kepler-split2's win");
     free(html);
+    snprintf(path, sizeof path, "%s/report.md", run);
+    char *md = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(md);
+    hit = strstr(md, "kepler-split2 n=100");
+    cr_expect(hit && strstr(hit, "exact by construction"), "report.md: no note beside kepler-split2");
+    free(md);
+}
+
+/* A regularized method (yoshida6-tt) that wins the levels is not exact: its
+ * error is its own (in time along the Kepler ellipse), so no note. */
+Test(review, summary_notes_no_construction_for_a_regularized_win, .timeout = 120)
+{
+    char dir[256], run[300], path[340], o[4096], e[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    const char *sw[] = {"sweep", "--problems", "kepler-e0.5", "--methods", "yoshida6-tt,rk4",
+                        "--steps-per-orbit", "100", "--orbits", "2", "--repeats", "0", "--quiet",
+                        "--out", run, NULL};
+    cr_assert_eq(pbt_run_cli(sw, o, sizeof o, e, sizeof e), 0, "%s", e);
+    const char *rp[] = {"report", run, "--no-plots", "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(rp, o, sizeof o, e, sizeof e), 0, "%s", e);
+    snprintf(path, sizeof path, "%s/report.html", run);
+    char *html = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(html);
+    char *sum = strstr(html, "id=\"summary\""), *end = sum ? strstr(sum, "</section>") : NULL;
+    cr_assert(sum && end);
+    *end = 0;
+    cr_expect(strstr(sum, "yoshida6-tt n=100"), "yoshida6-tt does not win a level");
+    cr_expect(!strstr(sum, "by construction"), "a note beside a method that is not exact");
+    free(html);
+}
+
+/* The standard suite runs kepler-split2 on kepler-e0.5 at one step: the
+ * convergence figure draws no slope line from that one point (it would
+ * suggest an error law an exact map does not have), and draws rk4's. */
+Test(review, convergence_has_no_slope_from_one_step, .timeout = 120)
+{
+    char dir[256], run[300], path[340], o[4096], e[4096];
+    pbt_tmpdir(dir, sizeof dir);
+    snprintf(run, sizeof run, "%s/run", dir);
+    const char *sw[] = {"sweep", "--suite", "standard", "--problems", "kepler-e0.5", "--methods",
+                        "kepler-split2,rk4", "--repeats", "0", "--quiet", "--out", run, NULL};
+    cr_assert_eq(pbt_run_cli(sw, o, sizeof o, e, sizeof e), 0, "%s", e);
+    const char *rp[] = {"report", run, "--quiet", NULL};
+    cr_assert_eq(pbt_run_cli(rp, o, sizeof o, e, sizeof e), 0, "%s", e);
+    snprintf(path, sizeof path, "%s/plots/kepler-e0.5-convergence.gp", run);
+    char *gp = pbt_slurp_file(path, NULL);
+    cr_assert_not_null(gp);
+    /* rk4's order is 4, kepler-split2's 2; the figure's panels each draw rk4's */
+    cr_expect(strstr(gp, "title 'slope 4'"), "no slope line for rk4");
+    cr_expect(!strstr(gp, "title 'slope 2'"), "a slope line from kepler-split2's one step");
+    free(gp);
 }

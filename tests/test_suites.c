@@ -1,7 +1,7 @@
 /* test_suites.c - the standard suite's contents (issue 16 item 4): it keeps
  * every built-in problem and every method that fits each, at three settings
  * (one for a Kepler-flow splitting map on a pure two-body problem, where its
- * map is the exact flow), and caps the horizon of a problem whose finest
+ * map is the exact flow; regularized methods by eccentric anomaly), and caps the horizon of a problem whose finest
  * fixed step would spend more than 1e5 steps over it, down to no fewer than
  * 3 orbits (kepler-e0.99: 3 orbits, kepler-e0.9: 12, molniya-like: 50). */
 #include <criterion/criterion.h>
@@ -53,70 +53,6 @@ Test(suites, standard_keeps_every_problem_and_method)
     pb_case_list_free(&l);
 }
 
-/* An exact method keeps the suite's coarsest step: kepler-split8 on
- * kepler-e0.5 once, at the rung rk4 starts from; on leo-j2 (a J2 term to
- * split off) at all three. */
-Test(suites, exact_methods_run_once_at_the_coarsest_step)
-{
-    pb_case_list l = {0, 0, NULL};
-    cr_assert_eq(pb_suite_expand("standard", &l), 0);
-    int split_e05 = 0, split_j2 = 0, split_step = 0, rk4_min = 0;
-    for (int i = 0; i < l.n; i++) {
-        const pb_case_spec *c = &l.cases[i];
-        int split = !strcmp(c->method->name, "kepler-split8");
-        if (!strcmp(c->problem.name, "kepler-e0.5")) {
-            if (split) {
-                split_e05++;
-                split_step = c->steps_per_orbit;
-            }
-            if (!strcmp(c->method->name, "rk4") && (!rk4_min || c->steps_per_orbit < rk4_min))
-                rk4_min = c->steps_per_orbit;
-        }
-        split_j2 += split && !strcmp(c->problem.name, "leo-j2");
-    }
-    cr_expect_eq(split_e05, 1);
-    cr_expect_eq(split_step, rk4_min);
-    cr_expect_eq(split_j2, 3);
-    pb_case_list_free(&l);
-}
-
-/* A regularized method (PB_KIND_REGULARIZED: the -tt compositions and
- * gauss-jackson8-s) steps as on a circular orbit, 50, 100 and 200 steps an
- * orbit, on every problem; the others on kepler-e0.99 at the periapsis
- * ladder, 50,000 to 200,000, over the same 3 orbits. */
-Test(suites, regularized_methods_step_as_on_a_circle)
-{
-    pb_case_list l = {0, 0, NULL};
-    cr_assert_eq(pb_suite_expand("standard", &l), 0);
-    int nreg = 0, nother = 0;
-    for (int i = 0; i < l.n; i++) {
-        const pb_case_spec *c = &l.cases[i];
-        if (!(c->method->flags & PB_KIND_FIXED))
-            continue;
-        if (c->method->flags & PB_KIND_REGULARIZED) {
-            nreg++;
-            cr_expect(c->steps_per_orbit == 50 || c->steps_per_orbit == 100 || c->steps_per_orbit == 200,
-                      "%s on %s: %d steps an orbit", c->method->name, c->problem.name, c->steps_per_orbit);
-        } else if (!strcmp(c->problem.name, "kepler-e0.99")) {
-            nother++;
-            cr_expect(c->steps_per_orbit >= 50000, "%s: %d", c->method->name, c->steps_per_orbit);
-            cr_expect_eq(c->orbits, 3.0);
-        }
-    }
-    /* three steps for each problem a regularized method fits */
-    int fits = 0;
-    for (const pb_problem_entry *e = pb_problem_table; e->name; e++) {
-        pb_problem p;
-        cr_assert_eq(e->make(&p), 0);
-        for (const pb_method_type *const *m = pb_method_table; *m; m++)
-            fits += ((*m)->flags & PB_KIND_REGULARIZED) && pb_method_fits(*m, &p);
-    }
-    cr_expect_gt(fits, 5);
-    cr_expect_eq(nreg, 3 * fits);
-    cr_expect_gt(nother, 0);
-    pb_case_list_free(&l);
-}
-
 Test(suites, standard_horizons)
 {
     pb_case_list l = {0, 0, NULL};
@@ -138,6 +74,74 @@ Test(suites, standard_horizons)
                       c->problem.name, c->method->name, c->steps_per_orbit, c->orbits);
         cr_assert_eq(c->timing_min_cpu_s, 0.02, "%s %s: timing pass", c->problem.name, c->method->name);
     }
+    pb_case_list_free(&l);
+}
+
+/* An exact method runs once, at the first of the steps a method stepping by
+ * eccentric anomaly takes (100 an orbit): kepler-split8 on kepler-e0.99
+ * once, at 100, not at the periapsis ladder's 50,000; on leo-j2 (a J2 term
+ * to split off) at all three of the ladder's steps, like rk4. */
+Test(suites, exact_methods_run_once)
+{
+    pb_case_list l = {0, 0, NULL};
+    cr_assert_eq(pb_suite_expand("standard", &l), 0);
+    int split_e99 = 0, split_step = 0, split_j2 = 0, split_j2_rk4_steps = 0;
+    for (int i = 0; i < l.n; i++) {
+        const pb_case_spec *c = &l.cases[i];
+        int split = !strcmp(c->method->name, "kepler-split8");
+        if (split && !strcmp(c->problem.name, "kepler-e0.99")) {
+            split_e99++;
+            split_step = c->steps_per_orbit;
+        }
+        if (split && !strcmp(c->problem.name, "leo-j2")) {
+            split_j2++;
+            for (int j = 0; j < l.n; j++)
+                split_j2_rk4_steps += !strcmp(l.cases[j].problem.name, "leo-j2") &&
+                                      !strcmp(l.cases[j].method->name, "rk4") &&
+                                      l.cases[j].steps_per_orbit == c->steps_per_orbit;
+        }
+    }
+    cr_expect_eq(split_e99, 1);
+    cr_expect_eq(split_step, 100);
+    cr_expect_eq(split_j2, 3);
+    cr_expect_eq(split_j2_rk4_steps, 3);
+    pb_case_list_free(&l);
+}
+
+/* A regularized method (PB_KIND_REGULARIZED: the -tt compositions and
+ * gauss-jackson8-s) steps 100, 200 and 400 times an orbit on every
+ * problem; the others on kepler-e0.99 at the periapsis ladder, 50,000 to
+ * 200,000, over the same 3 orbits. */
+Test(suites, regularized_methods_step_by_anomaly)
+{
+    pb_case_list l = {0, 0, NULL};
+    cr_assert_eq(pb_suite_expand("standard", &l), 0);
+    int nreg = 0, nother = 0;
+    for (int i = 0; i < l.n; i++) {
+        const pb_case_spec *c = &l.cases[i];
+        if (!(c->method->flags & PB_KIND_FIXED))
+            continue;
+        if (c->method->flags & PB_KIND_REGULARIZED) {
+            nreg++;
+            cr_expect(c->steps_per_orbit == 100 || c->steps_per_orbit == 200 || c->steps_per_orbit == 400,
+                      "%s on %s: %d steps an orbit", c->method->name, c->problem.name, c->steps_per_orbit);
+        } else if (!strcmp(c->problem.name, "kepler-e0.99") && !pb_method_exact_on(c->method, &c->problem)) {
+            nother++;
+            cr_expect(c->steps_per_orbit >= 50000, "%s: %d", c->method->name, c->steps_per_orbit);
+            cr_expect_eq(c->orbits, 3.0);
+        }
+    }
+    /* three steps for each problem a regularized method fits */
+    int fits = 0;
+    for (const pb_problem_entry *e = pb_problem_table; e->name; e++) {
+        pb_problem p;
+        cr_assert_eq(e->make(&p), 0);
+        for (const pb_method_type *const *m = pb_method_table; *m; m++)
+            fits += ((*m)->flags & PB_KIND_REGULARIZED) && pb_method_fits(*m, &p);
+    }
+    cr_expect_gt(fits, 5);
+    cr_expect_eq(nreg, 3 * fits);
+    cr_expect_gt(nother, 0);
     pb_case_list_free(&l);
 }
 

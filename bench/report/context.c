@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "bench/report/context.h"
+#include "integrators/method.h"
 #include "problems/catalogue.h"
 #include "problems/forces.h"
 #include "problems/twobody.h"
@@ -267,4 +268,11 @@ int pb_report_growth_case(const pb_report_run *run, const pb_report_problem *p, 
             done = i;
     }
     return plain >= 0 ? plain : done;
+}
+
+int pb_report_exact_by_construction(const char *method, const char *problem)
+{
+    const pb_method_type *m = pb_method_find(method);
+    pb_problem p;
+    return m && pb_problem_lookup(problem, &p) == PB_OK && pb_method_exact_on(m, &p);
 }

@@ -44,6 +44,12 @@ void pb_report_levels(const pb_report_problem *p, double lv[PB_REPORT_NLEVELS], 
  * evaluations whose largest position error is at most level; -1 if none. */
 int pb_report_cheapest(const pb_report_run *run, const pb_report_problem *p, double level);
 
+/* 1 when the named method's map is the named built-in problem's exact
+ * flow (pb_method_exact_on: a Kepler-flow splitting map on a pure two-body
+ * problem), so that its error is round-off whatever its step and the
+ * standard suite runs it at one step; the summaries say so beside it. */
+int pb_report_exact_by_construction(const char *method, const char *problem);
+
 /* Per method slot m of p: the case whose growth classes represent it (its
  * finest plain-ok case, else its finest finished one); -1 if none. */
 int pb_report_growth_case(const pb_report_run *run, const pb_report_problem *p, int m);

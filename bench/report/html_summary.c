@@ -8,20 +8,6 @@
 #include "bench/report/context.h"
 #include "bench/report/html.h"
 #include "bench/report/table.h"
-#include "integrators/method.h"
-#include "problems/catalogue.h"
-
-/* A method built around the Kepler flow (kepler-split*, leapfrog-tt's
- * family) on a built-in problem with no force but the central one: its
- * answer is exact, or exact in shape, by construction, and says nothing of
- * how it does on a perturbed orbit. */
-static int sum_by_construction(const char *method, const char *problem)
-{
-    const pb_method_type *m = pb_method_find(method);
-    pb_problem p;
-    return m && (m->flags & PB_KIND_KEPLER) && pb_problem_lookup(problem, &p) == PB_OK
-           && p.force == PB_FORCE_TWO_BODY;
-}
 
 static void sum_case(FILE *f, const pb_report_case *c, const char *len_unit, const char *problem)
 {
@@ -34,9 +20,10 @@ static void sum_case(FILE *f, const pb_report_case *c, const char *len_unit, con
     fprintf(f, "</td><td>%ld</td><td>%.3e %s", c->evals, c->pos_max, len_unit);
     if (!strcmp(len_unit, "km"))
         fprintf(f, " (%.3g m)", 1e3 * c->pos_max);
-    if (sum_by_construction(c->method, problem))
-        fputs(" (by construction: this method follows the Kepler flow, the whole force "
-              "here; see a perturbed problem)", f);
+    if (pb_report_exact_by_construction(c->method, problem))
+        fputs(" (by construction: this method's map is the Kepler flow, the whole force "
+              "here, so its error is round-off at any step and the standard suite runs it "
+              "at one; see a perturbed problem)", f);
     fputs("</td>", f);
 }
 

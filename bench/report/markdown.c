@@ -48,7 +48,10 @@ static void md_summary(FILE *f, const pb_report_view *v)
             char set[64];
             pb_report_case_setting(&v->run->cases[i], set, sizeof set);
             md_cell(f, v->run->cases[i].method);
-            fprintf(f, " %s (%ld evaluations)", set, v->run->cases[i].evals);
+            fprintf(f, " %s (%ld evaluations%s)", set, v->run->cases[i].evals,
+                    pb_report_exact_by_construction(v->run->cases[i].method, p->name)
+                        ? "; exact by construction: its map is the Kepler flow, the whole force here"
+                        : "");
         }
         pb_report_select sel;
         pb_report_select_find(v->run_dir, p->name, &sel);

@@ -30,18 +30,20 @@ void pb_case_list_free(pb_case_list *list)
     list->n = list->cap = 0;
 }
 
-/* How the standard suite tailors a problem's fixed steps to a method:
- * exact_once, a method whose map is the problem's exact flow
- * (pb_method_exact_on) runs at the coarsest step alone, its error being
- * round-off whatever the step (finer steps cost six times as much and show
- * no order); steps_regularized (NULL: none), the steps of a method that
- * steps in a regularizing variable (PB_KIND_REGULARIZED), which do not
- * scale with the periapsis (at the periapsis ladder's 50,000 an orbit on
- * kepler-e0.99 such methods sat at round-off; at 100 to 400 they show
- * their orders). */
+/* How the standard suite tailors a problem's fixed steps to a method, by
+ * steps_anomaly (NULL: no tailoring), steps that fall equally in eccentric
+ * anomaly would need: a circular orbit's, which do not scale with the
+ * periapsis. A method that steps in a regularizing variable
+ * (PB_KIND_REGULARIZED) takes all three: at the periapsis ladder's 50,000
+ * to 200,000 an orbit on kepler-e0.99 such methods sat at round-off, at
+ * 100 to 400 they show their orders (at 50, leapfrog-tt's error passed a
+ * tenth of the orbit and gauss-jackson8-s diverged there and on heo-moon).
+ * A method whose map is the problem's exact flow (pb_method_exact_on) runs
+ * once, at the first: its error is round-off whatever the step, so finer
+ * steps would cost more and show no order, and at the periapsis ladder's
+ * coarsest it would spend 1,000 times the evaluations for the same error. */
 typedef struct suite_tailoring {
-    int exact_once;
-    const int *steps_regularized;
+    const int *steps_anomaly;
 } suite_tailoring;
 
 /* Add every compatible method on problem p at the given resolutions, timed
@@ -56,10 +58,10 @@ static int suite_add_problem(pb_case_list *list, const pb_problem *p, const int 
         if (!pb_method_fits(m, p))
             continue;
         int fixed = (m->flags & PB_KIND_FIXED) != 0;
-        int exact = tl && tl->exact_once && pb_method_exact_on(m, p);
+        const int *anomaly = tl ? tl->steps_anomaly : NULL;
+        int exact = anomaly && pb_method_exact_on(m, p);
         int nv = fixed ? (exact ? 1 : nsteps) : ntols;
-        const int *msteps = tl && tl->steps_regularized && (m->flags & PB_KIND_REGULARIZED)
-                                ? tl->steps_regularized : steps;
+        const int *msteps = anomaly && (exact || (m->flags & PB_KIND_REGULARIZED)) ? anomaly : steps;
         for (int j = 0; j < nv; j++) {
             pb_case_spec s;
             pb_case_spec_default(&s);
@@ -99,6 +101,7 @@ static int suite_quick(pb_case_list *list)
 
 #define SUITE_MAX_STEPS 1e5   /* standard suite: steps of the finest fixed step over the horizon */
 #define SUITE_STEPS_CIRCULAR 50 /* standard suite: the coarsest fixed step, in steps an orbit, at e = 0 */
+#define SUITE_STEPS_ANOMALY 100 /* ... and of the methods that step by eccentric anomaly (suite_tailoring) */
 #define SUITE_MIN_ORBITS 3.0  /* ... but never fewer orbits than this: three periapsis passes */
 /* The standard suite's timing pass: at least its 3 repeats and this much CPU
  * time a case (a run's default is 0.2 s; select's answers take 0.002 s). Its
@@ -141,10 +144,8 @@ static int suite_standard(pb_case_list *list)
          * horizon (at most 100,000 such steps) */
         if (orbits > 0 && 4.0 * base * orbits > SUITE_MAX_STEPS)
             orbits = fmax(floor(SUITE_MAX_STEPS / (4.0 * base)), SUITE_MIN_ORBITS);
-        /* a regularized method's steps: those of a circular orbit, since
-         * its steps fall equally in eccentric anomaly */
-        int steps_reg[3] = {SUITE_STEPS_CIRCULAR, 2 * SUITE_STEPS_CIRCULAR, 4 * SUITE_STEPS_CIRCULAR};
-        suite_tailoring tl = {1, p.keplerian ? steps_reg : NULL};
+        int steps_anomaly[3] = {SUITE_STEPS_ANOMALY, 2 * SUITE_STEPS_ANOMALY, 4 * SUITE_STEPS_ANOMALY};
+        suite_tailoring tl = {p.keplerian ? steps_anomaly : NULL};
         if (suite_add_problem(list, &p, steps, 3, tols, 3, orbits, 3, SUITE_TIMING_MIN_CPU_S, &tl))
             return -1;
     }
@@ -158,8 +159,9 @@ static const suite_entry suite_table[] = {
                            "2 resolutions each; for CI, under a minute on 2 cores"},
     {"standard", suite_standard, "every method on every built-in problem, 3 resolutions, "
                                  "steps scaled to resolve periapsis, horizon up to 100 orbits (3 for kepler-e0.99, 12 for "
-                                 "kepler-e0.9, 50 for molniya-like and gto-transfer), the Kepler-flow "
-                                 "splitting maps at one step on pure two-body problems (exact there), "
+                                 "kepler-e0.9, 50 for molniya-like and gto-transfer), regularized methods at 100 to 400 "
+                                 "steps an orbit, the Kepler-flow splitting maps once at 100 on pure "
+                                 "two-body problems (exact there), "
                                  "timing pass 0.02 s a case"},
     {NULL, NULL, NULL}
 };
