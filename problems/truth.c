@@ -101,6 +101,7 @@ typedef struct truth_memo_entry {
 
 static truth_memo_entry truth_memo[TRUTH_MEMO_MAX];
 static int truth_memo_next; /* the entry the next one replaces */
+static long truth_memo_hits, truth_memo_misses;
 static pthread_mutex_t truth_memo_lock = PTHREAD_MUTEX_INITIALIZER;
 
 static void truth_key_of(const pb_problem *p, truth_key *k)
@@ -129,8 +130,20 @@ static pb_truth *truth_memo_find(const pb_problem *p, const double *times, int n
             (n == 0 || !memcmp(e->times, times, (size_t)n * sizeof *times)))
             got = truth_copy(e->tr);
     }
+    if (got)
+        truth_memo_hits++;
+    else
+        truth_memo_misses++;
     pthread_mutex_unlock(&truth_memo_lock);
     return got;
+}
+
+void pb_truth_memo_counts(long *hits, long *misses)
+{
+    pthread_mutex_lock(&truth_memo_lock);
+    *hits = truth_memo_hits;
+    *misses = truth_memo_misses;
+    pthread_mutex_unlock(&truth_memo_lock);
 }
 
 /* Keep a copy of tr, built for p at times (nothing kept when memory is short). */

@@ -24,5 +24,8 @@ int pb_truth_is_exact(const pb_truth *tr);
  * a dt^2/2, v += a dt; the error, O(dt^3), is far below any floor. */
 void pb_truth_shift(pb_truth *tr, int k, double t, double dt, const pb_problem *p);
 void pb_truth_free(pb_truth *tr); /* accepts NULL */
+/* How many exact truths this process's builds found in its memo (hits)
+ * and computed (misses), for tests and diagnostics (see truth.c). */
+void pb_truth_memo_counts(long *hits, long *misses);
 
 #endif

@@ -8,6 +8,8 @@
 #include <math.h>
 #include <quadmath.h>
 #include <string.h>
+#include <sys/wait.h>
+#include <unistd.h>
 #include "bench/measure/harness.h"
 #include "bench/measure/case.h"
 #include "problems/catalogue.h"
@@ -46,8 +48,13 @@ Test(truth_memo, a_second_build_is_the_exact_solution)
     double t[MEMO_N];
     memo_problem("kepler-e0.6", &p, t);
     pb_truth *a = NULL, *b = NULL;
+    long hits, misses;
     cr_assert_eq(pb_truth_build(&p, t, MEMO_N, NULL, &a), PB_OK);
+    pb_truth_memo_counts(&hits, &misses);
+    cr_expect(hits == 0 && misses == 1, "%ld hits, %ld misses", hits, misses);
     cr_assert_eq(pb_truth_build(&p, t, MEMO_N, NULL, &b), PB_OK);
+    pb_truth_memo_counts(&hits, &misses);
+    cr_expect(hits == 1 && misses == 1, "%ld hits, %ld misses: the second build missed", hits, misses);
     cr_assert_neq(a, b); /* a copy each: the caller owns and may shift it */
     cr_expect(memo_matches_exact(a, &p, t, MEMO_N));
     cr_expect(memo_matches_exact(b, &p, t, MEMO_N));
@@ -70,8 +77,9 @@ Test(truth_memo, a_shifted_copy_leaves_the_memo_as_built)
     pb_truth_free(b);
 }
 
-/* mu, an initial component and one time each moved by an ulp after the
- * first problem's truth is in the memo: each build is its own problem's */
+/* mu, an initial component, one time and the revolving orbit's gamma each
+ * moved by an ulp after the first truth is in the memo: each build is its
+ * own problem's */
 Test(truth_memo, one_ulp_apart_is_another_truth)
 {
     pb_problem p;
@@ -102,13 +110,29 @@ Test(truth_memo, one_ulp_apart_is_another_truth)
     cr_expect(memo_matches_exact(tr, &p, u, MEMO_N));
     cr_expect(!memo_matches_exact(tr, &p, t, MEMO_N));
     pb_truth_free(tr);
+    /* the revolving orbit's exact solution reads its force's gamma */
+    pb_problem rv, rw;
+    double tv[MEMO_N];
+    memo_problem("revolving-e0.5", &rv, tv);
+    cr_assert_eq(pb_truth_build(&rv, tv, MEMO_N, NULL, &tr), PB_OK);
+    pb_truth_free(tr);
+    rw = rv;
+    rw.forces.inverse_cube_gamma = nextafter(rv.forces.inverse_cube_gamma, INFINITY);
+    cr_assert_eq(pb_truth_build(&rw, tv, MEMO_N, NULL, &tr), PB_OK);
+    cr_expect(memo_matches_exact(tr, &rw, tv, MEMO_N));
+    cr_expect(!memo_matches_exact(tr, &rv, tv, MEMO_N));
+    pb_truth_free(tr);
+    /* six builds, six problems or time sets: no hit */
+    long hits, misses;
+    pb_truth_memo_counts(&hits, &misses);
+    cr_expect(hits == 0 && misses == 6, "%ld hits, %ld misses", hits, misses);
 }
 
-/* What the sweep's parent does before it forks, pb_case_truth_warm, and a
- * run after it: the first run builds its truth (the memo was empty: each
- * test is a process of its own), the second measures against the memo's
- * copy, with the same position error to the bit. */
-Test(truth_memo, a_warmed_case_runs_as_a_cold_one)
+/* What the sweep's parent does before it forks: pb_case_truth_warm builds
+ * the case's truth (each test is a process of its own: the memo starts
+ * empty), and the run after it finds it there and measures the same error
+ * to the bit as a second process's run that had to build it (a fork). */
+Test(truth_memo, a_warmed_case_finds_its_truth)
 {
     pb_case_spec s;
     pb_case_spec_default(&s);
@@ -118,12 +142,28 @@ Test(truth_memo, a_warmed_case_runs_as_a_cold_one)
     s.steps_per_orbit = 40;
     s.orbits = 3;
     s.repeats = 0;
-    pb_case_result cold, warm;
-    cr_assert_eq(pb_case_run(&s, &cold), PB_OK);
+    int fd[2];
+    cr_assert_eq(pipe(fd), 0);
+    pid_t pid = fork();
+    cr_assert_geq(pid, 0);
+    if (pid == 0) {
+        /* a cold run: nothing warmed, the truth built in the run */
+        pb_case_result r;
+        double e = pb_case_run(&s, &r) == PB_OK ? r.pos_err_max : -1;
+        _exit(write(fd[1], &e, sizeof e) == (ssize_t)sizeof e ? 0 : 1);
+    }
+    double cold = -2;
+    cr_assert_eq(read(fd[0], &cold, sizeof cold), (ssize_t)sizeof cold);
+    waitpid(pid, NULL, 0);
+    long hits, misses;
     pb_case_truth_warm(&s);
+    pb_truth_memo_counts(&hits, &misses);
+    cr_expect(hits == 0 && misses == 1, "warm: %ld hits, %ld misses", hits, misses);
+    pb_case_result warm;
     cr_assert_eq(pb_case_run(&s, &warm), PB_OK);
-    cr_expect_eq(cold.pos_err_max, warm.pos_err_max);
-    cr_expect_gt(cold.pos_err_max, 0);
-    pb_case_result_free(&cold);
+    pb_truth_memo_counts(&hits, &misses);
+    cr_expect(hits == 1 && misses == 1, "run after the warm: %ld hits, %ld misses", hits, misses);
+    cr_expect_gt(cold, 0);
+    cr_expect_eq(warm.pos_err_max, cold);
     pb_case_result_free(&warm);
 }
