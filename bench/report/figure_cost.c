@@ -14,6 +14,7 @@ static int gp_cost_panel(FILE *f, FILE *pre, int xk, const pb_report_problem *p,
                          int id, const unsigned char *mpick)
 {
     int nplot = 0;
+    double xlo = INFINITY, xhi = 0; /* the panel's x extent */
     char *list = NULL;
     size_t nlist = 0;
     FILE *fl = open_memstream(&list, &nlist);
@@ -32,6 +33,8 @@ static int gp_cost_panel(FILE *f, FILE *pre, int xk, const pb_report_problem *p,
             double x = xk == 0 ? (double)c->evals : xk == 1 ? c->h : c->cpu_s;
             if (!(x > 0) || !isfinite(x) || (xk == 1 && !c->fixed))
                 continue;
+            xlo = fmin(xlo, x);
+            xhi = fmax(xhi, x);
             char set[64];
             pb_report_case_setting(c, set, sizeof set);
             mi = i;
@@ -70,7 +73,13 @@ static int gp_cost_panel(FILE *f, FILE *pre, int xk, const pb_report_problem *p,
             fprintf(f, "set xlabel '%s'\n", xl[xk]);
         else
             fprintf(f, "set xlabel 'step h [%s]'\n", p->time_unit);
+        /* every point at one x (the exact maps, each run at one step): a
+         * range around it, where gnuplot would warn of an empty one */
+        if (!(xhi > xlo))
+            fprintf(f, "set xrange [%.9g:%.9g]\n", xlo / 2, xlo * 2);
         fprintf(f, "plot %s\n", list);
+        if (!(xhi > xlo))
+            fputs("set autoscale x\n", f);
     } else if (xk == 2) {
         /* keep the panel: the next plot of a multiplot would take its place */
         fputs("unset key\nset label 2 'CPU time not measured (run with --repeats 0?)' at graph 0.5,0.5 center\n"
