@@ -30,18 +30,19 @@ void pb_case_list_free(pb_case_list *list)
     list->n = list->cap = 0;
 }
 
-/* How the standard suite tailors a problem's fixed steps to a method, by
- * steps_anomaly (NULL: no tailoring), steps that fall equally in eccentric
- * anomaly would need: a circular orbit's, which do not scale with the
- * periapsis. A method that steps in a regularizing variable
- * (PB_KIND_REGULARIZED) takes all three: at the periapsis ladder's 50,000
- * to 200,000 an orbit on kepler-e0.99 such methods sat at round-off, at
- * 100 to 400 they show their orders (at 50, leapfrog-tt's error passed a
- * tenth of the orbit and gauss-jackson8-s diverged there and on heo-moon).
- * A method whose map is the problem's exact flow (pb_method_exact_on) runs
- * once, at the first: its error is round-off whatever the step, so finer
- * steps would cost more and show no order, and at the periapsis ladder's
- * coarsest it would spend 1,000 times the evaluations for the same error. */
+/* How the standard suite tailors a problem's fixed steps to a method.
+ * steps_anomaly (NULL: no tailoring) are the three steps an orbit of a
+ * method whose steps fall equally in eccentric anomaly: the same whatever
+ * the eccentricity, since a sharper periapsis needs no more of them. A
+ * method that steps in a regularizing variable (PB_KIND_REGULARIZED) takes
+ * all three: at the periapsis ladder's 50,000 to 200,000 an orbit on
+ * kepler-e0.99 such methods sat at round-off, at 100 to 400 they show
+ * their orders (at 50, leapfrog-tt's error passed a tenth of the orbit and
+ * gauss-jackson8-s diverged there and on heo-moon). A method whose map is
+ * the problem's exact flow (pb_method_exact_on) runs once, at the first:
+ * its error is round-off whatever the step, so finer steps would cost more
+ * and show no order, and the periapsis ladder's coarsest step (50,000 an
+ * orbit on kepler-e0.99) would spend 500 times the evaluations for it. */
 typedef struct suite_tailoring {
     const int *steps_anomaly;
 } suite_tailoring;
