@@ -382,16 +382,16 @@ Test(review, select_answer_and_requirement_from_the_folder)
     free(w);
 }
 
-/* On a problem whose whole force is the central one, a method built around
- * the Kepler flow (kepler-split2: its drifts are that flow) wins the
- * summary's error levels by construction; the summary says so beside it,
- * and not beside rk4. */
-Test(review, summary_marks_a_win_by_construction, .timeout = 120)
+/* Sweep methods on kepler-e0.5 at 100 steps an orbit for 2 orbits into
+ * run (a folder under a fresh scratch folder), report it without figures
+ * and return report.html, cut after its summary section, whose start is
+ * *sum (the caller frees the returned text). */
+static char *review_summary_of(const char *methods, char *run, size_t n, char **sum)
 {
-    char dir[256], run[300], path[340], o[4096], e[4096];
+    char dir[256], path[340], o[4096], e[4096];
     pbt_tmpdir(dir, sizeof dir);
-    snprintf(run, sizeof run, "%s/run", dir);
-    const char *sw[] = {"sweep", "--problems", "kepler-e0.5", "--methods", "kepler-split2,rk4",
+    snprintf(run, n, "%s/run", dir);
+    const char *sw[] = {"sweep", "--problems", "kepler-e0.5", "--methods", methods,
                         "--steps-per-orbit", "100", "--orbits", "2", "--repeats", "0", "--quiet",
                         "--out", run, NULL};
     cr_assert_eq(pbt_run_cli(sw, o, sizeof o, e, sizeof e), 0, "%s", e);
@@ -400,9 +400,21 @@ Test(review, summary_marks_a_win_by_construction, .timeout = 120)
     snprintf(path, sizeof path, "%s/report.html", run);
     char *html = pbt_slurp_file(path, NULL);
     cr_assert_not_null(html);
-    char *sum = strstr(html, "id=\"summary\""), *end = sum ? strstr(sum, "</section>") : NULL;
-    cr_assert(sum && end);
+    char *s = strstr(html, "id=\"summary\""), *end = s ? strstr(s, "</section>") : NULL;
+    cr_assert(s && end);
     *end = 0;
+    *sum = s;
+    return html;
+}
+
+/* On a problem whose whole force is the central one, a Kepler-flow
+ * splitting map (kepler-split2: its map is that flow) wins the summary's
+ * error levels by construction; both summaries say so beside it, and not
+ * beside rk4. */
+Test(review, summary_marks_a_win_by_construction, .timeout = 120)
+{
+    char run[300], path[340], *sum;
+    char *html = review_summary_of("kepler-split2,rk4", run, sizeof run, &sum);
     char *hit = strstr(sum, "kepler-split2 n=100");
     cr_expect(hit && strstr(hit, "by construction"), "no note beside kepler-split2's win");
     free(html);
@@ -418,21 +430,8 @@ Test(review, summary_marks_a_win_by_construction, .timeout = 120)
  * error is its own (in time along the Kepler ellipse), so no note. */
 Test(review, summary_notes_no_construction_for_a_regularized_win, .timeout = 120)
 {
-    char dir[256], run[300], path[340], o[4096], e[4096];
-    pbt_tmpdir(dir, sizeof dir);
-    snprintf(run, sizeof run, "%s/run", dir);
-    const char *sw[] = {"sweep", "--problems", "kepler-e0.5", "--methods", "yoshida6-tt,rk4",
-                        "--steps-per-orbit", "100", "--orbits", "2", "--repeats", "0", "--quiet",
-                        "--out", run, NULL};
-    cr_assert_eq(pbt_run_cli(sw, o, sizeof o, e, sizeof e), 0, "%s", e);
-    const char *rp[] = {"report", run, "--no-plots", "--quiet", NULL};
-    cr_assert_eq(pbt_run_cli(rp, o, sizeof o, e, sizeof e), 0, "%s", e);
-    snprintf(path, sizeof path, "%s/report.html", run);
-    char *html = pbt_slurp_file(path, NULL);
-    cr_assert_not_null(html);
-    char *sum = strstr(html, "id=\"summary\""), *end = sum ? strstr(sum, "</section>") : NULL;
-    cr_assert(sum && end);
-    *end = 0;
+    char run[300], *sum;
+    char *html = review_summary_of("yoshida6-tt,rk4", run, sizeof run, &sum);
     cr_expect(strstr(sum, "yoshida6-tt n=100"), "yoshida6-tt does not win a level");
     cr_expect(!strstr(sum, "by construction"), "a note beside a method that is not exact");
     free(html);
