@@ -78,11 +78,11 @@ static pb_truth *truth_copy(const pb_truth *a)
  * the exact truths it built, keyed by what they depend on: the problem's
  * exact solution, its constants and initial state, its forces (by their
  * 64-bit hash, as the reference cache keys them) and the times, compared
- * in full. The sweep's parent
- * builds each problem's before it forks its workers (pb_truth_build on the
- * plan a case will make), which then find it. References are not kept: they
- * come from the reference cache, and a parent building them would build
- * them one after another instead of in its workers side by side. */
+ * in full. The sweep's parent builds each problem's before it forks its
+ * workers (pb_case_truth_warm: pb_truth_build on the plan a case will
+ * make), which then find it. References are not kept: they come from the
+ * reference cache, and a parent building them would build them one after
+ * another instead of in its workers side by side. */
 #define TRUTH_MEMO_MAX 64
 
 typedef struct truth_key {
