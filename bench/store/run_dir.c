@@ -17,7 +17,10 @@
 int pb_path_blocked(const char *path)
 {
     struct stat st;
-    return !stat(path, &st) && !S_ISREG(st.st_mode);
+    if (stat(path, &st) || S_ISREG(st.st_mode))
+        return 0;
+    errno = S_ISDIR(st.st_mode) ? EISDIR : EPERM;
+    return 1;
 }
 
 int pb_write_atomic(const char *path, const char *data, size_t len)
@@ -26,15 +29,12 @@ int pb_write_atomic(const char *path, const char *data, size_t len)
      * names is replaced, by a rename in that file's own folder, and the link
      * stays (a link that names nothing is refused: ENOENT) */
     char target[PATH_MAX], tmp[4200];
-    struct stat st;
     if (!(path = pb_link_target(path, target)))
         return -1;
     /* a rename would replace a folder's or a device's name (/dev/null, as
      * root) with a plain file: refused, whoever the caller */
-    if (!stat(path, &st) && !S_ISREG(st.st_mode)) {
-        errno = S_ISDIR(st.st_mode) ? EISDIR : EPERM;
+    if (pb_path_blocked(path))
         return -1;
-    }
     /* never cut: a shortened name would be another file */
     if (snprintf(tmp, sizeof tmp, "%s.tmp.%ld", path, (long)getpid()) >= (int)sizeof tmp) {
         errno = ENAMETOOLONG;

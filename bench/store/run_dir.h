@@ -12,7 +12,8 @@
 #include "problems/files.h"  /* pb_mkdirs */
 
 /* 1 if something that is not a plain file stands at path (a folder, say),
- * so no file can be written there; 0 if it is absent or a plain file. */
+ * so no file can be written there, with errno EISDIR for a folder and
+ * EPERM otherwise; 0 if it is absent or a plain file. */
 int pb_path_blocked(const char *path);
 
 /* Write len bytes to path through path.tmp.<pid> + rename; 0 or -1 (errno

@@ -49,5 +49,4 @@ void pb_run_out_discard(pb_run_out *o);
  * remove the lock file. Safe to call more than once. */
 void pb_run_out_close(pb_run_out *o);
 
-
 #endif
