@@ -274,9 +274,12 @@ Test(forces_ephemeris, step_fit_matches_series)
  * rounding (l ~ 8e3 rad at T = 1: 1e-12 rad, 4e-7 km at the Moon; 1e-5 km
  * at the Sun); the smallest term, 11" in the Moon's latitude, is 20 km: a
  * slip in any term fails by far more than the 2e-6 and 1e-4 km allowed. */
+/* pi to long double precision (M_PI is a double) */
+#define EPH_PI_L 3.141592653589793238462643383279502884L
+
 static void eph_direct_moon(long double days, long double *s)
 {
-    long double T = days / 36525.0L, d = M_PI / 180.0L, as = M_PI / 648000.0L;
+    long double T = days / 36525.0L, d = EPH_PI_L / 180.0L, as = EPH_PI_L / 648000.0L;
     long double L0 = (218.31617L + 481267.88088L * T - 1.3972L * T) * d;
     long double l = (134.96292L + 477198.86753L * T) * d, lp = (357.52543L + 35999.04944L * T) * d;
     long double F = (93.27283L + 483202.01873L * T) * d, D = (297.85027L + 445267.11135L * T) * d;
@@ -302,7 +305,7 @@ static void eph_direct_moon(long double days, long double *s)
 
 static void eph_direct_sun(long double days, long double *s)
 {
-    long double T = days / 36525.0L, d = M_PI / 180.0L, as = M_PI / 648000.0L;
+    long double T = days / 36525.0L, d = EPH_PI_L / 180.0L, as = EPH_PI_L / 648000.0L;
     long double M = (357.5256L + 35999.049L * T) * d;
     long double lon = 282.9400L * d + M + (6892 * sinl(M) + 72 * sinl(2 * M)) * as;
     long double dist = (149.619L - 2.499L * cosl(M) - 0.021L * cosl(2 * M)) * 1e6L;
